@@ -1,0 +1,414 @@
+"""The ``hcfplan`` command line: parse, call ``planning``, print, set the exit code.
+
+Exit codes: 0 success; 1 a run that did not succeed (solver fault; partial result saved);
+2 bad input (one line on stderr naming the key, no traceback).
+Heavy modules (scipy, CoolProp, numba, matplotlib) are imported inside the commands so that
+``hcfplan --help`` starts quickly.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import sys
+from pathlib import Path
+from typing import Optional
+
+import typer
+
+from .errors import HcfplanError
+
+app = typer.Typer(
+    add_completion=False,
+    no_args_is_help=True,
+    pretty_exceptions_enable=False,
+    rich_markup_mode=None,
+    help="Plan pulse compression in gas-filled hollow-core fibers and the THz it drives.",
+)
+
+SET_HELP = "Override one config value, e.g. --set gas.pressure_bar=3 (repeatable)."
+JSON_HELP = "Print machine-readable JSON (SI values, unit in the key name)."
+
+
+# ---------------------------------------------------------------------------------------------
+# output helpers
+
+
+def _echo(text: str = "") -> None:
+    typer.echo(text)
+
+
+def _json_default(value):
+    import numpy as np
+
+    if isinstance(value, np.ndarray):
+        return value.tolist()
+    if isinstance(value, (np.floating, np.integer, np.bool_)):
+        return value.item()
+    if isinstance(value, Path):
+        return str(value)
+    raise TypeError(f"not JSON serialisable: {type(value).__name__}")
+
+
+def _clean(value):
+    """Replace non-finite floats by None (JSON has no NaN)."""
+    if isinstance(value, float) and not math.isfinite(value):
+        return None
+    if isinstance(value, dict):
+        return {k: _clean(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_clean(v) for v in value]
+    return value
+
+
+def _print_json(data) -> None:
+    typer.echo(json.dumps(_clean(data), indent=2, default=_json_default))
+
+
+def _fmt(value, scale: float = 1.0, digits: int = 4) -> str:
+    if value is None:
+        return "-"
+    if isinstance(value, float) and not math.isfinite(value):
+        return "n/a"
+    return f"{value / scale:.{digits}g}"
+
+
+def _print_rows(rows: list[tuple[str, str, str]]) -> None:
+    width = max(len(r[0]) for r in rows)
+    for label, value, note in rows:
+        _echo(f"  {label:<{width}}  {value}{('   ' + note) if note else ''}")
+
+
+def _print_cautions(topics=("estimates", "pressure", "laser", "gas")) -> None:
+    from .cautions import caution_lines
+
+    _echo()
+    _echo("Cautions:")
+    for line in caution_lines(topics):
+        _echo(f"  ! {line}")
+
+
+def _print_warnings(warnings) -> None:
+    if warnings:
+        _echo()
+        _echo("Warnings:")
+        for w in warnings:
+            _echo(f"  - {w}")
+
+
+def _load(config: Path, overrides: list[str]):
+    import os
+
+    from .io.config import load_config
+    from .materials.gases import gas_search_dirs
+
+    dirs = gas_search_dirs(environ=os.environ)
+    return load_config(config, overrides=overrides or (), extra_gas_dirs=dirs)
+
+
+# ---------------------------------------------------------------------------------------------
+# gas
+
+
+@app.command("gas")
+def gas_command(
+    name: str = typer.Argument(..., help="Gas table name, e.g. Ar, Ne, N2, air."),
+    pressure_bar: float = typer.Option(1.0, "--pressure-bar", help="Fill pressure (absolute)."),
+    temperature_k: float = typer.Option(293.15, "--temperature-k", help="Gas temperature."),
+    wavelength_nm: Optional[list[float]] = typer.Option(  # noqa: UP007 (typer needs Optional)
+        None, "--wavelength-nm", help="Wavelength(s) to evaluate (repeatable); default 800, 1030."
+    ),
+    eos: str = typer.Option("coolprop", "--eos", help="Density model: coolprop or ideal."),
+    as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
+) -> None:
+    """Refractive index, group index, GVD, n2, density, Ip and self-focusing power of a gas."""
+    import os
+
+    from .materials.gases import gas_search_dirs
+    from .planning.gas_report import gas_report
+
+    _check_cli_number("--pressure-bar", pressure_bar, 0.0, 1000.0)
+    _check_cli_number("--temperature-k", temperature_k, 1.0, 2000.0)
+    if eos not in ("coolprop", "ideal"):
+        raise _cli_error(f"--eos = {eos!r}: must be one of coolprop, ideal")
+    wavelengths = wavelength_nm or [800.0, 1030.0]
+    for wl in wavelengths:
+        _check_cli_number("--wavelength-nm", wl, 150.0, 20000.0)
+    report = gas_report(name, pressure_bar * 1e5, temperature_k, [w * 1e-9 for w in wavelengths],
+                        eos=eos, search_dirs=gas_search_dirs(environ=os.environ))
+    if as_json:
+        _print_json(report)
+        return
+    _print_gas(report)
+
+
+def _check_cli_number(option: str, value: float, low: float, high: float) -> None:
+    if not math.isfinite(value) or not low < value <= high:
+        raise _cli_error(f"{option} = {value}: must be > {low:g} and <= {high:g}")
+
+
+def _cli_error(message: str) -> HcfplanError:
+    from .errors import ConfigError
+
+    return ConfigError(message)
+
+
+def _print_gas(r: dict) -> None:
+    _echo(f"{r['gas']} at {r['pressure_pa'] / 1e5:g} bar, {r['temperature_k']:g} K "
+          f"(density model: {r['equation_of_state']})")
+    rows = [
+        ("number density", f"{r['number_density_per_m3']:.5g} m^-3",
+         f"real gas {r['number_density_real_per_m3']:.5g}, ideal "
+         f"{r['number_density_ideal_per_m3']:.5g}, Z = {r['compressibility_factor']:.4f}"),
+        ("n2 (Kerr)", f"{r['n2_m2_per_w']:.4g} m^2/W", "electronic, scaled by density"),
+        ("ionisation potential", f"{r['ionization_potential_ev']:.6g} eV", ""),
+    ]
+    _print_rows(rows)
+    _echo()
+    _echo("  wavelength   n - 1         group index - 1   GVD (fs^2/m)   P_cr (GW)")
+    for w in r["wavelengths"]:
+        _echo(f"  {w['wavelength_m'] * 1e9:7.1f} nm  {w['n_minus_1']:.6e}  "
+              f"{w['group_index'] - 1:.6e}      {w['gvd_s2_per_m'] * 1e30:10.4g}   "
+              f"{w['critical_power_w'] / 1e9:.4g}")
+    _echo()
+    _echo("Sources:")
+    for key, text in r["sources"].items():
+        _echo(f"  {key}: {text}")
+    _print_warnings(r["warnings"])
+    _print_cautions(("estimates", "pressure", "gas"))
+
+
+# ---------------------------------------------------------------------------------------------
+# check
+
+
+@app.command("check")
+def check_command(
+    config: Path = typer.Argument(..., help="Config TOML file."),
+    set_: Optional[list[str]] = typer.Option(None, "--set", help=SET_HELP),  # noqa: UP007
+    as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
+) -> None:
+    """Validate a config and print what it resolves to, all defaults filled in."""
+    from .io.tomlio import dump_toml
+
+    cfg = _load(config, set_ or [])
+    if as_json:
+        _print_json(cfg.resolved)
+        return
+    _echo(f"# {config}: valid. Resolved values (defaults filled in; units in the key names):")
+    _echo(dump_toml(cfg.resolved).rstrip())
+
+
+# ---------------------------------------------------------------------------------------------
+# fiber
+
+
+@app.command("fiber")
+def fiber_command(
+    config: Path = typer.Argument(..., help="Config TOML file."),
+    set_: Optional[list[str]] = typer.Option(None, "--set", help=SET_HELP),  # noqa: UP007
+    as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
+    plot: Optional[Path] = typer.Option(None, "--plot", help="Write a GVD/loss figure here."),  # noqa: UP007
+) -> None:
+    """Linear and first nonlinear numbers of the configured fiber at the pump (no GNLSE run)."""
+    from .planning.fiber_report import fiber_report
+
+    cfg = _load(config, set_ or [])
+    report = fiber_report(cfg)
+    if plot is not None:
+        _fiber_plot(cfg, plot)
+        report["figure"] = str(plot)
+    if as_json:
+        _print_json(report)
+        return
+    _print_fiber(report)
+
+
+def _fiber_plot(cfg, path: Path) -> None:
+    import numpy as np
+
+    from .io.results import write_figure
+    from .planning.fiber_report import dispersion_curves
+    from .plotting.fiber import plot_dispersion_and_loss
+
+    lam0 = cfg.laser.wavelength
+    wavelengths = np.linspace(0.4 * lam0, 2.2 * lam0, 800)
+    curves = dispersion_curves(cfg, wavelengths)
+    write_figure(path, plot_dispersion_and_loss, curves)
+
+
+def _print_fiber(r: dict) -> None:
+    zdw = ", ".join(f"{z * 1e9:.0f} nm" for z in r["fiber.zdw_m"]) or "none in 200-3000 nm"
+    rows = [
+        ("fiber", r["fiber.kind"], f"length {r['fiber.length_m']:g} m"),
+        ("loss", f"{_fmt(r['fiber.power_loss_db_per_m'])} dB/m",
+         f"transmission {r['fiber.transmission']:.3f} ({r['fiber.loss_convention']})"),
+        ("beta2 at pump", f"{_fmt(r['fiber.beta2_s2_per_m'], 1e-27)} fs^2/mm",
+         f"{r['fiber.regime']} dispersion"),
+        ("beta3 at pump", f"{_fmt(r['fiber.beta3_s3_per_m'], 1e-42)} fs^3/mm", ""),
+        ("zero-dispersion wavelength", zdw, ""),
+        ("gamma", f"{_fmt(r['fiber.gamma_per_w_per_m'])} 1/(W m)",
+         f"A_eff {_fmt(r['fiber.effective_area_m2'], 1e-12)} um^2"),
+        ("coupling", f"{_fmt(r['coupling.efficiency'], 0.01, 3)} %",
+         "" if r["coupling.beam_waist_m"] is None else
+         f"waist {_fmt(r['coupling.beam_waist_m'], 1e-6, 3)} um (optimum "
+         f"{_fmt(r['coupling.optimum_beam_waist_m'], 1e-6, 3)} um)"),
+        ("coupled energy", f"{_fmt(r['input.coupled_energy_j'], 1e-6)} uJ",
+         f"peak power {_fmt(r['input.peak_power_w'], 1e9)} GW"),
+        ("dispersion length L_D", f"{_fmt(r['fiber.dispersion_length_m'])} m", ""),
+        ("nonlinear length L_NL", f"{_fmt(r['fiber.nonlinear_length_m'])} m", ""),
+        ("soliton order N", _fmt(r["fiber.soliton_order"]), ""),
+        ("fission length L_D/N", "-" if r["fiber.fission_length_m"] is None else
+         f"{_fmt(r['fiber.fission_length_m'])} m", ""),
+        ("nonlinear phase", f"{_fmt(r['estimate.nonlinear_phase_rad'])} rad",
+         f"SPM broadening x{_fmt(r['estimate.spm_broadening_factor'], 1, 3)} (Gaussian rms "
+         "estimate)"),
+        ("est. output bandwidth", f"{_fmt(r['estimate.output_bandwidth_hz'], 1e12)} THz", ""),
+    ]
+    if "fiber.resonance_wavelengths_m" in r:
+        res = ", ".join(f"{x * 1e9:.0f}" for x in r["fiber.resonance_wavelengths_m"])
+        rows.append(("resonance bands (nm)", res,
+                     "PUMP IN A RESONANCE BAND" if r["fiber.pump_in_resonance_band"] else ""))
+    if "gas.pressure_pa" in r:
+        comps = " + ".join(f"{frac:g} {name}" for name, frac in r["gas.components"])
+        rows.insert(1, ("gas", f"{comps} at {r['gas.pressure_pa'] / 1e5:g} bar",
+                        f"{r['gas.temperature_k']:g} K, n2 {r['gas.n2_m2_per_w']:.3g} m^2/W"))
+    _print_rows(rows)
+    if "figure" in r:
+        _echo(f"\nFigure written: {r['figure']}")
+    _print_warnings(r["warnings"])
+    _print_cautions()
+
+
+# ---------------------------------------------------------------------------------------------
+# simulate
+
+
+def _default_out_dir(config: Path) -> Path:
+    """``runs/<config stem>``, or the first free ``runs/<stem>-2``, ``-3``... (never overwrite)."""
+    base = Path("runs") / config.stem
+    candidate, k = base, 2
+    while candidate.exists() and any(candidate.iterdir()):
+        candidate = base.with_name(f"{base.name}-{k}")
+        k += 1
+    return candidate
+
+
+class _Progress:
+    """A terminal progress bar over z (stderr), or nothing when quiet / not a terminal."""
+
+    def __init__(self, enabled: bool, length: float):
+        self.enabled = enabled and sys.stderr.isatty()
+        self.length = length
+        self.last = -1
+
+    def __call__(self, z: float, length: float, steps: int) -> None:
+        if not self.enabled:
+            return
+        permille = int(1000 * z / length) if length > 0 else 1000
+        if permille == self.last:
+            return
+        self.last = permille
+        width = 30
+        done = int(width * permille / 1000)
+        sys.stderr.write(f"\r  fiber [{'#' * done}{'.' * (width - done)}] "
+                         f"z = {z:.4g} / {length:.4g} m, {steps} steps")
+        sys.stderr.flush()
+
+    def close(self) -> None:
+        if self.enabled:
+            sys.stderr.write("\n")
+            sys.stderr.flush()
+
+
+@app.command("simulate")
+def simulate_command(
+    config: Path = typer.Argument(..., help="Config TOML file."),
+    out: Optional[Path] = typer.Option(None, "--out", help="Output folder (default runs/<name>)."),  # noqa: UP007
+    set_: Optional[list[str]] = typer.Option(None, "--set", help=SET_HELP),  # noqa: UP007
+    as_json: bool = typer.Option(False, "--json", help="Print summary.json to stdout."),
+    quiet: bool = typer.Option(False, "--quiet", help="No progress bar and no report text."),
+    force: bool = typer.Option(False, "--force", help="Allow writing into an existing --out."),
+    no_figures: bool = typer.Option(False, "--no-figures", help="Skip the figures."),
+) -> None:
+    """Run fiber (GNLSE) -> compressor -> THz and write summary.json, fields.npz and figures."""
+    from .io.results import prepare_output_dir
+    from .planning.chain import run_chain
+    from .io.run_output import write_run
+
+    cfg = _load(config, set_ or [])
+    out_dir = prepare_output_dir(out if out is not None else _default_out_dir(config),
+                                 force=force)
+    bar = _Progress(not quiet and not as_json, cfg.fiber.length)
+    try:
+        chain = run_chain(cfg, progress=bar)
+    finally:
+        bar.close()
+    summary = write_run(out_dir, chain, figures=not no_figures)
+    if as_json:
+        _print_json(summary)
+    elif not quiet:
+        _print_simulation(summary, out_dir)
+    if not chain.propagation.success:
+        typer.echo(f"hcfplan: run stopped: {chain.propagation.message} "
+                   f"(partial result saved in {out_dir})", err=True)
+        raise typer.Exit(1)
+
+
+def _print_simulation(s: dict, out_dir: Path) -> None:
+    inp, fib, outp = s["input"], s["fiber"], s["output"]
+    rows = [
+        ("input", f"{_fmt(inp['energy_j'], 1e-6)} uJ, FWHM {_fmt(inp['fwhm_s'], 1e-15)} fs",
+         f"launched {_fmt(inp['launched_energy_j'], 1e-6)} uJ (coupling "
+         f"{_fmt(inp['coupling_efficiency'], 0.01, 3)} %), peak {_fmt(inp['peak_power_w'], 1e9)} "
+         "GW"),
+        ("fiber", f"{fib['kind']}, {fib['length_m']:g} m",
+         f"transmission {_fmt(fib['transmission'], 0.01, 3)} %, {fib['regime']} dispersion, "
+         f"soliton order {_fmt(fib['soliton_order'], 1, 3)}"),
+        ("output spectrum", f"{_fmt(outp['bandwidth_hz'], 1e12)} THz at -20 dB",
+         f"transform limit {_fmt(outp['transform_limit_fwhm_s'], 1e-15)} fs"),
+        ("peak intensity in fiber", f"{_fmt(outp['max_peak_intensity_w_per_m2'], 1e4)} W/cm^2",
+         f"max ionisation fraction {_fmt(outp['max_ionization_fraction'], 1, 3)}"),
+        ("solver", f"{s['solver']['steps']} steps ({s['solver']['rejected_steps']} rejected)",
+         f"grid {s['grid']['points']} points"),
+    ]
+    comp = s.get("compressed")
+    if comp:
+        rows.append(("compressed", f"{_fmt(comp['fwhm_s'], 1e-15)} fs FWHM, "
+                     f"{_fmt(comp['peak_power_w'], 1e9)} GW",
+                     f"{comp['bounces']} bounces, total GDD {_fmt(comp['gdd_s2'], 1e-30)} fs^2, "
+                     f"main lobe {_fmt(comp['main_lobe_energy_fraction'], 0.01, 3)} %, "
+                     f"TL {_fmt(comp['transform_limit_fwhm_s'], 1e-15)} fs"))
+    thz = s.get("thz")
+    if thz:
+        rows.append(("THz", f"peak {_fmt(thz['peak_hz'], 1e12)} THz, cutoff "
+                     f"{_fmt(thz['cutoff_hz'], 1e12)} THz",
+                     f"{thz['crystal']} {thz['thickness_m'] * 1e3:g} mm; cutoff = "
+                     f"{thz['cutoff_definition']}"))
+    _print_rows(rows)
+    _echo(f"\nWritten to {out_dir}/: summary.json, fields.npz"
+          + (" and figures" if any(out_dir.glob("*.png")) else ""))
+    _print_warnings(s["warnings"])
+    _print_cautions()
+
+
+# ---------------------------------------------------------------------------------------------
+# entry point
+
+
+def main(argv: list[str] | None = None) -> int:
+    """Console entry point: run the app; a HcfplanError becomes one stderr line and exit 2."""
+    try:
+        app(args=argv, prog_name="hcfplan", standalone_mode=True)
+    except HcfplanError as exc:
+        message = " ".join(str(exc).split())
+        typer.echo(f"hcfplan: error: {message}", err=True)
+        return 2
+    except SystemExit as exc:
+        code = exc.code
+        return code if isinstance(code, int) else (0 if code is None else 1)
+    return 0
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

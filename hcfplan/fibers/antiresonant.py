@@ -1,0 +1,240 @@
+"""Gas-filled tube-type anti-resonant hollow-core fiber: analytic model of Zeisberger & Schmidt.
+
+The fiber is modelled as a core of radius R bounded by one glass wall of thickness d with gas
+on both sides (the "tube-type" model of [1]). Conventions of :mod:`hcfplan.grid`; ``attenuation``
+is the FIELD attenuation (power ~ exp(-2 alpha z)).
+
+What was checked here (the formula of [1] was written from memory, then re-derived):
+the wall correction below was derived independently, to first order in the wall impedance, from
+(i) the J0 core field and the boundary condition at r = R, (ii) the transfer of the transverse
+wave impedance through a planar wall of thickness d terminated by gas, for TE- and TM-like
+polarisation, (iii) the average of the two for the hybrid HE11 mode as in Marcatili &
+Schmeltzer [3]. It reproduces the remembered form of [1] exactly, and: it has the Marcatili
+term as its limit for a thick absorbing wall (cot phi -> -i), and its loss diverges where
+cot phi diverges, phi = m pi, i.e. at the ARROW resonances of [2]. The equation numbers of [1]
+were not checked.
+
+References
+----------
+.. [1] M. Zeisberger, M. A. Schmidt, "Analytic model for the complex effective index of the leaky
+       modes of tube-type anti-resonant hollow core fibers," Sci. Rep. 7, 11761 (2017),
+       doi:10.1038/s41598-017-12234-5.
+.. [2] N. M. Litchinitser, A. K. Abeeluck, C. Headley, B. J. Eggleton, "Antiresonant reflecting
+       photonic crystal optical waveguides," Opt. Lett. 27, 1592-1594 (2002),
+       doi:10.1364/OL.27.001592 [from memory].
+.. [3] E. A. J. Marcatili, R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..constants import c
+from ..errors import ConfigError
+from ..materials.solids import SolidMaterial, load_material
+from ..materials.solids import refractive_index as solid_index
+from .base import GasLike
+from .capillary import ATTENUATION_CONVENTION, _check_common, capillary_propagation_constant
+from .modes import U11, effective_area_j0, peak_intensity_area
+
+_RESONANCE_ITERATIONS = 60  # fixed-point steps for lambda_m = (2d/m) sqrt(n_glass^2 - n_gas^2)
+
+
+def wall_phase(omega: np.ndarray, wall_thickness: float, n_glass, n_gas) -> np.ndarray:
+    """Transverse phase phi = k0 d sqrt(n_glass^2 - n_gas^2) across the wall. [rad]
+
+    (omega [rad/s], wall_thickness [m]; complex ``n_glass`` allowed.)
+    """
+    return omega / c * wall_thickness * np.sqrt(np.asarray(n_glass, dtype=complex) ** 2 - n_gas**2)
+
+
+def arf_wall_index_zeisberger2017(
+    omega: np.ndarray, core_radius: float, wall_thickness: float, n_glass, n_gas
+) -> np.ndarray:
+    """Complex wall correction to the effective index of the HE11-like core mode.
+
+    Parameters
+    ----------
+    omega : ndarray
+        Angular frequency. [rad/s]
+    core_radius : float
+        Core radius R. [m]
+    wall_thickness : float
+        Glass wall thickness d. [m]
+    n_glass : ndarray
+        Wall index (complex allowed, e.g. for the absorbing-wall limit). [-]
+    n_gas : ndarray
+        Gas index (inside and outside the wall). [-]
+
+    Returns
+    -------
+    ndarray (complex)
+        Delta n_eff; n_eff = n_gas - j01^2/(2 k0^2 n_gas R^2) + Delta n_eff. [-]
+
+    Notes
+    -----
+    With eps = n_glass^2/n_gas^2, k0 = omega/c, j01 = u11, phi = :func:`wall_phase`:
+
+    .. math::
+        \\Delta n = \\frac{i j_{01}^2}{k_0^3 n_g^2 R^3} \\frac{1}{2\\sqrt{\\varepsilon-1}}
+        \\left[i(\\varepsilon+1)\\cot\\phi
+        + \\frac{j_{01}(\\varepsilon^2+1)}{k_0 n_g R \\sqrt{\\varepsilon-1}}(1+\\cot^2\\phi)\\right]
+
+    For real indices: Re = -j01^2/(k0^3 n_g^2 R^3) (eps+1)/(2 sqrt(eps-1)) cot(phi) and
+    Im = j01^3/(k0^4 n_g^3 R^4) (1 + cot^2 phi)(eps^2+1)/(2(eps-1)), the form of [1]
+    (leading order in 1/(k0 R); d << R). Diverges at phi = m pi (resonances, [2]) where the
+    perturbation expansion fails; trust it only outside the resonance bands.
+    """
+    eps = np.asarray(n_glass, dtype=complex) ** 2 / n_gas**2
+    k0 = omega / c
+    root = np.sqrt(eps - 1.0)
+    phi = wall_phase(omega, wall_thickness, n_glass, n_gas)
+    cot = np.cos(phi) / np.sin(phi)
+    scale = U11**2 / (k0**3 * n_gas**2 * core_radius**3)
+    leak = U11 / (k0 * n_gas * core_radius * root)
+    bracket = 1j * (eps + 1.0) * cot + leak * (eps**2 + 1.0) * (1.0 + cot**2)
+    return 1j * scale / (2.0 * root) * bracket
+
+
+@dataclass(frozen=True)
+class AntiresonantFiber:
+    """Gas-filled tube-type anti-resonant fiber (Zeisberger & Schmidt model [1]).
+
+    Parameters
+    ----------
+    core_radius : float
+        Core radius R (inscribed radius of the tube ring). [m]
+    wall_thickness : float
+        Wall thickness d of the tubes. [m]
+    length : float
+        Fiber length. [m]
+    gas : GasLike
+        Filling medium (``refractive_index(omega)``, ``n2`` [m^2/W]).
+    cladding : str or SolidMaterial
+        Wall glass (name from :func:`hcfplan.materials.solids.material_names`).
+
+    Notes
+    -----
+    beta = sqrt((k0 n_gas)^2 - (j01/R)^2) + k0 Re(Delta n) with Delta n from
+    :func:`arf_wall_index_zeisberger2017`; the first term is the capillary phase constant of
+    :mod:`hcfplan.fibers.capillary` (the paper's first-order expansion of it differs by
+    O((j01/(k0 R))^4)). alpha = k0 Im(Delta n) is the FIELD attenuation. The mode area is that of
+    the J0 mode of radius R (approximation: the plain core radius, no effective-radius
+    correction). Valid away from the resonance bands (see :meth:`in_resonance_band`), for
+    R >> wavelength and d << R.
+    """
+
+    core_radius: float
+    wall_thickness: float
+    length: float
+    gas: GasLike
+    cladding: str | SolidMaterial = "fused_silica"
+
+    def __post_init__(self) -> None:
+        _check_common(self.core_radius, self.length, self.gas)
+        if not 0 < self.wall_thickness < self.core_radius:
+            raise ConfigError(
+                f"fiber wall_thickness = {self.wall_thickness} m: must be > 0 and < core_radius"
+            )
+        self._material()
+
+    def _material(self) -> SolidMaterial:
+        if isinstance(self.cladding, SolidMaterial):
+            return self.cladding
+        return load_material(self.cladding)
+
+    @property
+    def kerr_n2(self) -> float:
+        """n2 of the filling gas used in gamma. [m^2/W]"""
+        return float(self.gas.n2)
+
+    def _wall_index(self, omega: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        omega = np.asarray(omega, dtype=float)
+        n_gas = self.gas.refractive_index(omega)
+        n_glass = solid_index(self._material(), omega)
+        delta = arf_wall_index_zeisberger2017(
+            omega, self.core_radius, self.wall_thickness, n_glass, n_gas
+        )
+        return n_gas, delta
+
+    def propagation_constant(self, omega: np.ndarray) -> np.ndarray:
+        """beta(omega) including the gas and the wall (anti-resonance) dispersion. [rad/m]"""
+        omega = np.asarray(omega, dtype=float)
+        n_gas, delta = self._wall_index(omega)
+        core = capillary_propagation_constant(omega, self.core_radius, n_gas, U11)
+        return core + omega / c * delta.real
+
+    def attenuation(self, omega: np.ndarray) -> np.ndarray:
+        """FIELD attenuation alpha(omega) = k0 Im(Delta n). [1/m]"""
+        omega = np.asarray(omega, dtype=float)
+        return omega / c * self._wall_index(omega)[1].imag
+
+    def effective_area(self, omega: np.ndarray) -> np.ndarray:
+        """A_eff of the J0 mode of radius R (frequency independent). [m^2]"""
+        return np.full(np.shape(omega), effective_area_j0(self.core_radius))
+
+    def nonlinear_coefficient(self, omega: np.ndarray) -> np.ndarray:
+        """gamma(omega) = n2 omega / (c A_eff). [1/(W m)]"""
+        omega = np.asarray(omega, dtype=float)
+        return self.kerr_n2 * omega / (c * self.effective_area(omega))
+
+    @property
+    def peak_intensity_area(self) -> float:
+        """A_I = pi R^2 J1(u11)^2 (J0 mode). [m^2]"""
+        return peak_intensity_area(self.core_radius)
+
+    def resonance_wavelengths(self, m_max: int) -> np.ndarray:
+        """ARROW resonance wavelengths lambda_m, m = 1..m_max, with the dispersive indices. [m]
+
+        Solves lambda_m = (2 d / m) sqrt(n_glass(lambda_m)^2 - n_gas(lambda_m)^2) ([2]) by
+        fixed-point iteration (the right side varies slowly with lambda, so it converges fast).
+        """
+        if not (isinstance(m_max, (int, np.integer)) and m_max >= 1):
+            raise ConfigError(f"m_max = {m_max!r}: must be an integer >= 1")
+        orders = np.arange(1, m_max + 1, dtype=float)
+        material = self._material()
+        wavelength = 2.0 * self.wall_thickness / orders * 1.45  # start from a typical glass
+        for _ in range(_RESONANCE_ITERATIONS):
+            omega = 2.0 * np.pi * c / wavelength
+            n_glass = solid_index(material, omega)
+            n_gas = self.gas.refractive_index(omega)
+            wavelength = 2.0 * self.wall_thickness / orders * np.sqrt(n_glass**2 - n_gas**2)
+        return wavelength
+
+    def in_resonance_band(self, omega: np.ndarray, width: float = 0.05) -> np.ndarray:
+        """True where a wavelength lies within a relative band around a resonance.
+
+        Parameters
+        ----------
+        omega : ndarray
+            Angular frequency. [rad/s]
+        width : float
+            Full relative width of each band: |lambda - lambda_m| < width lambda_m / 2. [-]
+
+        Returns
+        -------
+        ndarray of bool
+        """
+        if not 0 < width < 1:
+            raise ConfigError(f"resonance band width = {width}: must be in (0, 1)")
+        omega = np.asarray(omega, dtype=float)
+        wavelength = 2.0 * np.pi * c / omega
+        m_needed = int(np.ceil(2.0 * self.wall_thickness * 2.0 / np.min(wavelength))) + 1
+        resonances = self.resonance_wavelengths(max(m_needed, 1))
+        distance = np.abs(wavelength[..., None] / resonances - 1.0)
+        return np.any(distance < width / 2.0, axis=-1)
+
+    def describe(self) -> dict:
+        """Defining SI parameters of the model."""
+        return {
+            "model": "antiresonant",
+            "mode": "HE11",
+            "core_radius": self.core_radius,
+            "wall_thickness": self.wall_thickness,
+            "length": self.length,
+            "cladding": self._material().name,
+            "kerr_n2": self.kerr_n2,
+            "attenuation": ATTENUATION_CONVENTION,
+        }

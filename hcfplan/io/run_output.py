@@ -1,0 +1,31 @@
+"""Writing one chain run to its output folder: summary.json, fields.npz and the figures.
+
+Every file is written atomically (:mod:`hcfplan.io.results`); the figures are made by
+:mod:`hcfplan.plotting.report` from the result objects only.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from ..planning.chain import ChainResult, field_arrays, summary_dict
+from .results import write_figure, write_json, write_npz, write_text
+from .tomlio import dump_toml
+
+
+def write_run(out_dir: Path, chain: ChainResult, *, figures: bool = True) -> dict:
+    """Write the run into ``out_dir`` and return the summary dict that was written."""
+    out_dir = Path(out_dir)
+    summary = summary_dict(chain)
+    summary["config"] = chain.config.resolved
+    write_npz(out_dir / "fields.npz", field_arrays(chain))
+    write_text(out_dir / "config.resolved.toml", dump_toml(chain.config.resolved))
+    if figures:
+        from ..plotting import report
+
+        for name, draw in report.FIGURES.items():
+            if report.applies(name, chain):
+                write_figure(out_dir / f"{name}.png", draw, chain)
+        summary["figures"] = sorted(p.name for p in out_dir.glob("*.png"))
+    write_json(out_dir / "summary.json", summary)
+    return summary

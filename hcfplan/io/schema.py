@@ -1,0 +1,175 @@
+"""The configuration key set: every section, key, type, default, allowed range and meaning.
+
+This table is the contract between the TOML files, ``--set``, the README's config reference
+and :mod:`hcfplan.io.config` (which converts to SI once, while loading). Keys carry their unit
+as a lowercase suffix (see :mod:`hcfplan.units`). Ranges are in the key's own unit.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Any
+
+
+class _Required:
+    def __repr__(self) -> str:
+        return "REQUIRED"
+
+
+REQUIRED: Any = _Required()
+
+
+@dataclass(frozen=True)
+class Key:
+    """One config key.
+
+    ``kind`` is one of ``float``, ``int``, ``bool``, ``str``, ``choice``, ``float_list``,
+    ``band`` (two increasing floats), ``fractions`` (table of name -> fraction), ``path``.
+    ``low``/``high`` bound the value (in the key's unit); ``low_open`` makes the low bound strict.
+    """
+
+    kind: str
+    default: Any
+    doc: str
+    low: float | None = None
+    high: float | None = None
+    low_open: bool = True
+    choices: tuple[str, ...] = ()
+
+
+F = "float"
+
+SCHEMA: dict[str, dict[str, Key]] = {
+    "laser": {
+        "wavelength_nm": Key(F, REQUIRED, "Pump centre wavelength (vacuum).", 150.0, 20000.0),
+        "fwhm_fs": Key(F, REQUIRED, "Intensity FWHM of the input pulse.", 1.0, 1.0e5),
+        "shape": Key("choice", "sech2", "Temporal shape of the input pulse.",
+                     choices=("sech2", "gaussian")),
+        "energy_uj": Key(F, REQUIRED, "Pulse energy before the fiber (before coupling).",
+                         0.0, 1.0e6),
+        "repetition_khz": Key(F, None, "Repetition rate (for average power; optional).",
+                              0.0, 1.0e6),
+        "gdd_fs2": Key(F, 0.0, "Input chirp as spectral GDD.", -1.0e7, 1.0e7, low_open=False),
+        "spectrum_csv": Key("path", None,
+                            "Measured input spectrum, CSV columns wavelength_nm, intensity; "
+                            "replaces the analytic shape (flat phase plus gdd_fs2)."),
+        "beam_waist_um": Key(F, None,
+                             "1/e^2 intensity radius of the focused beam at the fiber entrance; "
+                             "default: the coupling optimum 0.64 a.", 0.0, 1.0e5),
+    },
+    "fiber": {
+        "kind": Key("choice", REQUIRED, "Fiber model.",
+                    choices=("capillary", "antiresonant", "taylor")),
+        "core_diameter_um": Key(F, None, "Core (bore) diameter; required for capillary and "
+                                "antiresonant.", 1.0, 1.0e4),
+        "length_m": Key(F, REQUIRED, "Fiber length.", 0.0, 100.0),
+        "cladding": Key("str", "fused_silica", "Cladding / wall glass (a solid material name)."),
+        "wall_thickness_um": Key(F, None, "Tube wall thickness (antiresonant).", 0.0, 100.0),
+        "bend_radius_m": Key(F, None, "Bend radius (capillary bend loss; optional).", 0.0, 1.0e6),
+        "mode": Key("str", "EH11", "Capillary mode EH1m (EH11 is the fundamental)."),
+        "betas_fs_n_per_mm": Key("float_list", None,
+                                 "Taylor fiber: [beta2, beta3, ...] about the pump in fs^n/mm."),
+        "gamma_per_w_per_m": Key(F, None, "Taylor fiber: nonlinear coefficient.", 0.0, 1.0e3,
+                                 low_open=False),
+        "loss_db_per_m": Key(F, 0.0, "Taylor fiber: flat power loss.", 0.0, 1.0e4,
+                             low_open=False),
+        "self_steepening": Key("bool", True, "Taylor fiber: include self-steepening."),
+        "raman_fraction": Key(F, 0.0, "Taylor fiber: fractional delayed Raman response f_R.",
+                              0.0, 1.0, low_open=False),
+        "raman_tau1_fs": Key(F, 12.2, "Taylor fiber: Raman oscillation time tau1.", 0.0, 1.0e4),
+        "raman_tau2_fs": Key(F, 32.0, "Taylor fiber: Raman damping time tau2.", 0.0, 1.0e5),
+        "effective_area_um2": Key(F, None, "Taylor fiber: effective mode area (for intensities).",
+                                  0.0, 1.0e8),
+    },
+    "gas": {
+        "species": Key("str", None, "Fill gas (a table name such as Ar); or use mixture."),
+        "mixture": Key("fractions", None, "Gas mixture by mole fraction, e.g. { He = 0.7, "
+                       "Ar = 0.3 }; fractions sum to 1."),
+        "pressure_bar": Key(F, REQUIRED, "Static fill pressure (absolute).", 0.0, 1000.0),
+        "temperature_k": Key(F, 293.15, "Gas temperature.", 1.0, 2000.0),
+        "equation_of_state": Key("choice", "coolprop", "Density model.",
+                                 choices=("coolprop", "ideal")),
+        "ionization_model": Key("choice", "ppt", "Photoionisation rate.",
+                                choices=("ppt", "adk")),
+        "table_dir": Key("path", None, "Extra folder searched first for gas tables (*.toml)."),
+    },
+    "cell": {
+        "rated_pressure_bar": Key(F, None, "The cell maker's rated maximum pressure.",
+                                  0.0, 1.0e4),
+        "window_material": Key("str", "fused_silica", "Exit window material."),
+        "window_thickness_mm": Key(F, None, "Exit window thickness.", 0.0, 100.0,
+                                   low_open=False),
+        "window_clear_aperture_mm": Key(F, None, "Unsupported (clear) window diameter.",
+                                        0.0, 1000.0),
+    },
+    "compressor": {
+        "air_path_m": Key(F, 0.0, "Air path between cell and crystal.", 0.0, 1000.0,
+                          low_open=False),
+        "mirror_gdd_fs2": Key(F, None, "GDD per chirped-mirror bounce.", -1.0e6, 1.0e6,
+                              low_open=False),
+        "mirror_tod_fs3": Key(F, 0.0, "TOD per bounce.", -1.0e8, 1.0e8, low_open=False),
+        "mirror_gdd_csv": Key("path", None,
+                              "Measured GDD per bounce, CSV columns wavelength_nm, gdd_fs2."),
+        "mirror_band_nm": Key("band", None, "Usable mirror band [low, high]; light outside "
+                              "is lost."),
+        "max_bounces": Key("int", 20, "Largest bounce count tried.", 0, 1000, low_open=False),
+        "bounces_in_pairs": Key("bool", False, "Allow even bounce counts only."),
+        "objective": Key("choice", "peak_power", "What the bounce count optimises.",
+                         choices=("peak_power", "fwhm")),
+        "wedge_material": Key("str", None, "Wedge pair material for a fine trim (optional)."),
+        "wedge_max_insertion_mm": Key(F, 0.0, "Largest wedge insertion for the trim.", 0.0,
+                                      100.0, low_open=False),
+    },
+    "thz": {
+        "crystal": Key("str", "GaP", "Generation crystal."),
+        "thickness_mm": Key(F, 0.3, "Generation crystal thickness.", 0.0, 50.0),
+        "cutoff_db": Key(F, -20.0, "Cutoff level relative to the spectral peak.", -200.0, 0.0),
+        "cutoff_quantity": Key("choice", "power", "Spectrum the cutoff level applies to.",
+                               choices=("power", "field")),
+        "detector_crystal": Key("str", None, "EO detection crystal (optional)."),
+        "detector_thickness_mm": Key(F, None, "EO detection crystal thickness.", 0.0, 50.0),
+        "probe_fwhm_fs": Key(F, None, "Probe pulse FWHM for EO gating (default: the compressed "
+                             "pulse).", 0.0, 1.0e5),
+        "beam_waist_um": Key(F, None, "Pump 1/e^2 radius on the crystal (absolute estimates).",
+                             0.0, 1.0e6),
+        "d_eff_pm_per_v": Key(F, None, "Effective chi(2) coefficient (absolute estimates).",
+                              0.0, 1.0e4),
+        "damage_fluence_j_per_cm2": Key(F, None, "Crystal damage fluence for the pump check.",
+                                        0.0, 1.0e3),
+    },
+    "limits": {
+        "self_focusing_margin": Key(F, 2.0, "Required ratio P_cr / P_peak.", 1.0, 1.0e3,
+                                    low_open=False),
+        "ionization_fraction_limit": Key(F, 1.0e-4, "Ionisation fraction treated as the limit.",
+                                         0.0, 1.0),
+        "window_safety_factor": Key(F, 4.0, "Safety factor of the window plate formula.",
+                                    1.0, 100.0, low_open=False),
+        "window_mounting": Key("choice", "clamped", "Window edge support.",
+                               choices=("clamped", "unclamped")),
+        "window_distance_m": Key(F, None, "Fiber exit to exit window distance (beam size at "
+                                 "the window); default: 0.3 m.", 0.0, 100.0),
+        "entrance_gas_path_m": Key(F, None, "Gas path from the entrance window to the fiber "
+                                   "(static fill); default: two Rayleigh ranges.", 0.0, 100.0,
+                                   low_open=False),
+        "b_integral_limit_rad": Key(F, 1.0, "B-integral treated as the limit in the exit "
+                                    "window.", 0.0, 100.0),
+        "cladding_damage_fluence_j_per_cm2": Key(F, None, "Damage fluence of the fiber glass "
+                                                 "(default: the solid table).", 0.0, 1.0e3),
+        "room_volume_m3": Key(F, None, "Free volume of the laboratory room.", 0.0, 1.0e6),
+        "cylinder_volume_l": Key(F, None, "Water volume of the gas cylinder(s).", 0.0, 1.0e5),
+        "cylinder_pressure_bar": Key(F, None, "Filling pressure of the cylinder(s).", 0.0,
+                                     1000.0),
+    },
+    "grid": {
+        "points": Key("int", None, "Number of grid points (power of two recommended).",
+                      64, 2**22, low_open=False),
+        "time_window_fs": Key(F, None, "Total time window.", 1.0, 1.0e7),
+        "z_samples": Key("int", 100, "Number of saved z positions.", 2, 10000, low_open=False),
+        "rtol": Key(F, 1.0e-5, "Relative tolerance of the step control.", 0.0, 0.1),
+        "stop_ionization_fraction": Key(F, 0.1, "Stop the run above this ionisation fraction.",
+                                        0.0, 1.0),
+    },
+}
+
+#: Sections a config must contain.
+REQUIRED_SECTIONS = ("laser", "fiber")

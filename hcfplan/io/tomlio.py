@@ -1,0 +1,101 @@
+"""Reading TOML (tomllib, or tomli before Python 3.11) and writing the small subset we emit."""
+
+from __future__ import annotations
+
+import math
+import sys
+from pathlib import Path
+from typing import Any
+
+from ..errors import ConfigError
+
+if sys.version_info >= (3, 11):
+    import tomllib as _toml
+else:  # pragma: no cover - exercised on Python 3.10 only
+    import tomli as _toml
+
+TOMLDecodeError = _toml.TOMLDecodeError
+
+
+def read_toml(path: str | Path) -> dict[str, Any]:
+    """Parse a TOML file; a missing file or a syntax error becomes one ConfigError line."""
+    path = Path(path)
+    try:
+        text = path.read_text(encoding="utf-8")
+    except FileNotFoundError:
+        raise ConfigError(f"{path}: file not found") from None
+    except IsADirectoryError:
+        raise ConfigError(f"{path}: is a directory, expected a TOML file") from None
+    except UnicodeDecodeError as exc:
+        raise ConfigError(f"{path}: not UTF-8 text ({exc.reason} at byte {exc.start})") from None
+    except OSError as exc:
+        raise ConfigError(f"{path}: cannot read ({exc.strerror})") from None
+    return parse_toml(text, str(path))
+
+
+def parse_toml(text: str, origin: str) -> dict[str, Any]:
+    """Parse TOML text; ``origin`` names the file in the error message."""
+    try:
+        return _toml.loads(text)
+    except _toml.TOMLDecodeError as exc:
+        message = str(exc).splitlines()[0] if str(exc) else "syntax error"
+        raise ConfigError(f"{origin}: TOML syntax error: {message}") from None
+
+
+def parse_toml_value(text: str) -> Any:
+    """Parse one TOML value (``1.5``, ``"Ar"``, ``[1, 2]``, ``{ He = 0.7 }``, ``true``).
+
+    A bare word that is not valid TOML (``Ar``) is returned as the string itself.
+    Raises ``ValueError`` for text that looks like TOML but is malformed.
+    """
+    stripped = text.strip()
+    if stripped == "":
+        raise ValueError("empty value")
+    try:
+        return _toml.loads(f"v = {stripped}")["v"]
+    except _toml.TOMLDecodeError:
+        if stripped[0] in "[{\"'" or any(ch in stripped for ch in "=[]{}\"'\n"):
+            raise ValueError(f"cannot parse {stripped!r} as a TOML value") from None
+        return stripped
+
+
+def _format_value(value: Any) -> str:
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, int):
+        return str(value)
+    if isinstance(value, float):
+        if math.isnan(value):
+            return "nan"
+        if math.isinf(value):
+            return "inf" if value > 0 else "-inf"
+        return repr(value)
+    if isinstance(value, str):
+        escaped = value.replace("\\", "\\\\").replace('"', '\\"')
+        return f'"{escaped}"'
+    if isinstance(value, (list, tuple)):
+        return "[" + ", ".join(_format_value(v) for v in value) + "]"
+    if isinstance(value, dict):
+        return "{ " + ", ".join(f"{k} = {_format_value(v)}" for k, v in value.items()) + " }"
+    raise TypeError(f"cannot write {type(value).__name__} to TOML")
+
+
+def dump_toml(data: dict[str, dict[str, Any]], comments: dict[str, str] | None = None) -> str:
+    """Write a two-level mapping (sections of scalars/lists/inline tables) as TOML text.
+
+    Values of ``None`` are written as comments (``# key = (not set)``) since TOML has no null.
+    """
+    comments = comments or {}
+    lines: list[str] = []
+    for section, table in data.items():
+        if lines:
+            lines.append("")
+        lines.append(f"[{section}]")
+        for key, value in table.items():
+            note = comments.get(f"{section}.{key}")
+            suffix = f"  # {note}" if note else ""
+            if value is None:
+                lines.append(f"# {key} = (not set){suffix}")
+            else:
+                lines.append(f"{key} = {_format_value(value)}{suffix}")
+    return "\n".join(lines) + "\n"

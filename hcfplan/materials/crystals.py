@@ -1,0 +1,555 @@
+"""Nonlinear crystals for THz generation and detection: tables, optical and THz indices.
+
+Each crystal is one TOML file (data only, a source string beside every number) in the shipped
+folder ``hcfplan/materials/data/crystals`` or in a user folder. :func:`load_crystal` turns it into
+a frozen :class:`CrystalTable` of SI values; the functions below evaluate it.
+
+Conventions
+-----------
+Plane waves vary as exp(i(kz - omega t)) (see :mod:`hcfplan.grid`). The complex THz index is
+n + i kappa with kappa >= 0 for an absorbing medium, so Im k = kappa Omega / c > 0 and the field
+decays as exp(-Im k z); the *power* absorption coefficient is alpha = 2 kappa Omega / c.
+
+The THz dielectric function is a sum of Lorentz oscillators,
+
+.. math:: \\varepsilon(\\Omega) = \\varepsilon_\\infty
+          + \\sum_j \\frac{S_j \\Omega_j^2}{\\Omega_j^2 - \\Omega^2 - i\\Gamma_j\\Omega},
+
+whose sign of the damping term matches the exp(-i omega t) time dependence (Im eps > 0).
+
+References
+----------
+.. [1] J. Opt. Soc. Am. B 36(11), 3039 (2019): GaP Sellmeier and THz oscillator model.
+.. [2] D. T. F. Marple, "Refractive index of ZnSe, ZnTe, and CdTe," J. Appl. Phys. 35, 539 (1964).
+.. [3] H. H. Li, J. Phys. Chem. Ref. Data 13, 103 (1984) (ZnTe lattice pole).
+.. [4] G. Gallot, J. Zhang, R. W. McGowan, T.-I. Jeon, D. Grischkowsky, "Measurements of the THz
+       absorption and dispersion of ZnTe and their relevance to the electro-optic detection of
+       THz radiation," Appl. Phys. Lett. 74, 3450 (1999), doi:10.1063/1.124124 [DOI from memory].
+"""
+
+from __future__ import annotations
+
+import warnings
+from collections.abc import Callable, Iterable, Sequence
+from dataclasses import dataclass
+from importlib import resources
+from pathlib import Path
+from typing import Any, Literal
+
+import numpy as np
+
+from ..constants import c, eV
+from ..errors import ConfigError, ValidityWarning
+
+try:
+    import tomllib
+except ModuleNotFoundError:  # Python 3.10
+    import tomli as tomllib
+
+OpticalModelName = Literal["sellmeier_pole_um", "sellmeier_pole_um2", "tabulated_um", "constant"]
+ThzModelName = Literal["lorentz", "constant"]
+
+_PACKAGE_DATA = "hcfplan.materials.data.crystals"
+_LOCAL_DATA = Path(__file__).parent / "data" / "crystals"
+
+#: Property keys allowed in ``[properties]`` -> (field name, factor to SI).
+#: ``ev`` and ``cm_per_gw`` are not in :data:`hcfplan.units.SUFFIXES`, so they are converted here.
+_PROPERTY_KEYS: dict[str, tuple[str, float]] = {
+    "r41_pm_per_v": ("r41", 1e-12),
+    "d_eff_pm_per_v": ("d_eff", 1e-12),
+    "band_gap_direct_ev": ("band_gap_direct", eV),
+    "band_gap_indirect_ev": ("band_gap_indirect", eV),
+    "two_photon_absorption_cm_per_gw": ("two_photon_coefficient", 1e-2 / 1e9),  # cm/GW -> m/W
+    "damage_fluence_j_per_cm2": ("damage_fluence", 1e4),  # J/cm^2 -> J/m^2
+}
+
+
+@dataclass(frozen=True)
+class OpticalIndexModel:
+    """Optical refractive-index model of a crystal.
+
+    Sellmeier coefficients are kept as printed (wavelength in micrometres); the evaluating
+    functions convert. ``table_wavelength`` [m] and ``table_index`` hold tabulated data.
+    ``wavelength_min``/``wavelength_max`` [m] bound the validity range.
+    """
+
+    model: OpticalModelName
+    constant: float
+    b: tuple[float, ...]
+    poles: tuple[float, ...]
+    table_wavelength: tuple[float, ...]
+    table_index: tuple[float, ...]
+    wavelength_min: float
+    wavelength_max: float
+    source: str
+
+
+@dataclass(frozen=True)
+class LorentzOscillator:
+    """One lattice oscillator: TO angular frequency ``omega`` [rad/s], dimensionless
+    ``strength`` S, damping ``damping`` Gamma [rad/s]."""
+
+    omega: float
+    strength: float
+    damping: float
+    source: str
+
+
+@dataclass(frozen=True)
+class ThzDielectricModel:
+    """THz dielectric function: ``eps_inf`` plus ``oscillators``, valid up to ``frequency_max``
+    [Hz]."""
+
+    model: ThzModelName
+    eps_inf: float
+    oscillators: tuple[LorentzOscillator, ...]
+    frequency_max: float
+    source: str
+
+
+@dataclass(frozen=True)
+class CrystalTable:
+    """One crystal, all values SI. Optional properties are ``None`` when the table has none.
+
+    Attributes: ``r41`` [m/V], ``d_eff`` [m/V] (optical rectification, P = eps0 d_eff |E|^2),
+    ``band_gap_direct``/``band_gap_indirect`` [J], ``two_photon_coefficient`` [m/W] measured at
+    ``two_photon_wavelength`` [m], ``damage_fluence`` [J/m^2]. ``sources`` maps each property key
+    of the file to its source string; ``notes`` are (key, text) pairs.
+    """
+
+    name: str
+    description: str
+    path: str
+    optical: OpticalIndexModel
+    thz: ThzDielectricModel
+    r41: float | None = None
+    d_eff: float | None = None
+    band_gap_direct: float | None = None
+    band_gap_indirect: float | None = None
+    two_photon_coefficient: float | None = None
+    two_photon_wavelength: float | None = None
+    damage_fluence: float | None = None
+    sources: tuple[tuple[str, str], ...] = ()
+    notes: tuple[tuple[str, str], ...] = ()
+
+    def source(self, key: str) -> str:
+        """Source string of a property key of the file (e.g. ``'r41_pm_per_v'``)."""
+        return dict(self.sources).get(key, "")
+
+
+# ----------------------------------------------------------------------------------------------
+# Loading and validation
+# ----------------------------------------------------------------------------------------------
+
+
+def _shipped_files() -> dict[str, Any]:
+    """Map lower-case crystal name -> readable file of the shipped folder."""
+    try:
+        folder = resources.files(_PACKAGE_DATA)
+        entries = list(folder.iterdir())
+    except (ModuleNotFoundError, FileNotFoundError, NotADirectoryError):
+        entries = list(_LOCAL_DATA.glob("*.toml"))
+    return {e.name[:-5].lower(): e for e in entries if e.name.endswith(".toml")}
+
+
+def _user_files(search_dirs: Iterable[str | Path]) -> dict[str, Path]:
+    found: dict[str, Path] = {}
+    for folder in search_dirs:
+        for path in sorted(Path(folder).glob("*.toml")):
+            found.setdefault(path.stem.lower(), path)
+    return found
+
+
+def crystal_names(search_dirs: Sequence[str | Path] = ()) -> list[str]:
+    """Sorted lower-case names of every crystal table in ``search_dirs`` and the shipped folder."""
+    return sorted(set(_user_files(search_dirs)) | set(_shipped_files()))
+
+
+def load_crystal(name: str, search_dirs: Sequence[str | Path] = ()) -> CrystalTable:
+    """Load and validate the crystal table ``name`` (case-insensitive, the file stem).
+
+    Parameters
+    ----------
+    name : str
+        Crystal name, e.g. ``"GaP"``, ``"znte"``, ``"thin"``.
+    search_dirs : sequence of path
+        User folders searched first (a user file shadows a shipped file of the same name).
+
+    Raises
+    ------
+    ConfigError
+        Unknown crystal (the message lists the valid names) or an invalid table (the message
+        names the file and the key).
+    """
+    key = name.lower()
+    user = _user_files(search_dirs)
+    entry = user.get(key) or _shipped_files().get(key)
+    if entry is None:
+        raise ConfigError(
+            f"crystal = {name!r}: unknown; valid names: {', '.join(crystal_names(search_dirs))}"
+        )
+    text = entry.read_text(encoding="utf-8")
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise ConfigError(f"{entry.name}: not valid TOML: {exc}") from exc
+    return _table_from_dict(data, str(entry))
+
+
+def _fail(path: str, key: str, message: str) -> ConfigError:
+    return ConfigError(f"{Path(path).name}: {key} {message}")
+
+
+def _require(section: dict, key: str, path: str, where: str) -> Any:
+    if key not in section:
+        raise _fail(path, f"{where}.{key}", "is missing")
+    return section[key]
+
+
+def _source(section: dict, path: str, where: str, key: str = "source") -> str:
+    value = section.get(key)
+    if not isinstance(value, str) or not value.strip():
+        raise _fail(path, f"{where}.{key}", "is missing: every number needs a source string")
+    return value
+
+
+def _number(section: dict, key: str, path: str, where: str, *, positive: bool = False) -> float:
+    value = _require(section, key, path, where)
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not np.isfinite(value):
+        raise _fail(path, f"{where}.{key}", f"= {value!r}: must be a finite number")
+    if value < 0 or (positive and value == 0):
+        raise _fail(path, f"{where}.{key}", f"= {value!r}: must be {'>' if positive else '>='} 0")
+    return float(value)
+
+
+def _numbers(section: dict, key: str, path: str, where: str) -> tuple[float, ...]:
+    values = _require(section, key, path, where)
+    if not isinstance(values, list) or not values:
+        raise _fail(path, f"{where}.{key}", f"= {values!r}: must be a non-empty list of numbers")
+    return tuple(_number({key: v}, key, path, where) for v in values)
+
+
+def _range(section: dict, path: str, where: str, lo_key: str, hi_key: str) -> tuple[float, float]:
+    lo = _number(section, lo_key, path, where)
+    hi = _number(section, hi_key, path, where, positive=True)
+    if not lo < hi:
+        raise _fail(path, f"{where}.{lo_key}", f"= {lo} > {where}.{hi_key} = {hi}: need lo < hi")
+    _source(section, path, where, "range_source")
+    return lo, hi
+
+
+def _optical_from_dict(sec: dict, path: str) -> OpticalIndexModel:
+    where = "optical_index"
+    model = _require(sec, "model", path, where)
+    if model not in _OPTICAL_MODELS:
+        raise _fail(path, f"{where}.model", f"= {model!r}: valid: {', '.join(_OPTICAL_MODELS)}")
+    source = _source(sec, path, where)
+    lo, hi = _range(sec, path, where, "valid_min_um", "valid_max_um")
+    fields: dict[str, Any] = {"constant": 0.0, "b": (), "poles": (), "table_wavelength": (),
+                              "table_index": ()}
+    if model == "constant":
+        fields["constant"] = _number(sec, "index", path, where, positive=True)
+    elif model == "tabulated_um":
+        wl = _numbers(sec, "wavelength_um", path, where)
+        n = _numbers(sec, "index", path, where)
+        if len(wl) != len(n) or len(wl) < 4:
+            raise _fail(path, f"{where}.index", f"has {len(n)} values for {len(wl)} wavelengths"
+                        ": need equal lengths, at least 4")
+        if np.any(np.diff(wl) <= 0):
+            raise _fail(path, f"{where}.wavelength_um", "is not strictly increasing")
+        fields["table_wavelength"] = tuple(w * 1e-6 for w in wl)  # um -> m
+        fields["table_index"] = n
+    else:
+        pole_key = "pole_um" if model == "sellmeier_pole_um" else "pole_um2"
+        fields["constant"] = _number(sec, "constant", path, where)
+        fields["b"] = _numbers(sec, "b", path, where)
+        fields["poles"] = _numbers(sec, pole_key, path, where)
+        if len(fields["b"]) != len(fields["poles"]):
+            raise _fail(path, f"{where}.{pole_key}", "must have as many entries as b")
+    return OpticalIndexModel(model=model, wavelength_min=lo * 1e-6, wavelength_max=hi * 1e-6,
+                             source=source, **fields)
+
+
+def _oscillator_from_dict(sec: dict, path: str, where: str) -> LorentzOscillator:
+    return LorentzOscillator(
+        omega=2 * np.pi * 1e12 * _number(sec, "frequency_thz", path, where, positive=True),
+        strength=_number(sec, "strength", path, where),
+        damping=2 * np.pi * 1e12 * _number(sec, "damping_thz", path, where),
+        source=_source(sec, path, where),
+    )
+
+
+def _thz_from_dict(sec: dict, path: str) -> ThzDielectricModel:
+    where = "thz_permittivity"
+    model = _require(sec, "model", path, where)
+    if model not in _THZ_MODELS:
+        raise _fail(path, f"{where}.model", f"= {model!r}: valid: {', '.join(_THZ_MODELS)}")
+    source = _source(sec, path, where)
+    fmax = _number(sec, "valid_max_thz", path, where, positive=True) * 1e12
+    _source(sec, path, where, "range_source")
+    if model == "constant":
+        eps_inf = _number(sec, "index", path, where, positive=True) ** 2
+        oscillators: tuple[LorentzOscillator, ...] = ()
+    else:
+        eps_inf = _number(sec, "eps_inf", path, where, positive=True)
+        raw = sec.get("oscillators", [])
+        oscillators = tuple(
+            _oscillator_from_dict(o, path, f"{where}.oscillators[{i}]") for i, o in enumerate(raw)
+        )
+    return ThzDielectricModel(model, eps_inf, oscillators, fmax, source)
+
+
+def _properties_from_dict(sec: dict, path: str) -> tuple[dict[str, Any], tuple]:
+    values: dict[str, Any] = {}
+    sources = []
+    for key, entry in sec.items():
+        where = f"properties.{key}"
+        if key not in _PROPERTY_KEYS:
+            raise _fail(path, where, f"is not a known property; valid: {', '.join(_PROPERTY_KEYS)}")
+        if not isinstance(entry, dict):
+            raise _fail(path, where, "must be a table {value = ..., source = \"...\"}")
+        field, factor = _PROPERTY_KEYS[key]
+        values[field] = _number(entry, "value", path, where) * factor
+        sources.append((key, _source(entry, path, where)))
+        if key.startswith("two_photon"):
+            values["two_photon_wavelength"] = (
+                _number(entry, "wavelength_nm", path, where, positive=True) * 1e-9
+            )
+    return values, tuple(sources)
+
+
+def _table_from_dict(data: dict, path: str) -> CrystalTable:
+    for section in ("optical_index", "thz_permittivity"):
+        if not isinstance(data.get(section), dict):
+            raise _fail(path, f"[{section}]", "is missing")
+    props, sources = _properties_from_dict(data.get("properties", {}), path)
+    notes = tuple((str(k), str(v)) for k, v in data.get("notes", {}).items())
+    return CrystalTable(
+        name=str(_require(data, "name", path, "(top level)")),
+        description=str(data.get("description", "")),
+        path=path,
+        optical=_optical_from_dict(data["optical_index"], path),
+        thz=_thz_from_dict(data["thz_permittivity"], path),
+        sources=sources,
+        notes=notes,
+        **props,
+    )
+
+
+# ----------------------------------------------------------------------------------------------
+# Optical index: each model returns (n, dn/dlambda [1/m]) at vacuum wavelength [m]
+# ----------------------------------------------------------------------------------------------
+
+
+def _sellmeier(model: OpticalIndexModel, wavelength: np.ndarray, pole_sq: np.ndarray):
+    lam_um = wavelength * 1e6  # the Sellmeier coefficients are printed for lambda in um
+    l2 = lam_um**2
+    n_sq = np.full_like(l2, model.constant)
+    dn_sq = np.zeros_like(l2)  # d(n^2)/d(lambda_um)
+    for b, p2 in zip(model.b, pole_sq, strict=True):
+        n_sq = n_sq + b * l2 / (l2 - p2)
+        dn_sq = dn_sq - 2.0 * b * lam_um * p2 / (l2 - p2) ** 2
+    n = np.sqrt(n_sq)
+    return n, dn_sq / (2.0 * n) * 1e6  # per um -> per m
+
+
+def _sellmeier_pole_um(model: OpticalIndexModel, wavelength: np.ndarray):
+    return _sellmeier(model, wavelength, np.asarray(model.poles) ** 2)
+
+
+def _sellmeier_pole_um2(model: OpticalIndexModel, wavelength: np.ndarray):
+    return _sellmeier(model, wavelength, np.asarray(model.poles))
+
+
+def _tabulated(model: OpticalIndexModel, wavelength: np.ndarray):
+    from scipy.interpolate import CubicSpline
+
+    spline = CubicSpline(model.table_wavelength, model.table_index)
+    return spline(wavelength), spline(wavelength, 1)
+
+
+def _constant_index(model: OpticalIndexModel, wavelength: np.ndarray):
+    return np.full_like(wavelength, model.constant), np.zeros_like(wavelength)
+
+
+_OPTICAL_MODELS: dict[str, Callable] = {
+    "sellmeier_pole_um": _sellmeier_pole_um,
+    "sellmeier_pole_um2": _sellmeier_pole_um2,
+    "tabulated_um": _tabulated,
+    "constant": _constant_index,
+}
+
+
+def _optical_n_dn(crystal: CrystalTable, omega) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    omega = np.asarray(omega, dtype=float)
+    if np.any(omega <= 0):
+        raise ConfigError(f"omega: {omega.min():.3e} rad/s: optical frequencies must be > 0")
+    wavelength = 2 * np.pi * c / omega
+    model = crystal.optical
+    lo, hi = wavelength.min(), wavelength.max()
+    if lo < model.wavelength_min * (1 - 1e-9) or hi > model.wavelength_max * (1 + 1e-9):
+        warnings.warn(
+            f"{crystal.name} optical index: wavelengths {lo * 1e9:.0f}-{hi * 1e9:.0f} nm outside "
+            f"the validity range {model.wavelength_min * 1e9:.0f}-"
+            f"{model.wavelength_max * 1e9:.0f} nm of its model",
+            ValidityWarning,
+            stacklevel=3,
+        )
+    n, dn = _OPTICAL_MODELS[model.model](model, wavelength)
+    return wavelength, n, dn
+
+
+def optical_index(crystal: CrystalTable, omega: np.ndarray | float) -> np.ndarray:
+    """Optical (phase) refractive index n(omega) of the crystal.
+
+    Parameters
+    ----------
+    crystal : CrystalTable
+        Crystal table from :func:`load_crystal`.
+    omega : float or ndarray
+        Angular frequency. [rad/s]
+
+    Returns
+    -------
+    ndarray
+        Refractive index. [-]
+
+    Notes
+    -----
+    Sellmeier form n^2 = A + sum_j B_j lambda^2 / (lambda^2 - lambda_j^2) with lambda in um as
+    printed by the source of the table; emits :class:`ValidityWarning` outside its range.
+    """
+    return _optical_n_dn(crystal, omega)[1]
+
+
+def optical_group_index(crystal: CrystalTable, omega: np.ndarray | float) -> np.ndarray:
+    """Optical group index n_g = n - lambda dn/dlambda.
+
+    Parameters
+    ----------
+    crystal : CrystalTable
+        Crystal table.
+    omega : float or ndarray
+        Angular frequency. [rad/s]
+
+    Returns
+    -------
+    ndarray
+        Group index c / v_g. [-]
+    """
+    wavelength, n, dn = _optical_n_dn(crystal, omega)
+    return n - wavelength * dn
+
+
+# ----------------------------------------------------------------------------------------------
+# THz dielectric function
+# ----------------------------------------------------------------------------------------------
+
+
+def _lorentz(model: ThzDielectricModel, Omega: np.ndarray) -> np.ndarray:
+    eps = np.full(Omega.shape, model.eps_inf, dtype=complex)
+    for osc in model.oscillators:
+        w2 = osc.omega**2
+        eps = eps + osc.strength * w2 / (w2 - Omega**2 - 1j * osc.damping * Omega)
+    return eps
+
+
+def _constant_eps(model: ThzDielectricModel, Omega: np.ndarray) -> np.ndarray:
+    return np.full(Omega.shape, model.eps_inf, dtype=complex)
+
+
+_THZ_MODELS: dict[str, Callable] = {"lorentz": _lorentz, "constant": _constant_eps}
+
+
+def thz_permittivity(crystal: CrystalTable, Omega: np.ndarray | float) -> np.ndarray:
+    """Complex relative permittivity eps(Omega) = eps' + i eps'' (eps'' >= 0 absorbs).
+
+    Parameters
+    ----------
+    crystal : CrystalTable
+        Crystal table.
+    Omega : float or ndarray
+        THz angular frequency (>= 0). [rad/s]
+
+    Returns
+    -------
+    ndarray of complex
+        Relative permittivity. [-]
+
+    Notes
+    -----
+    eps = eps_inf + sum_j S_j Omega_j^2 / (Omega_j^2 - Omega^2 - i Gamma_j Omega) (module
+    docstring); valid up to ``crystal.thz.frequency_max``.
+    """
+    Omega = np.asarray(Omega, dtype=float)
+    return _THZ_MODELS[crystal.thz.model](crystal.thz, Omega)
+
+
+def thz_index(crystal: CrystalTable, Omega: np.ndarray | float) -> np.ndarray:
+    """Complex THz index n + i kappa = sqrt(eps), kappa >= 0 (exp(i(kz - omega t)) convention).
+
+    Parameters
+    ----------
+    crystal : CrystalTable
+        Crystal table.
+    Omega : float or ndarray
+        THz angular frequency. [rad/s]
+
+    Returns
+    -------
+    ndarray of complex
+        Complex refractive index; k = (n + i kappa) Omega / c. [-]
+    """
+    return np.sqrt(thz_permittivity(crystal, Omega))
+
+
+def thz_absorption(crystal: CrystalTable, Omega: np.ndarray | float) -> np.ndarray:
+    """Power absorption coefficient alpha = 2 kappa Omega / c (power ~ exp(-alpha z)).
+
+    Parameters
+    ----------
+    crystal : CrystalTable
+        Crystal table.
+    Omega : float or ndarray
+        THz angular frequency. [rad/s]
+
+    Returns
+    -------
+    ndarray
+        Power absorption coefficient. [1/m]
+    """
+    Omega = np.asarray(Omega, dtype=float)
+    return 2.0 * thz_index(crystal, Omega).imag * Omega / c
+
+
+def coherence_length(
+    crystal: CrystalTable, omega_pump: np.ndarray | float, Omega: np.ndarray | float
+) -> np.ndarray:
+    """Coherence length of collinear optical rectification, l_c = c / (2 nu |n_g - n_THz|).
+
+    Parameters
+    ----------
+    crystal : CrystalTable
+        Crystal table.
+    omega_pump : float or ndarray
+        Pump angular frequency (sets the optical group index). [rad/s]
+    Omega : float or ndarray
+        THz angular frequency, broadcast against ``omega_pump``. [rad/s]
+
+    Returns
+    -------
+    ndarray
+        Coherence length; ``inf`` where velocity matching is exact. [m]
+
+    Notes
+    -----
+    l_c = pi / |Delta k| with Delta k = Omega (n_g - n_THz) / c, i.e. lambda_THz / (2 |Delta n|);
+    see N. C. J. van der Valk, P. C. M. Planken, A. N. Buijserd, H. J. Bakker, J. Opt. Soc. Am. B
+    22, 1714 (2005). n_THz is the real part of :func:`thz_index`.
+    """
+    n_g = optical_group_index(crystal, omega_pump)
+    Omega = np.asarray(Omega, dtype=float)
+    mismatch = np.abs(n_g - thz_index(crystal, Omega).real)
+    nu = Omega / (2 * np.pi)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.where(mismatch * nu > 0, c / (2.0 * nu * mismatch), np.inf)

@@ -1,0 +1,423 @@
+"""The full chain for one config: fiber (GNLSE) -> compressor -> THz, and its summary.
+
+``run_chain`` composes the physics modules; it does no I/O. ``summary_dict`` and
+``field_arrays`` turn a :class:`ChainResult` into the ``summary.json`` and ``fields.npz``
+contents (SI values, unit in the key names).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+import warnings as warnings_module
+from collections.abc import Callable
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+
+from ..constants import P_1ATM, T_ROOM
+from .build import build_medium, build_waveguide, coupling, pump_omega
+from .validity import light_band, quiet_validity_of_materials, range_notes
+
+#: Ambient air assumed for the compressor's air path (dry air at 1 atm and 20 degC).
+AIR_PRESSURE = P_1ATM
+AIR_TEMPERATURE = T_ROOM
+
+
+@dataclass(frozen=True, eq=False)
+class ChainResult:
+    """Everything one run of the chain produced (SI)."""
+
+    config: Any
+    grid: Any
+    waveguide: Any
+    medium: Any
+    coupling_efficiency: float
+    launched_energy: float
+    input_peak_power: float
+    propagation: Any
+    compression: Any | None
+    thz: Any | None
+    warnings: tuple[str, ...]
+
+
+def _broadening_estimate(report: dict) -> float:
+    """Expected output/input spectral width from the first-look SPM estimate (>= 1)."""
+    factor = report.get("estimate.spm_broadening_factor") or 1.0
+    return float(max(1.0, factor))
+
+
+def _input_field(config, grid, energy: float):
+    from .. import pulse
+    from ..io.csvdata import read_spectrum_csv
+
+    laser = config.laser
+    if laser.spectrum_csv is not None:
+        wavelength, intensity = read_spectrum_csv(laser.spectrum_csv)
+        return pulse.field_from_measured_spectrum(grid, wavelength, intensity, energy,
+                                                  gdd=laser.gdd)
+    return pulse.pulse_field(grid, laser.shape, laser.duration_fwhm, energy, gdd=laser.gdd)
+
+
+def run_chain(config, *, progress: Callable[[float, float, int], None] | None = None,
+              workers: int = 1) -> ChainResult:
+    """Run fiber -> compressor -> THz for a validated :class:`~hcfplan.io.config.PlanConfig`.
+
+    Material fits are evaluated over the whole (broad) grid; their per-call range warnings are
+    replaced by one range check against the -40 dB extent of the output spectrum
+    (:mod:`hcfplan.planning.validity`). Other warnings raised on the way are kept as lines.
+    """
+    with warnings_module.catch_warnings(record=True) as caught:
+        warnings_module.simplefilter("always")
+        with quiet_validity_of_materials():
+            chain = _run_chain(config, progress, workers)
+    extra = [str(w.message) for w in caught]
+    grid, prop = chain.grid, chain.propagation
+    band = light_band(grid.frequency, np.abs(prop.field_out_spectrum) ** 2)
+    notes = range_notes(config, chain.medium, band, "the output spectrum at -40 dB")
+    merged = tuple(dict.fromkeys(list(chain.warnings) + notes + extra))
+    return dataclasses.replace(chain, warnings=merged)
+
+
+def _run_chain(config, progress, workers) -> ChainResult:
+    from ..grid import choose_grid
+    from ..propagation.solve import propagate
+    from .fiber_report import fiber_report
+
+    laser = config.laser
+    omega0 = pump_omega(laser)
+    medium = build_medium(config.gas) if config.gas is not None else None
+    waveguide = build_waveguide(config.fiber, medium, omega0)
+    efficiency, _, _ = coupling(config)
+    energy = laser.energy * efficiency
+    report = fiber_report(config)
+    grid = choose_grid(omega0, laser.duration_fwhm, broadening_factor=_broadening_estimate(report),
+                       points=config.grid.points, time_window=config.grid.time_window)
+    field0 = _input_field(config, grid, energy)
+    peak_in = float(np.max(np.abs(field0) ** 2))
+    result = propagate(field0, grid, waveguide, gas=medium, rtol=config.grid.rtol,
+                       z_samples=config.grid.z_samples,
+                       ionization_model=(config.gas.ionization_model if config.gas else None),
+                       stop_ionization_fraction=config.grid.stop_ionization_fraction,
+                       workers=workers, progress=progress)
+    warnings = list(report["warnings"]) + list(result.warnings)
+    compression = thz = None
+    if result.success:
+        compression = compress_output(config, grid, result.field_out_spectrum, peak_in)
+        warnings += _compression_warnings(compression)
+        thz = thz_output(config, grid, compression)
+        if thz is not None:
+            warnings += list(thz.warnings)
+    return ChainResult(config=config, grid=grid, waveguide=waveguide, medium=medium,
+                       coupling_efficiency=efficiency, launched_energy=energy,
+                       input_peak_power=peak_in, propagation=result, compression=compression,
+                       thz=thz, warnings=tuple(dict.fromkeys(warnings)))
+
+
+# ---------------------------------------------------------------------------------------------
+# compressor
+
+
+def _air_index(omega: np.ndarray) -> np.ndarray:
+    """Lab air (Ciddor 1996 standard-air fit) at :data:`AIR_PRESSURE`, :data:`AIR_TEMPERATURE`."""
+    from ..materials import gases
+
+    table = gases.load_gas_table("air")
+    density = gases.number_density(table, AIR_PRESSURE, AIR_TEMPERATURE, eos="ideal")
+    return gases.refractive_index(table, omega, density, fit="ciddor1996", eos="ideal")
+
+
+def _material_index(name: str, omega: np.ndarray) -> np.ndarray:
+    import warnings
+
+    from ..errors import ValidityWarning
+    from ..materials import solids
+
+    with warnings.catch_warnings():
+        # the broadened grid extends beyond the Sellmeier ranges far outside the spectrum;
+        # range checks on the spectrum itself are reported by the compressor warnings
+        warnings.simplefilter("ignore", ValidityWarning)
+        return solids.refractive_index(name, omega)
+
+
+def fixed_phase(config, grid) -> np.ndarray:
+    """Phase of the exit window and the air path on the grid (grid.py convention 4). [rad]"""
+    from ..compression_elements import material_phase
+
+    omega = grid.omega
+    phase = np.zeros_like(omega)
+    cell = config.cell
+    if cell.window_thickness:
+        n = _material_index(cell.window_material, omega)
+        phase += material_phase(omega, grid.omega0, n, cell.window_thickness)
+    if config.compressor.air_path > 0:
+        import warnings
+
+        from ..errors import ValidityWarning
+
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", ValidityWarning)
+            n_air = _air_index(omega)
+        phase += material_phase(omega, grid.omega0, n_air, config.compressor.air_path)
+    return phase
+
+
+def _mirror_phase(config, grid) -> np.ndarray:
+    from ..compression_elements import mirror_phase, phase_from_gdd_curve
+    from ..io.csvdata import read_curve_csv
+
+    comp = config.compressor
+    if comp.mirror_gdd_csv is not None:
+        from ..constants import c
+
+        wavelength, gdd_fs2 = read_curve_csv(comp.mirror_gdd_csv, "gdd_fs2")
+        omega_curve = 2 * math.pi * c / wavelength
+        order = np.argsort(omega_curve)
+        gdd = np.interp(grid.omega, omega_curve[order], gdd_fs2[order] * 1e-30)
+        return phase_from_gdd_curve(grid.omega, grid.omega0, gdd)
+    if comp.mirror_gdd is None:
+        return np.zeros_like(grid.omega)
+    return mirror_phase(grid.omega, grid.omega0, comp.mirror_gdd, comp.mirror_tod)
+
+
+def compress_output(config, grid, spectrum: np.ndarray, input_peak_power: float):
+    """Best bounce count (and trim) for the fiber output, with the ideal references."""
+    from ..compression import TrimSpec, optimize_bounces
+    from ..compression_elements import band_from_wavelengths
+
+    comp = config.compressor
+    band = None if comp.mirror_band is None else band_from_wavelengths(*comp.mirror_band)
+    trim = None
+    if comp.wedge_material is not None and comp.wedge_max_insertion > 0:
+        n = _material_index(comp.wedge_material, grid.omega)
+        trim = TrimSpec.from_index(grid, n, 0.0, comp.wedge_max_insertion)
+    has_mirrors = comp.mirror_gdd is not None or comp.mirror_gdd_csv is not None
+    return optimize_bounces(grid, spectrum, fixed_phase(config, grid), _mirror_phase(config, grid),
+                            max_bounces=comp.max_bounces if has_mirrors else 0,
+                            in_pairs=comp.bounces_in_pairs, objective=comp.objective,
+                            band=band, trim=trim, input_peak_power=input_peak_power)
+
+
+#: Mirror-band loss above which the summary warns. [1]
+BAND_LOSS_WARNING = 0.01
+
+
+def _compression_warnings(comp) -> list[str]:
+    out = [f"compressor: {note}" for note in comp.cautions]
+    if comp.band_loss > BAND_LOSS_WARNING:
+        out.append(f"compressor: {comp.band_loss:.1%} of the energy lies outside the mirror "
+                   "band and is lost; clipped wings lengthen the pulse and cut peak power")
+    return out
+
+
+# ---------------------------------------------------------------------------------------------
+# THz
+
+
+def _detector(config, grid):
+    """EO detector of the config; a given probe FWHM means a transform-limited Gaussian probe."""
+    from .. import pulse
+    from ..materials import crystals
+    from ..thz_detection import EoDetector
+
+    thz = config.thz
+    if thz.detector_crystal is None:
+        return None
+    probe = None
+    if thz.probe_fwhm is not None:
+        probe = grid.to_spectrum(pulse.pulse_field(grid, "gaussian", thz.probe_fwhm, 1e-9))
+    return EoDetector(crystal=crystals.load_crystal(thz.detector_crystal),
+                      thickness=thz.detector_thickness, probe_spectrum=probe)
+
+
+def thz_output(config, grid, compression):
+    """THz estimate from the compressed pulse (None when the config has no [thz] section)."""
+    if "thz" not in config.present_sections:
+        return None
+    from ..materials import crystals
+    from ..thz import thz_estimate
+
+    thz = config.thz
+    return thz_estimate(grid, compression.spectrum, crystals.load_crystal(thz.crystal),
+                        thz.thickness, detector=_detector(config, grid),
+                        cutoff_db=thz.cutoff_db, cutoff_level=thz.cutoff_quantity,
+                        beam_radius=thz.beam_waist, d_eff=thz.d_eff,
+                        damage_fluence=thz.damage_fluence)
+
+
+# ---------------------------------------------------------------------------------------------
+# summary and arrays
+
+
+def _input_part(chain: ChainResult) -> dict:
+    from ..metrics import fwhm
+
+    grid, prop = chain.grid, chain.propagation
+    power_in = np.abs(prop.field_in_t) ** 2
+    return {
+        "input.energy_j": chain.config.laser.energy,
+        "input.launched_energy_j": chain.launched_energy,
+        "input.coupling_efficiency": chain.coupling_efficiency,
+        "input.peak_power_w": chain.input_peak_power,
+        "input.fwhm_s": float(fwhm(grid.time, power_in)),
+    }
+
+
+def _output_part(chain: ChainResult) -> dict:
+    from ..metrics import spectral_width, transform_limited_fwhm
+
+    grid, prop = chain.grid, chain.propagation
+    power = np.abs(prop.field_out_spectrum) ** 2
+    return {
+        "output.energy_j": float(prop.energy_z[-1]),
+        "output.bandwidth_hz": float(spectral_width(grid.shifted(grid.frequency),
+                                                    grid.shifted(power), -20.0)),
+        "output.bandwidth_definition": "full width of the power spectrum at -20 dB of its peak",
+        "output.transform_limit_fwhm_s": float(transform_limited_fwhm(
+            grid, prop.field_out_spectrum)),
+        "output.peak_power_w": float(np.max(np.abs(prop.field_out_t) ** 2)),
+        "output.max_ionization_fraction": float(np.nanmax(prop.ionization_fraction_z)),
+        "output.max_peak_intensity_w_per_m2": _finite_max(prop.peak_intensity_z),
+        "output.max_peak_power_w": float(np.nanmax(prop.peak_power_z)),
+    }
+
+
+def _finite_max(values: np.ndarray) -> float | None:
+    finite = np.asarray(values)[np.isfinite(values)]
+    return float(finite.max()) if finite.size else None
+
+
+def _fiber_part(chain: ChainResult, report: dict) -> dict:
+    prop = chain.propagation
+    transmission = float(prop.energy_z[-1] / prop.energy_z[0]) if prop.energy_z[0] > 0 else 0.0
+    return {
+        "fiber.kind": chain.config.fiber.kind,
+        "fiber.length_m": chain.config.fiber.length,
+        "fiber.transmission": transmission,
+        "fiber.linear_transmission": report["fiber.transmission"],
+        "fiber.soliton_order": report["fiber.soliton_order"],
+        "fiber.zdw_m": report["fiber.zdw_m"],
+        "fiber.beta2_s2_per_m": report["fiber.beta2_s2_per_m"],
+        "fiber.regime": report["fiber.regime"],
+    }
+
+
+def _compressed_part(comp) -> dict:
+    if comp is None:
+        return {}
+    m = comp.metrics
+    return {
+        "compressed.fwhm_s": m.fwhm,
+        "compressed.peak_power_w": m.peak_power,
+        "compressed.energy_j": m.energy,
+        "compressed.bounces": comp.bounces,
+        "compressed.gdd_s2": comp.total_gdd,
+        "compressed.tod_s3": comp.total_tod,
+        "compressed.trim_insertion_m": comp.trim_insertion,
+        "compressed.band_loss_fraction": comp.band_loss,
+        "compressed.main_lobe_energy_fraction": m.main_lobe_fraction,
+        "compressed.transform_limit_fwhm_s": m.transform_limited_fwhm,
+        "compressed.peak_to_transform_limit": m.peak_to_transform_limit,
+        "compressed.peak_power_gain": m.peak_power_gain,
+        "compressed.pre_pulse_energy_j": m.pre_pulse_energy,
+        "compressed.post_pulse_energy_j": m.post_pulse_energy,
+        "compressed.best_quadratic_fwhm_s": comp.quadratic.metrics.fwhm,
+        "compressed.best_quadratic_gdd_s2": comp.quadratic.total_gdd,
+        "compressed.best_quadratic_cubic_fwhm_s": comp.quadratic_cubic.metrics.fwhm,
+        "compressed.best_quadratic_cubic_peak_power_w": comp.quadratic_cubic.metrics.peak_power,
+        "compressed.transform_limit_peak_power_w": comp.transform_limit.metrics.peak_power,
+    }
+
+
+def _thz_part(config, thz) -> dict:
+    if thz is None:
+        return {}
+    out = {
+        "thz.crystal": config.thz.crystal,
+        "thz.thickness_m": config.thz.thickness,
+        "thz.peak_hz": thz.peak_frequency,
+        "thz.cutoff_hz": thz.cutoff_frequency,
+        "thz.cutoff_definition": thz.cutoff_definition,
+        "thz.bandwidth_3db_hz": thz.bandwidth_3db,
+        "thz.bandwidth_10db_hz": thz.bandwidth_10db,
+        "thz.relative_efficiency": thz.relative_efficiency,
+    }
+    if thz.detected_power is not None:
+        out["thz.detected_peak_hz"] = thz.detected_peak_frequency
+        out["thz.detected_cutoff_hz"] = thz.detected_cutoff_frequency
+    if thz.thz_energy is not None:
+        out["thz.energy_estimate_j"] = thz.thz_energy
+        out["thz.energy_estimate_caution"] = thz.thz_energy_caution
+    return out
+
+
+def summary_dict(chain: ChainResult) -> dict:
+    """The ``summary.json`` content (see the README's output reference)."""
+    from .fiber_report import fiber_report
+
+    prop = chain.propagation
+    report = fiber_report(chain.config)
+    summary: dict[str, Any] = {}
+    summary.update(_input_part(chain))
+    summary.update(_fiber_part(chain, report))
+    summary.update(_output_part(chain))
+    summary.update(_compressed_part(chain.compression))
+    summary.update(_thz_part(chain.config, chain.thz))
+    summary.update({
+        "solver.success": prop.success,
+        "solver.status": prop.status,
+        "solver.message": prop.message,
+        "solver.steps": prop.n_steps,
+        "solver.rejected_steps": prop.n_rejected,
+        "solver.rhs_evaluations": prop.n_rhs_evals,
+        "grid.points": chain.grid.points,
+        "grid.time_window_s": chain.grid.time_window,
+        "grid.dt_s": chain.grid.dt,
+    })
+    summary["warnings"] = list(chain.warnings)
+    return nest(summary)
+
+
+def nest(flat: dict) -> dict:
+    """``{"a.b": 1}`` -> ``{"a": {"b": 1}}`` (keys without a dot stay at the top)."""
+    out: dict[str, Any] = {}
+    for key, value in flat.items():
+        head, _, tail = key.partition(".")
+        if tail:
+            out.setdefault(head, {})[tail] = value
+        else:
+            out[key] = value
+    return out
+
+
+def field_arrays(chain: ChainResult) -> dict[str, np.ndarray]:
+    """The ``fields.npz`` content: grids, spectra along z, fields in and out, THz spectra."""
+    grid, prop = chain.grid, chain.propagation
+    arrays = {
+        "frequency_hz": grid.frequency,
+        "time_s": grid.time,
+        "z_m": prop.z,
+        "spectrum_z": prop.spectrum_z,
+        "field_in_t": prop.field_in_t,
+        "field_out_t": prop.field_out_t,
+        "field_out_spectrum": prop.field_out_spectrum,
+        "energy_z_j": prop.energy_z,
+        "peak_intensity_z_w_per_m2": prop.peak_intensity_z,
+        "ionization_fraction_z": prop.ionization_fraction_z,
+        "bandwidth_z_hz": prop.bandwidth_z,
+    }
+    comp = chain.compression
+    if comp is not None:
+        arrays["field_compressed_t"] = comp.field_t
+        arrays["field_transform_limit_t"] = comp.transform_limit.field_t
+        arrays["residual_phase_rad"] = comp.residual_phase
+        arrays["bounce_counts"] = comp.bounce_counts
+        arrays["peak_power_vs_bounces_w"] = comp.peak_power_vs_bounces
+    thz = chain.thz
+    if thz is not None:
+        arrays["thz_frequency_hz"] = thz.frequency
+        arrays["thz_power_generated"] = thz.generated_power
+        arrays["thz_power_detected"] = (thz.detected_power if thz.detected_power is not None
+                                        else np.full_like(thz.frequency, np.nan))
+    return arrays

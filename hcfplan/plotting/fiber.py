@@ -1,0 +1,37 @@
+"""Figure of the linear fiber properties: GVD and loss versus wavelength."""
+
+from __future__ import annotations
+
+import numpy as np
+
+
+def plot_dispersion_and_loss(fig, curves: dict):
+    """Draw beta2 (top) and power loss (bottom) vs wavelength, pump and resonances marked.
+
+    ``curves`` is the dict of :func:`hcfplan.planning.fiber_report.dispersion_curves`.
+    Returns the two axes.
+    """
+    ax_gvd, ax_loss = fig.subplots(2, 1, sharex=True)
+    wl_nm = np.asarray(curves["wavelength_m"]) * 1e9
+    gvd = np.asarray(curves["beta2_s2_per_m"]) * 1e27  # fs^2/mm
+    loss = np.asarray(curves["power_loss_db_per_m"])
+    ax_gvd.plot(wl_nm, gvd, color="C0")
+    ax_gvd.axhline(0.0, color="0.4", lw=0.8)
+    finite = gvd[np.isfinite(gvd)]
+    if finite.size:
+        span = np.percentile(np.abs(finite), 90) * 1.5 or 1.0
+        ax_gvd.set_ylim(-span, span)
+    ax_gvd.set_ylabel("GVD $\\beta_2$ (fs$^2$/mm)")
+    ax_loss.semilogy(wl_nm, np.clip(loss, 1e-6, None), color="C3")
+    ax_loss.set_ylabel("Loss (dB/m)")
+    ax_loss.set_xlabel("Wavelength (nm)")
+    for ax in (ax_gvd, ax_loss):
+        ax.axvline(curves["pump_wavelength_m"] * 1e9, color="C2", ls="--", lw=1.0,
+                   label="pump")
+        for i, res in enumerate(curves.get("resonance_wavelengths_m", [])):
+            if wl_nm.min() <= res * 1e9 <= wl_nm.max():
+                ax.axvspan(res * 1e9 * 0.98, res * 1e9 * 1.02, color="0.6", alpha=0.3,
+                           label="resonance band" if i == 0 else None)
+    ax_gvd.legend(loc="best")
+    ax_gvd.set_title("Fundamental-mode dispersion and loss")
+    return ax_gvd, ax_loss

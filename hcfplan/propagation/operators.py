@@ -1,0 +1,299 @@
+"""Linear and nonlinear terms of the single-mode envelope equation (frequency domain).
+
+The equation (conventions of :mod:`hcfplan.grid`; :math:`\\tilde A` the grid spectrum,
+``|A|^2`` the power) is
+
+.. math::
+    \\partial_z\\tilde A = \\hat L(\\omega)\\tilde A + \\hat N(\\tilde A),\\qquad
+    \\hat L = i[\\beta(\\omega) - \\beta_0 - \\beta_1\\Delta\\omega] - \\alpha(\\omega)
+              - \\alpha_{edge}(\\omega),
+
+.. math::
+    \\hat N = i\\gamma(\\omega)\\,\\mathcal F\\{A\\,[f_i|A|^2 + (h * |A|^2)]\\}
+     + \\mathcal F\\Big\\{-i\\frac{e^2\\rho(t)}{2\\varepsilon_0 m_e c\\,\\omega_0}A
+     - \\frac{A_I}{2|A|^2}\\sum_k I_{p,k}\\,\\partial_t\\rho_k\\,A\\Big\\}.
+
+* **Dispersion and loss**: the full :math:`\\beta(\\omega)` and field loss :math:`\\alpha(\\omega)`
+  of the waveguide, not a Taylor series; :math:`\\beta_1` from a Chebyshev derivative
+  (:func:`hcfplan.derivatives.derivative`). Where the model gives no valid value
+  (:math:`\\beta` or :math:`\\alpha` not finite) the field is removed: the initial field is set to
+  zero there and :math:`\\hat L` is a strong loss. In the outer ``EDGE_FRACTION`` of the frequency
+  window on each side a smooth absorber :math:`\\alpha_{edge}` (sin^2 ramp up to
+  ``EDGE_ATTENUATION / length``) stops spectral components from wrapping round the window.
+* **Kerr and self-steepening**: :math:`\\gamma(\\omega) = n_2\\omega/(cA_{eff}(\\omega))` as the
+  waveguide returns it (interface item 4), i.e. the frequency-domain form of the shock term
+  with an :math:`\\omega`-dependent effective area, as in Kibler et al. [1]. It reduces to
+  :math:`\\gamma_0(1+\\Delta\\omega/\\omega_0)` for a constant area. For a ``TaylorFiber``, whose
+  gamma is constant, the factor :math:`\\omega/\\omega_0` is applied when its
+  ``self_steepening`` is set. With a constant area this form conserves the photon number
+  :math:`\\sum|\\tilde A|^2/\\omega` exactly, with or without Raman [2]; with a varying area it
+  does so only approximately (the pseudo-field of Lægsgaard [3] would make it exact).
+* **Raman**: :math:`f_i` and the causal response h; damped oscillator of Blow & Wood [2] for a
+  ``TaylorFiber`` (:math:`f_i = 1-f_R`, :math:`h = f_R h_{BW}`), and for molecular gases the
+  rotational response of :mod:`hcfplan.raman` divided by the waveguide's n2 (the electronic
+  n2 stays instantaneous, :math:`f_i = 1`). The response is sampled at :math:`\\tau = k\\,dt`,
+  cut at half the time window with a cos^2 taper over its last ``RESPONSE_TAPER`` part (so the
+  periodic convolution does not wrap) and applied by real FFTs.
+* **Plasma** (Geissler et al. [4], in the envelope form of Saleh et al. [5]): for each gas
+  component k with an ionisation table, the rate :math:`W_k(I)` at the on-axis intensity
+  :math:`I = |A|^2/A_I` (``peak_intensity_area``; using the peak for the whole mode overestimates
+  the mode-averaged ionisation) gives :math:`\\rho_k(t) = N_k[1-\\exp(-\\int_{-\\infty}^t W_k)]`.
+  The free electrons lower the index (first term, :math:`\\omega_p^2/(2\\omega_0^2)` at the pump
+  frequency, which conserves the energy), and the field loses :math:`I_p` per electron over the
+  area :math:`A_I` (second term), so the energy lost per length is exactly
+  :math:`A_I\\sum_k I_{p,k}\\rho_k(+\\infty)`. Cycle-averaged, single ionisation, no
+  collisional absorption or avalanche.
+
+References
+----------
+.. [1] B. Kibler, J. M. Dudley and S. Coen, "Supercontinuum generation and nonlinear pulse
+       propagation in photonic crystal fiber: influence of the frequency-dependent effective
+       mode area," Appl. Phys. B, vol. 81, pp. 337-342, 2005, doi:10.1007/s00340-005-1896-x.
+       [from memory]
+.. [2] K. J. Blow and D. Wood, "Theoretical description of transient stimulated Raman
+       scattering in optical fibers," IEEE J. Quantum Electron., vol. 25, no. 12,
+       pp. 2665-2673, 1989, doi:10.1109/3.40655.
+.. [3] J. Lægsgaard, "Mode profile dispersion in the generalized nonlinear Schrödinger
+       equation," Opt. Express, vol. 15, no. 24, pp. 16110-16123, 2007,
+       doi:10.1364/OE.15.016110.
+.. [4] M. Geissler, G. Tempea, A. Scrinzi, M. Schnürer, F. Krausz and T. Brabec, "Light
+       propagation in field-ionizing media: extreme nonlinear optics," Phys. Rev. Lett.,
+       vol. 83, no. 15, pp. 2930-2933, 1999, doi:10.1103/PhysRevLett.83.2930.
+.. [5] M. F. Saleh, W. Chang, P. Hölzer, A. Nazarkin, J. C. Travers, N. Y. Joly,
+       P. St.J. Russell and F. Biancalana, "Theory of photoionization-induced blueshift of
+       ultrashort solitons in gas-filled hollow-core photonic crystal fibers," Phys. Rev. Lett.,
+       vol. 107, 203902, 2011, doi:10.1103/PhysRevLett.107.203902. [from memory]
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+from scipy import fft as sfft
+
+from ..constants import c, e, epsilon_0, m_e
+from ..derivatives import derivative
+from ..grid import Grid
+from ..raman import raman_response_blowwood1989, rotational_raman_response
+
+#: Part of the frequency window, on each side, covered by the edge absorber.
+EDGE_FRACTION = 0.03
+#: Field attenuation (in e-folds over the fiber length) at the outermost frequency bin.
+EDGE_ATTENUATION = 30.0
+#: Last fraction of the (half-window) delayed response that is tapered to zero.
+RESPONSE_TAPER = 0.2
+#: Relative half-width of the Chebyshev stencil for beta0, beta1 (see hcfplan.derivatives).
+_BETA1_REL_WIDTH = 0.02
+
+
+@dataclass(frozen=True)
+class LinearTerms:
+    """The diagonal linear operator and what was found building it."""
+
+    operator: np.ndarray  #: L(omega), complex, FFT order [1/m]
+    valid: np.ndarray  #: bool, where the waveguide model gave finite beta and alpha
+    beta0: float  #: [rad/m]
+    beta1: float  #: [s/m]
+
+
+def edge_absorber(grid: Grid, length: float) -> np.ndarray:
+    """Smooth field attenuation in the outer ``EDGE_FRACTION`` of the frequency window. [1/m]"""
+    x = np.abs(grid.domega) / (np.pi / grid.dt)  # 0 at the pump, 1 at the window edge
+    ramp = np.clip((x - (1 - 2 * EDGE_FRACTION)) / (2 * EDGE_FRACTION), 0.0, 1.0)
+    return EDGE_ATTENUATION / length * np.sin(0.5 * np.pi * ramp) ** 2
+
+
+def linear_terms(grid: Grid, waveguide, length: float) -> LinearTerms:
+    """Build L(omega) from the waveguide's full beta(omega) and alpha(omega) (module notes)."""
+    with np.errstate(all="ignore"):
+        beta = np.asarray(waveguide.propagation_constant(grid.omega), dtype=float)
+        alpha = np.asarray(waveguide.attenuation(grid.omega), dtype=float)
+    beta0 = float(np.asarray(waveguide.propagation_constant(np.array([grid.omega0])))[0])
+    beta1 = float(
+        derivative(waveguide.propagation_constant, grid.omega0, 1, rel_width=_BETA1_REL_WIDTH)
+    )
+    valid = np.isfinite(beta) & np.isfinite(alpha)
+    absorber = edge_absorber(grid, length)
+    phase = np.where(valid, beta - beta0 - beta1 * grid.domega, 0.0)
+    loss = np.where(valid, alpha, EDGE_ATTENUATION / length) + absorber
+    return LinearTerms(1j * phase - loss, valid, beta0, beta1)
+
+
+def kerr_coefficient_spectrum(grid: Grid, waveguide, valid: np.ndarray) -> np.ndarray:
+    """gamma(omega) including the shock factor (module notes), zero where invalid. [1/(W m)]"""
+    gamma = np.asarray(waveguide.nonlinear_coefficient(grid.omega), dtype=float)
+    shock = getattr(waveguide, "self_steepening", None)
+    if shock:  # TaylorFiber: constant gamma, shock term applied here
+        gamma = gamma * grid.omega / grid.omega0
+    return np.where(valid & np.isfinite(gamma), gamma, 0.0)
+
+
+def _tapered_half_window(grid: Grid) -> tuple[np.ndarray, np.ndarray]:
+    """Delays k dt (k = 0..N-1) and a window that is 1, tapers, and is 0 beyond N/2."""
+    k = np.arange(grid.points)
+    half = grid.points // 2
+    start = (1 - RESPONSE_TAPER) * half
+    x = np.clip((k - start) / (half - start), 0.0, 1.0)
+    return k * grid.dt, np.cos(0.5 * np.pi * x) ** 2
+
+
+def delayed_response(grid: Grid, waveguide, gas) -> tuple[float, np.ndarray | None, list[str]]:
+    """Instantaneous fraction f_i and the sampled delayed response h_k (module notes).
+
+    Returns
+    -------
+    f_i : float
+        Weight of the instantaneous Kerr term. [1]
+    response : ndarray or None
+        h(k dt) dt for k = 0..N-1 (dimensionless weights), None without delayed response.
+    notes : list of str
+        Warnings for the result.
+    """
+    delay, window = _tapered_half_window(grid)
+    notes: list[str] = []
+    fraction = float(getattr(waveguide, "raman_fraction", 0.0) or 0.0)
+    if fraction > 0:
+        h = raman_response_blowwood1989(delay, waveguide.raman_tau1, waveguide.raman_tau2)
+        h = h * window
+        return 1.0 - fraction, fraction * h / np.sum(h), notes  # discrete area = f_R
+    species = _raman_species(gas)
+    if not species:
+        return 1.0, None, notes
+    n2 = float(getattr(waveguide, "kerr_n2", np.nan))
+    if not (np.isfinite(n2) and n2 > 0):
+        notes.append("rotational Raman ignored: the waveguide's kerr_n2 is not > 0")
+        return 1.0, None, notes
+    total = np.zeros(grid.points)
+    for sp, density in species:
+        total += rotational_raman_response(delay, sp, density, gas.fill.temperature)
+    return 1.0, total * window * grid.dt / n2, notes
+
+
+def _raman_species(gas) -> list:
+    """(species with pressure-scaled T2, molecule density) for every Raman-active molecule."""
+    if gas is None:
+        return []
+    from dataclasses import replace
+
+    found = []
+    for component in gas.components:
+        for sp in getattr(component.table, "raman", ()) or ():
+            t2 = sp.dephasing_time * sp.dephasing_reference_pressure / gas.fill.pressure
+            found.append((replace(sp, dephasing_time=t2), component.number_density * sp.mole_fraction))
+    return found
+
+
+@dataclass(frozen=True)
+class IonizingSpecies:
+    """One ionising gas component: neutral density [1/m^3], Ip [J] and rate table (1/s)."""
+
+    number_density: float
+    potential: float
+    rate: object  #: callable intensity [W/m^2] -> rate [1/s]
+
+
+def plasma_refraction_coefficient(omega0: float) -> float:
+    """e^2 / (2 eps0 m_e c omega0): phase rate per electron density. [m^2 rad]"""
+    return e**2 / (2 * epsilon_0 * m_e * c * omega0)
+
+
+class NonlinearTerms:
+    """Callable N(u) -> dz u (nonlinear part, spectral), with buffers allocated once.
+
+    The call takes the grid spectrum ``u`` and writes N(u) into ``out``. After every call
+    :attr:`ionization_fraction` and :attr:`electron_line_density` hold the values for that field.
+    """
+
+    def __init__(
+        self,
+        grid: Grid,
+        gamma: np.ndarray,
+        instantaneous: float,
+        response: np.ndarray | None,
+        species: tuple[IonizingSpecies, ...] = (),
+        intensity_area: float = np.nan,
+        workers: int = 1,
+    ) -> None:
+        n, dt = grid.points, grid.dt
+        self.scale = n * dt  # grid spectrum = scale * ifft(A)
+        self.workers = workers
+        # N = i gamma * scale * ifft(A V) = ifft(a * scale^2 V) * i gamma / scale^2, a = fft(u)
+        self.factor = 1j * gamma / self.scale**2
+        self._power = np.empty(grid.points)
+        self._work = np.empty(grid.points)
+        self.instantaneous = instantaneous
+        self.response_rfft = None if response is None else sfft.rfft(response)
+        self.species = species
+        self.intensity_area = intensity_area
+        self.dt = dt
+        self.refraction = plasma_refraction_coefficient(grid.omega0)
+        self.neutral_density = sum(s.number_density for s in species)
+        self.ionization_fraction = 0.0
+        self.electron_line_density = 0.0
+        self.n_calls = 0
+        self.fft_per_call = 2 + (2 if response is not None else 0) + (1 if species else 0)
+
+    def __call__(self, u: np.ndarray, out: np.ndarray) -> np.ndarray:
+        self.n_calls += 1
+        from . import kernels as kn
+
+        a = sfft.fft(u, workers=self.workers)  # = scale * A(t)
+        power = self._power
+        if self.response_rfft is None and not self.species and self.instantaneous == 1.0:
+            kn.kerr_product(a, out)  # a |a|^2
+        else:
+            kn.power_of(a, power)  # = scale^2 |A|^2
+            delayed = self._work
+            if self.response_rfft is None:
+                delayed[:] = 0.0
+            else:
+                spectrum = sfft.rfft(power, workers=self.workers)
+                spectrum *= self.response_rfft
+                delayed = sfft.irfft(spectrum, n=power.size, workers=self.workers)
+            if self.species:
+                plasma = self._plasma(a, power / self.scale**2)
+            kn.raman_product(a, power, delayed, self.instantaneous, out)
+        spec = sfft.ifft(out, workers=self.workers, overwrite_x=True)
+        np.multiply(spec, self.factor, out=out)
+        if self.species:
+            out += plasma
+        return out
+
+    def _plasma(self, a: np.ndarray, power: np.ndarray) -> np.ndarray:
+        """Spectrum of the plasma terms for the field a = scale * A(t) (module notes)."""
+        intensity = power / self.intensity_area
+        rho, loss_power = self._ionization(intensity)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            damping = np.where(power > 0, loss_power / (2 * power), 0.0)
+        term = a * (-1j * self.refraction * rho - damping)
+        return sfft.ifft(term, workers=self.workers, overwrite_x=True)
+
+    def _ionization(self, intensity: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Electron density rho(t) at mid-sample [1/m^3] and ionisation power loss [W]."""
+        rho = np.zeros_like(intensity)
+        loss = np.zeros_like(intensity)
+        line = 0.0
+        for sp in self.species:
+            rho_k, drho_k = _electron_density(sp.rate(intensity), sp.number_density, self.dt)
+            rho += rho_k
+            loss += sp.potential * drho_k * (self.intensity_area / self.dt)
+            line += float(rho_k[-1] + 0.5 * drho_k[-1])
+        self.electron_line_density = line * self.intensity_area
+        self.ionization_fraction = line / self.neutral_density
+        return rho, loss
+
+
+def _electron_density(rate: np.ndarray, density: float, dt: float) -> tuple[np.ndarray, np.ndarray]:
+    """Mid-sample electron density and its increment per sample (exact for piecewise-constant W).
+
+    With S_k = sum_{j<k} W_j dt: rho_k = N (1 - exp(-S_k)) at the start of sample k and
+    Delta_k = N exp(-S_k)(1 - exp(-W_k dt)), so sum_k Delta_k = rho at the pulse's end exactly.
+    Returns (rho_k + Delta_k / 2, Delta_k). [1/m^3]
+    """
+    w_dt = rate * dt
+    s = np.cumsum(w_dt) - w_dt
+    survive = np.exp(-s)
+    increment = density * survive * (-np.expm1(-w_dt))
+    rho_start = density * (-np.expm1(-s))
+    return rho_start + 0.5 * increment, increment

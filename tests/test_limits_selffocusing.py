@@ -1,0 +1,94 @@
+"""Tests of the self-focusing critical power (hcfplan.limits)."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+
+from hcfplan.constants import c
+from hcfplan.errors import ConfigError
+from hcfplan.limits import SELF_FOCUSING_MODELS, self_focusing_power
+from hcfplan.materials.gases import (
+    kerr_coefficient,
+    load_gas_table,
+    number_density,
+    refractive_index,
+)
+
+OMEGA_800 = 2 * math.pi * c / 800e-9
+
+
+def _argon_n2(pressure: float, eos: str = "coolprop") -> float:
+    table = load_gas_table("Ar")
+    return kerr_coefficient(table, number_density(table, pressure, 293.15, eos), eos)
+
+
+def test_argon_1_bar_800nm_is_about_10_gw():
+    """Published value: order of magnitude for Ar at 1 bar, 800 nm.
+
+    n2 = 9.7e-24 m^2/W at 1 atm (Wahlstrand, Cheng, Milchberg, Phys. Rev. A 85, 043820 (2012)),
+    scaled to 1 bar; P_cr ~ 10 GW is the commonly quoted figure (common practice, no source),
+    checked here as 5-20 GW.
+    """
+    table = load_gas_table("Ar")
+    n0 = float(refractive_index(table, OMEGA_800, number_density(table, 1e5, 293.15)))
+    power = self_focusing_power(800e-9, n0, _argon_n2(1e5))
+    assert 5e9 < power < 20e9
+    # Exact: Fibich & Gaeta's formula with n2 scaled from 1 atm (101325 Pa) to 1 bar.
+    table_ratio = number_density(table, 1e5, 293.15) / number_density(table, 101325.0, 293.15)
+    expected = 1.8962 * 800e-9**2 / (4 * math.pi * n0 * 9.7e-24 * table_ratio)
+    assert power == pytest.approx(expected, rel=1e-12)
+
+
+@pytest.mark.parametrize(
+    ("model", "constant"),
+    # Fibich & Gaeta, Opt. Lett. 25, 335 (2000): P_cr = 1.8962 l^2/(4 pi n0 n2);
+    # Marburger, Prog. Quantum Electron. 4, 35 (1975): P_cr = 3.77 l^2/(8 pi n0 n2).
+    [("fibich2000", 1.8962 / (4 * math.pi)), ("marburger1975", 3.77 / (8 * math.pi))],
+)
+def test_formula(model, constant):
+    """Analytic: the printed formulas, written again here."""
+    wavelength, n0, n2 = 1030e-9, 1.00028, 9.7e-24
+    expected = constant * wavelength**2 / (n0 * n2)
+    assert self_focusing_power(wavelength, n0, n2, model) == pytest.approx(expected, rel=1e-14)
+
+
+def test_constants_differ_by_0p6_percent():
+    """Published values: the Townes value is 0.6 % above Marburger's (both papers above)."""
+    ratio = self_focusing_power(800e-9, 1, 1e-23) / self_focusing_power(
+        800e-9, 1, 1e-23, "marburger1975"
+    )
+    assert ratio == pytest.approx(1.006, abs=5e-4)
+
+
+@pytest.mark.parametrize("pressure", [0.5e5, 2e5, 10e5])
+def test_inverse_with_pressure(pressure):
+    """Analytic: with an ideal-gas density n2 is proportional to p, so P_cr goes as 1/p."""
+    reference = self_focusing_power(800e-9, 1.0, _argon_n2(1e5, "ideal"))
+    power = self_focusing_power(800e-9, 1.0, _argon_n2(pressure, "ideal"))
+    assert power * pressure == pytest.approx(reference * 1e5, rel=1e-12)
+
+
+def test_vectorised_and_zero_n2():
+    powers = self_focusing_power(np.array([400e-9, 800e-9]), 1.0, np.array([1e-23, 0.0]))
+    assert powers[0] > 0 and math.isinf(powers[1])
+
+
+@pytest.mark.parametrize(
+    ("args", "message"),
+    [
+        ((-800e-9, 1.0, 1e-23), r"wavelength = -8e-07 m"),
+        ((800e-9, 0.5, 1e-23), r"n0 = 0\.5"),
+        ((800e-9, 1.0, -1e-23), r"n2 = -1e-23 m\^2/W"),
+    ],
+)
+def test_bad_input(args, message):
+    with pytest.raises(ConfigError, match=message):
+        self_focusing_power(*args)
+
+
+def test_unknown_model_lists_registry():
+    with pytest.raises(ConfigError, match=r"'townes'.*" + ", ".join(SELF_FOCUSING_MODELS)):
+        self_focusing_power(800e-9, 1.0, 1e-23, "townes")

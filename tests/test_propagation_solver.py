@@ -1,0 +1,136 @@
+"""Solver behaviour: order of convergence, step control, faults and input checks.
+
+Kinds: convergence (RK4IP is fourth order, Hult, J. Lightwave Technol. 25, 3770 (2007);
+the ERK4(3)-IP error follows the tolerance, Balac & Mahé, Comput. Phys. Commun. 184, 1211
+(2013)), contract tests over the stepper registry, and error tests.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+from propagation_cases import Z0, max_intensity_error, soliton, taylor, textbook_grid
+
+from hcfplan.errors import ConfigError
+from hcfplan.propagation import operators
+from hcfplan.propagation.solve import propagate
+from hcfplan.propagation.steppers import STEPPERS
+
+
+@pytest.fixture(scope="module")
+def case():
+    grid = textbook_grid()
+    return grid, soliton(grid, 2.0), taylor(0.5 * Z0)
+
+
+def _fixed(case, n_steps: int) -> np.ndarray:
+    grid, field0, fiber = case
+    result = propagate(field0, grid, fiber, stepper="rk4ip", step=fiber.length / n_steps,
+                       z_samples=2)
+    assert result.n_steps == n_steps
+    return result.field_out_spectrum
+
+
+@pytest.fixture(scope="module")
+def reference(case):
+    return _fixed(case, 3200)
+
+
+def test_rk4ip_global_error_is_fourth_order(case, reference):
+    # convergence: global error ~ h^4; required slope 4 +- 0.3 (task requirement)
+    steps = np.array([25, 50, 100, 200])
+    errors = [np.max(np.abs(_fixed(case, n) - reference)) / np.max(np.abs(reference))
+              for n in steps]
+    slope = -np.polyfit(np.log(steps), np.log(errors), 1)[0]
+    assert slope == pytest.approx(4.0, abs=0.3)
+
+
+@pytest.mark.parametrize("rtol", [1e-5, 1e-7])
+def test_adaptive_error_follows_tolerance(case, reference, rtol):
+    # convergence: the error of the adaptive run, in units of rtol, stays O(1) (here < 10)
+    grid, field0, fiber = case
+    result = propagate(field0, grid, fiber, rtol=rtol, z_samples=2)
+    error = np.max(np.abs(result.field_out_spectrum - reference)) / np.max(np.abs(reference))
+    assert error < 10 * rtol
+    assert result.n_rhs_evals <= 4 * (result.n_steps + result.n_rejected) + 2
+
+
+@pytest.mark.parametrize("name", sorted(STEPPERS))
+def test_every_stepper_keeps_the_soliton(name):
+    # contract: each registered stepper propagates an N = 1 soliton (analytic, Agrawal ch. 5)
+    grid = textbook_grid()
+    field0 = soliton(grid, 1.0)
+    result = propagate(field0, grid, taylor(Z0), stepper=name, step=Z0 / 200, rtol=1e-7,
+                       z_samples=3)
+    assert result.success and result.status == "completed" and result.message == ""
+    assert max_intensity_error(result.field_out_t, field0) < 1e-5
+    assert result.z.tolist() == pytest.approx([0.0, Z0 / 2, Z0])
+
+
+def _inject_nan_after(monkeypatch, calls: int) -> None:
+    original = operators.NonlinearTerms.__call__
+
+    def broken(self, u, out):
+        original(self, u, out)
+        if self.n_calls > calls:
+            out[3] = np.nan
+        return out
+
+    monkeypatch.setattr(operators.NonlinearTerms, "__call__", broken)
+
+
+@pytest.mark.parametrize("stepper", ["erk43ip", "rk4ip"])
+def test_nan_ends_run_with_message(monkeypatch, case, stepper):
+    grid, field0, fiber = case
+    _inject_nan_after(monkeypatch, 40)
+    result = propagate(field0, grid, fiber, stepper=stepper, step=fiber.length / 100,
+                       z_samples=5)
+    assert not result.success and result.status == "nonfinite"
+    assert "non-finite" in result.message and "z = " in result.message
+    assert 0 < result.z[-1] < fiber.length  # the part computed so far is kept
+    assert np.all(np.isfinite(result.field_out_t))
+
+
+def test_impossible_tolerance_fails_cleanly(case):
+    grid, field0, fiber = case
+    result = propagate(field0, grid, fiber, rtol=1e-15, z_samples=3, max_steps=300)
+    assert not result.success and result.status in {"step_collapse", "step_budget"}
+    assert "z = " in result.message and "rtol" in result.message
+
+
+@pytest.mark.parametrize(
+    ("kwargs", "pattern"),
+    [
+        ({"rtol": 0.0}, r"rtol = 0\.0"),
+        ({"rtol": 2.0}, r"rtol = 2\.0"),
+        ({"atol": -1.0}, r"atol = -1\.0"),
+        ({"z_samples": 1}, "z_samples = 1"),
+        ({"stepper": "euler"}, r"'euler'.*erk43ip"),
+        ({"stepper": "rk4ip"}, "give step"),
+        ({"stop_ionization_fraction": 0.0}, "stop_ionization_fraction = 0.0"),
+        ({"step": -1e-3}, r"step = -0\.001"),
+        ({"progress": 3}, "progress"),
+    ],
+)
+def test_input_errors(case, kwargs, pattern):
+    grid, field0, fiber = case
+    with pytest.raises(ConfigError, match=pattern):
+        propagate(field0, grid, fiber, **kwargs)
+
+
+def test_field_errors(case):
+    grid, field0, fiber = case
+    with pytest.raises(ConfigError, match=r"field0 shape = \(10,\)"):
+        propagate(field0[:10], grid, fiber)
+    bad = field0.copy()
+    bad[5] = np.inf
+    with pytest.raises(ConfigError, match="field0: must be finite"):
+        propagate(bad, grid, fiber)
+
+
+def test_progress_is_called(case):
+    grid, field0, fiber = case
+    seen = []
+    result = propagate(field0, grid, fiber, z_samples=3, progress=lambda *a: seen.append(a))
+    assert len(seen) == result.n_steps
+    assert seen[-1] == (pytest.approx(fiber.length), fiber.length, result.n_steps)
