@@ -393,6 +393,81 @@ def _print_simulation(s: dict, out_dir: Path) -> None:
 
 
 # ---------------------------------------------------------------------------------------------
+# thz (from a measured spectrum)
+
+
+@app.command("thz")
+def thz_command(
+    spectrum_csv: Path = typer.Argument(..., help="Measured spectrum CSV: wavelength_nm, "
+                                        "intensity (per unit wavelength)."),
+    phase_csv: Optional[Path] = typer.Option(  # noqa: UP007
+        None, "--phase-csv", help="Spectral phase CSV: wavelength_nm, phase_rad (default: the "
+        "pulse is compressed to its transform limit)."),
+    crystal: str = typer.Option("GaP", "--crystal", help="Generation crystal."),
+    thickness_mm: float = typer.Option(0.3, "--thickness-mm", help="Crystal thickness."),
+    energy_uj: float = typer.Option(1.0, "--energy-uj", help="Pulse energy on the crystal."),
+    cutoff_db: float = typer.Option(-20.0, "--cutoff-db", help="Cutoff level below the peak."),
+    cutoff_quantity: str = typer.Option("power", "--cutoff-quantity",
+                                        help="Spectrum the level refers to: power or field."),
+    detector_crystal: Optional[str] = typer.Option(None, "--detector-crystal",  # noqa: UP007
+                                                   help="EO detection crystal (optional)."),
+    detector_thickness_mm: float = typer.Option(0.3, "--detector-thickness-mm",
+                                                help="EO detection crystal thickness."),
+    plot: Optional[Path] = typer.Option(None, "--plot", help="Write the THz figure here."),  # noqa: UP007
+    as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
+) -> None:
+    """THz estimate from a measured broadened spectrum (no fiber model needed)."""
+    from .planning.thz_report import thz_report
+
+    _check_cli_number("--thickness-mm", thickness_mm, 0.0, 50.0)
+    _check_cli_number("--energy-uj", energy_uj, 0.0, 1e6)
+    _check_cli_number("--detector-thickness-mm", detector_thickness_mm, 0.0, 50.0)
+    if not (math.isfinite(cutoff_db) and -200.0 <= cutoff_db < 0.0):
+        raise _cli_error(f"--cutoff-db = {cutoff_db}: must be < 0 and >= -200")
+    if cutoff_quantity not in ("power", "field"):
+        raise _cli_error(f"--cutoff-quantity = {cutoff_quantity!r}: must be one of power, field")
+    result, report = thz_report(spectrum_csv, phase_csv=phase_csv, crystal=crystal,
+                                thickness=thickness_mm * 1e-3, energy=energy_uj * 1e-6,
+                                cutoff_db=cutoff_db, cutoff_quantity=cutoff_quantity,
+                                detector_crystal=detector_crystal,
+                                detector_thickness=detector_thickness_mm * 1e-3)
+    if plot is not None:
+        from .io.results import write_figure
+        from .plotting.report import draw_thz_result
+
+        write_figure(plot, draw_thz_result, result)
+        report["figure"] = str(plot)
+    if as_json:
+        _print_json(report)
+        return
+    rows = [
+        ("crystal", f"{report['crystal']} {report['thickness_m'] * 1e3:g} mm", ""),
+        ("THz peak", f"{_fmt(report['peak_hz'], 1e12)} THz", ""),
+        ("THz cutoff", f"{_fmt(report['cutoff_hz'], 1e12)} THz", report["cutoff_definition"]),
+        ("-3 dB / -10 dB width", f"{_fmt(report['bandwidth_3db_hz'], 1e12)} / "
+         f"{_fmt(report['bandwidth_10db_hz'], 1e12)} THz", ""),
+        ("relative efficiency", f"{report['relative_efficiency']:.3g}",
+         "for d_eff = 1 pm/V and 1 mm^2: compares spectra, not an absolute yield"),
+    ]
+    if report.get("detected_cutoff_hz") is not None:
+        rows.append(("detected cutoff", f"{_fmt(report['detected_cutoff_hz'], 1e12)} THz",
+                     f"EO detection in {detector_crystal}"))
+    _print_rows(rows)
+    if "figure" in report:
+        _echo(f"\nFigure written: {report['figure']}")
+    _print_warnings(report["warnings"])
+    _print_cautions(("estimates", "laser"))
+
+
+# ---------------------------------------------------------------------------------------------
+# planning workflows (scan, recommend, compare) live in their own module
+
+from .cli_workflows import register as _register_workflows  # noqa: E402  (light import)
+
+_register_workflows(app)
+
+
+# ---------------------------------------------------------------------------------------------
 # entry point
 
 

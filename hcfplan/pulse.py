@@ -95,9 +95,11 @@ def peak_power_from_energy(energy: float, duration_fwhm: float, shape: PulseShap
     Notes
     -----
     sech^2: :math:`E = P_0\\int \\mathrm{sech}^2(t/T_0)dt = 2P_0T_0` and
-    :math:`T_0 = \\tau/[2\\ln(1+\\sqrt2)]`, so :math:`P_0 = \\ln(1+\\sqrt2)\\,E/\\tau = 0.8814\\,E/\\tau`.
+    :math:`T_0 = \\tau/[2\\ln(1+\\sqrt2)]`, so
+    :math:`P_0 = \\ln(1+\\sqrt2)\\,E/\\tau = 0.8814\\,E/\\tau`.
     Gaussian: :math:`E = P_0\\int e^{-t^2/T_0^2}dt = \\sqrt\\pi P_0T_0` and
-    :math:`T_0 = \\tau/(2\\sqrt{\\ln 2})`, so :math:`P_0 = 2\\sqrt{\\ln2/\\pi}\\,E/\\tau = 0.9394\\,E/\\tau`.
+    :math:`T_0 = \\tau/(2\\sqrt{\\ln 2})`, so
+    :math:`P_0 = 2\\sqrt{\\ln2/\\pi}\\,E/\\tau = 0.9394\\,E/\\tau`.
     """
     _, fwhm_per_t0, energy_per_p0t0 = _shape_entry(shape)
     _check_positive("duration_fwhm", duration_fwhm, "s")

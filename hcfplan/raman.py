@@ -15,7 +15,8 @@ Two models, both as functions of the delay ``t`` >= 0 (zero for t < 0):
 Derivation of the rotational prefactor (checked numerically in ``tests/test_raman.py``)
 -------------------------------------------------------------------------------------
 A linearly polarised field of cycle-averaged intensity I couples to the molecular axis through
-:math:`V = -\\tfrac14\\Delta\\alpha_{SI}|E_0|^2\\cos^2\\theta = -(2\\pi\\Delta\\alpha/c) I\\cos^2\\theta`
+:math:`V = -\\tfrac14\\Delta\\alpha_{SI}|E_0|^2\\cos^2\\theta
+= -(2\\pi\\Delta\\alpha/c) I\\cos^2\\theta`
 (Δα the polarisability anisotropy as a volume, :math:`\\Delta\\alpha_{SI} = 4\\pi\\varepsilon_0
 \\Delta\\alpha`, :math:`I = \\tfrac12\\varepsilon_0 c|E_0|^2`). First-order perturbation theory
 (linear response) gives :math:`\\delta\\langle\\cos^2\\theta\\rangle(t) = (2\\pi\\Delta\\alpha/c)
@@ -80,8 +81,9 @@ def raman_response_blowwood1989(t: np.ndarray, tau1: float, tau2: float) -> np.n
 
     Notes
     -----
-    Eq. (3.3) of [1] as quoted in Eq. (2.3.39) of Agrawal, *Nonlinear Fiber Optics*
-    [from memory]; the prefactor makes :math:`\\int_0^\\infty h\\,dt = 1`.
+    The damped-oscillator response of [1] (equation number not checked; also in Agrawal,
+    *Nonlinear Fiber Optics*, ch. 2 [from memory]); the prefactor makes
+    :math:`\\int_0^\\infty h\\,dt = 1`.
     """
     t = np.asarray(t, dtype=float)
     if not (tau1 > 0 and tau2 > 0):
@@ -185,4 +187,5 @@ def rotational_kerr_n2(species, number_density: float, temperature: float) -> fl
     """
     omega, amplitude = rotational_lines(species, temperature)
     gamma = _dephasing_rate(species)
-    return float(_prefactor(species, number_density) * np.sum(amplitude * omega / (omega**2 + gamma**2)))
+    weights = amplitude * omega / (omega**2 + gamma**2)
+    return float(_prefactor(species, number_density) * np.sum(weights))

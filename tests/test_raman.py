@@ -79,7 +79,8 @@ def test_rigid_rotor_revival_is_exact():
     t = np.linspace(0.1e-12, 2e-12, 50)
     r0 = rotational_raman_response(t, species, 2.5e25, 293.15)
     r1 = rotational_raman_response(t + t_rev, species, 2.5e25, 293.15)
-    np.testing.assert_allclose(r1, r0 * np.exp(-t_rev / 50e-12), rtol=1e-8, atol=1e-12 * abs(r0).max())
+    expected = r0 * np.exp(-t_rev / 50e-12)
+    np.testing.assert_allclose(r1, expected, rtol=1e-8, atol=1e-12 * abs(r0).max())
 
 
 def test_n2_revival_period_published():

@@ -171,10 +171,10 @@ def _mirror_phase(config, grid) -> np.ndarray:
     if comp.mirror_gdd_csv is not None:
         from ..constants import c
 
-        wavelength, gdd_fs2 = read_curve_csv(comp.mirror_gdd_csv, "gdd_fs2")
+        wavelength, gdd_curve = read_curve_csv(comp.mirror_gdd_csv, "gdd_fs2")  # SI [s^2]
         omega_curve = 2 * math.pi * c / wavelength
         order = np.argsort(omega_curve)
-        gdd = np.interp(grid.omega, omega_curve[order], gdd_fs2[order] * 1e-30)
+        gdd = np.interp(grid.omega, omega_curve[order], gdd_curve[order])
         return phase_from_gdd_curve(grid.omega, grid.omega0, gdd)
     if comp.mirror_gdd is None:
         return np.zeros_like(grid.omega)

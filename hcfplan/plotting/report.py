@@ -121,15 +121,20 @@ def draw_bounces(fig, chain):
     return plot_peak_power_vs_bounces(fig.subplots(), chain.compression)
 
 
-def draw_thz(fig, chain):
-    """THz power spectrum with the cutoff, and the coherence length."""
+def draw_thz_result(fig, thz):
+    """THz spectrum and coherence length of a :class:`~hcfplan.thz.ThzResult` alone."""
     from .thz import plot_coherence_length, plot_thz_spectrum
 
     ax_spec, ax_lc = fig.subplots(2, 1, sharex=True)
     fig.set_size_inches(7.5, 7.5)
-    plot_thz_spectrum(ax_spec, chain.thz)
-    plot_coherence_length(ax_lc, chain.thz)
+    plot_thz_spectrum(ax_spec, thz)
+    plot_coherence_length(ax_lc, thz)
     return ax_spec
+
+
+def draw_thz(fig, chain):
+    """THz power spectrum with the cutoff, and the coherence length."""
+    return draw_thz_result(fig, chain.thz)
 
 
 FIGURES: dict[str, Callable] = {

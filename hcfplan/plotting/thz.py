@@ -43,13 +43,16 @@ def plot_thz_spectrum(ax: Any, result: Any, *, log_scale: bool = True) -> Any:
     if result.detected_power is not None:
         ax.plot(f_thz, scale(result.detected_power), label="detected (EO response)")
     ax.axvline(result.cutoff_frequency * 1e-12, color="k", linestyle="--",
-               label=f"cutoff {result.cutoff_frequency * 1e-12:.2f} THz: "
-               f"{result.cutoff_definition}")
+               label=f"cutoff {result.cutoff_frequency * 1e-12:.2f} THz")
     ax.set_xlabel("Frequency (THz)")
     ax.set_ylabel("Power (dB rel. peak)" if log_scale else "Power (norm.)")
+    ax.set_title(f"Cutoff: {result.cutoff_definition}", fontsize="small", wrap=True)
     if log_scale:
         ax.set_ylim(_FLOOR_DB, 3.0)
-    ax.legend(fontsize="small")
+    visible = f_thz[_db(result.generated_power) > _FLOOR_DB]
+    if visible.size:
+        ax.set_xlim(0.0, visible.max() * 1.1)
+    ax.legend(fontsize="small", loc="upper right")
     return ax
 
 

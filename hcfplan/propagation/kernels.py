@@ -49,10 +49,12 @@ def scaled_rms(k4, k5, u4, u, s, rtol, atol):  # pragma: no cover - compiled
     """RMS of s (k4 - k5) / (atol + rtol max(|u4|, |u|))."""
     total = 0.0
     for i in range(k4.size):
-        scale = atol + rtol * max(abs(u4[i]), abs(u[i]))
-        delta = s * (k4[i] - k5[i])
-        total += (delta.real**2 + delta.imag**2) / (scale * scale)
-    return np.sqrt(total / k4.size)
+        big = max(u4[i].real ** 2 + u4[i].imag ** 2, u[i].real ** 2 + u[i].imag ** 2)
+        scale = atol + rtol * np.sqrt(big)
+        dr = k4[i].real - k5[i].real
+        di = k4[i].imag - k5[i].imag
+        total += (dr * dr + di * di) / (scale * scale)
+    return abs(s) * np.sqrt(total / k4.size)
 
 
 @njit(cache=True)

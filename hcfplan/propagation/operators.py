@@ -180,7 +180,8 @@ def _raman_species(gas) -> list:
     for component in gas.components:
         for sp in getattr(component.table, "raman", ()) or ():
             t2 = sp.dephasing_time * sp.dephasing_reference_pressure / gas.fill.pressure
-            found.append((replace(sp, dephasing_time=t2), component.number_density * sp.mole_fraction))
+            density = component.number_density * sp.mole_fraction
+            found.append((replace(sp, dephasing_time=t2), density))
     return found
 
 

@@ -114,8 +114,10 @@ class Recorder:
         values["ionization"][i], values["electrons"][i] = self._ionization(power)
         values["bandwidth"][i] = spectral_width(grid.frequency, density, BANDWIDTH_LEVEL_DB)
         if energy > 0:
-            self.edge_frequency = max(self.edge_frequency, grid.dnu * density[self._far_frequency].sum() / energy)
-            self.edge_time = max(self.edge_time, grid.dt * power[self._far_time].sum() / energy)
+            far_w = grid.dnu * density[self._far_frequency].sum() / energy
+            far_t = grid.dt * power[self._far_time].sum() / energy
+            self.edge_frequency = max(self.edge_frequency, far_w)
+            self.edge_time = max(self.edge_time, far_t)
         self.count += 1
 
     def _ionization(self, power: np.ndarray) -> tuple[float, float]:

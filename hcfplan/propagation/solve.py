@@ -74,7 +74,8 @@ def _check_inputs(field0, grid, waveguide, opts: dict) -> np.ndarray:
         _check_number("atol", opts["atol"], 0.0, math.inf, "sqrt(J/Hz)")
     if opts["stepper"] not in STEPPERS:
         raise ConfigError(f"stepper = {opts['stepper']!r}: allowed are {sorted(STEPPERS)}")
-    if isinstance(opts["z_samples"], bool) or not isinstance(opts["z_samples"], int) or opts["z_samples"] < 2:
+    samples = opts["z_samples"]
+    if isinstance(samples, bool) or not isinstance(samples, int) or samples < 2:
         raise ConfigError(f"z_samples = {opts['z_samples']!r}: must be an integer >= 2")
     _check_number("stop_ionization_fraction", opts["stop"], 0.0, 1.0 + 1e-12)
     if opts["step"] is not None:

@@ -47,7 +47,7 @@ _CACHE_SIZE = 12
 
 @dataclass
 class StepState:
-    """Mutable state of a run: spectrum ``u`` (FFT order), position ``z`` [m], next step ``h`` [m]."""
+    """Mutable run state: spectrum ``u`` (FFT order), position ``z`` [m], next step ``h`` [m]."""
 
     u: np.ndarray
     z: float
