@@ -12,7 +12,11 @@ Conventions (every other module refers to this docstring)
    :math:`A(t) = \\frac{1}{2\\pi}\\int \\tilde A\\, e^{-i\\Delta\\omega t}\\, d\\Delta\\omega`, where
    :math:`\\Delta\\omega = \\omega - \\omega_0`. Numerically ``spectrum = N * dt * ifft(A)`` and
    ``A = fft(spectrum) / (N * dt)`` (numpy ordering, unshifted). A positive frequency offset
-   means a bluer (higher-frequency) component.
+   means a bluer (higher-frequency) component. Because the time axis is centred
+   (t_k = (k - N/2) dt), the grid spectrum equals the continuous transform times (-1)^j
+   (a delay of half a window); this drops out of |A~|^2 and of every operator diagonal in
+   frequency, and code that needs the absolute spectral phase (measured spectra, residual
+   phase) multiplies by (-1)^j.
 3. **Energy.** Parseval: :math:`\\int |A|^2 dt = \\int |\\tilde A|^2 d\\nu`, so :math:`|\\tilde A|^2`
    is the spectral energy density in J/Hz (ν in Hz).
 4. **Dispersion.** The linear operator in the frequency domain is

@@ -39,6 +39,7 @@ class ChainResult:
     propagation: Any
     compression: Any | None
     thz: Any | None
+    phase_matching: Any | None
     warnings: tuple[str, ...]
 
 
@@ -72,12 +73,32 @@ def run_chain(config, *, progress: Callable[[float, float, int], None] | None = 
         warnings_module.simplefilter("always")
         with quiet_validity_of_materials():
             chain = _run_chain(config, progress, workers)
-    extra = [str(w.message) for w in caught]
+    extra = _grid_notes(chain, [str(w.message) for w in caught])
     grid, prop = chain.grid, chain.propagation
     band = light_band(grid.frequency, np.abs(prop.field_out_spectrum) ** 2)
     notes = range_notes(config, chain.medium, band, "the output spectrum at -40 dB")
     merged = tuple(dict.fromkeys(list(chain.warnings) + notes + extra))
     return dataclasses.replace(chain, warnings=merged)
+
+
+def _grid_notes(chain: ChainResult, caught: list[str]) -> list[str]:
+    """Keep the grid-size notes that matter for this run.
+
+    The grid is sized from a first-look broadening estimate; when that estimate asks for more
+    than the widest window centred on the pump, ``choose_grid`` says so. That note is dropped
+    when the run itself found no energy at the window edges, and the edge warning gets the
+    remedy that applies when the window cannot grow.
+    """
+    from ..grid import MAX_HALF_WINDOW_FRACTION
+
+    edge = any("frequency window" in w for w in chain.propagation.warnings)
+    notes = [w for w in caught if edge or not w.startswith("grid: the expected spectrum")]
+    at_cap = math.pi / chain.grid.dt >= 0.99 * MAX_HALF_WINDOW_FRACTION * chain.grid.omega0
+    if edge and at_cap:
+        notes.append("grid: the frequency window is already the widest one centred on the pump "
+                     f"(+-{MAX_HALF_WINDOW_FRACTION:.0%} of the pump frequency); the spectrum "
+                     "broadens beyond it: lower the energy or pressure, or shorten the fiber")
+    return notes
 
 
 def _run_chain(config, progress, workers) -> ChainResult:
@@ -102,17 +123,18 @@ def _run_chain(config, progress, workers) -> ChainResult:
                        stop_ionization_fraction=config.grid.stop_ionization_fraction,
                        workers=workers, progress=progress)
     warnings = list(report["warnings"]) + list(result.warnings)
-    compression = thz = None
+    compression = thz = pm_map = None
     if result.success:
         compression = compress_output(config, grid, result.field_out_spectrum, peak_in)
         warnings += _compression_warnings(compression)
         thz = thz_output(config, grid, compression)
         if thz is not None:
             warnings += list(thz.warnings)
+            pm_map = phase_matching_output(config, thz)
     return ChainResult(config=config, grid=grid, waveguide=waveguide, medium=medium,
                        coupling_efficiency=efficiency, launched_energy=energy,
                        input_peak_power=peak_in, propagation=result, compression=compression,
-                       thz=thz, warnings=tuple(dict.fromkeys(warnings)))
+                       thz=thz, phase_matching=pm_map, warnings=tuple(dict.fromkeys(warnings)))
 
 
 # ---------------------------------------------------------------------------------------------
@@ -244,6 +266,28 @@ def thz_output(config, grid, compression):
                         cutoff_db=thz.cutoff_db, cutoff_level=thz.cutoff_quantity,
                         beam_radius=thz.beam_waist, d_eff=thz.d_eff,
                         damage_fluence=thz.damage_fluence)
+
+
+#: Pump-wavelength span (relative to the pump) and sample counts of the phase-matching map.
+PM_MAP_WAVELENGTH_SPAN = (0.6, 1.6)
+PM_MAP_POINTS = (60, 120)
+#: The map spans THz frequencies up to this multiple of the spectral peak (at least 5 THz).
+PM_MAP_PEAK_MULTIPLE = 3.0
+PM_MAP_MIN_FREQUENCY = 5e12
+
+
+def phase_matching_output(config, thz):
+    """Coherence length of the generation crystal over pump wavelength and THz frequency."""
+    from ..materials import crystals
+    from ..thz_detection import phase_matching_map
+
+    lam0 = config.laser.wavelength
+    wavelengths = np.linspace(PM_MAP_WAVELENGTH_SPAN[0] * lam0, PM_MAP_WAVELENGTH_SPAN[1] * lam0,
+                              PM_MAP_POINTS[0])
+    f_max = max(min(2.0 * thz.cutoff_frequency, PM_MAP_PEAK_MULTIPLE * thz.peak_frequency),
+                PM_MAP_MIN_FREQUENCY)
+    frequency = np.linspace(f_max / PM_MAP_POINTS[1], f_max, PM_MAP_POINTS[1])
+    return phase_matching_map(crystals.load_crystal(config.thz.crystal), wavelengths, frequency)
 
 
 # ---------------------------------------------------------------------------------------------

@@ -24,6 +24,7 @@ from typing import Any
 import numpy as np
 
 from ..constants import P_1ATM, T_ROOM
+from ..errors import ConfigError
 from .build import build_medium, build_waveguide, coupling, pump_omega
 from .validity import quiet_validity
 
@@ -159,7 +160,8 @@ def lowest_barrier_suppression(medium) -> float:
     """Lowest barrier-suppression intensity of the ionising species of a medium. [W/m^2]"""
     from ..ionization import barrier_suppression_intensity
 
-    return min(barrier_suppression_intensity(k.table.ionization.potential, k.table.ionization.charge)
+    return min(barrier_suppression_intensity(k.table.ionization.potential,
+                                             k.table.ionization.charge)
                for k in medium.components)
 
 
@@ -238,3 +240,410 @@ def _setup(config) -> _Setup:
 def _run_value(run, name: str):
     value = getattr(run, name, None) if run is not None else None
     return None if value is None else float(value)
+
+
+# ---------------------------------------------------------------------------------------------
+# sections: each returns (values, checks, notes)
+
+
+def _self_focusing_part(s: _Setup, run) -> tuple[dict, list, list]:
+    from .. import limits
+
+    name, unit = "self_focusing", "W"
+    margin = s.config.limits.self_focusing_margin
+    in_fiber = _run_value(run, "max_peak_power")
+    if s.medium is None:
+        why = "no gas (Taylor fiber): the gas self-focusing check does not apply"
+        return ({}, [_not_checked(f"{name}.input", unit, why)], [])
+    laser, gas = s.config.laser, s.config.gas
+    ceiling = condensation_ceiling(s.medium, gas.temperature, PRESSURE_SEARCH_MAX)
+
+    def critical_at(p: float) -> float:
+        scaled = gas_at(gas, s.medium, p)
+        n0 = float(scaled.refractive_index(np.array([s.omega0]))[0])
+        return float(limits.self_focusing_power(laser.wavelength, n0, scaled.n2))
+
+    p_max = limits.max_pressure_for_self_focusing(
+        s.peak_power_coupled, critical_at, margin=margin,
+        pressure_range=(min(1e2, gas.pressure / 10), ceiling))
+    values = {
+        "limits.self_focusing.critical_power_w": s.critical_power,
+        "limits.self_focusing.required_margin": margin,
+        "limits.self_focusing.peak_power_input_w": s.peak_power_coupled,
+        "limits.self_focusing.margin_input": limits.self_focusing_margin(
+            s.critical_power, s.peak_power_coupled),
+        "limits.self_focusing.max_pressure_pa": p_max,
+        "limits.self_focusing.max_energy_j": limits.max_energy_for_self_focusing(
+            s.critical_power, laser.duration_fwhm, laser.shape, margin=margin,
+            coupling_efficiency=s.efficiency),
+    }
+    notes = [] if math.isfinite(p_max) else [
+        f"self-focusing margin {margin:g} holds up to the search limit "
+        f"{ceiling / 1e5:.4g} bar (condensation or 1000 bar)"]
+    assumption = (f"coupled input peak power (coupling {s.efficiency:.3f}) vs P_cr / {margin:g} "
+                  "of the fill at the pump wavelength")
+    checks = [_check(f"{name}.input", s.peak_power_coupled, s.critical_power / margin,
+                     unit=unit, source=SOURCES["critical_power"], assumption=assumption)]
+    if in_fiber is not None:
+        values["limits.self_focusing.peak_power_in_fiber_w"] = in_fiber
+        values["limits.self_focusing.margin_in_fiber"] = s.critical_power / in_fiber
+        checks.append(_check(f"{name}.in_fiber", in_fiber, s.critical_power / margin, unit=unit,
+                             source=SOURCES["critical_power"],
+                             assumption="highest peak power along the fiber from the run"))
+    return values, checks, notes
+
+
+def _ionization_part(s: _Setup, run) -> tuple[dict, list, list]:
+    from .. import limits
+
+    name, unit = "ionization", ""
+    if s.medium is None:
+        why = "no gas (Taylor fiber): the gas ionisation check does not apply"
+        return ({}, [_not_checked(f"{name}.input", unit, why)], [])
+    laser = s.config.laser
+    level = s.config.limits.ionization_fraction_limit
+    area = s.waveguide.peak_intensity_area
+    intensity = s.peak_power_coupled / area
+    bsi = lowest_barrier_suppression(s.medium)
+    i_lim = limits.peak_intensity_for_fraction(level, laser.duration_fwhm, laser.shape, s.rates,
+                                               RATE_TABLE_RANGE)
+
+    def fraction(i: float) -> float:
+        return limits.pulse_ionization_fraction(i, laser.duration_fwhm, laser.shape, s.rates)
+
+    values = {
+        "limits.ionization.model": s.config.gas.ionization_model,
+        "limits.ionization.fraction_limit": level,
+        "limits.ionization.peak_intensity_input_w_per_m2": intensity,
+        "limits.ionization.fraction_input": fraction(intensity),
+        "limits.ionization.barrier_suppression_intensity_w_per_m2": bsi,
+        "limits.ionization.limit_intensity_w_per_m2": i_lim,
+        "limits.ionization.max_energy_j": limits.energy_from_peak_intensity(
+            i_lim, area, laser.duration_fwhm, laser.shape, s.efficiency),
+        "limits.ionization.max_pressure_pa": None,
+    }
+    notes = ["ionisation: the ionised fraction per atom at the coupled input intensity does not "
+             "depend on the fill pressure, so there is no pressure limit from the input pulse "
+             "(limits.ionization.max_pressure_pa = null); pressure enters through "
+             "self-compression, which a run checks"]
+    assumption = (f"on-axis EH11 intensity I0 = P/A_I (A_I = {area:.4g} m^2) of the coupled "
+                  f"input pulse ({laser.shape}, {laser.duration_fwhm * 1e15:.4g} fs), "
+                  "fraction left behind the pulse")
+    checks = [_check(f"{name}.input", values["limits.ionization.fraction_input"], level,
+                     unit=unit, source=SOURCES["ionization"], assumption=assumption),
+              _check(f"{name}.barrier_suppression", intensity, bsi, unit="W/m^2",
+                     source=SOURCES["bsi"], severity="warning",
+                     assumption="rate model validity: tunnelling rates overestimate above "
+                                "barrier suppression")]
+    peak = _run_value(run, "max_peak_intensity")
+    if peak is not None:
+        values["limits.ionization.peak_intensity_in_fiber_w_per_m2"] = peak
+        values["limits.ionization.fraction_in_fiber"] = fraction(peak)
+        checks.append(_check(f"{name}.in_fiber", fraction(peak), level, unit=unit,
+                             source=SOURCES["ionization"],
+                             assumption="highest peak intensity along the fiber from the run, "
+                                        "with the input duration (a shorter compressed pulse "
+                                        "ionises less: an upper estimate)"))
+    return values, checks, notes
+
+
+def _cell_part(s: _Setup) -> tuple[dict, list, list]:
+    from ..limits_cell import pressure_rating_status
+
+    rated = s.config.cell.rated_pressure
+    if s.config.gas is None:
+        return ({"limits.cell.status": "not checked"},
+                [_not_checked("cell.rating", "Pa", "no gas fill")], [])
+    pressure = s.config.gas.pressure
+    status = pressure_rating_status(pressure, rated)
+    values = {"limits.cell.pressure_pa": pressure, "limits.cell.rated_pressure_pa": rated,
+              "limits.cell.status": status,
+              "limits.cell.rating_margin": None if rated is None else rated / pressure}
+    notes = [] if rated is not None else [
+        "cell rating not given (cell.rated_pressure_bar): the fill pressure is not checked "
+        "against the cell"]
+    check = _check("cell.rating", pressure, rated, unit="Pa", source=SOURCES["rating"],
+                   assumption="absolute fill pressure vs the lowest rating of cell, windows, "
+                              "fittings and regulator (give that lowest value)")
+    return values, [check], notes
+
+
+def _window_pressure(s: _Setup) -> tuple[dict, list, list]:
+    from .. import limits_cell as lc
+    from ..materials import solids
+
+    cell, lim = s.config.cell, s.config.limits
+    name = "window.pressure"
+    if s.config.gas is None:
+        return {}, [_not_checked(name, "m", "no gas fill")], []
+    material = solids.load_material(cell.window_material)
+    strength = material.modulus_of_rupture.value
+    load = lc.window_pressure_difference(s.config.gas.pressure, P_1ATM)
+    values = {"limits.window.material": material.name,
+              "limits.window.pressure_difference_pa": load,
+              "limits.window.outside_pressure_pa": P_1ATM,
+              "limits.window.modulus_of_rupture_pa": strength,
+              "limits.window.safety_factor": lim.window_safety_factor,
+              "limits.window.mounting": lim.window_mounting,
+              "limits.window.stress_coefficient": lc.WINDOW_STRESS_COEFFICIENTS[
+                  lim.window_mounting]}
+    if cell.window_clear_aperture is None:
+        why = "window clear aperture not given (cell.window_clear_aperture_mm)"
+        return values, [_not_checked(name, "m", why, SOURCES["window"])], [why]
+    t_min = lc.window_min_thickness(load, cell.window_clear_aperture, strength,
+                                    safety_factor=lim.window_safety_factor,
+                                    mounting=lim.window_mounting)
+    values.update({"limits.window.clear_aperture_m": cell.window_clear_aperture,
+                   "limits.window.min_thickness_m": t_min,
+                   "limits.window.thickness_m": cell.window_thickness})
+    notes = []
+    if cell.window_thickness and material.name in lc.WINDOW_ELASTIC_CONSTANTS:
+        modulus, nu = lc.WINDOW_ELASTIC_CONSTANTS[material.name]
+        sag = lc.window_center_deflection(load, cell.window_clear_aperture, cell.window_thickness,
+                                          modulus, nu, lim.window_mounting)
+        values["limits.window.center_deflection_m"] = sag
+        if sag > lc.SMALL_DEFLECTION_RATIO * cell.window_thickness:
+            notes.append("window: centre deflection above half the thickness; the plate "
+                         "formula (small deflection) is outside its range")
+    k = values["limits.window.stress_coefficient"]
+    strength_source = material.modulus_of_rupture.source + (
+        " [from memory]" if material.modulus_of_rupture.from_memory else "")
+    assumption = (f"outside at 1 atm (lab side; a window onto vacuum carries the full "
+                  f"{s.config.gas.pressure / 1e5:.4g} bar), K = {k:g} ({lim.window_mounting}; "
+                  "Roark's simply supported 3(3+nu)/8 gives 1.19-1.24 for nu = 0.16-0.3), "
+                  f"SF = {lim.window_safety_factor:g}, strength: {strength_source}")
+    check = _check(name, cell.window_thickness, t_min, unit="m", kind="minimum",
+                   source=SOURCES["window"], assumption=assumption)
+    return values, [check], notes
+
+
+def _window_b_integral(s: _Setup, run) -> tuple[dict, list, list]:
+    from .. import limits
+    from ..materials import solids
+
+    cell, lim, laser = s.config.cell, s.config.limits, s.config.laser
+    name = "window.b_integral"
+    if s.optimum_waist is None or not cell.window_thickness:
+        why = ("no core radius (Taylor fiber)" if s.optimum_waist is None
+               else "window thickness not given (cell.window_thickness_mm)")
+        return {}, [_not_checked(name, "rad", why, SOURCES["b_integral"])], []
+    distance = lim.window_distance or DEFAULT_WINDOW_DISTANCE
+    radius = limits.gaussian_beam_radius(s.optimum_waist, laser.wavelength, distance)
+    out = _run_value(run, "output_peak_power")
+    power = out if out is not None else s.transmission * s.peak_power_coupled
+    intensity = limits.gaussian_peak_intensity(power, radius)
+    n2 = solids.load_material(cell.window_material).n2.value
+    b = limits.b_integral(intensity, n2, cell.window_thickness, laser.wavelength)
+    values = {"limits.window.distance_m": distance, "limits.window.beam_radius_m": radius,
+              "limits.window.peak_power_w": power,
+              "limits.window.peak_intensity_w_per_m2": intensity,
+              "limits.window.n2_m2_per_w": n2, "limits.window.b_integral_rad": b,
+              "limits.window.b_integral_limit_rad": lim.b_integral_limit}
+    origin = ("the run's output peak power" if out is not None else
+              f"input peak power x fiber transmission {s.transmission:.3f} (duration unchanged)")
+    assumption = (f"Gaussian beam from the EH11-matched waist 0.64 a diverging over "
+                  f"{distance:g} m{'' if lim.window_distance else ' (default)'}; {origin}")
+    return values, [_check(name, b, lim.b_integral_limit, unit="rad", source=SOURCES["b_integral"],
+                           assumption=assumption)], []
+
+
+def _static_fill_part(s: _Setup) -> tuple[dict, list, list]:
+    from .. import limits
+
+    if s.medium is None or s.beam_waist is None:
+        why = "no gas before the fiber entrance (Taylor fiber)"
+        return ({}, [_not_checked("static_fill.self_focusing", "W", why),
+                     _not_checked("static_fill.ionization", "", why)], [])
+    laser, lim = s.config.laser, s.config.limits
+    w0 = s.beam_waist
+    intensity = limits.gaussian_peak_intensity(s.peak_power_full, w0)
+    rayleigh = math.pi * w0**2 / laser.wavelength
+    path = lim.entrance_gas_path if lim.entrance_gas_path is not None else 2 * rayleigh
+    fraction = limits.pulse_ionization_fraction(intensity, laser.duration_fwhm, laser.shape,
+                                                s.rates)
+    values = {"limits.static_fill.beam_waist_m": w0,
+              "limits.static_fill.peak_power_w": s.peak_power_full,
+              "limits.static_fill.peak_intensity_w_per_m2": intensity,
+              "limits.static_fill.self_focusing_margin": s.critical_power / s.peak_power_full,
+              "limits.static_fill.ionization_fraction": fraction,
+              "limits.static_fill.gas_path_m": path}
+    notes = []
+    if path > 0:
+        radius = limits.gaussian_beam_radius(w0, laser.wavelength, path)
+        curvature = path * (1 + (rayleigh / path) ** 2)
+        z_f = limits.self_focusing_distance_marburger1975(
+            s.peak_power_full, laser.wavelength, s.n0, s.medium.n2, radius, curvature)
+        values["limits.static_fill.self_focusing_distance_m"] = z_f
+        if z_f < path:
+            notes.append(f"static fill: Kerr collapse estimated {z_f * 100:.3g} cm after the "
+                         f"entrance window, before the fiber ({path * 100:.3g} cm)")
+    where = f"focus at the fiber entrance (w0 = {w0 * 1e6:.4g} um), full pulse energy in the gas"
+    checks = [
+        _check("static_fill.self_focusing", s.peak_power_full,
+               s.critical_power / lim.self_focusing_margin, unit="W",
+               source=SOURCES["critical_power"], assumption=where),
+        _check("static_fill.ionization", fraction, lim.ionization_fraction_limit, unit="",
+               source=SOURCES["ionization"],
+               assumption=where + "; free-space Gaussian peak 2P/(pi w0^2)")]
+    return values, checks, notes
+
+
+def _gas_handling_part(s: _Setup) -> tuple[dict, list, list]:
+    from .. import limits_cell as lc
+
+    lim, name = s.config.limits, "gas_handling.oxygen"
+    missing = [k for k, v in (("room_volume_m3", lim.room_volume),
+                              ("cylinder_volume_l", lim.cylinder_volume),
+                              ("cylinder_pressure_bar", lim.cylinder_pressure)) if v is None]
+    if s.medium is None or missing:
+        why = ("no gas fill" if s.medium is None else
+               "give limits." + ", limits.".join(missing) + " for the oxygen-depletion estimate")
+        return {}, [_not_checked(name, "", why, SOURCES["oxygen"])], []
+    gas = s.config.gas
+    room_gas = dataclasses.replace(gas, temperature=T_ROOM, equation_of_state="coolprop")
+    try:
+        inside = gas_density_at(room_gas, s.medium, lim.cylinder_pressure)
+        outside = gas_density_at(room_gas, s.medium, P_1ATM)
+    except ConfigError as exc:  # e.g. a mixture component that would condense in the cylinder
+        return {}, [_not_checked(name, "", f"cylinder density not available: {exc}",
+                                 SOURCES["oxygen"])], []
+    released = lc.released_gas_volume(lim.cylinder_volume, inside, outside)
+    own_o2 = sum(k.mole_fraction * lc.AIR_OXYGEN_FRACTION for k in s.medium.components
+                 if k.table.name.lower() == "air")
+    o2 = lc.oxygen_fraction_after_release(lim.room_volume, released,
+                                          released_oxygen_fraction=own_o2)
+    values = {
+        "limits.gas_handling.room_volume_m3": lim.room_volume,
+        "limits.gas_handling.released_volume_m3": released,
+        "limits.gas_handling.oxygen_fraction": o2,
+        "limits.gas_handling.oxygen_fraction_displacement": lc.oxygen_fraction_after_release(
+            lim.room_volume, released, model="displacement", released_oxygen_fraction=own_o2),
+        "limits.gas_handling.oxygen_action_level": lc.OXYGEN_ACTION_LEVEL,
+        "limits.gas_handling.max_release_m3": lc.max_release_for_oxygen_level(lim.room_volume),
+    }
+    assumption = ("whole cylinder released (real-gas amount at room temperature), perfect "
+                  "mixing in the closed room, the excess leaves as mixture; no ventilation; "
+                  "heavy gases pool low, so local values can be lower")
+    return values, [_check(name, o2, lc.OXYGEN_ACTION_LEVEL, unit="", kind="minimum",
+                           source=SOURCES["oxygen"], assumption=assumption)], []
+
+
+def _damage_fluence(config) -> tuple[float | None, str]:
+    from ..materials import solids
+
+    if config.limits.cladding_damage_fluence is not None:
+        return config.limits.cladding_damage_fluence, "limits.cladding_damage_fluence_j_per_cm2"
+    record = solids.load_material(config.fiber.cladding).damage_fluence
+    if record is None:
+        return None, ""
+    return record.value, record.source + (" [from memory]" if record.from_memory else "")
+
+
+def _entrance_part(s: _Setup) -> tuple[dict, list, list]:
+    from .. import limits
+
+    if s.beam_waist is None:
+        why = "no core radius / launch model (Taylor fiber)"
+        return {}, [_not_checked("entrance.core_edge_fluence", "J/m^2", why,
+                                 severity="warning")], []
+    laser, a, w = s.config.laser, s.config.fiber.core_radius, s.beam_waist
+    edge = limits.gaussian_fluence(laser.energy, w, a)
+    axis = limits.gaussian_fluence(laser.energy, w, 0.0)
+    damage, source = _damage_fluence(s.config)
+    clipped = math.exp(-2 * a**2 / w**2)  # power fraction of the Gaussian outside r = a
+    values = {"limits.entrance.beam_waist_m": w, "limits.entrance.core_radius_m": a,
+              "limits.entrance.fluence_at_core_edge_j_per_m2": edge,
+              "limits.entrance.fluence_on_axis_j_per_m2": axis,
+              "limits.entrance.damage_fluence_j_per_m2": damage,
+              "limits.entrance.energy_fraction_outside_core": clipped}
+    if laser.repetition_rate is not None:
+        values["limits.entrance.power_outside_core_w"] = (laser.energy * laser.repetition_rate
+                                                          * clipped)
+    note = "; damage fluence depends on pulse duration, surface and shot number"
+    checks = [
+        _check("entrance.core_edge_fluence", edge, damage, unit="J/m^2", severity="warning",
+               source=source, assumption="centred Gaussian focus: its fluence at r = a on the "
+                                         "facet around the bore" + note),
+        _check("entrance.misaligned_fluence", axis, damage, unit="J/m^2", severity="warning",
+               source=source, assumption="beam fully off the bore: the on-axis fluence on the "
+                                         "cladding glass" + note)]
+    if hasattr(s.waveguide, "resonance_wavelengths"):
+        values.update(_resonance_values(s))
+        checks.append(_check("fiber.resonance_band",
+                             values["limits.fiber.relative_distance_to_resonance"],
+                             RESONANCE_HALF_WIDTH, unit="", kind="minimum", severity="warning",
+                             source=SOURCES["resonance"],
+                             assumption="pump outside the +-2.5 % band around each wall "
+                                        "resonance (high loss and strong dispersion inside)"))
+    return values, checks, []
+
+
+def _resonance_values(s: _Setup) -> dict:
+    wg, lam = s.waveguide, s.config.laser.wavelength
+    orders = int(math.ceil(4 * wg.wall_thickness / lam)) + 2
+    res = np.asarray(wg.resonance_wavelengths(orders))
+    return {"limits.fiber.resonance_wavelengths_m": sorted(float(r) for r in res),
+            "limits.fiber.relative_distance_to_resonance": float(np.min(np.abs(lam / res - 1))),
+            "limits.fiber.pump_in_resonance_band": bool(
+                np.asarray(wg.in_resonance_band(np.array([s.omega0])))[0])}
+
+
+# ---------------------------------------------------------------------------------------------
+# report
+
+
+def _json_safe(value):
+    if isinstance(value, dict):
+        return {k: _json_safe(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_json_safe(v) for v in value]
+    return _finite(value)
+
+
+def limits_report(config, run=None) -> dict:
+    """Every limit check of a configured setup (see the module docstring for the entries).
+
+    Parameters
+    ----------
+    config : PlanConfig
+        A validated config (:func:`hcfplan.io.config.load_config`).
+    run : object, optional
+        Numbers from a GNLSE run, duck-typed: ``max_peak_power`` [W], ``max_peak_intensity``
+        [W/m^2] and ``output_peak_power`` [W] (each may be missing or None).
+
+    Returns
+    -------
+    dict
+        Flat keys ``limits.<section>.<name>_<unit>`` (SI), ``limits.checks`` (list of dicts),
+        ``limits.acceptable`` (bool) with ``limits.acceptable_note``, ``limits.warnings`` and
+        ``limits.cautions`` (the texts of :mod:`hcfplan.cautions`).
+    """
+    with quiet_validity():
+        return _limits_report(config, run)
+
+
+def _limits_report(config, run) -> dict:
+    from ..cautions import caution_lines
+
+    s = _setup(config)
+    parts = [_self_focusing_part(s, run), _ionization_part(s, run), _cell_part(s),
+             _window_pressure(s), _window_b_integral(s, run), _static_fill_part(s),
+             _gas_handling_part(s), _entrance_part(s)]
+    report: dict = {}
+    checks: list = []
+    notes: list = list(s.medium.warnings) if s.medium is not None else []
+    for values, part_checks, part_notes in parts:
+        report.update(values)
+        checks += part_checks
+        notes += part_notes
+    beyond = [c["name"] for c in checks if c["severity"] == "limit" and c["status"] == "exceeds"]
+    unchecked = [c["name"] for c in checks if c["status"] == "not checked"]
+    report["limits.checks"] = checks
+    report["limits.acceptable"] = not beyond
+    note = NOT_ACCEPTABLE_NOTE if beyond else ACCEPTABLE_NOTE
+    if unchecked:
+        note += "; not checked: " + ", ".join(unchecked)
+    report["limits.acceptable_note"] = note
+    report["limits.warnings"] = notes
+    report["limits.cautions"] = caution_lines()
+    return _json_safe(report)

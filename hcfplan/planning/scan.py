@@ -184,7 +184,7 @@ def plan_scan(config_path: str | Path, varies: list[Vary] | tuple[Vary, ...],
                         extra_gas_dirs=extra_gas_dirs, source=path)
     points, seen = [], {}
     for index, combo in enumerate(itertools.product(*(v.values for v in varies))):
-        values = {v.key: x for v, x in zip(varies, combo)}
+        values = {v.key: x for v, x in zip(varies, combo, strict=True)}
         point_over = tuple(override_text(k, x) for k, x in values.items())
         cfg = config_from_mapping(raw, base_dir=path.parent,
                                   overrides=tuple(overrides) + point_over,
@@ -205,79 +205,439 @@ def plan_scan(config_path: str | Path, varies: list[Vary] | tuple[Vary, ...],
 # margins against the modelled limits
 
 
-def _limits_report(config, chain) -> dict | None:
+@dataclass(frozen=True)
+class RunNumbers:
+    """The numbers of a run that ``limits_report`` reads (duck-typed ``run``). [W, W/m^2]"""
+
+    max_peak_power: float | None
+    max_peak_intensity: float | None
+    output_peak_power: float | None
+
+
+def run_numbers(summary: dict) -> RunNumbers:
+    out = summary.get("output", {})
+    return RunNumbers(out.get("max_peak_power_w"), out.get("max_peak_intensity_w_per_m2"),
+                      out.get("peak_power_w"))
+
+
+def limits_values(config, summary: dict | None = None) -> dict | None:
+    """``limits_report(config, run)`` (flat), or None where that module is not available."""
     try:
         from .limits_report import limits_report
     except ImportError:
         return None
-    return flatten(limits_report(config, run=chain))
+    run = run_numbers(summary) if summary else None
+    return plain(limits_report(config, run=run))
 
 
-def _first(flat: dict, names: tuple[str, ...]):
-    for name in names:
-        value = flat.get(name)
-        if isinstance(value, (int, float)) and not isinstance(value, bool):
-            return float(value)
-    return None
+def _number(flat: dict, name: str) -> float | None:
+    value = flat.get(name)
+    return float(value) if isinstance(value, (int, float)) and not isinstance(value, bool) \
+        else None
 
 
-def _fallback_self_focusing(config, chain) -> float | None:
-    """P_cr of the fill at the pump over the launched peak power (no limits_report)."""
+def _fallback_self_focusing(config, summary) -> float | None:
+    """P_cr of the fill at the pump over the launched peak power (without limits_report)."""
     if config.gas is None:
         return None
+    import numpy as np
+
     from .. import limits, pulse
     from .build import build_medium, coupling, pump_omega
 
-    import numpy as np
-
-    medium = chain.medium if chain is not None else build_medium(config.gas)
-    if chain is not None:
-        power = chain.input_peak_power
-    else:
-        efficiency, _, _ = coupling(config)
-        power = pulse.peak_power_from_energy(config.laser.energy * efficiency,
-                                             config.laser.duration_fwhm, config.laser.shape)
+    medium = build_medium(config.gas)
+    efficiency, _, _ = coupling(config)
+    power = pulse.peak_power_from_energy(config.laser.energy * efficiency,
+                                         config.laser.duration_fwhm, config.laser.shape)
     n0 = float(medium.refractive_index(np.array([pump_omega(config.laser)]))[0])
     critical = limits.self_focusing_power(config.laser.wavelength, n0, medium.n2)
     return float(critical / power) if power > 0 else math.inf
 
 
-#: Candidate ``limits_report`` keys (flattened) for the two margins.
-_SF_KEYS = ("limits.self_focusing.margin_input", "limits.self_focusing.margin")
-_ION_KEYS = ("limits.ionization.max_fraction", "limits.ionization.fraction",
-             "limits.ionization.fraction_max")
-
-
-def point_margins(config, chain=None, summary: dict | None = None) -> dict:
-    """Self-focusing margin, ionisation fraction and pressure of one point against the limits.
-
-    Values come from :func:`hcfplan.planning.limits_report.limits_report` when that module
-    exists, otherwise from P_cr / launched peak power and the run's maximum ionisation
-    fraction. Without ``chain`` (analytic use) the ionisation fraction is unknown (None).
-    ``binding`` lists the limits the point is outside of.
-    """
-    lim = config.limits
-    report = _limits_report(config, chain)
-    sf = _first(report, _SF_KEYS) if report else None
-    source = "limits_report" if sf is not None else "fallback"
-    if sf is None:
-        sf = _fallback_self_focusing(config, chain)
-    ion = _first(report, _ION_KEYS) if report else None
-    if ion is None and summary is not None:
-        ion = summary.get("output", {}).get("max_ionization_fraction")
-    pressure = config.gas.pressure if config.gas is not None else None
-    rated = config.cell.rated_pressure
-    binding = []
-    if sf is not None and sf < lim.self_focusing_margin:
+def _fallback_binding(config, sf, sf_fiber, ion) -> list[str]:
+    lim, binding = config.limits, []
+    if any(m is not None and m < lim.self_focusing_margin for m in (sf, sf_fiber)):
         binding.append("self_focusing")
     if ion is not None and ion > lim.ionization_fraction_limit:
         binding.append("ionization")
+    pressure, rated = (config.gas.pressure if config.gas else None), config.cell.rated_pressure
     if pressure is not None and rated is not None and pressure > rated:
-        binding.append("pressure")
+        binding.append("cell.rating")
+    return binding
+
+
+def point_margins(config, summary: dict | None = None, report: dict | None = None) -> dict:
+    """Self-focusing margin, ionisation fraction and pressure of one point against the limits.
+
+    With ``report`` (the flat :func:`limits_values`) the numbers and the list of limits the
+    point is beyond (``binding``: every check of severity "limit" with status "exceeds") come
+    from it. Without it: P_cr / launched peak power, the run's largest ionisation fraction and
+    the cell rating. Without ``summary`` (analytic use) only the input-side values exist.
+    """
+    lim, flat = config.limits, report or {}
+    sf = _number(flat, "limits.self_focusing.margin_input")
+    sf_fiber = _number(flat, "limits.self_focusing.margin_in_fiber")
+    ion = _number(flat, "limits.ionization.fraction_in_fiber")
+    if ion is None:
+        ion = _number(flat, "limits.ionization.fraction_input")
+    if report is None:
+        sf = _fallback_self_focusing(config, summary)
+        out = (summary or {}).get("output", {})
+        ion = out.get("max_ionization_fraction")
+        peak = out.get("max_peak_power_w")
+        sf_fiber = (sf * summary["input"]["peak_power_w"] / peak
+                    if sf is not None and summary and peak else None)
+        binding = _fallback_binding(config, sf, sf_fiber, ion)
+    else:
+        binding = [c["name"] for c in flat.get("limits.checks", [])
+                   if c.get("severity") == "limit" and c.get("status") == "exceeds"]
     return {
-        "self_focusing": sf, "self_focusing_required": lim.self_focusing_margin,
+        "self_focusing": sf, "self_focusing_in_fiber": sf_fiber,
+        "self_focusing_required": lim.self_focusing_margin,
+        "self_focusing_max_pressure_pa": _number(flat, "limits.self_focusing.max_pressure_pa"),
         "ionization_fraction": ion, "ionization_limit": lim.ionization_fraction_limit,
         "ionization_margin": (lim.ionization_fraction_limit / ion if ion else None),
-        "pressure_pa": pressure, "rated_pressure_pa": rated,
-        "acceptable": not binding, "binding": ", ".join(binding), "source": source,
+        "pressure_pa": config.gas.pressure if config.gas is not None else None,
+        "rated_pressure_pa": config.cell.rated_pressure,
+        "acceptable": not binding, "binding": ", ".join(binding),
+        "source": "limits_report" if report is not None else "fallback",
     }
+
+
+# ---------------------------------------------------------------------------------------------
+# one point (runs in a worker process)
+
+
+def plain(value: Any) -> Any:
+    """JSON-ready copy: numpy scalars/arrays to Python, non-finite floats to None."""
+    if isinstance(value, dict):
+        return {str(k): plain(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [plain(v) for v in value]
+    if hasattr(value, "tolist") and not isinstance(value, (str, bytes)):
+        value = value.tolist()
+        if isinstance(value, list):
+            return plain(value)
+    if isinstance(value, float) and not math.isfinite(value):
+        return None
+    if isinstance(value, Path):
+        return str(value)
+    return value
+
+
+def flatten(data: dict, prefix: str = "") -> dict:
+    """Nested dict -> ``{"a.b.c": leaf}``; keys already holding dots are kept as they are."""
+    out: dict[str, Any] = {}
+    for key, value in data.items():
+        name = f"{prefix}{key}"
+        if isinstance(value, dict):
+            out.update(flatten(value, f"{name}."))
+        else:
+            out[name] = value
+    return out
+
+
+def _spectrum(chain) -> dict:
+    """Output spectrum over its -60 dB extent, binned to <= SPECTRUM_POINTS (bin means)."""
+    import numpy as np
+
+    grid = chain.grid
+    order = np.argsort(grid.frequency)
+    freq = np.asarray(grid.frequency)[order]
+    dens = np.abs(np.asarray(chain.propagation.field_out_spectrum)[order]) ** 2
+    if not np.any(dens > 0):
+        return {"frequency_hz": [], "energy_density_j_per_hz": []}
+    above = np.flatnonzero(dens >= SPECTRUM_FLOOR * dens.max())
+    freq, dens = freq[above[0]:above[-1] + 1], dens[above[0]:above[-1] + 1]
+    if freq.size > SPECTRUM_POINTS:
+        parts = np.array_split(np.arange(freq.size), SPECTRUM_POINTS)
+        freq = np.array([freq[i].mean() for i in parts])
+        dens = np.array([dens[i].mean() for i in parts])
+    return {"frequency_hz": [float(f"{v:.7g}") for v in freq],
+            "energy_density_j_per_hz": [float(f"{v:.5g}") for v in dens]}
+
+
+def _with_checksum(record: dict) -> dict:
+    record = plain(record)
+    body = {k: v for k, v in record.items() if k != "checksum"}
+    record["checksum"] = "sha256:" + hashlib.sha256(_canonical(body).encode()).hexdigest()
+    return record
+
+
+def _run_point(config) -> tuple[dict, dict, dict, str, str]:
+    from .chain import run_chain, summary_dict
+
+    chain = run_chain(config, workers=1)
+    summary = summary_dict(chain)
+    report = limits_values(config, summary if chain.propagation.success else None)
+    if report:
+        summary["limits"] = {k.removeprefix("limits."): v for k, v in report.items()}
+    margins = point_margins(config, summary, report)
+    prop = chain.propagation
+    status = "ok" if prop.success else "failed"
+    return summary, margins, _spectrum(chain), status, "" if prop.success else prop.message
+
+
+def compute_point(task: dict) -> dict:
+    """Run the chain for one point; returns the complete point record (see module docstring).
+
+    ``task`` holds plain data only (``raw``, ``base_dir``, ``overrides``, ``extra_gas_dirs``,
+    ``source``, ``key``, ``values``), so it pickles for a process pool or a Dask cluster. A
+    config or gas-phase problem of this point (HcfplanError) becomes a failed record; any
+    other exception is a bug and propagates.
+    """
+    from ..io.config import config_from_mapping
+
+    start = time.perf_counter()
+    config = config_from_mapping(task["raw"], base_dir=Path(task["base_dir"]),
+                                 overrides=tuple(task["overrides"]),
+                                 extra_gas_dirs=tuple(task["extra_gas_dirs"]),
+                                 source=Path(task["source"]))
+    key = config_key(config.resolved)
+    if key != task["key"]:
+        raise RuntimeError(f"point {task['values']}: config key {key} differs from the "
+                           f"planned {task['key']} (package versions differ?)")
+    summary, margins, spectrum, status, message = {}, {}, {}, "failed", ""
+    chain_start = time.perf_counter()
+    try:
+        summary, margins, spectrum, status, message = _run_point(config)
+    except HcfplanError as exc:
+        message = " ".join(str(exc).split())
+    chain_time = time.perf_counter() - chain_start
+    return _with_checksum({
+        "format": POINT_FORMAT, "version": POINT_VERSION, "key": key,
+        "values": task["values"], "status": status, "message": message,
+        "config": config.resolved, "summary": summary, "margins": margins,
+        "spectrum": spectrum,
+        "seconds": {"point": time.perf_counter() - start, "chain": chain_time},
+    })
+
+
+def point_task(plan: ScanPlan, point: ScanPoint) -> dict:
+    """The plain-data task of one point for :func:`compute_point`."""
+    return {"raw": plan.raw, "base_dir": str(plan.source.parent),
+            "source": str(plan.source), "overrides": list(plan.overrides + point.overrides),
+            "extra_gas_dirs": list(plan.extra_gas_dirs), "key": point.key,
+            "values": point.values}
+
+
+def check_point(record: Any, key: str) -> str:
+    """Empty string for a sound point record of ``key``, otherwise what is wrong with it."""
+    if not isinstance(record, dict):
+        return "not a JSON object"
+    missing = [f for f in POINT_FIELDS if f not in record]
+    if missing:
+        return f"missing fields {', '.join(missing)}"
+    if record["format"] != POINT_FORMAT or record["version"] != POINT_VERSION:
+        return f"format {record['format']!r} version {record['version']!r}"
+    if record["key"] != key or config_key(record["config"]) != key:
+        return "key does not match the file name or its config"
+    if _with_checksum(record)["checksum"] != record["checksum"]:
+        return "checksum mismatch"
+    if record["status"] not in ("ok", "failed"):
+        return f"status {record['status']!r}"
+    return ""
+
+
+def read_point(path: Path, key: str) -> tuple[dict | None, str]:
+    """(record, "") for a sound point file, (None, reason) for a missing or damaged one."""
+    try:
+        record = json.loads(Path(path).read_text(encoding="utf-8"))
+    except FileNotFoundError:
+        return None, "missing"
+    except (OSError, UnicodeDecodeError, json.JSONDecodeError) as exc:
+        return None, f"unreadable ({type(exc).__name__})"
+    problem = check_point(record, key)
+    return (None, problem) if problem else (record, "")
+
+
+# ---------------------------------------------------------------------------------------------
+# running the points: serial, local processes, Dask
+
+
+def _run_serial(tasks: list[dict], on_done: Callable[[dict], None], _workers, _address) -> None:
+    for task in tasks:
+        on_done(compute_point(task))
+
+
+def _run_processes(tasks, on_done, workers: int, _address) -> None:
+    """Local process pool. ``spawn`` start: the workers start clean (no threads or numba state
+    copied from the parent) on every platform; each pays the imports once, not per point."""
+    import multiprocessing
+    from concurrent.futures import ProcessPoolExecutor, as_completed
+
+    context = multiprocessing.get_context("spawn")
+    pool = ProcessPoolExecutor(max_workers=min(workers, len(tasks)), mp_context=context)
+    try:
+        futures = [pool.submit(compute_point, t) for t in tasks]
+        for future in as_completed(futures):
+            on_done(future.result())
+    except BaseException:
+        # interrupted (Ctrl-C, SIGTERM via the CLI) or a bug: stop the pool's own workers
+        workers_started = list(getattr(pool, "_processes", {}).values())
+        pool.shutdown(wait=False, cancel_futures=True)
+        for process in workers_started:
+            process.terminate()
+        raise
+    pool.shutdown(wait=True)
+
+
+def _run_dask(tasks, on_done, _workers, address: str) -> None:
+    """Points as tasks on a running Dask scheduler; the workers must import hcfplan."""
+    try:
+        from distributed import Client, as_completed
+    except ImportError:
+        raise ConfigError(f"--dask-scheduler {address}: needs the 'distributed' package "
+                          "(pip install 'hcfplan[cluster]')") from None
+    try:
+        client = Client(address, timeout="10s")
+    except (OSError, TimeoutError) as exc:
+        raise ConfigError(f"--dask-scheduler {address}: cannot connect ({exc})") from None
+    try:
+        futures = client.map(compute_point, tasks, pure=False)
+        for future in as_completed(futures):
+            on_done(future.result())
+    finally:
+        client.close()
+
+
+#: executor name -> function(tasks, on_done, workers, address)
+EXECUTORS: dict[str, Callable[..., None]] = {
+    "serial": _run_serial,
+    "processes": _run_processes,
+    "dask": _run_dask,
+}
+
+
+@dataclass(frozen=True)
+class ScanOutcome:
+    plan: ScanPlan
+    out_dir: Path
+    records: tuple[dict, ...]  #: in plan order
+    computed: tuple[str, ...]  #: keys computed in this call
+    reused: tuple[str, ...]  #: keys read from sound point files
+    damaged: tuple[tuple[str, str], ...]  #: (key, reason) of point files that were recomputed
+    executor: str
+
+
+def _scan_state(plan: ScanPlan) -> dict:
+    return {"format": SCAN_FORMAT, "version": POINT_VERSION, "definition": plan.definition,
+            "config": str(plan.source), "overrides": list(plan.overrides),
+            "vary": [{"key": v.key, "values": list(v.values)} for v in plan.varies],
+            "points": [{"index": p.index, "key": p.key, "values": p.values}
+                       for p in plan.points]}
+
+
+def prepare_scan_dir(out_dir: Path, plan: ScanPlan, *, fresh: bool, force: bool) -> Path:
+    """Create or reopen the scan folder; refuse a folder of another scan or unrelated files."""
+    from ..io.results import write_json
+
+    out_dir = Path(out_dir)
+    if out_dir.exists() and not out_dir.is_dir():
+        raise ConfigError(f"--out {out_dir}: exists and is not a folder")
+    state = out_dir / "scan.json"
+    if out_dir.is_dir() and not (fresh or force):
+        try:
+            old = json.loads(state.read_text(encoding="utf-8"))
+        except FileNotFoundError:
+            old = None
+        except (OSError, ValueError):
+            old = {}
+        if old is None and any(out_dir.iterdir()):
+            raise ConfigError(f"--out {out_dir}: folder is not empty and holds no hcfplan scan; "
+                              "choose another --out or use --force")
+        if old is not None and (not isinstance(old, dict)
+                                or old.get("definition") != plan.definition):
+            raise ConfigError(f"--out {out_dir}: holds points of a different scan definition "
+                              "(config, overrides or --vary differ); use --fresh to start "
+                              "over, --force to add to it, or another --out")
+    if fresh:
+        for path in (out_dir / "points").glob("*.json"):
+            path.unlink()
+    (out_dir / "points").mkdir(parents=True, exist_ok=True)
+    write_json(state, _scan_state(plan))
+    return out_dir
+
+
+def choose_executor(workers: int, address: str | None, n_tasks: int) -> str:
+    if address:
+        return "dask"
+    return "serial" if workers <= 1 or n_tasks <= 1 else "processes"
+
+
+def run_scan(plan: ScanPlan, out_dir: Path, *, workers: int = 1, address: str | None = None,
+             fresh: bool = False, force: bool = False,
+             on_point: Callable[[int, int, dict], None] | None = None) -> ScanOutcome:
+    """Compute the missing points of ``plan`` into ``out_dir/points`` and write the table."""
+    from ..io.results import write_json
+
+    if workers < 1:
+        raise ConfigError(f"--workers = {workers}: must be >= 1")
+    out_dir = prepare_scan_dir(out_dir, plan, fresh=fresh, force=force)
+    points_dir = out_dir / "points"
+    found, damaged, todo = {}, [], []
+    for point in plan.points:
+        record, reason = read_point(points_dir / f"{point.key}.json", point.key)
+        if record is not None:
+            found[point.key] = record
+        else:
+            if reason != "missing":
+                damaged.append((point.key, reason))
+            todo.append(point)
+    reused = tuple(found)
+    computed: list[str] = []
+
+    def done(record: dict) -> None:
+        write_json(points_dir / f"{record['key']}.json", record)
+        found[record["key"]] = record
+        computed.append(record["key"])
+        if on_point is not None:
+            on_point(len(computed), len(todo), record)
+
+    executor = choose_executor(workers, address, len(todo))
+    if todo:
+        EXECUTORS[executor]([point_task(plan, p) for p in todo], done, workers, address)
+    records = tuple(found[p.key] for p in plan.points)
+    write_table(out_dir / "table.csv", plan, records)
+    return ScanOutcome(plan, out_dir, records, tuple(computed), reused, tuple(damaged),
+                       executor)
+
+
+# ---------------------------------------------------------------------------------------------
+# the table
+
+
+def point_row(plan: ScanPlan, record: dict) -> dict:
+    """One table row: point index, varied values, status, then every scalar of the summary."""
+    index = next(p.index for p in plan.points if p.key == record["key"])
+    row: dict[str, Any] = {"point": index, "key": record["key"]}
+    row.update(record["values"])
+    row["status"] = record["status"]
+    row["message"] = record["message"]
+    scalars = flatten(record["summary"])
+    scalars.update(flatten(record["margins"], "margins."))
+    row.update({k: v for k, v in scalars.items() if not isinstance(v, (list, dict))})
+    return row
+
+
+def table_rows(plan: ScanPlan, records) -> tuple[list[str], list[dict]]:
+    rows = [point_row(plan, r) for r in records]
+    header = list(dict.fromkeys(k for row in rows for k in row))
+    return header, rows
+
+
+def write_table(path: Path, plan: ScanPlan, records) -> None:
+    """``table.csv``: one row per point; column names carry their unit (SI, or the config's
+    unit for the varied keys)."""
+    import csv
+    import io
+
+    from ..io.results import write_text
+
+    header, rows = table_rows(plan, records)
+    buffer = io.StringIO()
+    writer = csv.DictWriter(buffer, fieldnames=header, lineterminator="\n")
+    writer.writeheader()
+    for row in rows:
+        writer.writerow({k: ("" if row.get(k) is None else row.get(k)) for k in header})
+    write_text(path, buffer.getvalue())

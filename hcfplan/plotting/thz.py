@@ -128,6 +128,10 @@ def plot_optical_spectrum(ax: Any, result: Any) -> Any:
     wavelength_nm = c / frequency[keep] * 1e9
     per_wavelength = result.optical_spectrum[keep] * frequency[keep] ** 2 / c  # J/Hz -> J/m
     ax.plot(wavelength_nm, per_wavelength / np.max(per_wavelength))
+    lit = wavelength_nm[per_wavelength > 1e-4 * np.max(per_wavelength)]
+    if lit.size:
+        span = lit.max() - lit.min()
+        ax.set_xlim(lit.min() - 0.1 * span, lit.max() + 0.1 * span)
     ax.set_xlabel("Wavelength (nm)")
     ax.set_ylabel("Spectral energy density (norm., per wavelength)")
     ax.set_title(f"Driving spectrum, {result.pump_energy * 1e6:.3g} uJ")

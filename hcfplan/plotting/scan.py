@@ -1,0 +1,144 @@
+"""Figures of a scan, drawn from the point records (:mod:`hcfplan.planning.scan`).
+
+1D scans: the output spectrum of every point as an image against the varied key (log colour
+scale) and the main results against the key (compressed FWHM, compressed peak power, THz
+cutoff, self-focusing margin, ionisation margin), with the points beyond a modelled limit
+shaded. 2D scans: maps of the same results, points beyond a limit crossed out.
+Nothing here recomputes physics.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ..constants import c
+
+#: (figure label, summary/margins path, display scale, log axis)
+QUANTITIES = (
+    ("Compressed FWHM (fs)", ("summary", "compressed", "fwhm_s"), 1e-15, False),
+    ("Compressed peak power (GW)", ("summary", "compressed", "peak_power_w"), 1e9, False),
+    ("THz cutoff (THz)", ("summary", "thz", "cutoff_hz"), 1e12, False),
+    ("Self-focusing margin P_cr/P", ("margins", "self_focusing"), 1.0, True),
+    ("Ionisation margin (limit/fraction)", ("margins", "ionization_margin"), 1.0, True),
+)
+_SPECTRUM_FLOOR = 1e-5
+_SPECTRUM_BINS = 400
+
+
+def _value(record: dict, path: tuple[str, ...]) -> float:
+    node = record
+    for part in path:
+        node = node.get(part) if isinstance(node, dict) else None
+    return float(node) if isinstance(node, (int, float)) and not isinstance(node, bool) \
+        else np.nan
+
+
+def _axis(values: tuple):
+    """Numeric positions and tick labels of a varied key (categorical for strings)."""
+    if all(isinstance(v, (int, float)) and not isinstance(v, bool) for v in values):
+        return np.asarray(values, dtype=float), None
+    return np.arange(len(values), dtype=float), [str(v) for v in values]
+
+
+def _outside(record: dict) -> str:
+    return record.get("margins", {}).get("binding", "") or (
+        "run failed" if record.get("status") != "ok" else "")
+
+
+def _wavelength_image(records):
+    """Common wavelength axis [nm] and each point's spectral density per wavelength."""
+    spectra = []
+    for r in records:
+        spec = r.get("spectrum") or {}
+        freq = np.asarray(spec.get("frequency_hz", []), dtype=float)
+        dens = np.asarray(spec.get("energy_density_j_per_hz", []), dtype=float)
+        keep = freq > 0
+        spectra.append((freq[keep], dens[keep]))
+    found = [f for f, _ in spectra if f.size]
+    if not found:
+        return None, None
+    lo, hi = min(f.min() for f in found), max(f.max() for f in found)
+    wl = np.linspace(c / hi, c / lo, _SPECTRUM_BINS)
+    image = np.full((len(records), wl.size), np.nan)
+    for i, (freq, dens) in enumerate(spectra):
+        if freq.size:
+            per_m = dens * freq**2 / c  # J/Hz -> J/m (|d nu / d lambda| = c / lambda^2)
+            image[i] = np.interp(c / wl, freq, per_m, left=np.nan, right=np.nan)
+    return wl * 1e9, image
+
+
+def draw_spectrum_map(fig, key: str, values: tuple, records):
+    """Output spectrum (per wavelength, relative to the overall peak) vs the varied key."""
+    from matplotlib.colors import LogNorm
+
+    ax = fig.subplots()
+    wl, image = _wavelength_image(records)
+    y, labels = _axis(values)
+    if image is None:
+        ax.set_title("No output spectra")
+        return ax
+    peak = np.nanmax(image)
+    shown = np.clip(np.nan_to_num(image / peak, nan=0.0), _SPECTRUM_FLOOR, 1.0)
+    mesh = ax.pcolormesh(wl, y, shown, shading="nearest",
+                         norm=LogNorm(vmin=_SPECTRUM_FLOOR, vmax=1.0))
+    fig.colorbar(mesh, ax=ax, label="Spectral energy density (rel.)")
+    if labels:
+        ax.set_yticks(y, labels)
+    ax.set_xlabel("Wavelength (nm)")
+    ax.set_ylabel(key)
+    ax.set_title("Fiber output spectrum")
+    return ax
+
+
+def draw_results_1d(fig, key: str, values: tuple, records):
+    """The main results vs the varied key; points beyond a modelled limit shaded."""
+    x, labels = _axis(values)
+    axes = fig.subplots(len(QUANTITIES), 1, sharex=True)
+    fig.set_size_inches(6.4, 2.0 * len(QUANTITIES))
+    half = (np.min(np.diff(x)) / 2 if x.size > 1 else 0.5)
+    for ax, (label, path, scale, log) in zip(axes, QUANTITIES, strict=True):
+        y = np.array([_value(r, path) for r in records]) / scale
+        ax.plot(x, y, "o-", color="C0")
+        if log and np.any(y > 0):
+            ax.set_yscale("log")
+        ax.set_ylabel(label, fontsize="small")
+        for xi, r in zip(x, records, strict=True):
+            if _outside(r):
+                ax.axvspan(xi - half, xi + half, color="C3", alpha=0.15, lw=0)
+    required = records[0].get("margins", {}).get("self_focusing_required") if records else None
+    if required:
+        axes[3].axhline(required, color="C3", ls="--", lw=1, label="required margin")
+        axes[3].legend(fontsize="small")
+    axes[4].axhline(1.0, color="C3", ls="--", lw=1)
+    if labels:
+        axes[-1].set_xticks(x, labels)
+    axes[-1].set_xlabel(key)
+    axes[0].set_title("Scan results (shaded: beyond a modelled limit)")
+    return axes
+
+
+def draw_results_2d(fig, keys: tuple[str, str], values: tuple[tuple, tuple], records):
+    """Maps of the main results over two keys; points beyond a modelled limit marked x."""
+    x, xlabels = _axis(values[0])
+    y, ylabels = _axis(values[1])
+    n = len(QUANTITIES)
+    axes = np.atleast_1d(fig.subplots(n, 1))
+    fig.set_size_inches(6.4, 2.6 * n)
+    outside = np.array([bool(_outside(r)) for r in records]).reshape(x.size, y.size)
+    gx, gy = np.meshgrid(x, y, indexing="ij")
+    for ax, (label, path, scale, log) in zip(axes, QUANTITIES, strict=True):
+        z = np.array([_value(r, path) for r in records]).reshape(x.size, y.size) / scale
+        if log:
+            z = np.log10(np.where(z > 0, z, np.nan))
+            label = f"log10 {label}"
+        mesh = ax.pcolormesh(x, y, z.T, shading="nearest")
+        fig.colorbar(mesh, ax=ax, label=label)
+        ax.plot(gx[outside], gy[outside], "x", color="C3", ms=8)
+        if xlabels:
+            ax.set_xticks(x, xlabels)
+        if ylabels:
+            ax.set_yticks(y, ylabels)
+        ax.set_ylabel(keys[1])
+    axes[-1].set_xlabel(keys[0])
+    axes[0].set_title("Scan results (x: beyond a modelled limit)")
+    return axes
