@@ -12,7 +12,6 @@ import json
 import math
 import sys
 from pathlib import Path
-from typing import Optional
 
 import typer
 
@@ -115,7 +114,7 @@ def gas_command(
     name: str = typer.Argument(..., help="Gas table name, e.g. Ar, Ne, N2, air."),
     pressure_bar: float = typer.Option(1.0, "--pressure-bar", help="Fill pressure (absolute)."),
     temperature_k: float = typer.Option(293.15, "--temperature-k", help="Gas temperature."),
-    wavelength_nm: Optional[list[float]] = typer.Option(  # noqa: UP007 (typer needs Optional)
+    wavelength_nm: list[float] | None = typer.Option(
         None, "--wavelength-nm", help="Wavelength(s) to evaluate (repeatable); default 800, 1030."
     ),
     eos: str = typer.Option("coolprop", "--eos", help="Density model: coolprop or ideal."),
@@ -185,7 +184,7 @@ def _print_gas(r: dict) -> None:
 @app.command("check")
 def check_command(
     config: Path = typer.Argument(..., help="Config TOML file."),
-    set_: Optional[list[str]] = typer.Option(None, "--set", help=SET_HELP),  # noqa: UP007
+    set_: list[str] | None = typer.Option(None, "--set", help=SET_HELP),
     as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
 ) -> None:
     """Validate a config and print what it resolves to, all defaults filled in."""
@@ -206,9 +205,9 @@ def check_command(
 @app.command("fiber")
 def fiber_command(
     config: Path = typer.Argument(..., help="Config TOML file."),
-    set_: Optional[list[str]] = typer.Option(None, "--set", help=SET_HELP),  # noqa: UP007
+    set_: list[str] | None = typer.Option(None, "--set", help=SET_HELP),
     as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
-    plot: Optional[Path] = typer.Option(None, "--plot", help="Write a GVD/loss figure here."),  # noqa: UP007
+    plot: Path | None = typer.Option(None, "--plot", help="Write a GVD/loss figure here."),
 ) -> None:
     """Linear and first nonlinear numbers of the configured fiber at the pump (no GNLSE run)."""
     from .planning.fiber_report import fiber_report
@@ -324,8 +323,8 @@ class _Progress:
 @app.command("simulate")
 def simulate_command(
     config: Path = typer.Argument(..., help="Config TOML file."),
-    out: Optional[Path] = typer.Option(None, "--out", help="Output folder (default runs/<name>)."),  # noqa: UP007
-    set_: Optional[list[str]] = typer.Option(None, "--set", help=SET_HELP),  # noqa: UP007
+    out: Path | None = typer.Option(None, "--out", help="Output folder (default runs/<name>)."),
+    set_: list[str] | None = typer.Option(None, "--set", help=SET_HELP),
     as_json: bool = typer.Option(False, "--json", help="Print summary.json to stdout."),
     quiet: bool = typer.Option(False, "--quiet", help="No progress bar and no report text."),
     force: bool = typer.Option(False, "--force", help="Allow writing into an existing --out."),
@@ -333,8 +332,8 @@ def simulate_command(
 ) -> None:
     """Run fiber (GNLSE) -> compressor -> THz and write summary.json, fields.npz and figures."""
     from .io.results import prepare_output_dir
-    from .planning.chain import run_chain
     from .io.run_output import write_run
+    from .planning.chain import run_chain
 
     cfg = _load(config, set_ or [])
     out_dir = prepare_output_dir(out if out is not None else _default_out_dir(config),
@@ -389,6 +388,120 @@ def _print_simulation(s: dict, out_dir: Path) -> None:
     _echo(f"\nWritten to {out_dir}/: summary.json, fields.npz"
           + (" and figures" if any(out_dir.glob("*.png")) else ""))
     _print_warnings(s["warnings"])
+    if "limits" in s:
+        _echo()
+        _print_limits(_flat_limits(s["limits"]))
+    _print_cautions()
+
+
+def _flat_limits(nested: dict) -> dict:
+    return {f"limits.{k}": v for k, v in nested.items()}
+
+
+# ---------------------------------------------------------------------------------------------
+# limits and envelope
+
+
+def _fmt_check_value(value, unit: str) -> str:
+    if value is None:
+        return "-"
+    if isinstance(value, str):
+        return value
+    scale = {"Pa": (1e5, "bar"), "W": (1e9, "GW"), "W/m^2": (1e4, "W/cm^2"), "m": (1e-3, "mm"),
+             "J/m^2": (1e4, "J/cm^2"), "m^3": (1.0, "m^3")}.get(unit)
+    if scale is None:
+        return f"{value:.4g} {unit}".rstrip()
+    return f"{value / scale[0]:.4g} {scale[1]}"
+
+
+def _print_limits(report: dict) -> None:
+    _echo("Limits (estimates):")
+    rows = []
+    for check in report["limits.checks"]:
+        unit = check.get("unit", "")
+        margin = check.get("margin")
+        rows.append((check["name"],
+                     f"{_fmt_check_value(check.get('value'), unit)} vs "
+                     f"{_fmt_check_value(check.get('limit'), unit)}",
+                     f"{check['status']}" + ("" if margin is None else f", margin {margin:.3g}")
+                     + (" (warning only)" if check.get("severity") == "warning" else "")))
+    _print_rows(rows)
+    _echo()
+    _echo(f"  {report['limits.acceptable_note']}")
+    _print_warnings(report.get("limits.warnings", []))
+
+
+@app.command("limits")
+def limits_command(
+    config: Path = typer.Argument(..., help="Config TOML file."),
+    set_: list[str] | None = typer.Option(None, "--set", help=SET_HELP),
+    as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
+) -> None:
+    """Self-focusing, ionisation, cell/window, static-fill and gas-handling checks (analytic)."""
+    from .planning.limits_report import limits_report
+
+    cfg = _load(config, set_ or [])
+    report = limits_report(cfg)
+    if as_json:
+        _print_json(report)
+        return
+    _print_limits(report)
+    _print_cautions()
+
+
+@app.command("envelope")
+def envelope_command(
+    config: Path = typer.Argument(..., help="Config TOML file."),
+    set_: list[str] | None = typer.Option(None, "--set", help=SET_HELP),
+    plot: Path | None = typer.Option(None, "--plot", help="Write the map figure here."),
+    contours: str = typer.Option("both", "--contours",
+                                 help="Contours drawn: duration, cutoff or both."),
+    as_json: bool = typer.Option(False, "--json", help="Print the map and its lines as JSON."),
+) -> None:
+    """Energy x pressure map: self-focusing and ionisation lines, rating, regimes, estimates."""
+    from .planning.envelope import envelope_json, envelope_map
+
+    if contours not in ("duration", "cutoff", "both"):
+        raise _cli_error(f"--contours = {contours!r}: must be one of duration, cutoff, both")
+    cfg = _load(config, set_ or [])
+    result = envelope_map(cfg)
+    if plot is not None:
+        from .io.results import write_figure
+        from .plotting.envelope import plot_envelope
+
+        write_figure(plot, lambda fig, r: plot_envelope(fig.subplots(), r, contours=contours),
+                     result)
+    if as_json:
+        _print_json(envelope_json(result))
+        return
+    _print_envelope(result, plot)
+
+
+def _print_envelope(result, plot: Path | None) -> None:
+    import numpy as np
+
+    p = result.pressures
+    k = int(np.argmin(np.abs(p - result.config_pressure)))
+    zdp = result.zero_dispersion_pressure
+    rows = [
+        ("configured point", f"{result.config_energy * 1e6:.4g} uJ at "
+         f"{result.config_pressure / 1e5:.4g} bar", ""),
+        ("self-focusing limit", f"{result.self_focusing_max_energy[k] * 1e6:.4g} uJ at this "
+         "pressure", f"margin P_cr/P = {result.self_focusing_margin:g}"),
+        ("ionisation limit", f"{result.ionization_max_energy[k] * 1e6:.4g} uJ",
+         f"fraction {result.ionization_fraction_limit:g}"),
+        ("zero-dispersion pressure", "none on the map" if not np.isfinite(zdp)
+         else f"{zdp / 1e5:.4g} bar", "anomalous below, normal above"),
+        ("cell rating", "not given" if result.rated_pressure is None
+         else f"{result.rated_pressure / 1e5:.4g} bar", ""),
+        ("map", f"{len(result.energies)} energies x {len(p)} pressures",
+         f"{p[0] / 1e5:.3g}-{p[-1] / 1e5:.3g} bar"),
+    ]
+    _print_rows(rows)
+    for note in result.notes:
+        _echo(f"  note: {note}")
+    if plot is not None:
+        _echo(f"\nFigure written: {plot}")
     _print_cautions()
 
 
@@ -400,7 +513,7 @@ def _print_simulation(s: dict, out_dir: Path) -> None:
 def thz_command(
     spectrum_csv: Path = typer.Argument(..., help="Measured spectrum CSV: wavelength_nm, "
                                         "intensity (per unit wavelength)."),
-    phase_csv: Optional[Path] = typer.Option(  # noqa: UP007
+    phase_csv: Path | None = typer.Option(
         None, "--phase-csv", help="Spectral phase CSV: wavelength_nm, phase_rad (default: the "
         "pulse is compressed to its transform limit)."),
     crystal: str = typer.Option("GaP", "--crystal", help="Generation crystal."),
@@ -409,11 +522,11 @@ def thz_command(
     cutoff_db: float = typer.Option(-20.0, "--cutoff-db", help="Cutoff level below the peak."),
     cutoff_quantity: str = typer.Option("power", "--cutoff-quantity",
                                         help="Spectrum the level refers to: power or field."),
-    detector_crystal: Optional[str] = typer.Option(None, "--detector-crystal",  # noqa: UP007
+    detector_crystal: str | None = typer.Option(None, "--detector-crystal",
                                                    help="EO detection crystal (optional)."),
     detector_thickness_mm: float = typer.Option(0.3, "--detector-thickness-mm",
                                                 help="EO detection crystal thickness."),
-    plot: Optional[Path] = typer.Option(None, "--plot", help="Write the THz figure here."),  # noqa: UP007
+    plot: Path | None = typer.Option(None, "--plot", help="Write the THz figure here."),
     as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
 ) -> None:
     """THz estimate from a measured broadened spectrum (no fiber model needed)."""

@@ -125,19 +125,19 @@ def _scan_rows(plan, records) -> tuple[list[str], list[list[str]]]:
 def scan_command(
     config: Path = typer.Argument(..., help="Config TOML file."),
     vary: list[str] = typer.Option(..., "--vary", help=VARY_HELP),
-    workers: Optional[int] = typer.Option(  # noqa: UP007 (typer needs Optional)
+    workers: Optional[int] = typer.Option(  # noqa: UP007, UP045 (typer needs Optional)
         None, "--workers", help="Local worker processes (default: all cores); 1 runs the "
         "points in this process."),
-    dask_scheduler: Optional[str] = typer.Option(  # noqa: UP007
+    dask_scheduler: Optional[str] = typer.Option(  # noqa: UP007, UP045
         None, "--dask-scheduler", help="Run the points on a running Dask scheduler at this "
         "address (needs 'distributed'; the workers must have hcfplan installed)."),
-    out: Optional[Path] = typer.Option(  # noqa: UP007
+    out: Optional[Path] = typer.Option(  # noqa: UP007, UP045
         None, "--out", help="Scan folder (default scans/<config stem>); rerunning the same "
         "scan there resumes it."),
     fresh: bool = typer.Option(False, "--fresh", help="Delete the saved points and start over."),
     force: bool = typer.Option(False, "--force", help="Use --out even if it holds another "
                                "scan or other files (matching points are reused)."),
-    set_: Optional[list[str]] = typer.Option(None, "--set", help=SET_HELP),  # noqa: UP007
+    set_: Optional[list[str]] = typer.Option(None, "--set", help=SET_HELP),  # noqa: UP007, UP045
     no_figures: bool = typer.Option(False, "--no-figures", help="Skip the figures."),
     as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
 ) -> None:
@@ -204,6 +204,167 @@ def _print_scan(outcome, figures, failed) -> None:
     cli._print_cautions()
 
 
+# ---------------------------------------------------------------------------------------------
+# recommend
+
+
+def recommend_command(
+    config: Path = typer.Argument(..., help="Config TOML file."),
+    goal: str = typer.Option(..., "--goal", help="shortest (compressed FWHM), peak_power "
+                             "(compressed peak power) or thz_cutoff."),
+    target_thz: Optional[float] = typer.Option(  # noqa: UP007, UP045
+        None, "--target-thz", help="With --goal thz_cutoff: the smallest pressure (or energy) "
+        "whose THz cutoff reaches this value, or the closest."),
+    vary: Optional[str] = typer.Option(  # noqa: UP007, UP045
+        None, "--vary", help="Searched range: gas.pressure_bar=LO:HI or laser.energy_uj=LO:HI "
+        "(default: pressure from a tenth of the fill to the cell rating, or 3x the fill)."),
+    gases: Optional[str] = typer.Option(  # noqa: UP007, UP045
+        None, "--gases", help="Comma list of fill gases searched one after the other, e.g. "
+        "Ar,Kr,Ne."),
+    budget: int = typer.Option(12, "--budget", help="Full chain runs per gas, at most."),
+    set_: Optional[list[str]] = typer.Option(None, "--set", help=SET_HELP),  # noqa: UP007, UP045
+    as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
+) -> None:
+    """Search the allowed pressure (or energy) range for the point that best meets a goal."""
+    from .planning.recommend import overall_best, recommend
+
+    cli = _cli()
+    gas_list = tuple(g.strip() for g in gases.split(",") if g.strip()) if gases else ()
+    recs = recommend(config, goal, search=vary, gases=gas_list, target_thz=target_thz,
+                     overrides=tuple(set_ or ()), extra_gas_dirs=_gas_dirs(), budget=budget)
+    chosen = overall_best(recs)
+    if as_json:
+        cli._print_json({"chosen": _rec_json(chosen) if chosen else None,
+                         "searches": [_rec_json(r) for r in recs], "cautions": _cautions()})
+    else:
+        for rec in recs:
+            _print_recommendation(rec, rec is chosen and len(recs) > 1)
+        cli._print_cautions()
+    if chosen is None:
+        typer.echo("hcfplan: no point meets the goal within the modelled limits: "
+                   + "; ".join(r.reason for r in recs), err=True)
+        raise typer.Exit(1)
+
+
+def _rec_json(rec) -> dict:
+    best = rec.best
+    return {
+        "goal": rec.goal, "key": rec.key, "gas": rec.gas, "requested": list(rec.requested),
+        "allowed": list(rec.allowed) if rec.allowed else None, "bound": rec.bound_reason,
+        "tolerance": rec.tolerance, "target_thz": rec.target_thz, "reason": rec.reason,
+        "best": None if best is None else {
+            "value": best.value, "objective": best.objective,
+            "margins": best.record["margins"], "summary": best.record["summary"]},
+        "evaluations": [{"value": e.value, "status": e.status, "objective": e.objective,
+                         "acceptable": e.acceptable, "binding": e.binding}
+                        for e in rec.evaluations],
+    }
+
+
+def _print_recommendation(rec, chosen: bool) -> None:
+    unit = "bar" if rec.key == "gas.pressure_bar" else "uJ"
+    head = f"{rec.gas}: " if rec.gas else ""
+    typer.echo(f"{head}goal {rec.goal}, {rec.key} in {rec.requested[0]:g}-{rec.requested[1]:g} "
+               f"{unit}" + (f" (allowed up to {rec.allowed[1]:.4g} {unit}: {rec.bound_reason})"
+                            if rec.allowed and rec.bound_reason else ""))
+    best = rec.best
+    if best is not None:
+        s, m = best.record["summary"], best.record["margins"]
+        comp, thz = s.get("compressed", {}), s.get("thz", {})
+        mark = "  <- best" if chosen else ""
+        typer.echo(f"  chosen {rec.key} = {best.value:.4g} {unit} (search tolerance "
+                   f"{rec.tolerance:.2g} {unit}){mark}")
+        typer.echo(f"  compressed {_fmt(comp.get('fwhm_s'), 1e-15)} fs, "
+                   f"{_fmt(comp.get('peak_power_w'), 1e9)} GW; THz cutoff "
+                   f"{_fmt(thz.get('cutoff_hz'), 1e12)} THz")
+        typer.echo(f"  margins: self-focusing {_fmt(m.get('self_focusing'), 1, 3)} (required "
+                   f"{m.get('self_focusing_required'):g}), ionisation fraction "
+                   f"{_fmt(m.get('ionization_fraction'), 1, 3)} (limit "
+                   f"{m.get('ionization_limit'):g})")
+    if rec.reason:
+        typer.echo(f"  note: {rec.reason}")
+    typer.echo(f"  {len(rec.evaluations)} full runs")
+    typer.echo()
+
+
+# ---------------------------------------------------------------------------------------------
+# compare
+
+
+def compare_command(
+    config_a: Path = typer.Argument(..., help="Config A (TOML)."),
+    config_b: Optional[Path] = typer.Argument(  # noqa: UP007, UP045
+        None, help="Config B (TOML); default: A with the --set-b overrides."),
+    set_: Optional[list[str]] = typer.Option(None, "--set", help="Override for A (and for B "  # noqa: UP007, UP045
+                                             "when B is A), repeatable."),
+    set_b: Optional[list[str]] = typer.Option(  # noqa: UP007, UP045
+        None, "--set-b", help="Override applied to B only, e.g. --set-b laser.energy_uj=500 "
+        "(repeatable)."),
+    out: Optional[Path] = typer.Option(  # noqa: UP007, UP045
+        None, "--out", help="Folder for the overlaid figures and comparison.json."),
+    force: bool = typer.Option(False, "--force", help="Allow writing into an existing --out."),
+    as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
+) -> None:
+    """Run two setups and show them side by side with B - A and B / A."""
+    from .planning.compare import compare_configs
+
+    cli = _cli()
+    if config_b is None and not set_b:
+        raise cli._cli_error("compare: give config B or at least one --set-b override")
+    cfg_a = cli._load(config_a, set_ or [])
+    if config_b is None:
+        cfg_b = cli._load(config_a, list(set_ or []) + list(set_b or []))
+    else:
+        cfg_b = cli._load(config_b, list(set_b or []))
+    labels = (str(config_a), str(config_b) if config_b is not None else
+              f"{config_a} with " + " ".join(set_b or []))
+    comparison = compare_configs(cfg_a, cfg_b, labels)
+    figures = _compare_outputs(out, comparison, force) if out is not None else []
+    if as_json:
+        cli._print_json({"labels": list(labels), "rows": list(comparison.rows),
+                         "margins": {"a": comparison.a.margins, "b": comparison.b.margins},
+                         "figures": figures, "cautions": _cautions()})
+    else:
+        _print_comparison(comparison, figures, out)
+        cli._print_cautions()
+
+
+def _compare_outputs(out: Path, comparison, force: bool) -> list[str]:
+    from .io.results import prepare_output_dir, write_figure, write_json
+    from .plotting.compare import FIGURES
+
+    out_dir = prepare_output_dir(out, force=force)
+    names = []
+    for stem, draw in FIGURES.items():
+        write_figure(out_dir / f"{stem}.png", draw, comparison.a, comparison.b)
+        names.append(f"{stem}.png")
+    write_json(out_dir / "comparison.json", {
+        "labels": [comparison.a.label, comparison.b.label], "rows": list(comparison.rows),
+        "a": {"summary": comparison.a.summary, "margins": comparison.a.margins},
+        "b": {"summary": comparison.b.summary, "margins": comparison.b.margins}})
+    return names
+
+
+def _print_comparison(comparison, figures, out) -> None:
+    rows = []
+    for r in comparison.rows:
+        scale, unit = r["scale"], r["unit"]
+        rows.append([r["label"] + (f" ({unit})" if unit else ""), _fmt(r["a"], scale),
+                     _fmt(r["b"], scale), _fmt(r["difference"], scale),
+                     _fmt(r["ratio"], 1, 3)])
+    typer.echo(f"A = {comparison.a.label}\nB = {comparison.b.label}\n")
+    _table(["quantity", "A", "B", "B - A", "B / A"], rows)
+    for side in (comparison.a, comparison.b):
+        m = side.margins
+        state = ("within the modelled limits" if m["acceptable"]
+                 else f"BEYOND the modelled limits: {m['binding']}")
+        typer.echo(f"\n{side.label}: {state}")
+    if figures:
+        typer.echo(f"\nFigures written to {out}/: {', '.join(figures)}")
+
+
 def register(app) -> None:
     """Add the workflow commands to ``app``."""
     app.command("scan")(scan_command)
+    app.command("recommend")(recommend_command)
+    app.command("compare")(compare_command)

@@ -66,7 +66,7 @@ def from_si(value: float, suffix: str) -> float:
 
 
 def suffix_of(key: str) -> str | None:
-    """Return the longest known unit suffix that ends ``key`` (``'core_diameter_um'`` -> ``'um'``)."""
+    """The longest known unit suffix ending ``key`` (``'core_diameter_um'`` -> ``'um'``)."""
     best = None
     for suffix in SUFFIXES:
         if key.endswith("_" + suffix) and (best is None or len(suffix) > len(best)):

@@ -6,6 +6,7 @@ Contract and error tests (no physics values are checked here; those live beside 
 from __future__ import annotations
 
 import json
+import re
 import subprocess
 import sys
 from pathlib import Path
@@ -106,3 +107,38 @@ def test_cli_import_is_light():
                           timeout=120)
     assert proc.returncode == 0, proc.stderr
     assert proc.stdout.strip() == ""
+
+
+@pytest.mark.parametrize("path", DEMOS, ids=[p.name for p in DEMOS])
+def test_limits_every_demo(capsys, path):
+    code, out, err = run(capsys, "limits", str(path), "--json")
+    assert code == 0, err
+    report = json.loads(out)
+    assert report["limits.cautions"]
+    statuses = {c["status"] for c in report["limits.checks"]}
+    assert statuses <= {"within", "exceeds", "not checked"}
+    # never calls an operating point "safe" (house rule); "safety" in the cautions is fine
+    assert re.search(r"\bsafe\b", out.lower()) is None
+
+
+def test_limits_text_has_table_and_cautions(capsys):
+    code, out, _ = run(capsys, "limits", str(ROOT / "configs" / "yb_capillary_mixture.toml"))
+    assert code == 0
+    assert "self_focusing.input" in out and "gas_handling.oxygen" in out
+    assert "Cautions:" in out
+
+
+def test_envelope_json_and_plot(capsys, tmp_path):
+    figure = tmp_path / "env.png"
+    code, out, err = run(capsys, "envelope", str(ROOT / "configs" / "tisa_capillary_neon.toml"),
+                         "--json", "--plot", str(figure))
+    assert code == 0, err
+    data = json.loads(out)
+    assert len(data["envelope.energies_j"]) == 100 and len(data["envelope.pressures_pa"]) == 100
+    assert len(data["envelope.self_focusing_max_energy_j"]) == 100
+    assert figure.stat().st_size > 10_000
+
+
+def test_envelope_refuses_taylor(capsys):
+    code, _, err = run(capsys, "envelope", str(ROOT / "configs" / "taylor_pcf_check.toml"))
+    assert code == 2 and "Traceback" not in err

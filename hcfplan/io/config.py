@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import difflib
 import math
+import re
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -22,6 +23,12 @@ from .. import units
 from ..errors import ConfigError
 from .schema import REQUIRED, REQUIRED_SECTIONS, SCHEMA, Key
 from .tomlio import parse_toml_value, read_toml
+
+#: Largest radial order m of an EH1m mode accepted in ``fiber.mode``.
+MAX_MODE_ORDER = 1000
+_MODE_PATTERN = re.compile(r"EH1([1-9][0-9]{0,3})", re.ASCII | re.IGNORECASE)
+#: Section and key names shown as typed; anything else is shown quoted (repr).
+_PLAIN_NAME = re.compile(r"[A-Za-z0-9_+\-]{1,64}", re.ASCII)
 
 # ---------------------------------------------------------------------------------------------
 # Specs (SI values only)
@@ -159,7 +166,7 @@ def parse_override(text: str) -> tuple[str, str, Any]:
     parts = path.split(".")
     if len(parts) != 2 or not all(parts):
         raise ConfigError(f"--set {text!r}: the key path must be section.key, got {path!r}")
-    section, key = parts
+    section, key = (part.strip() for part in parts)
     _known_key(section, key, prefix="--set ")
     try:
         value = parse_toml_value(raw)
@@ -191,22 +198,40 @@ def _suggest(name: str, options) -> str:
     return f"; did you mean {close[0]!r}?" if close else ""
 
 
+def _name(name: Any) -> str:
+    """A section or key name for a message: as typed if plain, else quoted (one line)."""
+    text = str(name)
+    return text if _PLAIN_NAME.fullmatch(text) else repr(text[:64])
+
+
 def _known_key(section: str, key: str, prefix: str = "") -> Key:
     if section not in SCHEMA:
         raise ConfigError(
-            f"{prefix}{section}.{key}: unknown section [{section}]{_suggest(section, SCHEMA)} "
-            f"(sections: {', '.join(SCHEMA)})"
+            f"{prefix}{_name(section)}.{_name(key)}: unknown section [{_name(section)}]"
+            f"{_suggest(section, SCHEMA)} (sections: {', '.join(SCHEMA)})"
         )
     if key not in SCHEMA[section]:
         raise ConfigError(
-            f"{prefix}{section}.{key}: unknown key{_suggest(key, SCHEMA[section])} "
+            f"{prefix}{section}.{_name(key)}: unknown key{_suggest(key, SCHEMA[section])} "
             f"(keys of [{section}]: {', '.join(SCHEMA[section])})"
         )
     return SCHEMA[section][key]
 
 
+#: Longest rendering of a received value in a message. [characters]
+_MAX_SHOWN = 120
+
+
 def _describe(value: Any) -> str:
-    return f"{value!r}" if isinstance(value, str) else f"{value}"
+    """The received value for a message: one line, shortened if long."""
+    if isinstance(value, int) and not isinstance(value, bool) and abs(value) > 10**30:
+        return f"{'-' if value < 0 else ''}~1e{int(abs(value).bit_length() * math.log10(2))}"
+    try:
+        text = repr(value) if isinstance(value, str) else str(value)
+    except ValueError:  # e.g. a list holding an integer too long to print
+        text = f"<{type(value).__name__}>"
+    text = " ".join(text.split())
+    return text if len(text) <= _MAX_SHOWN else text[:_MAX_SHOWN] + "..."
 
 
 def _check_number(path: str, value: Any, spec: Key, integer: bool) -> float | int:
@@ -215,16 +240,22 @@ def _check_number(path: str, value: Any, spec: Key, integer: bool) -> float | in
         raise ConfigError(f"{path} = {_describe(value)}: must be {kind}")
     if integer and not isinstance(value, int):
         raise ConfigError(f"{path} = {value}: must be an integer")
-    if not math.isfinite(value):
+    if isinstance(value, float) and not math.isfinite(value):
         raise ConfigError(f"{path} = {value}: must be a finite number")
+    shown = _describe(value)  # int/float comparisons below are exact, even for huge ints
     if spec.low is not None:
         if spec.low_open and not value > spec.low:
-            raise ConfigError(f"{path} = {value}: must be > {spec.low:g}")
+            raise ConfigError(f"{path} = {shown}: must be > {spec.low:g}")
         if not spec.low_open and not value >= spec.low:
-            raise ConfigError(f"{path} = {value}: must be >= {spec.low:g}")
+            raise ConfigError(f"{path} = {shown}: must be >= {spec.low:g}")
     if spec.high is not None and value > spec.high:
-        raise ConfigError(f"{path} = {value}: must be <= {spec.high:g}")
-    return value if integer else float(value)
+        raise ConfigError(f"{path} = {shown}: must be <= {spec.high:g}")
+    if integer:
+        return value
+    try:
+        return float(value)
+    except OverflowError:
+        raise ConfigError(f"{path} = {shown}: too large for a floating-point number") from None
 
 
 def _check_fractions(path: str, value: Any) -> dict[str, float]:
@@ -233,15 +264,33 @@ def _check_fractions(path: str, value: Any) -> dict[str, float]:
                           "{ He = 0.7, Ar = 0.3 }")
     out = {}
     for name, frac in value.items():
-        if isinstance(frac, bool) or not isinstance(frac, (int, float)) or not math.isfinite(frac):
-            raise ConfigError(f"{path}.{name} = {_describe(frac)}: must be a finite number")
+        where = f"{path}.{_name(name)}"
+        if not str(name).strip():
+            raise ConfigError(f"{where}: the gas name must not be empty")
+        if isinstance(frac, bool) or not isinstance(frac, (int, float)):
+            raise ConfigError(f"{where} = {_describe(frac)}: must be a finite number")
+        if isinstance(frac, float) and not math.isfinite(frac):
+            raise ConfigError(f"{where} = {frac}: must be a finite number")
         if not 0.0 < frac <= 1.0:
-            raise ConfigError(f"{path}.{name} = {frac}: must be > 0 and <= 1")
+            raise ConfigError(f"{where} = {_describe(frac)}: must be > 0 and <= 1")
         out[name] = float(frac)
     total = sum(out.values())
     if abs(total - 1.0) > 1e-6:
         raise ConfigError(f"{path}: mole fractions sum to {total:.6g}, must sum to 1")
     return out
+
+
+def _finite_float(path: str, value: Any) -> float:
+    """``value`` as a finite float, or a ConfigError naming ``path``."""
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        raise ConfigError(f"{path} = {_describe(value)}: must be a finite number")
+    try:
+        number = float(value)
+    except OverflowError:
+        number = math.inf
+    if not math.isfinite(number):
+        raise ConfigError(f"{path} = {_describe(value)}: must be a finite number")
+    return number
 
 
 def _check_value(path: str, value: Any, spec: Key) -> Any:
@@ -262,19 +311,15 @@ def _check_value(path: str, value: Any, spec: Key) -> Any:
     if kind == "float_list":
         if not isinstance(value, list) or not value:
             raise ConfigError(f"{path}: must be a non-empty list of numbers")
-        nums = []
-        for i, v in enumerate(value):
-            if isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v):
-                raise ConfigError(f"{path}[{i}] = {_describe(v)}: must be a finite number")
-            nums.append(float(v))
-        return nums
+        return [_finite_float(f"{path}[{i}]", v) for i, v in enumerate(value)]
     if kind == "band":
         if (not isinstance(value, list) or len(value) != 2
                 or any(isinstance(v, bool) or not isinstance(v, (int, float)) for v in value)):
             raise ConfigError(f"{path} = {_describe(value)}: must be [low, high]")
-        lo, hi = float(value[0]), float(value[1])
-        if not (math.isfinite(lo) and math.isfinite(hi)) or not 0.0 < lo < hi:
-            raise ConfigError(f"{path} = {value}: must be [low, high] with 0 < low < high")
+        lo, hi = (_finite_float(path, v) for v in value)
+        if not 0.0 < lo < hi:
+            raise ConfigError(f"{path} = {_describe(value)}: must be [low, high] with "
+                              "0 < low < high")
         return [lo, hi]
     if kind == "fractions":
         return _check_fractions(path, value)
@@ -289,7 +334,7 @@ def validate_raw(raw: dict[str, Any]) -> dict[str, dict[str, Any]]:
     """
     for section, table in raw.items():
         if section not in SCHEMA:
-            raise ConfigError(f"[{section}]: unknown section{_suggest(section, SCHEMA)} "
+            raise ConfigError(f"[{_name(section)}]: unknown section{_suggest(section, SCHEMA)} "
                               f"(sections: {', '.join(SCHEMA)})")
         if not isinstance(table, dict):
             raise ConfigError(f"{section} = {_describe(table)}: must be a [{section}] table")
@@ -348,8 +393,10 @@ def _cross_check_fiber(resolved: dict) -> None:
                 raise ConfigError(f"fiber.{key}: only allowed with kind = 'taylor' "
                                   f"(kind is {kind!r})")
     mode = fiber["mode"]
-    if not (mode.upper().startswith("EH1") and mode[3:].isdigit() and int(mode[3:]) >= 1):
-        raise ConfigError(f"fiber.mode = {mode!r}: must be EH1m with m >= 1 (e.g. 'EH11')")
+    match = _MODE_PATTERN.fullmatch(mode.strip())
+    if match is None or int(match.group(1)) > MAX_MODE_ORDER:
+        raise ConfigError(f"fiber.mode = {_describe(mode)}: must be EH1m with "
+                          f"1 <= m <= {MAX_MODE_ORDER} (e.g. 'EH11')")
 
 
 def _cross_check_gas(resolved: dict, present: set[str]) -> None:
@@ -416,13 +463,36 @@ def _check_names(resolved: dict, present: set[str], table_dirs: tuple[Path, ...]
 def _resolve_path(value: str | None, base: Path, key: str, must_be_dir: bool = False):
     if value is None:
         return None
-    path = Path(value).expanduser()
-    if not path.is_absolute():
-        path = base / path
-    if must_be_dir and not path.is_dir():
-        raise ConfigError(f"{key} = {value!r}: folder not found ({path})")
-    if not must_be_dir and not path.is_file():
-        raise ConfigError(f"{key} = {value!r}: file not found ({path})")
+    try:
+        path = Path(value).expanduser()
+        if not path.is_absolute():
+            path = base / path
+        found = path.is_dir() if must_be_dir else path.is_file()
+    except (OSError, RuntimeError, ValueError) as exc:  # unknown ~user, name too long, NUL
+        raise ConfigError(f"{key} = {_describe(value)}: not a usable path ({exc})") from None
+    if not found:
+        what = "folder" if must_be_dir else "file"
+        raise ConfigError(f"{key} = {_describe(value)}: {what} not found ({path})")
+    return path
+
+
+def _checked_csv(value: str | None, base: Path, key: str, column: str | None):
+    """Resolve a CSV path and read it once, so a bad file is reported before any run.
+
+    ``column`` names the value column (``None`` for a spectrum: ``intensity``, >= 0).
+    """
+    path = _resolve_path(value, base, key)
+    if path is None:
+        return None
+    from .csvdata import read_curve_csv, read_spectrum_csv
+
+    try:
+        if column is None:
+            read_spectrum_csv(path)
+        else:
+            read_curve_csv(path, column)
+    except ConfigError as exc:
+        raise ConfigError(f"{key}: {exc}") from None
     return path
 
 
@@ -440,7 +510,8 @@ def _build_fiber(f: dict) -> FiberSpec:
         kind=f["kind"], length=f["length_m"],
         core_radius=None if core is None else core / 2,
         cladding=f["cladding"], wall_thickness=_si(f["wall_thickness_um"], "um"),
-        bend_radius=f["bend_radius_m"], mode_order=int(f["mode"][3:]),
+        bend_radius=f["bend_radius_m"],
+        mode_order=int(_MODE_PATTERN.fullmatch(f["mode"].strip()).group(1)),
         betas=tuple(units.taylor_betas_to_si(f["betas_fs_n_per_mm"] or [])),
         gamma=f["gamma_per_w_per_m"],
         loss=units.power_loss_db_per_m_to_field_attenuation(f["loss_db_per_m"]),
@@ -477,7 +548,7 @@ def _build_specs(r: dict, present: set[str], base: Path, extra_gas_dirs) -> dict
             energy=units.to_si(las["energy_uj"], "uj"),
             repetition_rate=_si(las["repetition_khz"], "khz"),
             gdd=units.to_si(las["gdd_fs2"], "fs2"),
-            spectrum_csv=_resolve_path(las["spectrum_csv"], base, "laser.spectrum_csv"),
+            spectrum_csv=_checked_csv(las["spectrum_csv"], base, "laser.spectrum_csv", None),
             beam_waist=_si(las["beam_waist_um"], "um")),
         fiber=_build_fiber(r["fiber"]),
         gas=_build_gas(r["gas"], present, table_dirs),
@@ -488,8 +559,8 @@ def _build_specs(r: dict, present: set[str], base: Path, extra_gas_dirs) -> dict
         compressor=CompressorSpec(
             air_path=comp["air_path_m"], mirror_gdd=_si(comp["mirror_gdd_fs2"], "fs2"),
             mirror_tod=units.to_si(comp["mirror_tod_fs3"], "fs3"),
-            mirror_gdd_csv=_resolve_path(comp["mirror_gdd_csv"], base,
-                                         "compressor.mirror_gdd_csv"),
+            mirror_gdd_csv=_checked_csv(comp["mirror_gdd_csv"], base,
+                                        "compressor.mirror_gdd_csv", "gdd_fs2"),
             mirror_band=None if band is None else (band[0] * 1e-9, band[1] * 1e-9),
             max_bounces=comp["max_bounces"], bounces_in_pairs=comp["bounces_in_pairs"],
             objective=comp["objective"], wedge_material=comp["wedge_material"],

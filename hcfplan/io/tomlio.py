@@ -40,6 +40,13 @@ def parse_toml(text: str, origin: str) -> dict[str, Any]:
     except _toml.TOMLDecodeError as exc:
         message = str(exc).splitlines()[0] if str(exc) else "syntax error"
         raise ConfigError(f"{origin}: TOML syntax error: {message}") from None
+    except ValueError as exc:  # e.g. an integer literal longer than Python converts
+        raise ConfigError(f"{origin}: TOML value error: {_first_line(exc)}") from None
+
+
+def _first_line(exc: Exception) -> str:
+    text = str(exc).strip()
+    return text.splitlines()[0] if text else type(exc).__name__
 
 
 def parse_toml_value(text: str) -> Any:
@@ -51,12 +58,16 @@ def parse_toml_value(text: str) -> Any:
     stripped = text.strip()
     if stripped == "":
         raise ValueError("empty value")
+    if any(ch in stripped for ch in "\r\n"):
+        raise ValueError(f"{stripped!r}: the value must be on one line")
     try:
         return _toml.loads(f"v = {stripped}")["v"]
     except _toml.TOMLDecodeError:
-        if stripped[0] in "[{\"'" or any(ch in stripped for ch in "=[]{}\"'\n"):
+        if stripped[0] in "[{\"'" or any(ch in stripped for ch in "=[]{}\"'"):
             raise ValueError(f"cannot parse {stripped!r} as a TOML value") from None
         return stripped
+    except ValueError as exc:  # e.g. an integer literal longer than Python converts
+        raise ValueError(f"cannot parse {stripped[:40]!r}...: {_first_line(exc)}") from None
 
 
 def _format_value(value: Any) -> str:

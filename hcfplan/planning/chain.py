@@ -396,6 +396,27 @@ def _thz_part(config, thz) -> dict:
     return out
 
 
+@dataclass(frozen=True)
+class RunPeaks:
+    """What the limits need from a GNLSE run (see :func:`limits_report`)."""
+
+    max_peak_power: float  #: highest peak power along the fiber [W]
+    max_peak_intensity: float | None  #: highest on-axis peak intensity [W/m^2]
+    output_peak_power: float  #: peak power at the fiber exit [W]
+
+
+def limits_part(chain: ChainResult) -> dict:
+    """``limits.*`` of the run: the analytic checks plus the peaks reached inside the fiber."""
+    from .limits_report import limits_report
+
+    prop = chain.propagation
+    peaks = RunPeaks(max_peak_power=float(np.nanmax(prop.peak_power_z)),
+                     max_peak_intensity=_finite_max(prop.peak_intensity_z),
+                     output_peak_power=float(np.max(np.abs(prop.field_out_t) ** 2)))
+    with quiet_validity_of_materials():
+        return limits_report(chain.config, run=peaks)
+
+
 def summary_dict(chain: ChainResult) -> dict:
     """The ``summary.json`` content (see the README's output reference)."""
     from .fiber_report import fiber_report
@@ -408,6 +429,7 @@ def summary_dict(chain: ChainResult) -> dict:
     summary.update(_output_part(chain))
     summary.update(_compressed_part(chain.compression))
     summary.update(_thz_part(chain.config, chain.thz))
+    summary.update(limits_part(chain))
     summary.update({
         "solver.success": prop.success,
         "solver.status": prop.status,

@@ -58,8 +58,6 @@ def _antiresonant_part(waveguide, config) -> dict:
 
 def fiber_report(config) -> dict:
     """Analytic summary of the configured fiber at the pump (see module docstring)."""
-    from .. import pulse
-    from ..fibers import derived
 
     with quiet_validity():
         return _fiber_report(config)

@@ -39,6 +39,8 @@ SCAN_FORMAT = "hcfplan-scan"
 SPECTRUM_POINTS = 512
 #: Spectral floor of the stored output spectrum, relative to its peak. [1]
 SPECTRUM_FLOOR = 1e-6
+#: How long to wait for a Dask scheduler to answer. [s]
+DASK_CONNECT_TIMEOUT = 10.0
 #: Fields every point file must hold.
 POINT_FIELDS = ("format", "version", "key", "values", "status", "message", "config", "summary",
                 "margins", "spectrum", "seconds", "checksum")
@@ -490,7 +492,7 @@ def _run_dask(tasks, on_done, _workers, address: str) -> None:
         raise ConfigError(f"--dask-scheduler {address}: needs the 'distributed' package "
                           "(pip install 'hcfplan[cluster]')") from None
     try:
-        client = Client(address, timeout="10s")
+        client = Client(address, timeout=DASK_CONNECT_TIMEOUT)
     except (OSError, TimeoutError) as exc:
         raise ConfigError(f"--dask-scheduler {address}: cannot connect ({exc})") from None
     try:

@@ -15,6 +15,7 @@ from .propagation import (
     plot_temporal_in_out,
 )
 
+
 def draw_spectra(fig, chain):
     """Input and output spectral energy density per wavelength, dB."""
     ax = plot_spectra_in_out(fig.subplots(), chain.propagation)

@@ -1,0 +1,247 @@
+"""Scans: parsing of --vary, point files (resume, damage detection), local vs Dask executors.
+
+Contract tests (no physics values are checked here; the chain's numbers are tested beside
+each model). The scans use a 20 cm argon capillary on a 1024-point grid (~0.5 s per point).
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import signal
+import subprocess
+import sys
+import time
+from pathlib import Path
+
+import pytest
+
+from hcfplan.errors import ConfigError
+from hcfplan.planning.scan import (
+    config_key,
+    parse_vary,
+    plan_scan,
+    read_point,
+    run_scan,
+)
+
+ROOT = Path(__file__).resolve().parents[1]
+
+FAST_CONFIG = """
+# Test scenario (invented): 1030 nm, 200 fs into a 20 cm, 150 um argon capillary.
+[laser]
+wavelength_nm = 1030.0
+fwhm_fs = 200.0
+shape = "gaussian"
+energy_uj = {energy_uj}
+
+[fiber]
+kind = "capillary"
+core_diameter_um = 150.0
+length_m = 0.2
+
+[gas]
+species = "Ar"
+pressure_bar = 2.0
+ionization_model = "adk"
+
+[cell]
+rated_pressure_bar = {rated_bar}
+
+[compressor]
+mirror_gdd_fs2 = -100.0
+max_bounces = 30
+
+[thz]
+crystal = "GaP"
+thickness_mm = 0.1
+
+[limits]
+ionization_fraction_limit = 0.01
+
+[grid]
+points = 1024
+z_samples = 10
+"""
+
+
+def write_fast_config(folder: Path, name: str = "fast.toml", energy_uj: float = 200.0,
+                      rated_bar: float = 20.0) -> Path:
+    """The fast test config (shared by the workflow test files)."""
+    path = Path(folder) / name
+    path.write_text(FAST_CONFIG.format(energy_uj=energy_uj, rated_bar=rated_bar),
+                    encoding="utf-8")
+    return path
+
+
+@pytest.fixture()
+def fast(tmp_path) -> Path:
+    return write_fast_config(tmp_path)
+
+
+# ---------------------------------------------------------------------------------------------
+# --vary
+
+
+def test_range_includes_both_ends():
+    # contract: COUNT values, linearly spaced, both ends included
+    vary = parse_vary("gas.pressure_bar=1:3:5")
+    assert vary.values == pytest.approx((1.0, 1.5, 2.0, 2.5, 3.0), rel=0, abs=1e-12)
+    assert vary.values[-1] == 3.0
+
+
+def test_list_of_any_key():
+    assert parse_vary("gas.species=Ar,Kr,Ne").values == ("Ar", "Kr", "Ne")
+    assert parse_vary("grid.points=512:2048:3").values == (512, 1280, 2048)
+
+
+@pytest.mark.parametrize("text,fragment", [
+    ("gas.pressur=1:2:3", "gas.pressur: unknown key"),
+    ("gass.pressure_bar=1:2:3", r"unknown section \[gass\]"),
+    ("gas.species=1:2:3", "gas.species: a START:STOP:COUNT range needs a numeric key"),
+    ("grid.points=500:1000:4", "grid.points=500:1000:4: grid.points is an integer key"),
+    ("gas.pressure_bar=1:x:3", "gas.pressure_bar=1:x:3: expected START:STOP:COUNT"),
+    ("gas.pressure_bar", "'gas.pressure_bar': expected section.key="),
+])
+def test_bad_vary(text, fragment):
+    with pytest.raises(ConfigError, match=fragment):
+        parse_vary(text)
+
+
+def test_every_point_validated_up_front(fast):
+    with pytest.raises(ConfigError, match=r"gas.pressure_bar = -1.0: must be > 0"):
+        plan_scan(fast, [parse_vary("gas.pressure_bar=-1:2:4")])
+
+
+def test_point_keys_follow_the_resolved_config(fast):
+    # contract: the key is the config hash, independent of the point's position in the scan
+    plan_a = plan_scan(fast, [parse_vary("gas.pressure_bar=1:3:3")])
+    plan_b = plan_scan(fast, [parse_vary("gas.pressure_bar=3,2,1")])
+    assert [p.key for p in plan_a.points] == [p.key for p in plan_b.points][::-1]
+    assert len({p.key for p in plan_a.points}) == 3
+    assert all(len(p.key) == 16 for p in plan_a.points)
+
+
+# ---------------------------------------------------------------------------------------------
+# point files
+
+
+def _scan_cmd(config: Path, out: Path, *extra: str) -> list[str]:
+    return [sys.executable, "-m", "hcfplan", "scan", str(config), "--vary",
+            "gas.pressure_bar=1:3:5", "--out", str(out), "--workers", "1", "--no-figures",
+            "--json", *extra]
+
+
+def _env() -> dict:
+    return {**os.environ, "PYTHONPATH": str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", "")}
+
+
+def test_killed_scan_resumes_with_the_remaining_points(fast, tmp_path):
+    # contract: a scan killed after k points recomputes only the other 5 - k on the rerun
+    out = tmp_path / "scan"
+    proc = subprocess.Popen(_scan_cmd(fast, out), env=_env(), cwd=tmp_path,
+                            stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL,
+                            start_new_session=True)
+    try:
+        deadline = time.monotonic() + 60
+        while len(list((out / "points").glob("*.json"))) < 2 and time.monotonic() < deadline:
+            time.sleep(0.05)
+    finally:
+        os.killpg(proc.pid, signal.SIGKILL)  # the session of the process started above
+        proc.wait()
+    done = {p: p.stat().st_mtime_ns for p in (out / "points").glob("*.json")}
+    assert 2 <= len(done) < 5
+    rerun = subprocess.run(_scan_cmd(fast, out), env=_env(), cwd=tmp_path, capture_output=True,
+                           text=True, timeout=120)
+    assert rerun.returncode == 0, rerun.stderr
+    report = json.loads(rerun.stdout)
+    assert report["reused"] == len(done)
+    assert report["computed"] == 5 - len(done)
+    assert {p: p.stat().st_mtime_ns for p in done} == done  # finished points untouched
+    assert len(list((out / "points").glob("*.json"))) == 5
+    assert not list((out / "points").glob(".*"))  # no temp files left behind
+
+
+def test_damaged_point_files_are_recomputed(fast, tmp_path):
+    # contract: truncated JSON, an edited value (checksum) and a wrong key are all detected
+    plan = plan_scan(fast, [parse_vary("gas.pressure_bar=1:2:3")])
+    out = tmp_path / "scan"
+    first = run_scan(plan, out, workers=1)
+    assert len(first.computed) == 3 and not first.reused
+    files = [out / "points" / f"{p.key}.json" for p in plan.points]
+    files[0].write_text(files[0].read_text()[:200])
+    edited = json.loads(files[1].read_text())
+    edited["summary"]["compressed"]["fwhm_s"] *= 2
+    files[1].write_text(json.dumps(edited))
+    moved = json.loads(files[2].read_text())
+    files[2].write_text(json.dumps({**moved, "key": "0" * 16}))
+    second = run_scan(plan, out, workers=1)
+    reasons = dict(second.damaged)
+    assert set(second.computed) == {p.key for p in plan.points}
+    assert "unreadable" in reasons[plan.points[0].key]
+    assert reasons[plan.points[1].key] == "checksum mismatch"
+    assert "key does not match" in reasons[plan.points[2].key]
+    for path, point in zip(files, plan.points, strict=True):
+        record, problem = read_point(path, point.key)
+        assert problem == "" and config_key(record["config"]) == point.key
+
+
+def test_failed_point_is_recorded_and_not_retried(fast, tmp_path):
+    # contract: a run that stops (solver success False) is a finished, failed point
+    plan = plan_scan(fast, [parse_vary("grid.stop_ionization_fraction=1e-30,0.1")])
+    out = tmp_path / "scan"
+    first = run_scan(plan, out, workers=1)
+    status = [r["status"] for r in first.records]
+    assert status == ["failed", "ok"]
+    assert first.records[0]["message"]
+    second = run_scan(plan, out, workers=1)
+    assert not second.computed and len(second.reused) == 2
+    table = (out / "table.csv").read_text().splitlines()
+    assert table[0].startswith("point,key,grid.stop_ionization_fraction,status,message,")
+    assert ",failed," in table[1] and ",ok," in table[2]
+
+
+def test_other_scan_in_folder_is_refused(fast, tmp_path):
+    out = tmp_path / "scan"
+    run_scan(plan_scan(fast, [parse_vary("gas.pressure_bar=1,2")]), out, workers=1)
+    other = plan_scan(fast, [parse_vary("gas.pressure_bar=1,3")])
+    with pytest.raises(ConfigError, match=f"--out {out}: holds points of a different scan"):
+        run_scan(other, out, workers=1)
+    forced = run_scan(other, out, workers=1, force=True)  # the shared 1 bar point is reused
+    assert len(forced.reused) == 1 and len(forced.computed) == 1
+    fresh = run_scan(other, out, workers=1, fresh=True)
+    assert len(fresh.computed) == 2
+
+
+def test_unrelated_folder_is_refused(fast, tmp_path):
+    out = tmp_path / "notes"
+    out.mkdir()
+    (out / "mine.txt").write_text("keep")
+    with pytest.raises(ConfigError, match=f"--out {out}: folder is not empty and holds no"):
+        run_scan(plan_scan(fast, [parse_vary("gas.pressure_bar=1,2")]), out, workers=1)
+
+
+# ---------------------------------------------------------------------------------------------
+# executors
+
+
+def test_dask_and_local_pool_give_identical_tables(fast, tmp_path):
+    # invariant: the executor does not change any number of the table
+    distributed = pytest.importorskip("distributed")
+    plan = plan_scan(fast, [parse_vary("gas.pressure_bar=1:2:3")])
+    local = run_scan(plan, tmp_path / "local", workers=2)
+    assert local.executor == "processes"
+    with distributed.LocalCluster(n_workers=2, processes=True, threads_per_worker=1,
+                                  dashboard_address=None) as cluster:
+        remote = run_scan(plan, tmp_path / "dask", address=cluster.scheduler_address)
+    assert remote.executor == "dask"
+    assert (tmp_path / "local" / "table.csv").read_text() == \
+        (tmp_path / "dask" / "table.csv").read_text()
+
+
+def test_missing_scheduler_is_one_line_error(fast, tmp_path, monkeypatch):
+    pytest.importorskip("distributed")
+    monkeypatch.setattr("hcfplan.planning.scan.DASK_CONNECT_TIMEOUT", 0.5)
+    plan = plan_scan(fast, [parse_vary("gas.pressure_bar=1,2")])
+    with pytest.raises(ConfigError, match="--dask-scheduler tcp://127.0.0.1:1: cannot connect"):
+        run_scan(plan, tmp_path / "s", address="tcp://127.0.0.1:1")
