@@ -1,10 +1,11 @@
 """Benchmark: a 16-point pressure scan with 1 and 2 workers; speed-up and per-point overhead.
 
-Run: ``PYTHONPATH=. python bench/scan.py``. Prints the wall time per executor, the speed-up
-of 2 workers over 1 and the overhead per point outside the chain (wall time x workers / points
-minus the mean time spent inside the point computation), as a fraction of a point's time.
-Each run starts cold (fresh output folder); the serial run warms up in-process first, the
-pool workers pay their own warm-up (imports, numba cache load), which is part of the overhead.
+Run: ``PYTHONPATH=. python bench/scan.py [GRID_POINTS ...]`` (default 1024 and 8192).
+Prints the wall time per executor, the speed-up of 2 workers over 1 and the overhead per
+point outside the chain (wall time x workers / points minus the mean time spent inside the
+point computation), as a fraction of a point's time. The serial run warms up in-process
+first; the pool workers pay their own start (imports, numba cache load, first-call set-up),
+which counts as overhead.
 """
 
 from __future__ import annotations
@@ -32,11 +33,13 @@ def _run(plan, out: Path, workers: int) -> tuple[float, list[float]]:
     return wall, [r["seconds"]["point"] for r in outcome.records]
 
 
-def main() -> None:
+def main(grid_points: int = 1024) -> None:
     folder = Path(tempfile.mkdtemp(prefix="hcfplan-bench-scan-"))
     config = write_fast_config(folder, energy_uj=300.0)
-    plan = plan_scan(config, [parse_vary(f"gas.pressure_bar=0.5:4:{POINTS}")])
-    warm = plan_scan(config, [parse_vary("gas.pressure_bar=0.4,0.45")])
+    over = (f"grid.points={grid_points}",)
+    print(f"grid.points = {grid_points}")
+    plan = plan_scan(config, [parse_vary(f"gas.pressure_bar=0.5:4:{POINTS}")], over)
+    warm = plan_scan(config, [parse_vary("gas.pressure_bar=0.4,0.45")], over)
     run_scan(warm, folder / "warm", workers=1)  # imports and numba cache in this process
     results = {}
     for workers in (1, 2):
@@ -51,4 +54,5 @@ def main() -> None:
 
 
 if __name__ == "__main__":
-    main()
+    for n in (int(a) for a in (sys.argv[1:] or ["1024", "8192"])):
+        main(n)

@@ -1,9 +1,18 @@
-"""Print the README's config reference (markdown) from hcfplan.io.schema.SCHEMA.
+"""The README's config reference (markdown), generated from hcfplan.io.schema.SCHEMA.
 
-Usage: python scripts/config_reference.py > /tmp/ref.md  (then paste into README.md)
+Usage:
+    python scripts/config_reference.py                    # print it
+    python scripts/config_reference.py --update README.md # rewrite the marked block in place
 """
 
+from __future__ import annotations
+
+import sys
+from pathlib import Path
+
 from hcfplan.io.schema import REQUIRED, SCHEMA
+
+START, END = "<!-- config-reference:start -->", "<!-- config-reference:end -->"
 
 
 def _default(key) -> str:
@@ -14,15 +23,26 @@ def _default(key) -> str:
     return f"`{key.default}`".replace("True", "true").replace("False", "false")
 
 
-def main() -> None:
+def reference() -> str:
+    lines: list[str] = []
     for section, keys in SCHEMA.items():
-        print(f"\n**[{section}]**\n")
-        print("| key | type | default | meaning |")
-        print("|---|---|---|---|")
+        lines += ["", f"**[{section}]**", "", "| key | type | default | meaning |",
+                  "|---|---|---|---|"]
         for name, key in keys.items():
             kind = key.kind if not key.choices else " \\| ".join(f'"{c}"' for c in key.choices)
-            print(f"| `{name}` | {kind} | {_default(key)} | {key.doc} |")
+            lines.append(f"| `{name}` | {kind} | {_default(key)} | {key.doc} |")
+    return "\n".join(lines) + "\n"
+
+
+def update(path: Path) -> None:
+    text = path.read_text(encoding="utf-8")
+    head, rest = text.split(START, 1)
+    _, tail = rest.split(END, 1)
+    path.write_text(head + START + "\n" + reference() + END + tail, encoding="utf-8")
 
 
 if __name__ == "__main__":
-    main()
+    if len(sys.argv) == 3 and sys.argv[1] == "--update":
+        update(Path(sys.argv[2]))
+    else:
+        print(reference())

@@ -32,3 +32,16 @@ def test_cautions_in_readme():
     section = README.split("## Cautions", 1)[1].split("\n## ", 1)[0]
     for tag, phrase in phrases.items():
         assert phrase in CAUTIONS[tag] and phrase in section, tag
+
+
+def test_config_reference_is_current():
+    # the README block is generated from the schema; regenerate with
+    # `python scripts/config_reference.py --update README.md`
+    import importlib.util
+
+    spec = importlib.util.spec_from_file_location("config_reference",
+                                                  ROOT / "scripts" / "config_reference.py")
+    module = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(module)
+    block = README.split(module.START, 1)[1].split(module.END, 1)[0]
+    assert block == "\n" + module.reference()

@@ -19,6 +19,10 @@ from ..units import SUFFIXES, suffix_of
 
 #: Wavelengths all below this value are taken to be micrometres given by mistake. [nm]
 MICROMETRE_SUSPICION = 20.0
+#: Fewest samples of a measured spectrum (a shape needs a rise, a peak and a fall).
+MIN_SPECTRUM_SAMPLES = 3
+#: Fewest samples of a curve versus wavelength (two points define a line).
+MIN_CURVE_SAMPLES = 2
 WAVELENGTH_COLUMN = "wavelength_nm"
 _SPLIT = re.compile(r"[,;\s]+")
 
@@ -29,6 +33,9 @@ def _rows(path: Path) -> list[tuple[int, list[str]]]:
         text = path.read_text(encoding="utf-8-sig")
     except OSError as exc:
         raise ConfigError(f"{path}: cannot read ({exc.strerror})") from None
+    except UnicodeDecodeError as exc:
+        raise ConfigError(f"{path}: not UTF-8 text ({exc.reason} at byte {exc.start}); save "
+                          "the file as UTF-8 or plain ASCII") from None
     rows = []
     for number, line in enumerate(text.splitlines(), start=1):
         stripped = line.split("#", 1)[0].strip()
@@ -107,6 +114,11 @@ def _read(path: str | Path, value_name: str) -> tuple[np.ndarray, np.ndarray, Pa
     return wavelength_nm * 1e-9, values, path, data
 
 
+def _check_count(path: Path, values: np.ndarray, min_samples: int) -> None:
+    if values.size < min_samples:
+        raise ConfigError(f"{path}: {values.size} data line(s); need at least {min_samples}")
+
+
 def read_spectrum_csv(path: str | Path) -> tuple[np.ndarray, np.ndarray]:
     """Read a measured spectrum (columns ``wavelength_nm``, ``intensity``).
 
@@ -125,9 +137,9 @@ def read_spectrum_csv(path: str | Path) -> tuple[np.ndarray, np.ndarray]:
     Raises
     ------
     ConfigError
-        Empty file, one column, non-numeric entries, unsorted or duplicated wavelengths,
-        negative intensity, or wavelengths that look like micrometres; the message names
-        ``file:line``.
+        Empty or non-UTF-8 file, fewer than 3 samples, one column, non-numeric entries,
+        unsorted or duplicated wavelengths, negative or all-zero intensity, or wavelengths that
+        look like micrometres; the message names ``file:line``.
     """
     wavelength, intensity, path, data = _read(path, "intensity")
     negative = np.flatnonzero(intensity < 0)
@@ -137,6 +149,9 @@ def read_spectrum_csv(path: str | Path) -> tuple[np.ndarray, np.ndarray]:
             f"{path}:{data[k][0]}: negative intensity {intensity[k]:g}; intensities must be "
             ">= 0 (subtract the background and clip at zero)"
         )
+    if not np.any(intensity > 0):
+        raise ConfigError(f"{path}: every intensity is 0; the spectrum holds no light")
+    _check_count(path, intensity, MIN_SPECTRUM_SAMPLES)
     return wavelength, intensity
 
 
@@ -162,9 +177,10 @@ def read_curve_csv(path: str | Path, value_name: str) -> tuple[np.ndarray, np.nd
     Raises
     ------
     ConfigError
-        As :func:`read_spectrum_csv` (without the sign check).
+        As :func:`read_spectrum_csv` (without the sign checks; at least 2 samples).
     """
-    wavelength, values, _, _ = _read(path, value_name)
+    wavelength, values, path, _ = _read(path, value_name)
+    _check_count(path, values, MIN_CURVE_SAMPLES)
     suffix = suffix_of(value_name.lower())
     if suffix is not None and np.isfinite(SUFFIXES[suffix][0]):
         values = values * SUFFIXES[suffix][0]
