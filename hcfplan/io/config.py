@@ -194,8 +194,10 @@ def apply_overrides(raw: dict[str, Any], overrides: list[str] | tuple[str, ...])
 
 
 def _suggest(name: str, options) -> str:
-    close = difflib.get_close_matches(name, list(options), n=1, cutoff=0.5)
-    return f"; did you mean {close[0]!r}?" if close else ""
+    """'; did you mean ...?' with the closest option (case-insensitive), or ''."""
+    by_lower = {str(option).lower(): option for option in options}
+    close = difflib.get_close_matches(str(name).lower(), list(by_lower), n=1, cutoff=0.5)
+    return f"; did you mean {by_lower[close[0]]!r}?" if close else ""
 
 
 def _name(name: Any) -> str:

@@ -1,5 +1,11 @@
 """Writing results: every file is written to a temporary name in the same folder and renamed
-into place, so a reader (or an interrupted run) sees either the complete file or none."""
+into place, so a reader (or an interrupted run) sees either the complete file or none.
+
+Interruption: Ctrl-C (KeyboardInterrupt) inside a write removes the temporary file on the way
+out. SIGTERM and SIGHUP, which end the process without any clean-up, are held back while a
+temporary file exists and delivered once the file is complete and renamed (or removed); the
+process then ends as it would have, with every file in the folder complete.
+"""
 
 from __future__ import annotations
 
@@ -7,7 +13,9 @@ import contextlib
 import json
 import math
 import os
+import signal
 import tempfile
+import threading
 from collections.abc import Callable, Iterator
 from pathlib import Path
 from typing import Any
@@ -16,21 +24,50 @@ import numpy as np
 
 from ..errors import ConfigError
 
+#: Signals that end the process without clean-up by default; held back during a write.
+HELD_SIGNALS = tuple(getattr(signal, name) for name in ("SIGTERM", "SIGHUP")
+                     if hasattr(signal, name))
+
+
+@contextlib.contextmanager
+def _termination_held() -> Iterator[None]:
+    """Hold SIGTERM/SIGHUP inside the block; deliver them, to the previous handlers, after it.
+
+    Only the main thread can set signal handlers; elsewhere the block runs unprotected.
+    """
+    if threading.current_thread() is not threading.main_thread():
+        yield
+        return
+    caught: list[int] = []
+
+    def hold(signum, frame):
+        caught.append(signum)
+
+    previous = {sig: signal.signal(sig, hold) for sig in HELD_SIGNALS}
+    try:
+        yield
+    finally:
+        for sig, handler in previous.items():
+            signal.signal(sig, signal.SIG_DFL if handler is None else handler)
+        for signum in dict.fromkeys(caught):
+            signal.raise_signal(signum)
+
 
 @contextlib.contextmanager
 def _atomic_path(path: Path, suffix: str) -> Iterator[Path]:
     path = Path(path)
     path.parent.mkdir(parents=True, exist_ok=True)
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=suffix, dir=path.parent)
-    os.close(fd)
-    tmp_path = Path(tmp)
-    try:
-        yield tmp_path
-        os.chmod(tmp_path, 0o666 & ~_umask())  # mkstemp makes 0600; give the usual mode
-        os.replace(tmp_path, path)
-    finally:
-        if tmp_path.exists():
-            tmp_path.unlink()
+    with _termination_held():
+        fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=suffix, dir=path.parent)
+        os.close(fd)
+        tmp_path = Path(tmp)
+        try:
+            yield tmp_path
+            os.chmod(tmp_path, 0o666 & ~_umask())  # mkstemp makes 0600; give the usual mode
+            os.replace(tmp_path, path)
+        finally:
+            if tmp_path.exists():
+                tmp_path.unlink()
 
 
 def _umask() -> int:
@@ -93,12 +130,19 @@ def write_figure(path: Path, draw: Callable, *args, **kwargs) -> None:
 
 
 def prepare_output_dir(path: Path, *, force: bool) -> Path:
-    """Create the output folder; refuse an existing non-empty one unless ``force``."""
+    """Check the output folder before a run; refuse an existing non-empty one unless ``force``.
+
+    The folder is not created here but by the first file written into it, so a run that stops
+    before writing anything (bad input found late, an interruption) leaves no folder behind.
+    """
     path = Path(path)
     if path.exists() and not path.is_dir():
         raise ConfigError(f"--out {path}: exists and is not a folder")
     if path.is_dir() and any(path.iterdir()) and not force:
         raise ConfigError(f"--out {path}: folder exists and is not empty; use --force to "
                           "overwrite or choose another --out")
-    path.mkdir(parents=True, exist_ok=True)
+    ancestor = next(p for p in (path, *path.absolute().parents) if p.exists())
+    if not ancestor.is_dir() or not os.access(ancestor, os.W_OK | os.X_OK):
+        raise ConfigError(f"--out {path}: cannot create files under {ancestor} (not a "
+                          "writable folder)")
     return path

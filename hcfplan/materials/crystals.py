@@ -188,16 +188,28 @@ def load_crystal(name: str, search_dirs: Sequence[str | Path] = ()) -> CrystalTa
         raise ConfigError(
             f"crystal = {name!r}: unknown; valid names: {', '.join(crystal_names(search_dirs))}"
         )
-    text = entry.read_text(encoding="utf-8")
     try:
-        data = tomllib.loads(text)
+        data = tomllib.loads(entry.read_text(encoding="utf-8"))
     except tomllib.TOMLDecodeError as exc:
         raise ConfigError(f"{entry.name}: not valid TOML: {exc}") from exc
+    except UnicodeDecodeError as exc:
+        raise ConfigError(f"{entry.name}: not UTF-8 text ({exc.reason} at byte {exc.start})"
+                          ) from None
+    except OSError as exc:
+        raise ConfigError(f"{entry.name}: cannot read ({exc.strerror})") from None
+    except ValueError as exc:  # e.g. an integer literal longer than Python converts
+        raise ConfigError(f"{entry.name}: not valid TOML: {str(exc).splitlines()[0]}") from None
     return _table_from_dict(data, str(entry))
 
 
 def _fail(path: str, key: str, message: str) -> ConfigError:
     return ConfigError(f"{Path(path).name}: {key} {message}")
+
+
+def _table(value: Any, path: str, where: str) -> dict:
+    if not isinstance(value, dict):
+        raise _fail(path, where, f"= {value!r}: must be a table")
+    return value
 
 
 def _require(section: dict, key: str, path: str, where: str) -> Any:
@@ -215,11 +227,18 @@ def _source(section: dict, path: str, where: str, key: str = "source") -> str:
 
 def _number(section: dict, key: str, path: str, where: str, *, positive: bool = False) -> float:
     value = _require(section, key, path, where)
-    if isinstance(value, bool) or not isinstance(value, (int, float)) or not np.isfinite(value):
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not _finite(value):
         raise _fail(path, f"{where}.{key}", f"= {value!r}: must be a finite number")
     if value < 0 or (positive and value == 0):
         raise _fail(path, f"{where}.{key}", f"= {value!r}: must be {'>' if positive else '>='} 0")
     return float(value)
+
+
+def _finite(value: int | float) -> bool:
+    try:
+        return bool(np.isfinite(float(value)))
+    except OverflowError:  # an integer beyond the float range
+        return False
 
 
 def _numbers(section: dict, key: str, path: str, where: str) -> tuple[float, ...]:
@@ -241,7 +260,7 @@ def _range(section: dict, path: str, where: str, lo_key: str, hi_key: str) -> tu
 def _optical_from_dict(sec: dict, path: str) -> OpticalIndexModel:
     where = "optical_index"
     model = _require(sec, "model", path, where)
-    if model not in _OPTICAL_MODELS:
+    if not isinstance(model, str) or model not in _OPTICAL_MODELS:
         raise _fail(path, f"{where}.model", f"= {model!r}: valid: {', '.join(_OPTICAL_MODELS)}")
     source = _source(sec, path, where)
     lo, hi = _range(sec, path, where, "valid_min_um", "valid_max_um")
@@ -282,7 +301,7 @@ def _oscillator_from_dict(sec: dict, path: str, where: str) -> LorentzOscillator
 def _thz_from_dict(sec: dict, path: str) -> ThzDielectricModel:
     where = "thz_permittivity"
     model = _require(sec, "model", path, where)
-    if model not in _THZ_MODELS:
+    if not isinstance(model, str) or model not in _THZ_MODELS:
         raise _fail(path, f"{where}.model", f"= {model!r}: valid: {', '.join(_THZ_MODELS)}")
     source = _source(sec, path, where)
     fmax = _number(sec, "valid_max_thz", path, where, positive=True) * 1e12
@@ -293,8 +312,12 @@ def _thz_from_dict(sec: dict, path: str) -> ThzDielectricModel:
     else:
         eps_inf = _number(sec, "eps_inf", path, where, positive=True)
         raw = sec.get("oscillators", [])
+        if not isinstance(raw, list):
+            raise _fail(path, f"{where}.oscillators", "must be an array of [[...]] tables")
         oscillators = tuple(
-            _oscillator_from_dict(o, path, f"{where}.oscillators[{i}]") for i, o in enumerate(raw)
+            _oscillator_from_dict(_table(o, path, f"{where}.oscillators[{i}]"), path,
+                                  f"{where}.oscillators[{i}]")
+            for i, o in enumerate(raw)
         )
     return ThzDielectricModel(model, eps_inf, oscillators, fmax, source)
 
@@ -322,8 +345,10 @@ def _table_from_dict(data: dict, path: str) -> CrystalTable:
     for section in ("optical_index", "thz_permittivity"):
         if not isinstance(data.get(section), dict):
             raise _fail(path, f"[{section}]", "is missing")
-    props, sources = _properties_from_dict(data.get("properties", {}), path)
-    notes = tuple((str(k), str(v)) for k, v in data.get("notes", {}).items())
+    props, sources = _properties_from_dict(
+        _table(data.get("properties", {}), path, "[properties]"), path)
+    notes = tuple((str(k), str(v)) for k, v in
+                  _table(data.get("notes", {}), path, "[notes]").items())
     return CrystalTable(
         name=str(_require(data, "name", path, "(top level)")),
         description=str(data.get("description", "")),

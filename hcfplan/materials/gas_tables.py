@@ -212,7 +212,12 @@ def refractive_index_from_fit(fit: DispersionFit, wavelength: np.ndarray) -> np.
 
 
 def _is_number(value: Any) -> bool:
-    return isinstance(value, int | float) and not isinstance(value, bool) and math.isfinite(value)
+    if not isinstance(value, int | float) or isinstance(value, bool):
+        return False
+    try:
+        return math.isfinite(value)
+    except OverflowError:  # an integer beyond the float range
+        return False
 
 
 def _kind_number(value: Any) -> str:
@@ -393,7 +398,7 @@ _TOP_KEYS = ("schema_version", "gas", "dispersion", "kerr", "ionization", "raman
 def _dispersion_record(block: Any, where: str, path: str) -> tuple[DispersionFit, bool]:
     """Build one DispersionFit; returns (fit, marked default)."""
     form = block.get("form") if isinstance(block, Mapping) else None
-    first, second = _FORM_KEYS.get(form, ("", ""))
+    first, second = _FORM_KEYS.get(form, ("", "")) if isinstance(form, str) else ("", "")
     coefficient_fields = (_Field(first, "numbers"), _Field(second, "numbers")) if first else ()
     values = _check_block(block, _DISPERSION_FIELDS + coefficient_fields, where, path)
     if len(values[first]) != len(values[second]):
@@ -487,11 +492,22 @@ def _required_block(data: Mapping, key: str, path: str) -> Any:
     return data[key]
 
 
+#: The table layout version this loader reads.
+SCHEMA_VERSION = 1
+
+
 def _table_from_data(data: Mapping, path: str) -> GasTable:
     """Validate parsed TOML data and build the GasTable."""
     unknown = sorted(set(data) - set(_TOP_KEYS))
     if unknown:
-        raise ConfigError(f"{path}: {unknown[0]}: unknown block (allowed: {', '.join(_TOP_KEYS)})")
+        shown = unknown[0] if unknown[0].isidentifier() else repr(unknown[0])
+        raise ConfigError(f"{path}: {shown}: unknown block "
+                          f"(allowed: {', '.join(_TOP_KEYS)})")
+    version = data.get("schema_version", SCHEMA_VERSION)
+    if not (isinstance(version, int) and not isinstance(version, bool)
+            and version == SCHEMA_VERSION):
+        raise ConfigError(f"{path}: schema_version = {version!r}: this hcfplan reads "
+                          f"schema_version = {SCHEMA_VERSION}")
     gas = _check_block(_required_block(data, "gas", path), _GAS_FIELDS, "gas", path)
     eos = _check_block(_required_block(data, "eos", path), _EOS_FIELDS, "eos", path)
     default_fit, fits = _dispersion_records(_required_block(data, "dispersion", path), path)
@@ -548,10 +564,18 @@ def gas_search_dirs(
     return dirs
 
 
+def _is_dir(path: str | Path) -> bool:
+    try:
+        return Path(path).is_dir()
+    except (OSError, ValueError):  # e.g. a name too long for the file system
+        return False
+
+
 def _all_dirs(search_dirs: Sequence[str | Path]) -> tuple[str, ...]:
     for d in search_dirs:
-        if not Path(d).is_dir():
-            raise ConfigError(f"gas table directory {str(d)!r}: does not exist")
+        if not _is_dir(d):
+            raise ConfigError(f"gas table directory {str(d)!r}: does not exist (set by "
+                              f"gas.table_dir or {GAS_PATH_VARIABLE})")
     return tuple(str(Path(d).resolve()) for d in search_dirs) + (str(shipped_gas_dir()),)
 
 
@@ -561,6 +585,12 @@ def _parse(path: Path) -> dict:
             return tomllib.load(handle)
     except tomllib.TOMLDecodeError as err:
         raise ConfigError(f"{path}: not valid TOML: {err}") from err
+    except UnicodeDecodeError as err:
+        raise ConfigError(f"{path}: not UTF-8 text ({err.reason} at byte {err.start})") from None
+    except OSError as err:
+        raise ConfigError(f"{path}: cannot read ({err.strerror})") from None
+    except ValueError as err:  # e.g. an integer literal longer than Python converts
+        raise ConfigError(f"{path}: not valid TOML: {str(err).splitlines()[0]}") from None
 
 
 def _identifiers(path: Path) -> set[str]:
@@ -569,11 +599,13 @@ def _identifiers(path: Path) -> set[str]:
         gas = _parse(path).get("gas", {})
     except ConfigError:
         return set()
+    if not isinstance(gas, Mapping):
+        return set()
     return {str(gas.get(k, "")).lower() for k in ("symbol", "name")} - {""}
 
 
 def _table_files(dirs: tuple[str, ...]) -> list[Path]:
-    return [f for d in dirs for f in sorted(Path(d).glob("*.toml"))]
+    return [f for d in dirs for f in sorted(Path(d).glob("*.toml")) if f.is_file()]
 
 
 def _stems(dirs: tuple[str, ...]) -> list[str]:

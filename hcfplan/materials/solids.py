@@ -112,18 +112,43 @@ SELLMEIER_FORMS: dict[str, Callable[[SellmeierFit, np.ndarray], np.ndarray]] = {
 }
 
 
+def _table(value, where: str) -> dict:
+    if not isinstance(value, dict):
+        raise ConfigError(f"{where} = {value!r}: must be a table")
+    return value
+
+
 def _require(table: dict, key: str, where: str):
     if key not in table:
         raise ConfigError(f"{where}: missing key '{key}'")
     return table[key]
 
 
+def _finite(value, where: str) -> float:
+    """``value`` as a finite float (bool, text, inf, nan and huge integers are refused)."""
+    try:
+        number = float(value) if isinstance(value, int | float) else math.nan
+    except OverflowError:
+        number = math.inf
+    if isinstance(value, bool) or not math.isfinite(number):
+        raise ConfigError(f"{where} = {value!r}: must be a finite number")
+    return number
+
+
 def _positive(table: dict, key: str, where: str, *, allow_zero: bool = False) -> float:
     value = _require(table, key, where)
-    ok = isinstance(value, (int, float)) and (value >= 0 if allow_zero else value > 0)
-    if not ok:
-        raise ConfigError(f"{where}.{key} = {value!r}: must be a number > 0")
-    return float(value)
+    number = _finite(value, f"{where}.{key}")
+    if not (number >= 0 if allow_zero else number > 0):
+        raise ConfigError(f"{where}.{key} = {value!r}: must be a number "
+                          f"{'>=' if allow_zero else '>'} 0")
+    return number
+
+
+def _number_list(table: dict, key: str, where: str) -> tuple[float, ...]:
+    values = _require(table, key, where)
+    if not isinstance(values, list):
+        raise ConfigError(f"{where}.{key} = {values!r}: must be a list of numbers")
+    return tuple(_finite(v, f"{where}.{key}[{i}]") for i, v in enumerate(values))
 
 
 def _source(table: dict, where: str) -> tuple[str, bool]:
@@ -134,11 +159,12 @@ def _source(table: dict, where: str) -> tuple[str, bool]:
 
 
 def _parse_dispersion(table: dict, where: str) -> SellmeierFit:
+    table = _table(table, where)
     form = _require(table, "form", where)
-    if form not in SELLMEIER_FORMS:
+    if not isinstance(form, str) or form not in SELLMEIER_FORMS:
         raise ConfigError(f"{where}.form = {form!r}: must be one of {sorted(SELLMEIER_FORMS)}")
-    b = tuple(float(x) for x in _require(table, "b", where))
-    poles = tuple(float(x) for x in _require(table, "resonance_um", where))
+    b = _number_list(table, "b", where)
+    poles = _number_list(table, "resonance_um", where)
     if len(b) != len(poles) or not b:
         raise ConfigError(
             f"{where}: 'b' ({len(b)} values) and 'resonance_um' ({len(poles)}) must match"
@@ -151,12 +177,14 @@ def _parse_dispersion(table: dict, where: str) -> SellmeierFit:
         raise ConfigError(f"{where}: wavelength_min_um = {lo} >= wavelength_max_um = {hi}")
     source, memory = _source(table, where)
     return SellmeierFit(
-        form, float(table.get("a", 0.0)), b, poles, lo * _MICROMETRE, hi * _MICROMETRE,
+        form, _finite(table.get("a", 0.0), f"{where}.a"), b, poles, lo * _MICROMETRE,
+        hi * _MICROMETRE,
         _positive(table, "temperature_k", where), source, memory,
     )
 
 
 def _parse_quoted(table: dict, key: str, factor: float, where: str) -> QuotedValue:
+    table = _table(table, where)
     source, memory = _source(table, where)
     value = _positive(table, key, where, allow_zero=True) * factor
     def optional(k: str, f: float) -> float:
@@ -170,6 +198,7 @@ def _parse_quoted(table: dict, key: str, factor: float, where: str) -> QuotedVal
 
 def _parse_material(name: str, record: dict, path: str) -> SolidMaterial:
     where = f"{path} [{name}]"
+    record = _table(record, where)
     section = {k: _require(record, k, where) for k in ("dispersion", "kerr", "strength")}
     damage = record.get("damage")
     return SolidMaterial(
@@ -200,6 +229,12 @@ def read_solid_table(path: str | Path) -> dict[str, SolidMaterial]:
         data = tomllib.loads(path.read_text(encoding="utf-8"))
     except tomllib.TOMLDecodeError as exc:
         raise ConfigError(f"{path}: not valid TOML ({exc})") from exc
+    except UnicodeDecodeError as exc:
+        raise ConfigError(f"{path}: not UTF-8 text ({exc.reason} at byte {exc.start})") from None
+    except OSError as exc:
+        raise ConfigError(f"{path}: cannot read ({exc.strerror})") from None
+    except ValueError as exc:  # e.g. an integer literal longer than Python converts
+        raise ConfigError(f"{path}: not valid TOML ({str(exc).splitlines()[0]})") from None
     return {name: _parse_material(name, rec, str(path)) for name, rec in data.items()}
 
 

@@ -72,15 +72,12 @@ def comparison_rows(a: Side, b: Side) -> tuple[dict, ...]:
 
 def run_side(config, label: str) -> Side:
     """Run the chain for one config and collect its summary and margins."""
-    from .chain import run_chain, summary_dict
-    from .scan import limits_values, plain, point_margins
+    from .chain import run_chain
+    from .scan import run_summary
 
     chain = run_chain(config)
-    summary = plain(summary_dict(chain))
-    report = limits_values(config, summary if chain.propagation.success else None)
-    if report:
-        summary["limits"] = {k.removeprefix("limits."): v for k, v in report.items()}
-    return Side(label, chain, summary, point_margins(config, summary, report))
+    summary, margins = run_summary(config, chain)
+    return Side(label, chain, summary, margins)
 
 
 def compare_configs(config_a, config_b, labels: tuple[str, str] = ("A", "B")) -> Comparison:

@@ -122,10 +122,10 @@ def analytic_bound(make_config, key: str, lo: float, hi: float) -> tuple[float, 
         if config.cell.rated_pressure is not None:
             candidates.append((config.cell.rated_pressure / si,
                                f"cell rating {config.cell.rated_pressure / si:.4g} bar"))
-        sf = _pressure_bound_self_focusing(make_config, report, lo, hi)
+        sf = _pressure_bound_self_focusing(report)
     else:
-        sf = _energy_bound(report, "limits.self_focusing.max_energy_j", config, si)
-        ion = _energy_bound(report, "limits.ionization.max_energy_j", None, si)
+        sf = _energy_bound(report, "limits.self_focusing.max_energy_j", si)
+        ion = _energy_bound(report, "limits.ionization.max_energy_j", si)
         if ion is not None:
             candidates.append((ion, f"ionisation fraction > {lim.ionization_fraction_limit:g} "
                                     f"above {ion:.4g} {unit}"))
@@ -133,8 +133,6 @@ def analytic_bound(make_config, key: str, lo: float, hi: float) -> tuple[float, 
         candidates.append((sf, f"self-focusing margin < {lim.self_focusing_margin:g} above "
                                f"{sf:.4g} {unit}"))
     bound, reason = min(candidates, key=lambda c: c[0])
-    if report is None:
-        return bound, reason
     return _sharpen(make_config, lo, bound, reason, unit)
 
 
@@ -171,38 +169,14 @@ def _sharpen(make_config, lo: float, bound: float, reason: str, unit: str):
     return a, f"{', '.join(_beyond(make_config, b))} beyond the limit above {a:.4g} {unit}"
 
 
-def _energy_bound(report, name, config, si) -> float | None:
-    if report is not None:
-        value = report.get(name)
-        return None if value is None else float(value) / si
-    if config is None:
-        return None
-    from .scan import point_margins
-
-    margin = point_margins(config)["self_focusing"]  # P_cr / P, P proportional to energy
-    if margin is None:
-        return None
-    return config.laser.energy * margin / config.limits.self_focusing_margin / si
+def _energy_bound(report: dict, name: str, si: float) -> float | None:
+    value = report.get(name)
+    return None if value is None else float(value) / si
 
 
-def _pressure_bound_self_focusing(make_config, report, lo, hi) -> float | None:
-    if report is not None:
-        value = report.get("limits.self_focusing.max_pressure_pa")
-        return None if value is None else float(value) / 1e5
-    from scipy.optimize import brentq
-
-    from .scan import point_margins
-
-    def excess(p: float) -> float:
-        config = make_config(p)
-        return point_margins(config)["self_focusing"] - config.limits.self_focusing_margin
-
-    if excess(hi) >= 0:
-        return None
-    a = lo
-    while excess(a) < 0 and a > lo * 1e-3:  # the edge is below the range: look lower
-        a /= 2
-    return brentq(excess, a, hi, rtol=1e-6) if excess(a) >= 0 else a
+def _pressure_bound_self_focusing(report: dict) -> float | None:
+    value = report.get("limits.self_focusing.max_pressure_pa")
+    return None if value is None else float(value) / 1e5
 
 
 # ---------------------------------------------------------------------------------------------

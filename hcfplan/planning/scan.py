@@ -222,12 +222,10 @@ def run_numbers(summary: dict) -> RunNumbers:
                       out.get("peak_power_w"))
 
 
-def limits_values(config, summary: dict | None = None) -> dict | None:
-    """``limits_report(config, run)`` (flat), or None where that module is not available."""
-    try:
-        from .limits_report import limits_report
-    except ImportError:
-        return None
+def limits_values(config, summary: dict | None = None) -> dict:
+    """``limits_report(config, run)`` (flat, plain JSON types); ``run`` from ``summary``."""
+    from .limits_report import limits_report
+
     run = run_numbers(summary) if summary else None
     return plain(limits_report(config, run=run))
 
@@ -238,71 +236,29 @@ def _number(flat: dict, name: str) -> float | None:
         else None
 
 
-def _fallback_self_focusing(config, summary) -> float | None:
-    """P_cr of the fill at the pump over the launched peak power (without limits_report)."""
-    if config.gas is None:
-        return None
-    import numpy as np
-
-    from .. import limits, pulse
-    from .build import build_medium, coupling, pump_omega
-
-    medium = build_medium(config.gas)
-    efficiency, _, _ = coupling(config)
-    power = pulse.peak_power_from_energy(config.laser.energy * efficiency,
-                                         config.laser.duration_fwhm, config.laser.shape)
-    n0 = float(medium.refractive_index(np.array([pump_omega(config.laser)]))[0])
-    critical = limits.self_focusing_power(config.laser.wavelength, n0, medium.n2)
-    return float(critical / power) if power > 0 else math.inf
-
-
-def _fallback_binding(config, sf, sf_fiber, ion) -> list[str]:
-    lim, binding = config.limits, []
-    if any(m is not None and m < lim.self_focusing_margin for m in (sf, sf_fiber)):
-        binding.append("self_focusing")
-    if ion is not None and ion > lim.ionization_fraction_limit:
-        binding.append("ionization")
-    pressure, rated = (config.gas.pressure if config.gas else None), config.cell.rated_pressure
-    if pressure is not None and rated is not None and pressure > rated:
-        binding.append("cell.rating")
-    return binding
-
-
-def point_margins(config, summary: dict | None = None, report: dict | None = None) -> dict:
+def point_margins(config, report: dict) -> dict:
     """Self-focusing margin, ionisation fraction and pressure of one point against the limits.
 
-    With ``report`` (the flat :func:`limits_values`) the numbers and the list of limits the
-    point is beyond (``binding``: every check of severity "limit" with status "exceeds") come
-    from it. Without it: P_cr / launched peak power, the run's largest ionisation fraction and
-    the cell rating. Without ``summary`` (analytic use) only the input-side values exist.
+    ``report`` is the flat :func:`limits_values`; ``binding`` lists every check of severity
+    "limit" with status "exceeds".
     """
-    lim, flat = config.limits, report or {}
-    sf = _number(flat, "limits.self_focusing.margin_input")
-    sf_fiber = _number(flat, "limits.self_focusing.margin_in_fiber")
-    ion = _number(flat, "limits.ionization.fraction_in_fiber")
+    lim = config.limits
+    sf = _number(report, "limits.self_focusing.margin_input")
+    sf_fiber = _number(report, "limits.self_focusing.margin_in_fiber")
+    ion = _number(report, "limits.ionization.fraction_in_fiber")
     if ion is None:
-        ion = _number(flat, "limits.ionization.fraction_input")
-    if report is None:
-        sf = _fallback_self_focusing(config, summary)
-        out = (summary or {}).get("output", {})
-        ion = out.get("max_ionization_fraction")
-        peak = out.get("max_peak_power_w")
-        sf_fiber = (sf * summary["input"]["peak_power_w"] / peak
-                    if sf is not None and summary and peak else None)
-        binding = _fallback_binding(config, sf, sf_fiber, ion)
-    else:
-        binding = [c["name"] for c in flat.get("limits.checks", [])
-                   if c.get("severity") == "limit" and c.get("status") == "exceeds"]
+        ion = _number(report, "limits.ionization.fraction_input")
+    binding = [c["name"] for c in report.get("limits.checks", [])
+               if c.get("severity") == "limit" and c.get("status") == "exceeds"]
     return {
         "self_focusing": sf, "self_focusing_in_fiber": sf_fiber,
         "self_focusing_required": lim.self_focusing_margin,
-        "self_focusing_max_pressure_pa": _number(flat, "limits.self_focusing.max_pressure_pa"),
+        "self_focusing_max_pressure_pa": _number(report, "limits.self_focusing.max_pressure_pa"),
         "ionization_fraction": ion, "ionization_limit": lim.ionization_fraction_limit,
         "ionization_margin": (lim.ionization_fraction_limit / ion if ion else None),
         "pressure_pa": config.gas.pressure if config.gas is not None else None,
         "rated_pressure_pa": config.cell.rated_pressure,
         "acceptable": not binding, "binding": ", ".join(binding),
-        "source": "limits_report" if report is not None else "fallback",
     }
 
 
@@ -366,15 +322,24 @@ def _with_checksum(record: dict) -> dict:
     return record
 
 
+def run_summary(config, chain) -> tuple[dict, dict]:
+    """(summary, margins) of a chain run; a partial run gets the analytic limits only."""
+    from .chain import summary_dict
+
+    summary = plain(summary_dict(chain))
+    if chain.propagation.success:  # summary_dict holds limits_report with the run's peaks
+        report = {f"limits.{k}": v for k, v in summary["limits"].items()}
+    else:
+        report = limits_values(config)
+        summary["limits"] = {k.removeprefix("limits."): v for k, v in report.items()}
+    return summary, point_margins(config, report)
+
+
 def _run_point(config) -> tuple[dict, dict, dict, str, str]:
-    from .chain import run_chain, summary_dict
+    from .chain import run_chain
 
     chain = run_chain(config, workers=1)
-    summary = summary_dict(chain)
-    report = limits_values(config, summary if chain.propagation.success else None)
-    if report:
-        summary["limits"] = {k.removeprefix("limits."): v for k, v in report.items()}
-    margins = point_margins(config, summary, report)
+    summary, margins = run_summary(config, chain)
     prop = chain.propagation
     status = "ok" if prop.success else "failed"
     return summary, margins, _spectrum(chain), status, "" if prop.success else prop.message

@@ -200,10 +200,16 @@ def plasma_refraction_coefficient(omega0: float) -> float:
 
 
 class NonlinearTerms:
-    """Callable N(u) -> dz u (nonlinear part, spectral), with buffers allocated once.
+    """N(u) -> dz u (nonlinear part, spectral) as ``N = gain * raw``, buffers allocated once.
 
-    The call takes the grid spectrum ``u`` and writes N(u) into ``out``. After every call
-    :attr:`ionization_fraction` and :attr:`electron_line_density` hold the values for that field.
+    The fast interface of the steppers: fill :attr:`input` with a spectrum and call
+    :meth:`evaluate(out) <evaluate>`, which writes the *raw* spectrum into ``out``; the steppers
+    multiply by :attr:`gain` inside their fused kernels. Without plasma, ``gain`` is
+    i gamma(omega) / (scale^2 N) (the Kerr/Raman term and the normalisation of the unnormalised
+    inverse FFT) and ``raw`` is one inverse FFT; with plasma ``gain`` is 1 and ``raw`` is the
+    full N. ``__call__(u, out)`` returns the full N(u) for other callers. After every
+    evaluation :attr:`ionization_fraction` and :attr:`electron_line_density` hold the values
+    for that field.
     """
 
     def __init__(
@@ -215,16 +221,22 @@ class NonlinearTerms:
         species: tuple[IonizingSpecies, ...] = (),
         intensity_area: float = np.nan,
         workers: int = 1,
+        backend: str = "scipy",
     ) -> None:
+        from . import kernels
+        from .transforms import FFT_BACKENDS, work_array
+
         n, dt = grid.points, grid.dt
+        self.kernels = kernels
+        self.fft = FFT_BACKENDS[backend](n, workers)
+        self.input = self.fft.spectrum_in
         self.scale = n * dt  # grid spectrum = scale * ifft(A)
-        self.workers = workers
-        # N = i gamma * scale * ifft(A V) = ifft(a * scale^2 V) * i gamma / scale^2, a = fft(u)
-        self.factor = 1j * gamma / self.scale**2
-        self._power = np.empty(grid.points)
-        self._work = np.empty(grid.points)
+        # N = i gamma scale ifft(A V) = i gamma / (scale^2 n) * bwd(a scale^2 V), a = fwd(u)
+        self.factor = 1j * gamma / (self.scale**2 * n)
+        self.gain = self.factor if not species else np.ones(n, complex)
+        self.new_work = lambda: work_array(self.fft, n)
         self.instantaneous = instantaneous
-        self.response_rfft = None if response is None else sfft.rfft(response)
+        self.response_rfft = None if response is None else sfft.rfft(response) / n
         self.species = species
         self.intensity_area = intensity_area
         self.dt = dt
@@ -233,42 +245,47 @@ class NonlinearTerms:
         self.ionization_fraction = 0.0
         self.electron_line_density = 0.0
         self.n_calls = 0
-        self.fft_per_call = 2 + (2 if response is not None else 0) + (1 if species else 0)
 
-    def __call__(self, u: np.ndarray, out: np.ndarray) -> np.ndarray:
+    def evaluate(self, out: np.ndarray) -> np.ndarray:
+        """Raw nonlinear spectrum of the spectrum in :attr:`input` into ``out`` (N = gain out)."""
         self.n_calls += 1
-        from . import kernels as kn
-
-        a = sfft.fft(u, workers=self.workers)  # = scale * A(t)
-        power = self._power
+        kn, fft = self.kernels, self.fft
+        a = fft.forward()  # = scale * A(t)
         if self.response_rfft is None and not self.species and self.instantaneous == 1.0:
-            kn.kerr_product(a, out)  # a |a|^2
+            kn.kerr_in_place(a)  # a |a|^2
+            fft.backward(a, out)
+            return out
+        power = fft.real_in
+        kn.power_of(a, power)  # = scale^2 |A|^2
+        if self.response_rfft is None:
+            delayed = np.zeros_like(power)
         else:
-            kn.power_of(a, power)  # = scale^2 |A|^2
-            delayed = self._work
-            if self.response_rfft is None:
-                delayed[:] = 0.0
-            else:
-                spectrum = sfft.rfft(power, workers=self.workers)
-                spectrum *= self.response_rfft
-                delayed = sfft.irfft(spectrum, n=power.size, workers=self.workers)
-            if self.species:
-                plasma = self._plasma(a, power / self.scale**2)
-            kn.raman_product(a, power, delayed, self.instantaneous, out)
-        spec = sfft.ifft(out, workers=self.workers, overwrite_x=True)
-        np.multiply(spec, self.factor, out=out)
-        if self.species:
-            out += plasma
+            half = fft.real_forward()
+            half *= self.response_rfft
+            delayed = fft.real_backward(half)
+        plasma = self._plasma_time(a, power / self.scale**2) if self.species else None
+        kn.delayed_in_place(a, power, delayed, self.instantaneous)
+        fft.backward(a, out)
+        if plasma is not None:  # N = factor raw_Kerr + grid spectrum of the plasma terms
+            kn.multiply_in_place(out, self.factor)
+            fft.transforms["c2c"] += 1
+            out += sfft.ifft(plasma, overwrite_x=True, workers=fft.workers)
         return out
 
-    def _plasma(self, a: np.ndarray, power: np.ndarray) -> np.ndarray:
-        """Spectrum of the plasma terms for the field a = scale * A(t) (module notes)."""
+    def __call__(self, u: np.ndarray, out: np.ndarray) -> np.ndarray:
+        """Full N(u) into ``out`` (a convenience; the steppers use :meth:`evaluate`)."""
+        self.input[...] = u
+        raw = self.evaluate(self.new_work())
+        np.multiply(raw, self.gain, out=out)
+        return out
+
+    def _plasma_time(self, a: np.ndarray, power: np.ndarray) -> np.ndarray:
+        """Time-domain plasma terms (times scale) for the field a = scale * A(t) (module notes)."""
         intensity = power / self.intensity_area
         rho, loss_power = self._ionization(intensity)
         with np.errstate(divide="ignore", invalid="ignore"):
             damping = np.where(power > 0, loss_power / (2 * power), 0.0)
-        term = a * (-1j * self.refraction * rho - damping)
-        return sfft.ifft(term, workers=self.workers, overwrite_x=True)
+        return a * (-1j * self.refraction * rho - damping)
 
     def _ionization(self, intensity: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """Electron density rho(t) at mid-sample [1/m^3] and ionisation power loss [W]."""

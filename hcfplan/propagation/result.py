@@ -7,6 +7,7 @@ from typing import Literal
 
 import numpy as np
 
+from ..constants import c
 from ..grid import Grid
 from ..metrics import spectral_width
 
@@ -18,6 +19,13 @@ EDGE_ZONE = 0.05
 EDGE_ENERGY_LIMIT = 1e-5
 #: Level of the tracked spectral bandwidth below the peak. [dB]
 BANDWIDTH_LEVEL_DB = -20.0
+#: Full relative width of a wall-resonance band of an anti-resonant fiber (|lambda/lambda_m - 1|
+#: < width/2; the default of ``AntiresonantFiber.in_resonance_band``). [1]
+RESONANCE_BAND_WIDTH = 0.05
+#: Energy fraction inside the resonance bands above which the result carries a warning. [1]
+RESONANCE_ENERGY_LIMIT = 1e-3
+#: Resonance orders searched when the waveguide gives no wall thickness.
+_RESONANCE_ORDERS = 20
 
 
 @dataclass(frozen=True)
@@ -79,12 +87,30 @@ class PropagationResult:
     warnings: tuple[str, ...]
 
 
+class _Threshold:
+    """Largest value seen of an energy fraction and the first z where it passed its limit."""
+
+    def __init__(self, limit: float) -> None:
+        self.limit, self.largest, self.first_z = limit, 0.0, None
+        self.where = np.nan  # extra information at the first crossing (e.g. a wavelength)
+
+    def update(self, value: float, z: float, where: float = np.nan) -> None:
+        self.largest = max(self.largest, value)
+        if self.first_z is None and value > self.limit:
+            self.first_z, self.where = z, where
+
+    @property
+    def crossed(self) -> bool:
+        return self.first_z is not None
+
+
 class Recorder:
     """Collects the records at the sample positions (preallocated for ``capacity`` rows)."""
 
     _SCALARS = ("energy", "peak_power", "peak_intensity", "ionization", "electrons", "bandwidth")
 
-    def __init__(self, grid: Grid, capacity: int, intensity_area: float, plasma) -> None:
+    def __init__(self, grid: Grid, capacity: int, intensity_area: float, plasma,
+                 waveguide=None) -> None:
         self.grid = grid
         self.intensity_area = intensity_area
         self.plasma = plasma  # NonlinearTerms with ionising species, or None
@@ -92,12 +118,14 @@ class Recorder:
         self.spectra = np.empty((capacity, grid.points), np.float32)
         self.values = {name: np.empty(capacity) for name in self._SCALARS}
         self.count = 0
-        self.edge_time = 0.0
-        self.edge_frequency = 0.0
+        self.edge_time = _Threshold(EDGE_ENERGY_LIMIT)
+        self.edge_frequency = _Threshold(EDGE_ENERGY_LIMIT)
+        self.resonance = _Threshold(RESONANCE_ENERGY_LIMIT)
         far = np.abs(grid.domega) > (1 - 2 * EDGE_ZONE) * np.pi / grid.dt
         self._far_frequency = far
         k = np.arange(grid.points)
         self._far_time = (k < EDGE_ZONE * grid.points) | (k >= (1 - EDGE_ZONE) * grid.points)
+        self._in_band, self._resonances = _resonance_bands(grid, waveguide)
 
     def record(self, z: float, u: np.ndarray) -> None:
         """Store the spectrum and the tracked quantities of spectrum ``u`` at ``z``."""
@@ -115,10 +143,21 @@ class Recorder:
         values["bandwidth"][i] = spectral_width(grid.frequency, density, BANDWIDTH_LEVEL_DB)
         if energy > 0:
             far_w = grid.dnu * density[self._far_frequency].sum() / energy
-            far_t = grid.dt * power[self._far_time].sum() / energy
-            self.edge_frequency = max(self.edge_frequency, far_w)
-            self.edge_time = max(self.edge_time, far_t)
+            self.edge_frequency.update(far_w, z)
+            self.edge_time.update(grid.dt * power[self._far_time].sum() / energy, z)
+            self._check_resonance(z, density, energy)
         self.count += 1
+
+    def _check_resonance(self, z: float, density: np.ndarray, energy: float) -> None:
+        if self._in_band is None:
+            return
+        inside = density[self._in_band]
+        fraction = float(inside.sum() * self.grid.dnu / energy)
+        centre = np.nan
+        if fraction > 0:
+            wavelength = self.grid.wavelength[self._in_band]
+            centre = float(np.sum(wavelength * inside) / inside.sum())
+        self.resonance.update(fraction, z, centre)
 
     def _ionization(self, power: np.ndarray) -> tuple[float, float]:
         if self.plasma is None:
@@ -127,20 +166,53 @@ class Recorder:
         return self.plasma.ionization_fraction, self.plasma.electron_line_density
 
     def edge_warnings(self) -> list[str]:
-        """Warnings when the pulse reached the outer parts of the time or frequency window."""
+        """Warnings: pulse at the window edges, spectrum in a fiber resonance band."""
+        from ..grid import MAX_HALF_WINDOW_FRACTION
+
         found = []
-        if self.edge_time > EDGE_ENERGY_LIMIT:
+        if self.edge_time.crossed:
             found.append(
-                f"{self.edge_time:.2e} of the energy reached the outer {EDGE_ZONE:.0%} of the "
-                "time window: the window is too short; increase grid.time_window_fs"
+                f"{self.edge_time.largest:.2e} of the energy reached the outer {EDGE_ZONE:.0%} "
+                f"of the time window (first at z = {self.edge_time.first_z:.4g} m): the window "
+                "is too short; increase grid.time_window_fs (and grid.points to keep the step)"
             )
-        if self.edge_frequency > EDGE_ENERGY_LIMIT:
+        if self.edge_frequency.crossed:
+            grid = self.grid
+            at_cap = np.pi / grid.dt >= 0.99 * MAX_HALF_WINDOW_FRACTION * grid.omega0
+            remedy = (
+                "the window is already the widest one centred on the pump (+-"
+                f"{MAX_HALF_WINDOW_FRACTION:.0%} of the pump frequency), so it cannot grow: "
+                "lower the energy or pressure, or shorten the fiber"
+                if at_cap else
+                "the time step is too coarse; increase grid.points (at the same "
+                "grid.time_window_fs)"
+            )
             found.append(
-                f"{self.edge_frequency:.2e} of the energy reached the outer {EDGE_ZONE:.0%} of "
-                "the frequency window (where the edge absorber removes it): the time step is too "
-                "coarse; increase grid.points (at the same grid.time_window_fs)"
+                f"{self.edge_frequency.largest:.2e} of the energy reached the outer "
+                f"{EDGE_ZONE:.0%} of the frequency window (first at z = "
+                f"{self.edge_frequency.first_z:.4g} m; the edge absorber removes it): {remedy}"
             )
+        if self.resonance.crossed:
+            found.append(self._resonance_warning())
         return found
+
+    def _resonance_warning(self) -> str:
+        r = self.resonance
+        pump = 2 * np.pi * c / self.grid.omega0
+        orders = np.arange(1, self._resonances.size + 1)
+        k = int(np.argmin(np.abs(self._resonances - r.where))) if np.isfinite(r.where) else 0
+        lam = float(self._resonances[k])
+        direction = ("a thinner wall moves it to shorter wavelengths, away from the spectrum"
+                     if lam < pump else
+                     "a thicker wall moves it to longer wavelengths, away from the spectrum")
+        return (
+            f"{r.largest:.2e} of the energy lies in the wall-resonance band of order m = "
+            f"{orders[k]} around {lam * 1e9:.0f} nm (+-{RESONANCE_BAND_WIDTH / 2:.1%}), first "
+            f"above {RESONANCE_ENERGY_LIMIT:g} at z = {r.first_z:.4g} m: the fiber model is "
+            "not valid there (high loss and strong dispersion near the resonance); remedy: "
+            f"change the wall thickness ({direction}) or lower the broadening (energy, "
+            "pressure or fiber length)"
+        )
 
     def arrays(self) -> dict:
         """The filled rows as result fields."""
@@ -156,3 +228,15 @@ class Recorder:
             "electron_line_density_z": v["electrons"],
             "bandwidth_z": v["bandwidth"],
         }
+
+
+def _resonance_bands(grid: Grid, waveguide) -> tuple[np.ndarray | None, np.ndarray]:
+    """Mask of the grid inside the wall-resonance bands and the resonance wavelengths."""
+    if waveguide is None or not hasattr(waveguide, "in_resonance_band"):
+        return None, np.empty(0)
+    mask = np.asarray(waveguide.in_resonance_band(grid.omega, RESONANCE_BAND_WIDTH), dtype=bool)
+    wall = getattr(waveguide, "wall_thickness", None)
+    orders = _RESONANCE_ORDERS
+    if wall is not None:
+        orders = int(np.ceil(4.0 * wall / float(np.min(grid.wavelength)))) + 1
+    return mask, np.asarray(waveguide.resonance_wavelengths(max(orders, 1)), dtype=float)

@@ -5,16 +5,22 @@ spectrum with a stepper from :data:`~.steppers.STEPPERS`, records the tracked qu
 ``z_samples`` evenly spaced positions and returns a frozen :class:`~.result.PropagationResult`.
 
 Sampling: each interval between two record positions is divided into equal steps no longer
-than the step the controller proposes, so the records are hit exactly (no interpolation), and
-the few distinct step lengths let the stepper reuse its propagators exp(L h/2).
+than the step the controller proposes, so the records are hit exactly (no interpolation). Within
+an interval the step stays the same unless the controller asks for a shorter one (it may grow
+at the next interval), so the stepper reuses its propagators exp(L h/2) (a complex exp over the
+grid costs about three FFTs).
 
-Faults end the run with ``success=False`` and keep what was computed: a non-finite field, a step
-below ``MIN_STEP_FRACTION`` of the length, the step budget ``max_steps`` used up, or an ionisation
-fraction above ``stop_ionization_fraction``.
+Faults end the run with ``success=False`` and keep what was computed (the records so far plus
+one at the position reached, and the last good field): a non-finite field, a step below
+``MIN_STEP_FRACTION`` of the length, the step budget ``max_steps`` used up, or an ionisation
+fraction above ``stop_ionization_fraction``. Each message names z, the step, the likely cause and
+a remedy. Warnings (the run goes on): energy at the time or frequency window edges, and, for
+anti-resonant fibers, more than ``RESONANCE_ENERGY_LIMIT`` of the energy in a wall-resonance band.
 """
 
 from __future__ import annotations
 
+import functools
 import math
 from collections.abc import Callable
 from dataclasses import dataclass
@@ -36,9 +42,12 @@ from .operators import (
 )
 from .result import PropagationResult, Recorder
 from .steppers import STEPPERS, StepState
+from .transforms import FFT_BACKENDS, default_backend, fftw_available
 
 StepperName = Literal["erk43ip", "rk4ip"]
-#: Default atol as a fraction of rtol * max|A~(0)| (common practice, no source).
+FftBackendName = Literal["fftw", "scipy"]
+#: Default atol of the "scaled_rms" norm as a fraction of rtol * max|A~(0)| (common practice,
+#: no source); the "relative_l2" norm has atol = 0 by default.
 ATOL_FRACTION = 1e-3
 #: Intensity range of the ionisation-rate tables. [W/m^2] (1e11 to 1e17 W/cm^2)
 RATE_TABLE_RANGE = (1e15, 1e21)
@@ -86,6 +95,15 @@ def _check_inputs(field0, grid, waveguide, opts: dict) -> np.ndarray:
         raise ConfigError(f"max_steps = {opts['max_steps']!r}: must be an integer >= 1")
     if opts["progress"] is not None and not callable(opts["progress"]):
         raise ConfigError("progress: must be a callable progress(z, length, n_steps) or None")
+    if opts["error_norm"] not in control.ERROR_NORMS:
+        raise ConfigError(f"error_norm = {opts['error_norm']!r}: allowed are "
+                          f"{sorted(control.ERROR_NORMS)}")
+    backend = opts["fft_backend"]
+    if backend is not None and backend not in FFT_BACKENDS:
+        raise ConfigError(f"fft_backend = {backend!r}: allowed are {sorted(FFT_BACKENDS)}")
+    if backend == "fftw" and not fftw_available():
+        raise ConfigError("fft_backend = 'fftw': pyFFTW is not installed (pip install pyfftw), "
+                          "use 'scipy' or None")
     return field.astype(complex)
 
 
@@ -93,7 +111,7 @@ def _ionizing_species(grid: Grid, waveguide, gas, model) -> tuple[tuple, list[st
     """Rate tables of the ionising gas components (empty without gas or model)."""
     if gas is None or model is None:
         return (), []
-    from ..ionization import rate_function, tabulate_rate
+    from ..ionization import rate_function
 
     rate_function(model)  # ConfigError listing the models if unknown
     area = float(getattr(waveguide, "peak_intensity_area", math.nan))
@@ -105,11 +123,18 @@ def _ionizing_species(grid: Grid, waveguide, gas, model) -> tuple[tuple, list[st
         ion = getattr(component.table, "ionization", None)
         if ion is None:
             continue
-        table = tabulate_rate(model, wavelength, ion.potential, ion.l, ion.m, ion.charge,
-                              *RATE_TABLE_RANGE)
+        table = _rate_table(model, wavelength, ion.potential, ion.l, ion.m, ion.charge)
         density = component.number_density * ion.mole_fraction
         found.append(IonizingSpecies(density, ion.potential, table))
     return tuple(found), []
+
+
+@functools.lru_cache(maxsize=32)
+def _rate_table(model, wavelength, potential, l, m, charge):  # noqa: E741 - PPT quantum numbers
+    """Rate table (pure, scalar inputs: cached, it costs 1-3 s per gas component)."""
+    from ..ionization import tabulate_rate
+
+    return tabulate_rate(model, wavelength, potential, l, m, charge, *RATE_TABLE_RANGE)
 
 
 def _build(grid, waveguide, gas, opts):
@@ -119,7 +144,9 @@ def _build(grid, waveguide, gas, opts):
     f_inst, response, notes = delayed_response(grid, waveguide, gas)
     species, more = _ionizing_species(grid, waveguide, gas, opts["ionization_model"])
     area = float(getattr(waveguide, "peak_intensity_area", math.nan))
-    nonlinear = NonlinearTerms(grid, gamma, f_inst, response, species, area, opts["workers"])
+    backend = opts["fft_backend"] or default_backend()
+    nonlinear = NonlinearTerms(grid, gamma, f_inst, response, species, area, opts["workers"],
+                               backend)
     return lin, nonlinear, notes + more
 
 
@@ -147,6 +174,8 @@ def propagate(
     max_steps: int = control.MAX_STEPS,
     workers: int = 1,
     progress: Callable[[float, float, int], None] | None = None,
+    error_norm: control.ErrorNormName = "relative_l2",
+    fft_backend: FftBackendName | None = None,
 ) -> PropagationResult:
     """Propagate a pulse through a waveguide (single-mode envelope GNLSE, see :mod:`.operators`).
 
@@ -164,8 +193,9 @@ def propagate(
     rtol : float
         Relative local tolerance of the adaptive stepper. [1]
     atol : float, optional
-        Absolute tolerance on the grid spectrum. Default ``ATOL_FRACTION * rtol * max|A~(0)|``.
-        [sqrt(J/Hz)]
+        Absolute tolerance on the grid spectrum (per-bin RMS of the local error). Default 0
+        for ``error_norm="relative_l2"`` and ``ATOL_FRACTION * rtol * max|A~(0)|`` for
+        ``"scaled_rms"``. [sqrt(J/Hz)]
     z_samples : int
         Number of evenly spaced record positions including 0 and the length.
     ionization_model : {"ppt", "adk"} or None
@@ -182,6 +212,11 @@ def propagate(
         Threads for scipy.fft.
     progress : callable, optional
         Called as ``progress(z, length, n_steps)`` after every accepted step.
+    error_norm : {"relative_l2", "scaled_rms"}
+        Local-error norm of the adaptive stepper (:data:`~.control.ERROR_NORMS`; the
+        module docstring of :mod:`.control` says which and why).
+    fft_backend : {"fftw", "scipy"}, optional
+        FFT back end (:data:`~.transforms.FFT_BACKENDS`); default pyFFTW when installed.
 
     Returns
     -------
@@ -194,7 +229,8 @@ def propagate(
     """
     opts = dict(rtol=rtol, atol=atol, stepper=stepper, z_samples=z_samples, step=step,
                 stop=stop_ionization_fraction, max_steps=max_steps, progress=progress,
-                ionization_model=ionization_model, workers=workers)
+                ionization_model=ionization_model, workers=workers, error_norm=error_norm,
+                fft_backend=fft_backend)
     field = _check_inputs(field0, grid, waveguide, opts)
     lin, nonlinear, notes = _build(grid, waveguide, gas, opts)
     u0 = grid.to_spectrum(field)
@@ -203,8 +239,11 @@ def propagate(
         notes.append(f"{removed:.2e} of the input energy lies where the waveguide model gives no "
                      "valid beta/alpha and was removed")
     u0 = np.where(lin.valid, u0, 0)
-    atol_value = ATOL_FRACTION * rtol * float(np.max(np.abs(u0))) if atol is None else atol
-    runner = STEPPERS[stepper](lin.operator, nonlinear, rtol, atol_value)
+    atol_value = atol
+    if atol is None:
+        atol_value = 0.0 if error_norm == "relative_l2" else (
+            ATOL_FRACTION * rtol * float(np.max(np.abs(u0))))
+    runner = STEPPERS[stepper](lin.operator, nonlinear, rtol, atol_value, error_norm)
     return _run(u0, field, grid, waveguide, runner, nonlinear, opts, notes)
 
 
@@ -212,7 +251,7 @@ def _run(u0, field, grid, waveguide, runner, nonlinear, opts, notes) -> Propagat
     length = float(waveguide.length)
     targets = np.linspace(0.0, length, opts["z_samples"])
     plasma = nonlinear if nonlinear.species else None
-    recorder = Recorder(grid, opts["z_samples"] + 1, nonlinear.intensity_area, plasma)
+    recorder = Recorder(grid, opts["z_samples"] + 1, nonlinear.intensity_area, plasma, waveguide)
     recorder.record(0.0, u0)
     runner.start(u0)
     h0 = opts["step"] or _first_step(u0, nonlinear, targets[1])
@@ -237,14 +276,21 @@ def _run(u0, field, grid, waveguide, runner, nonlinear, opts, notes) -> Propagat
     )
 
 
+def _next_step(state, target: float, current: float | None) -> float:
+    """Step for the next attempt: equal steps to the target, kept unless a shorter is asked."""
+    remaining = target - state.z
+    if current is None or state.h < current * (1 - 1e-9):
+        return remaining / max(1, math.ceil(remaining / state.h * (1 - 1e-12)))
+    return remaining / max(1, round(remaining / current))
+
+
 def _advance(state, runner, nonlinear, targets, recorder, counters, opts) -> tuple[str, str]:
     """The stepping loop; returns (status, message)."""
     length, floor = targets[-1], control.MIN_STEP_FRACTION * targets[-1]
-    index, attempts = 1, 0
+    index, attempts, h = 1, 0, None
     while index < targets.size:
-        remaining = targets[index] - state.z
         proposal = state.h
-        h = remaining / max(1, math.ceil(remaining / proposal * (1 - 1e-12)))
+        h = _next_step(state, float(targets[index]), h)
         accepted, reason = runner.step(state, h)
         attempts += 1
         if accepted:
@@ -254,20 +300,21 @@ def _advance(state, runner, nonlinear, targets, recorder, counters, opts) -> tup
             if targets[index] - state.z <= 1e-9 * length:
                 state.z = float(targets[index])
                 recorder.record(state.z, state.u)
-                index += 1
+                index, h = index + 1, None
             if nonlinear.species and nonlinear.ionization_fraction > opts["stop"]:
-                return "ionization_stop", _stop_message(state, nonlinear, opts["stop"])
+                return "ionization_stop", _stop_message(state, h, nonlinear, opts["stop"])
             if opts["progress"] is not None:
                 opts["progress"](state.z, length, counters.n_steps)
         else:
             counters.n_rejected += 1
+            h = None
             if reason == "nonfinite" and not runner.adaptive:
-                return "nonfinite", _nonfinite_message(state, h, opts)
+                return "nonfinite", _nonfinite_message(state, proposal, opts)
             if state.h < floor:
                 kind = "nonfinite" if reason == "nonfinite" else "step_collapse"
-                return kind, _collapse_message(state, h, floor, reason, opts)
+                return kind, _collapse_message(state, proposal, floor, reason, opts)
         if attempts >= opts["max_steps"]:
-            return "step_budget", _budget_message(state, h, opts)
+            return "step_budget", _budget_message(state, proposal, opts)
     return "completed", ""
 
 
@@ -302,9 +349,11 @@ def _budget_message(state, h, opts) -> str:
     )
 
 
-def _stop_message(state, nonlinear, stop) -> str:
+def _stop_message(state, h, nonlinear, stop) -> str:
+    step = "" if h is None else f" (step {h:.3e} m)"
     return (
         f"ionisation fraction {nonlinear.ionization_fraction:.3g} exceeded the stop level "
-        f"{stop:g} at z = {state.z:.6g} m: the envelope plasma model is outside its range; "
-        "lower the energy or the pressure, or raise stop_ionization_fraction if intended"
+        f"{stop:g} at z = {state.z:.6g} m{step}: ionisation runaway, the envelope plasma model "
+        "(single ionisation, no avalanche) is outside its range; remedy: lower the energy or "
+        "the pressure, use a larger core, or raise stop_ionization_fraction if intended"
     )

@@ -4,18 +4,24 @@ What every stepper provides (the solver in :mod:`hcfplan.propagation.solve` reli
 
 1. ``adaptive`` (bool): whether the stepper estimates its local error and may reject a step.
 2. ``order`` (int): order of the propagated solution; ``embedded_order`` (int) for adaptive ones.
-3. ``__init__(linear, nonlinear, rtol, atol)``: ``linear`` is L(omega) (complex array),
-   ``nonlinear`` the callable ``N(u, out)`` of :class:`~.operators.NonlinearTerms`; all work
-   arrays are allocated here, once per run.
+3. ``__init__(linear, nonlinear, rtol, atol, norm)``: ``linear`` is L(omega) (complex
+   array), ``nonlinear`` the :class:`~.operators.NonlinearTerms` (N = gain * raw, evaluated on
+   its ``input`` buffer), ``norm`` a key of :data:`~.control.ERROR_NORMS`; all work arrays are
+   allocated here, once per run.
 4. ``start(u)``: called once with the initial spectrum before the first step.
 5. ``step(state, h) -> (accepted, message)``: attempt one step of length ``h`` from
-   ``state.u`` at ``state.z``. If accepted, ``state.u`` (in place) and ``state.z`` are advanced.
+   ``state.u`` at ``state.z``. If accepted, ``state.u`` (rebound to the new spectrum: buffers
+   are swapped, not copied) and ``state.z`` are advanced.
    In every case ``state.h`` is set to the proposed next step. ``message`` is ``""`` or
    ``"nonfinite"`` when the attempted solution contained NaN or Inf.
 6. ``rhs_per_step`` (int): evaluations of N per attempted step (after ``start``).
 
-The half-step propagators exp(L h/2) are cached per step length (the solver divides each
-sampling interval into equal steps, so only a few distinct lengths occur).
+The half-step propagators exp(L h/2) are cached per step length (the solver keeps the step
+fixed within a sampling interval unless the controller asks for a shorter one, so only a few
+distinct lengths occur; one complex exp over the grid costs about three FFTs).
+
+All stages are fused numba kernels (:mod:`.kernels`): per step 4 N evaluations (2 FFTs each
+without Raman or plasma) and 5 passes over the spectrum.
 
 References
 ----------
@@ -55,21 +61,26 @@ class StepState:
 
 
 class _InteractionPicture:
-    """Shared buffers and the cache of half-step propagators exp(L h / 2)."""
+    """Shared buffers, the fused RK4IP stages and the cache of half-step propagators."""
 
     adaptive = False
     order = 4
     embedded_order = 0
     rhs_per_step = 4
 
-    def __init__(self, linear: np.ndarray, nonlinear, rtol: float, atol: float) -> None:
+    def __init__(self, linear: np.ndarray, nonlinear, rtol: float, atol: float,
+                 norm: str = "relative_l2") -> None:
+        from . import kernels
+
+        self.kernels = kernels
         self.linear = linear
         self.nonlinear = nonlinear
-        self.rtol, self.atol = rtol, atol
+        self.rtol, self.atol, self.norm = rtol, atol, norm
         shape = linear.shape
-        self.ui, self.k, self.acc, self.tmp, self.u4, self.nu, self.k5 = (
-            np.empty(shape, complex) for _ in range(7)
-        )
+        self.ui, self.acc, self.r4, self.u4 = (np.empty(shape, complex) for _ in range(4))
+        # targets of the inverse FFT (aligned for pyFFTW)
+        self.r, self.nu, self.r5 = (nonlinear.new_work() for _ in range(3))
+        self.norm_u = 0.0  # sum |u|^2 of the current state (set by the first stage)
         self._cache: dict[float, np.ndarray] = {}
 
     def half_propagator(self, h: float) -> np.ndarray:
@@ -83,63 +94,86 @@ class _InteractionPicture:
         return found
 
     def start(self, u: np.ndarray) -> None:
-        self.nonlinear(u, self.nu)
+        self.nonlinear.input[...] = u
+        self.nonlinear.evaluate(self.nu)
 
-    def _rk4(self, u: np.ndarray, h: float, d: np.ndarray) -> np.ndarray:
-        """RK4IP step of Hult [1] from u with N(u) in self.nu; result in self.u4, k4 in self.k."""
-        from . import kernels as kn
+    def _rk4(self, u: np.ndarray, h: float, d: np.ndarray) -> float:
+        """RK4IP step of Hult [1] from u (N(u) raw in self.nu): u4 (also in the FFT input) and
+        raw k4 in self.r4. Returns sum |u4|^2 (not finite when the step overflowed)."""
+        kn, n, g = self.kernels, self.nonlinear, self.nonlinear.gain
+        ui, acc, x, r = self.ui, self.acc, self.nonlinear.input, self.r
+        self.norm_u = kn.stage_first(ui, acc, x, d, u, g, self.nu, 0.5 * h)  # u_I, k1
+        n.evaluate(r)  # k2 = g r
+        kn.stage_middle(x, acc, ui, g, r, 0.5 * h)
+        n.evaluate(r)  # k3
+        kn.stage_last(x, acc, ui, g, r, h, d)
+        n.evaluate(r)  # k4
+        return kn.stage_combine(self.u4, x, self.r4, d, ui, acc, g, r, h * RK4_WEIGHTS[0])
 
-        ui, k, acc, tmp, u4, n = self.ui, self.k, self.acc, self.tmp, self.u4, self.nonlinear
-        kn.start_stage(ui, acc, tmp, d, u, self.nu, 0.5 * h)  # u_I, k1, stage-2 input
-        n(tmp, k)  # k2
-        kn.middle_stage(tmp, ui, k, 0.5 * h, acc)
-        n(tmp, k)  # k3
-        kn.last_stage(tmp, ui, k, h, acc, d)
-        n(tmp, k)  # k4
-        kn.combine(u4, d, ui, acc, k, h * RK4_WEIGHTS[0])  # beta of [2] + h k4 / 6
-        return u4
+    def _accept(self, state: StepState, h: float) -> None:
+        state.u, self.u4 = self.u4, state.u  # swap buffers instead of copying
+        state.z += h
 
 
 class RK4IP(_InteractionPicture):
     """Fixed-step RK4 in the interaction picture (Hult [1]); four N evaluations per step."""
 
     def step(self, state: StepState, h: float) -> tuple[bool, str]:
-        u4 = self._rk4(state.u, h, self.half_propagator(h))
+        norm2 = self._rk4(state.u, h, self.half_propagator(h))
         state.h = h
-        if not np.all(np.isfinite(u4)):
+        if not np.isfinite(norm2):
             return False, "nonfinite"
-        state.u[...] = u4
-        state.z += h
-        self.nonlinear(state.u, self.nu)  # k1 of the next step
+        self._accept(state, h)
+        self.nonlinear.evaluate(self.nu)  # k1 of the next step (the FFT input holds u4)
         return True, ""
+
+
+def _relative_l2(stepper, s: float, norm2: float) -> float:
+    """||s g (r4 - r5)|| / (rtol max(||u||, ||u4||) + atol sqrt(n)) (control.py)."""
+    delta = abs(s) * np.sqrt(stepper.kernels.difference_norm2(stepper.nonlinear.gain,
+                                                              stepper.r4, stepper.r5))
+    size = stepper.linear.size
+    return float(delta / (stepper.rtol * np.sqrt(max(norm2, stepper.norm_u))
+                          + stepper.atol * np.sqrt(size)))
+
+
+def _scaled_rms(stepper, s: float, norm2: float, u: np.ndarray) -> float:
+    """RMS of s g (r4 - r5) / (atol + rtol max(|u|, |u4|)) (control.py)."""
+    return float(stepper.kernels.difference_scaled_rms(
+        stepper.nonlinear.gain, stepper.r4, stepper.r5, stepper.u4, u, s, stepper.rtol,
+        stepper.atol))
 
 
 class ERK43IP(_InteractionPicture):
     """Adaptive ERK4(3)-IP of Balac & Mahé [2]: RK4IP plus an FSAL embedded 3rd-order estimate.
 
     Four new N evaluations per attempt (k2, k3, k4 and k5 = N(u4), which is k1's N of the
-    next step). The local error estimate is u4 - u3 = h (k4 - k5) / 10.
+    next step). The local error estimate is u4 - u3 = h (k4 - k5) / 10, measured with the
+    norm ``norm`` of :data:`~.control.ERROR_NORMS`.
     """
 
     adaptive = True
     embedded_order = 3
 
     def step(self, state: StepState, h: float) -> tuple[bool, str]:
-        from .kernels import scaled_rms
-
-        u4 = self._rk4(state.u, h, self.half_propagator(h))
-        k5 = self.k5
-        self.nonlinear(u4, k5)
-        # u4 - u3 = h [(1/6 - 2/30) k4 - (3/30) k5] = h (k4 - k5) 3/30; norm of control.py
-        err = float(scaled_rms(self.k, k5, u4, state.u, h * ERK3_WEIGHTS[1], self.rtol, self.atol))
+        norm2 = self._rk4(state.u, h, self.half_propagator(h))
+        if not np.isfinite(norm2):
+            state.h = h * step_factor(np.inf, self.embedded_order)
+            return False, "nonfinite"
+        self.nonlinear.evaluate(self.r5)  # k5 = g r5 = N(u4)
+        # u4 - u3 = h [(1/6 - 2/30) k4 - (3/30) k5] = h (k4 - k5) 3/30
+        s = h * ERK3_WEIGHTS[1]
+        if self.norm == "relative_l2":
+            err = _relative_l2(self, s, norm2)
+        else:
+            err = _scaled_rms(self, s, norm2, state.u)
         state.h = h * step_factor(err, self.embedded_order)
         if not np.isfinite(err):
             return False, "nonfinite"
         if err > 1.0:
             return False, ""
-        state.u[...] = u4
-        state.z += h
-        self.nu, self.k5 = k5, self.nu  # FSAL: N(u_new) is ready
+        self._accept(state, h)
+        self.nu, self.r5 = self.r5, self.nu  # FSAL: N(u_new) is ready
         return True, ""
 
 

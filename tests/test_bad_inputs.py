@@ -1,0 +1,101 @@
+"""The bad-input corpus (tests/bad_inputs/cases.toml): exit code 2, one line, no traceback.
+
+Error tests (STYLE.md section 6): every malformed config, --set value, CSV file, gas table and
+command-line option of the corpus must stop with exactly one non-empty stderr line that names
+the key or the file:line, no traceback, and nothing written (no output folder for ``simulate``).
+Every case runs in-process through ``hcfplan.cli.main``; the cases marked ``subprocess = true``
+also run through a real ``python -m hcfplan`` process, as a user would see them. The crystal
+table cases call the loader directly, since the CLI takes no user crystal tables.
+"""
+
+from __future__ import annotations
+
+import os
+import subprocess
+import sys
+import tomllib
+from pathlib import Path
+
+import pytest
+
+from hcfplan.cli import main
+from hcfplan.errors import ConfigError
+from hcfplan.materials.crystals import load_crystal
+
+HERE = Path(__file__).resolve().parent / "bad_inputs"
+ROOT = HERE.parents[1]
+CASES = tomllib.loads((HERE / "cases.toml").read_text(encoding="utf-8"))["case"]
+CLI_CASES = [c for c in CASES if c.get("kind", "cli") == "cli"]
+CRYSTAL_CASES = [c for c in CASES if c.get("kind") == "crystal_table"]
+SUBPROCESS_CASES = [c for c in CLI_CASES if c.get("subprocess")]
+
+
+def _expand(text: str, out: Path) -> str:
+    return text.replace("{here}", str(HERE)).replace("{out}", str(out))
+
+
+def _fragments(case: dict) -> list[str]:
+    fragment = case["fragment"]
+    return [fragment] if isinstance(fragment, str) else list(fragment)
+
+
+def _check_stderr(case: dict, err: str) -> None:
+    assert "Traceback" not in err, err
+    lines = [line for line in err.splitlines() if line.strip()]
+    assert len(lines) == 1, f"expected one stderr line, got {len(lines)}: {err[:2000]}"
+    for fragment in _fragments(case):
+        assert fragment in lines[0], f"{fragment!r} not in {lines[0]!r}"
+
+
+def test_corpus_is_large_and_ids_unique():
+    ids = [c["id"] for c in CASES]
+    assert len(ids) == len(set(ids))
+    assert len(CASES) >= 40
+    # every file of the corpus is used by a case (no dead cases), except the valid inputs
+    text = (HERE / "cases.toml").read_text(encoding="utf-8")
+    files = [p for p in HERE.rglob("*") if p.is_file() and p.name != "cases.toml"]
+    used_indirectly = {"base.toml", "good_spectrum.csv", "good_gdd.csv", "unsorted.csv",
+                       "gdd_wrong_header.csv"}
+    for path in files:
+        rel = path.relative_to(HERE).as_posix()
+        stem_dir = path.parent.relative_to(HERE).as_posix()
+        assert (rel in text or path.name in used_indirectly or stem_dir in text
+                or path.stem in text), rel
+
+
+@pytest.mark.parametrize("case", CLI_CASES, ids=[c["id"] for c in CLI_CASES])
+def test_case_in_process(case, capsys, monkeypatch, tmp_path):
+    out = tmp_path / "out"
+    for name, value in case.get("env", {}).items():
+        monkeypatch.setenv(name, _expand(value, out))
+    monkeypatch.chdir(tmp_path)  # a default output folder would appear here
+    code = main([_expand(a, out) for a in case["argv"]])
+    captured = capsys.readouterr()
+    assert code == 2, captured.err
+    _check_stderr(case, captured.err)
+    assert not out.exists(), "an output folder was created for bad input"
+    assert list(tmp_path.iterdir()) == [], "bad input wrote files"
+
+
+@pytest.mark.parametrize("case", CRYSTAL_CASES, ids=[c["id"] for c in CRYSTAL_CASES])
+def test_crystal_table_case(case):
+    (name,) = case["argv"]
+    with pytest.raises(ConfigError) as info:
+        load_crystal(name, [HERE / "crystal_tables"])
+    message = str(info.value)
+    assert "\n" not in message
+    for fragment in _fragments(case):
+        assert fragment in message
+
+
+@pytest.mark.parametrize("case", SUBPROCESS_CASES, ids=[c["id"] for c in SUBPROCESS_CASES])
+def test_case_subprocess(case, tmp_path):
+    out = tmp_path / "out"
+    env = dict(os.environ, PYTHONPATH=str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", ""))
+    env.update({k: _expand(v, out) for k, v in case.get("env", {}).items()})
+    proc = subprocess.run([sys.executable, "-m", "hcfplan", *(_expand(a, out) for a in case["argv"])],
+                          capture_output=True, text=True, timeout=120, env=env, cwd=tmp_path)
+    assert proc.returncode == 2, proc.stderr
+    _check_stderr(case, proc.stderr)
+    assert not out.exists()
+    assert list(tmp_path.iterdir()) == []
