@@ -329,6 +329,12 @@ def simulate_command(
     quiet: bool = typer.Option(False, "--quiet", help="No progress bar and no report text."),
     force: bool = typer.Option(False, "--force", help="Allow writing into an existing --out."),
     no_figures: bool = typer.Option(False, "--no-figures", help="Skip the figures."),
+    spread: str | None = typer.Option(
+        None, "--spread", help="Input uncertainty band, e.g. energy=5%,pressure=2%,fwhm=5%: the "
+        "chain also runs at its corners and reports the ranges; 'default' uses the [spread] "
+        "keys of the config."),
+    workers: int = typer.Option(0, "--workers", help="Processes for the --spread corners "
+                                "(default: all cores)."),
 ) -> None:
     """Run fiber (GNLSE) -> compressor -> THz and write summary.json, fields.npz and figures."""
     from .io.results import prepare_output_dir
@@ -336,6 +342,7 @@ def simulate_command(
     from .planning.chain import run_chain
 
     cfg = _load(config, set_ or [])
+    spread_plan = _spread_plan(cfg, spread, set_ or [])
     out_dir = prepare_output_dir(out if out is not None else _default_out_dir(config),
                                  force=force)
     bar = _Progress(not quiet and not as_json, cfg.fiber.length)
@@ -343,7 +350,10 @@ def simulate_command(
         chain = run_chain(cfg, progress=bar)
     finally:
         bar.close()
-    summary = write_run(out_dir, chain, figures=not no_figures)
+    spread_result = None
+    if spread_plan is not None and chain.propagation.success:
+        spread_result = _run_spread(cfg, chain, spread_plan, workers, quiet or as_json)
+    summary = write_run(out_dir, chain, figures=not no_figures, spread=spread_result)
     if as_json:
         _print_json(summary)
     elif not quiet:
@@ -352,6 +362,64 @@ def simulate_command(
         typer.echo(f"hcfplan: run stopped: {chain.propagation.message} "
                    f"(partial result saved in {out_dir})", err=True)
         raise typer.Exit(1)
+
+
+def _spread_plan(cfg, text: str | None, overrides: list[str]):
+    """(spec, corner tasks) for ``--spread``, validated before any run; None without it."""
+    if text is None:
+        return None
+    import os
+
+    from .materials.gases import gas_search_dirs
+    from .planning.spread import corner_tasks, parse_spread
+
+    if text.strip() == "default":
+        s = cfg.spread
+        items = [f"energy={s.energy_percent}%", f"fwhm={s.fwhm_percent}%"]
+        if cfg.gas is not None:
+            items.append(f"pressure={s.pressure_percent}%")
+        text = ",".join(items)
+    spec = parse_spread(text)
+    dirs = tuple(gas_search_dirs(environ=os.environ))
+    return spec, corner_tasks(cfg, spec, overrides, dirs)
+
+
+def _run_spread(cfg, chain, plan, workers: int, quiet: bool):
+    import os
+
+    from .planning.scan import run_summary
+    from .planning.spread import run_spread
+
+    spec, tasks = plan
+    summary, margins = run_summary(cfg, chain)
+    if not quiet:
+        typer.echo(f"  spread: {len(tasks)} corner runs ...", err=True)
+    return run_spread(tasks, spec, {"summary": summary, "margins": margins},
+                      workers=workers or os.cpu_count() or 1)
+
+
+def _print_spread(s: dict) -> None:
+    spread = s.get("spread")
+    if not spread:
+        return
+    _echo()
+    inputs = ", ".join(f"{k} +-{v:.0%}" for k, v in spread["inputs"].items())
+    _echo(f"Spread over {spread['runs']} corner runs ({inputs}):")
+    scale = {"fwhm_s": (1e-15, "fs"), "peak_power_w": (1e9, "GW"), "cutoff_hz": (1e12, "THz")}
+    rows = []
+    for key, r in spread["ranges"].items():
+        factor, unit = scale.get(key.split(".")[-1], (1.0, ""))
+        rows.append((key, f"{_fmt(r['low'], factor)} ... {_fmt(r['high'], factor)} {unit}",
+                     f"nominal {_fmt(r['nominal'], factor)}"))
+    if rows:
+        _print_rows(rows)
+    lim = s.get("limits", {})
+    if "worst_case.status" in lim:
+        _echo(f"  worst corner vs the limits: {lim['worst_case.status']} (self-focusing margin "
+              f"{_fmt(lim.get('worst_case.self_focusing_margin'))}, ionisation fraction "
+              f"{_fmt(lim.get('worst_case.ionization_fraction'))})")
+    for failure in spread["failed"]:
+        _echo(f"  corner run failed: {failure}")
 
 
 def _print_simulation(s: dict, out_dir: Path) -> None:
@@ -387,6 +455,7 @@ def _print_simulation(s: dict, out_dir: Path) -> None:
     _print_rows(rows)
     _echo(f"\nWritten to {out_dir}/: summary.json, fields.npz"
           + (" and figures" if any(out_dir.glob("*.png")) else ""))
+    _print_spread(s)
     _print_warnings(s["warnings"])
     if "limits" in s:
         _echo()

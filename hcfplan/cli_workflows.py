@@ -303,6 +303,11 @@ def compare_command(
     out: Optional[Path] = typer.Option(  # noqa: UP007, UP045
         None, "--out", help="Folder for the overlaid figures and comparison.json."),
     force: bool = typer.Option(False, "--force", help="Allow writing into an existing --out."),
+    spread: Optional[str] = typer.Option(  # noqa: UP007, UP045
+        None, "--spread", help="Input uncertainty band for both setups, e.g. "
+        "energy=5%,pressure=2%,fwhm=5% ('default': the [spread] keys of each config)."),
+    workers: int = typer.Option(0, "--workers", help="Processes for the --spread corners "
+                                "(default: all cores)."),
     as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
 ) -> None:
     """Run two setups and show them side by side with B - A and B / A."""
@@ -311,25 +316,45 @@ def compare_command(
     cli = _cli()
     if config_b is None and not set_b:
         raise cli._cli_error("compare: give config B or at least one --set-b override")
-    cfg_a = cli._load(config_a, set_ or [])
-    if config_b is None:
-        cfg_b = cli._load(config_a, list(set_ or []) + list(set_b or []))
-    else:
-        cfg_b = cli._load(config_b, list(set_b or []))
+    over_a = list(set_ or [])
+    over_b = over_a + list(set_b or []) if config_b is None else list(set_b or [])
+    cfg_a = cli._load(config_a, over_a)
+    cfg_b = cli._load(config_b if config_b is not None else config_a, over_b)
+    plans = [cli._spread_plan(cfg, spread, over) for cfg, over in ((cfg_a, over_a),
+                                                                     (cfg_b, over_b))]
     labels = (str(config_a), str(config_b) if config_b is not None else
               f"{config_a} with " + " ".join(set_b or []))
     comparison = compare_configs(cfg_a, cfg_b, labels)
-    figures = _compare_outputs(out, comparison, force) if out is not None else []
+    spreads = _compare_spreads(comparison, plans, workers, as_json)
+    figures = _compare_outputs(out, comparison, force, spreads) if out is not None else []
     if as_json:
         cli._print_json({"labels": list(labels), "rows": list(comparison.rows),
                          "margins": {"a": comparison.a.margins, "b": comparison.b.margins},
-                         "figures": figures, "cautions": _cautions()})
+                         "spread": spreads, "figures": figures, "cautions": _cautions()})
     else:
         _print_comparison(comparison, figures, out)
+        for name, side in zip(("A", "B"), (spreads or {}).values(), strict=False):
+            typer.echo(f"\n{name}:", nl=False)
+            cli._print_spread({"spread": side})
         cli._print_cautions()
 
 
-def _compare_outputs(out: Path, comparison, force: bool) -> list[str]:
+def _compare_spreads(comparison, plans, workers: int, quiet: bool) -> dict | None:
+    """Corner runs of both sides (``--spread``): {"a": spread summary, "b": ...} or None."""
+    if plans[0] is None:
+        return None
+    from .planning.spread import spread_summary
+
+    cli = _cli()
+    out = {}
+    for key, side, plan in zip(("a", "b"), (comparison.a, comparison.b), plans, strict=True):
+        if side.chain.propagation.success:
+            result = cli._run_spread(side.chain.config, side.chain, plan, workers, quiet)
+            out[key] = spread_summary(result)
+    return out
+
+
+def _compare_outputs(out: Path, comparison, force: bool, spreads=None) -> list[str]:
     from .io.results import prepare_output_dir, write_figure, write_json
     from .plotting.compare import FIGURES
 
@@ -341,7 +366,8 @@ def _compare_outputs(out: Path, comparison, force: bool) -> list[str]:
     write_json(out_dir / "comparison.json", {
         "labels": [comparison.a.label, comparison.b.label], "rows": list(comparison.rows),
         "a": {"summary": comparison.a.summary, "margins": comparison.a.margins},
-        "b": {"summary": comparison.b.summary, "margins": comparison.b.margins}})
+        "b": {"summary": comparison.b.summary, "margins": comparison.b.margins},
+        "spread": spreads})
     return names
 
 

@@ -42,6 +42,7 @@ SUFFIXES: dict[str, tuple[float, str, str]] = {
     "l": (1e-3, "m^3", "L"),
     "db": (1.0, "dB", "dB"),
     "rad": (1.0, "rad", "rad"),
+    "percent": (0.01, "1", "%"),
     "per_m": (1.0, "1/m", "1/m"),
     "db_per_m": (1.0, "dB/m", "dB/m"),
     "per_w_per_m": (1.0, "1/(W m)", "1/(W m)"),

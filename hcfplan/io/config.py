@@ -127,6 +127,13 @@ class LimitsSpec:
 
 
 @dataclass(frozen=True)
+class SpreadDefaults:
+    energy_percent: float
+    pressure_percent: float
+    fwhm_percent: float
+
+
+@dataclass(frozen=True)
 class GridSpec:
     points: int | None
     time_window: float | None  #: [s]
@@ -146,6 +153,7 @@ class PlanConfig:
     compressor: CompressorSpec
     thz: ThzSpec
     limits: LimitsSpec
+    spread: SpreadDefaults
     grid: GridSpec
     resolved: dict[str, dict[str, Any]]
     present_sections: tuple[str, ...]
@@ -585,6 +593,7 @@ def _build_specs(r: dict, present: set[str], base: Path, extra_gas_dirs) -> dict
             cladding_damage_fluence=_si(lim["cladding_damage_fluence_j_per_cm2"], "j_per_cm2"),
             room_volume=lim["room_volume_m3"], cylinder_volume=_si(lim["cylinder_volume_l"], "l"),
             cylinder_pressure=_si(lim["cylinder_pressure_bar"], "bar")),
+        spread=SpreadDefaults(**r["spread"]),
         grid=GridSpec(points=grid["points"], time_window=_si(grid["time_window_fs"], "fs"),
                       z_samples=grid["z_samples"], rtol=grid["rtol"],
                       stop_ionization_fraction=grid["stop_ionization_fraction"]),

@@ -13,11 +13,20 @@ from .results import write_figure, write_json, write_npz, write_text
 from .tomlio import dump_toml
 
 
-def write_run(out_dir: Path, chain: ChainResult, *, figures: bool = True) -> dict:
-    """Write the run into ``out_dir`` and return the summary dict that was written."""
+def write_run(out_dir: Path, chain: ChainResult, *, figures: bool = True, spread=None) -> dict:
+    """Write the run into ``out_dir`` and return the summary dict that was written.
+
+    ``spread`` (a :class:`~hcfplan.planning.spread.SpreadResult`) adds ``spread.*``, the
+    worst-case margins ``limits.worst_case.*`` and the ``spread.png`` figure.
+    """
     out_dir = Path(out_dir)
     summary = summary_dict(chain)
     summary["config"] = chain.config.resolved
+    if spread is not None:
+        from ..planning.spread import spread_summary, worst_case_limits
+
+        summary["spread"] = spread_summary(spread)
+        summary.setdefault("limits", {}).update(worst_case_limits(spread, chain.config.limits))
     write_npz(out_dir / "fields.npz", field_arrays(chain))
     write_text(out_dir / "config.resolved.toml", dump_toml(chain.config.resolved))
     if figures:
@@ -26,6 +35,8 @@ def write_run(out_dir: Path, chain: ChainResult, *, figures: bool = True) -> dic
         for name, draw in report.FIGURES.items():
             if report.applies(name, chain):
                 write_figure(out_dir / f"{name}.png", draw, chain)
+        if spread is not None and spread.corners:
+            write_figure(out_dir / "spread.png", report.draw_spread, chain, spread)
         summary["figures"] = sorted(p.name for p in out_dir.glob("*.png"))
     write_json(out_dir / "summary.json", summary)
     return summary

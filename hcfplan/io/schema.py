@@ -160,6 +160,12 @@ SCHEMA: dict[str, dict[str, Key]] = {
         "cylinder_pressure_bar": Key(F, None, "Filling pressure of the cylinder(s).", 0.0,
                                      1000.0),
     },
+    "spread": {
+        "energy_percent": Key(F, 5.0, "Energy half-width used by --spread default.", 0.0, 99.0),
+        "pressure_percent": Key(F, 2.0, "Pressure half-width used by --spread default.", 0.0,
+                                99.0),
+        "fwhm_percent": Key(F, 5.0, "Duration half-width used by --spread default.", 0.0, 99.0),
+    },
     "grid": {
         "points": Key("int", None, "Number of grid points (power of two recommended).",
                       64, 2**22, low_open=False),

@@ -427,13 +427,29 @@ def _run_serial(tasks: list[dict], on_done: Callable[[dict], None], _workers, _a
         on_done(compute_point(task))
 
 
-def _run_processes(tasks, on_done, workers: int, _address) -> None:
-    """Local process pool. ``spawn`` start: the workers start clean (no threads or numba state
-    copied from the parent) on every platform; each pays the imports once, not per point."""
+#: Modules a fork server imports once before forking the scan workers (start-up cost).
+WORKER_PRELOAD = ["hcfplan.planning.chain", "hcfplan.propagation.solve", "hcfplan.thz",
+                  "hcfplan.compression", "hcfplan.planning.limits_report"]
+
+
+def _pool_context():
+    """``forkserver`` where available: workers fork from a clean server process that has
+    imported :data:`WORKER_PRELOAD` (no threads or numba state copied from the parent, no
+    per-worker import cost); ``spawn`` elsewhere."""
     import multiprocessing
+
+    if "forkserver" in multiprocessing.get_all_start_methods():
+        context = multiprocessing.get_context("forkserver")
+        context.set_forkserver_preload(WORKER_PRELOAD)
+        return context
+    return multiprocessing.get_context("spawn")
+
+
+def _run_processes(tasks, on_done, workers: int, _address) -> None:
+    """Local process pool (see :func:`_pool_context`); each worker serves many points."""
     from concurrent.futures import ProcessPoolExecutor, as_completed
 
-    context = multiprocessing.get_context("spawn")
+    context = _pool_context()
     pool = ProcessPoolExecutor(max_workers=min(workers, len(tasks)), mp_context=context)
     try:
         futures = [pool.submit(compute_point, t) for t in tasks]

@@ -95,6 +95,53 @@ def draw_thz(fig, chain):
     return axes[0, 0]
 
 
+def draw_spread(fig, chain, spread):
+    """Output spectra of the corner runs as a band around the nominal, and the value ranges."""
+    import numpy as np
+
+    from ..constants import c
+
+    ax_spec, ax_range = fig.subplots(1, 2, gridspec_kw={"width_ratios": [3, 2]})
+    fig.set_size_inches(12, 4.8)
+    grid = chain.grid
+    order = np.argsort(grid.frequency)
+    freq = grid.frequency[order]
+    nominal = np.abs(chain.propagation.field_out_spectrum[order]) ** 2
+    curves = [np.interp(freq, r["spectrum"]["frequency_hz"],
+                        r["spectrum"]["energy_density_j_per_hz"], left=0.0, right=0.0)
+              for r in spread.corners if r["spectrum"]["frequency_hz"]]
+    peak = max([nominal.max()] + [cv.max() for cv in curves])
+    wl = c / freq * 1e9
+    floor = 1e-4
+    if curves:
+        low, high = np.min(curves, axis=0), np.max(curves, axis=0)
+        ax_spec.fill_between(wl, np.maximum(low / peak, floor), np.maximum(high / peak, floor),
+                             color="C0", alpha=0.3, label=f"{len(curves)} corner runs")
+    ax_spec.semilogy(wl, np.maximum(nominal / peak, floor), color="C0", label="nominal")
+    lit = wl[nominal > peak * floor]
+    if lit.size:
+        ax_spec.set_xlim(lit.min() * 0.97, lit.max() * 1.03)
+    ax_spec.set_ylim(floor, 2)
+    ax_spec.set_xlabel("Wavelength (nm)")
+    ax_spec.set_ylabel("Spectral density per Hz (norm.)")
+    inputs = ", ".join(f"{k} ±{v:.0%}" for k, v in spread.spec.items)
+    ax_spec.set_title(f"Fiber output over the input band ({inputs})", fontsize="small")
+    ax_spec.legend()
+    labels, lows, highs = [], [], []
+    for label, r in spread.ranges.items():
+        if r["nominal"]:
+            labels.append(label)
+            lows.append(100 * (r["low"] / r["nominal"] - 1))
+            highs.append(100 * (r["high"] / r["nominal"] - 1))
+    y = np.arange(len(labels))
+    ax_range.barh(y, np.array(highs) - np.array(lows), left=lows, color="C1", alpha=0.6)
+    ax_range.axvline(0.0, color="k", lw=0.8)
+    ax_range.set_yticks(y, labels, fontsize="small")
+    ax_range.set_xlabel("Range over the corners (% of nominal)")
+    ax_range.set_title("How sure the predictions are", fontsize="small")
+    return ax_spec
+
+
 FIGURES: dict[str, Callable] = {
     "spectrum_in_out": draw_spectra,
     "spectral_evolution": draw_spectral_evolution,
