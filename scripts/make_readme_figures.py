@@ -30,9 +30,19 @@ def main() -> None:
     with tempfile.TemporaryDirectory() as tmp:
         tmp = Path(tmp)
         run("fiber", "configs/yb_capillary_mixture.toml", "--plot", str(FIGURES / "fiber.png"))
-        run("simulate", "configs/yb_arf_argon.toml", "--out", str(tmp / "arf"), "--quiet")
-        for name in ("spectral_evolution", "compressed_pulse", "thz_spectrum"):
+        run("simulate", "configs/yb_arf_argon.toml", "--out", str(tmp / "arf"), "--quiet",
+            "--spread", "default")
+        for name in ("spectral_evolution", "compressed_pulse", "thz_spectrum", "spread"):
             shutil.copy(tmp / "arf" / f"{name}.png", FIGURES / f"simulate_{name}.png")
+        run("envelope", "configs/yb_capillary_mixture.toml", "--plot",
+            str(FIGURES / "envelope.png"))
+        run("scan", "configs/yb_arf_argon.toml", "--vary", "gas.pressure_bar=1:5:9", "--out",
+            str(tmp / "scan"))
+        shutil.copy(tmp / "scan" / "results.png", FIGURES / "scan_results.png")
+        shutil.copy(tmp / "scan" / "spectrum_map.png", FIGURES / "scan_spectrum_map.png")
+        run("compare", "configs/yb_capillary_mixture.toml", "--set-b", "laser.energy_uj=2500",
+            "--out", str(tmp / "compare"))
+        shutil.copy(tmp / "compare" / "compare_thz.png", FIGURES / "compare_thz.png")
         run("thz", "configs/demo_broadened_spectrum.csv", "--crystal", "GaP", "--thickness-mm",
             "0.3", "--energy-uj", "10", "--plot", str(FIGURES / "thz_measured.png"))
 
