@@ -13,18 +13,18 @@ from __future__ import annotations
 import os
 import subprocess
 import sys
-import tomllib
 from pathlib import Path
 
 import pytest
 
 from hcfplan.cli import main
 from hcfplan.errors import ConfigError
+from hcfplan.io.tomlio import parse_toml
 from hcfplan.materials.crystals import load_crystal
 
 HERE = Path(__file__).resolve().parent / "bad_inputs"
 ROOT = HERE.parents[1]
-CASES = tomllib.loads((HERE / "cases.toml").read_text(encoding="utf-8"))["case"]
+CASES = parse_toml((HERE / "cases.toml").read_text(encoding="utf-8"), "cases.toml")["case"]
 CLI_CASES = [c for c in CASES if c.get("kind", "cli") == "cli"]
 CRYSTAL_CASES = [c for c in CASES if c.get("kind") == "crystal_table"]
 SUBPROCESS_CASES = [c for c in CLI_CASES if c.get("subprocess")]
@@ -93,9 +93,75 @@ def test_case_subprocess(case, tmp_path):
     out = tmp_path / "out"
     env = dict(os.environ, PYTHONPATH=str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", ""))
     env.update({k: _expand(v, out) for k, v in case.get("env", {}).items()})
-    proc = subprocess.run([sys.executable, "-m", "hcfplan", *(_expand(a, out) for a in case["argv"])],
-                          capture_output=True, text=True, timeout=120, env=env, cwd=tmp_path)
+    argv = [sys.executable, "-m", "hcfplan", *(_expand(a, out) for a in case["argv"])]
+    proc = subprocess.run(argv, capture_output=True, text=True, timeout=120, env=env,
+                          cwd=tmp_path)
     assert proc.returncode == 2, proc.stderr
     _check_stderr(case, proc.stderr)
     assert not out.exists()
     assert list(tmp_path.iterdir()) == []
+
+
+# ---------------------------------------------------------------------------------------------
+# Outside a validity range: the run goes on and says so in `warnings` (not an error)
+
+# (--set overrides on base.toml, fragments that the warnings must contain). The ranges are those
+# stated in the shipped tables: Borzsonyi et al., Appl. Opt. 47, 4856 (2008) fit 400-1000 nm
+# (gases/Ar.toml); Malitson, J. Opt. Soc. Am. 55, 1205 (1965) fused silica 0.21-3.71 um
+# (hcfplan/materials/data/solids.toml); the CoolProp equation-of-state limits (Neon T <= 725 K);
+# the near-critical and near-saturation bands are common practice, no source (gases.py).
+VALIDITY_CASES = {
+    "pump-beyond-gas-fit": (["laser.wavelength_nm=1800"],
+                            ["dispersion fit", "valid for 400-1000 nm", "1800-1800 nm"]),
+    "pump-beyond-cladding-fit": (["laser.wavelength_nm=4000"],
+                                 ["cladding (fused_silica) Sellmeier fit is valid for 210-3710 nm",
+                                  "4000-4000 nm"]),
+    "temperature-beyond-eos": (["gas.species=Ne", "gas.temperature_k=800"],
+                               ["outside the range of the Neon equation of state",
+                                "T <= 725 K"]),
+    "pressure-near-critical": (["gas.species=Xe", "gas.pressure_bar=45"],
+                               ["near the critical point", "58.42 bar"]),
+    "pressure-near-saturation": (["gas.species=Kr", "gas.pressure_bar=2.0",
+                                  "gas.temperature_k=130"],
+                                 ["of the saturation pressure", "condense"]),
+}
+
+
+@pytest.mark.parametrize("name", list(VALIDITY_CASES))
+def test_outside_validity_is_a_warning(name, capsys):
+    import json
+
+    overrides, fragments = VALIDITY_CASES[name]
+    argv = ["fiber", str(HERE / "base.toml"), "--json"]
+    for text in overrides:
+        argv += ["--set", text]
+    code = main(argv)
+    captured = capsys.readouterr()
+    assert code == 0, captured.err
+    assert "Traceback" not in captured.err
+    warnings = json.loads(captured.out)["warnings"]
+    assert any(all(f in w for f in fragments) for w in warnings), warnings
+
+
+def test_gas_command_wavelength_beyond_fit_is_a_warning(capsys):
+    import json
+
+    code = main(["gas", "Ar", "--wavelength-nm", "1800", "--json"])
+    captured = capsys.readouterr()
+    assert code == 0, captured.err
+    warnings = json.loads(captured.out)["warnings"]
+    assert any("valid for 400-1000 nm" in w and "1800 nm" in w for w in warnings), warnings
+
+
+def test_thz_spectrum_beyond_crystal_fit_is_a_warning(capsys, tmp_path):
+    import json
+
+    # GaP optical index range 0.7-2.0 um as stated in hcfplan/materials/data/crystals/gap.toml;
+    # an invented spectrum around 640 nm lies below it
+    spectrum = tmp_path / "blue.csv"
+    spectrum.write_text("wavelength_nm,intensity\n620,0.2\n630,0.6\n640,1.0\n650,0.6\n660,0.2\n")
+    code = main(["thz", str(spectrum), "--json"])
+    captured = capsys.readouterr()
+    assert code == 0, captured.err
+    warnings = json.loads(captured.out)["warnings"]
+    assert any("outside the validity range 700-2000 nm" in w for w in warnings), warnings
