@@ -656,15 +656,26 @@ _register_workflows(app)
 def main(argv: list[str] | None = None) -> int:
     """Console entry point: run the app; a HcfplanError becomes one stderr line and exit 2."""
     try:
-        app(args=argv, prog_name="hcfplan", standalone_mode=True)
+        result = app(args=argv, prog_name="hcfplan", standalone_mode=False)
     except HcfplanError as exc:
         message = " ".join(str(exc).split())
         typer.echo(f"hcfplan: error: {message}", err=True)
         return 2
+    except typer.Exit as exc:  # also Ctrl-C, which typer turns into Exit(130)
+        return exc.exit_code
+    except typer.TyperException as exc:  # usage: unknown option, missing or unparsable value
+        if not (sys.argv[1:] if argv is None else argv):  # bare `hcfplan`: show the help
+            exc.show()
+            return exc.exit_code
+        message = " ".join(exc.format_message().split())
+        ctx = getattr(exc, "ctx", None)
+        hint = f" (see '{ctx.command_path} --help')" if ctx is not None else ""
+        typer.echo(f"hcfplan: error: {message}{hint}", err=True)
+        return exc.exit_code
     except SystemExit as exc:
         code = exc.code
         return code if isinstance(code, int) else (0 if code is None else 1)
-    return 0
+    return result if isinstance(result, int) else 0
 
 
 if __name__ == "__main__":  # pragma: no cover

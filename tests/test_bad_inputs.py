@@ -47,20 +47,32 @@ def _check_stderr(case: dict, err: str) -> None:
         assert fragment in lines[0], f"{fragment!r} not in {lines[0]!r}"
 
 
-def test_corpus_is_large_and_ids_unique():
+#: Valid inputs of the corpus, and files that the configs of the corpus point to.
+INDIRECT = {"base.toml", "good_spectrum.csv", "csv/good_gdd.csv", "csv/unsorted.csv",
+            "csv/gdd_wrong_header.csv"}
+
+
+def _referenced(case: dict) -> set[str]:
+    """Corpus paths (relative to bad_inputs/) a case names, files or folders."""
+    if case.get("kind") == "crystal_table":
+        return {f"crystal_tables/{case['argv'][0]}.toml"}
+    texts = list(case["argv"]) + list(case.get("env", {}).values())
+    found = set()
+    for text in texts:
+        for part in text.split("{here}/")[1:]:
+            found.add(part.split('"')[0])
+    return found
+
+
+def test_corpus_is_large_and_every_file_used():
     ids = [c["id"] for c in CASES]
     assert len(ids) == len(set(ids))
     assert len(CASES) >= 40
-    # every file of the corpus is used by a case (no dead cases), except the valid inputs
-    text = (HERE / "cases.toml").read_text(encoding="utf-8")
-    files = [p for p in HERE.rglob("*") if p.is_file() and p.name != "cases.toml"]
-    used_indirectly = {"base.toml", "good_spectrum.csv", "good_gdd.csv", "unsorted.csv",
-                       "gdd_wrong_header.csv"}
-    for path in files:
-        rel = path.relative_to(HERE).as_posix()
-        stem_dir = path.parent.relative_to(HERE).as_posix()
-        assert (rel in text or path.name in used_indirectly or stem_dir in text
-                or path.stem in text), rel
+    named = set().union(*(_referenced(c) for c in CASES)) | INDIRECT
+    for path in HERE.rglob("*"):
+        if path.is_file() and path.name != "cases.toml":
+            rel = path.relative_to(HERE).as_posix()
+            assert rel in named or path.parent.relative_to(HERE).as_posix() in named, rel
 
 
 @pytest.mark.parametrize("case", CLI_CASES, ids=[c["id"] for c in CLI_CASES])
