@@ -91,8 +91,8 @@ def overhead(points: int, backend: str) -> None:
           f"{t['c2c'] * 1e6:.1f} us ({backend}) / {t_scipy * 1e6:.1f} us (scipy); ratio "
           f"wall/(FFTs x t_FFT) = {wall / floor:.2f} (target <= 1.3, before "
           f"{BEFORE['ratio ' + key]:.2f}); wall/(FFTs x t_FFT,scipy) = "
-          f"{wall / (ffts * t_scipy):.2f}; per step {wall / (result.n_steps + result.n_rejected) * 1e3:.2f} ms; "
-          f"{result.status}")
+          f"{wall / (ffts * t_scipy):.2f}; per step "
+          f"{wall / (result.n_steps + result.n_rejected) * 1e3:.2f} ms; {result.status}")
 
 
 def _fission_case():

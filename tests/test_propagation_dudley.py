@@ -37,7 +37,7 @@ def run():
                         self_steepening=True, raman_fraction=0.18)
     t0 = 50e-15 / 1.7627
     field0 = pulse_field(grid, "sech2", 50e-15, 2 * 10e3 * t0)  # E = 2 P0 T0
-    return grid, propagate(field0, grid, fiber, rtol=1e-5, z_samples=16)
+    return grid, propagate(field0, grid, fiber, rtol=1e-6, z_samples=16)
 
 
 def test_benchmark_completes_without_window_warnings(run):
@@ -47,7 +47,8 @@ def test_benchmark_completes_without_window_warnings(run):
 
 
 def test_benchmark_conserves_photon_number(run):
-    # tolerance 1e-4 = 10 rtol: the local errors of ~5e3 steps at rtol = 1e-5
+    # tolerance 1e-4: ~5e3 relative-L2 local errors <= rtol = 1e-6 add up to sqrt(n) rtol ~ 7e-5
+    # as a random walk
     grid, result = run
     photons = (result.spectrum_z.astype(float) / grid.omega).sum(axis=1)
     assert abs(photons[-1] / photons[0] - 1) < 1e-4

@@ -171,7 +171,8 @@ SCHEMA: dict[str, dict[str, Key]] = {
                       64, 2**22, low_open=False),
         "time_window_fs": Key(F, None, "Total time window.", 1.0, 1.0e7),
         "z_samples": Key("int", 100, "Number of saved z positions.", 2, 10000, low_open=False),
-        "rtol": Key(F, 1.0e-5, "Relative tolerance of the step control.", 0.0, 0.1),
+        "rtol": Key(F, 1.0e-6, "Relative tolerance of the step control (relative L2 norm of "
+                    "the local error).", 0.0, 0.1),
         "stop_ionization_fraction": Key(F, 0.1, "Stop the run above this ionisation fraction.",
                                         0.0, 1.0),
     },

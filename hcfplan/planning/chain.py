@@ -86,19 +86,11 @@ def _grid_notes(chain: ChainResult, caught: list[str]) -> list[str]:
 
     The grid is sized from a first-look broadening estimate; when that estimate asks for more
     than the widest window centred on the pump, ``choose_grid`` says so. That note is dropped
-    when the run itself found no energy at the window edges, and the edge warning gets the
-    remedy that applies when the window cannot grow.
+    when the run itself found no energy at the window edges (the solver's edge warning then
+    carries the remedy).
     """
-    from ..grid import MAX_HALF_WINDOW_FRACTION
-
     edge = any("frequency window" in w for w in chain.propagation.warnings)
-    notes = [w for w in caught if edge or not w.startswith("grid: the expected spectrum")]
-    at_cap = math.pi / chain.grid.dt >= 0.99 * MAX_HALF_WINDOW_FRACTION * chain.grid.omega0
-    if edge and at_cap:
-        notes.append("grid: the frequency window is already the widest one centred on the pump "
-                     f"(+-{MAX_HALF_WINDOW_FRACTION:.0%} of the pump frequency); the spectrum "
-                     "broadens beyond it: lower the energy or pressure, or shorten the fiber")
-    return notes
+    return [w for w in caught if edge or not w.startswith("grid: the expected spectrum")]
 
 
 def _run_chain(config, progress, workers) -> ChainResult:

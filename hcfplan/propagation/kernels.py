@@ -8,8 +8,9 @@ complex multiply does not vectorise); ``fastmath`` stays off so NaN and Inf prop
 detected.
 
 Only the solver imports this module (lazily), so importing :mod:`hcfplan` does not load numba.
-Compiled code is cached on disk (``cache=True``): the first run on a machine compiles (about
-2-4 s on 2 cores, ``bench/solver.py`` prints it), later runs load in about 0.1 s.
+Compiled code is cached on disk (``cache=True``): the first run on a machine compiles (4.0 s on
+our 2 shared cores, including ``import numba``; ``bench/solver.py`` prints it), later runs load
+the cache in 0.9 s (most of it the numba import).
 """
 
 from __future__ import annotations

@@ -5,10 +5,10 @@ spectrum with a stepper from :data:`~.steppers.STEPPERS`, records the tracked qu
 ``z_samples`` evenly spaced positions and returns a frozen :class:`~.result.PropagationResult`.
 
 Sampling: each interval between two record positions is divided into equal steps no longer
-than the step the controller proposes, so the records are hit exactly (no interpolation). Within
-an interval the step stays the same unless the controller asks for a shorter one (it may grow
-at the next interval), so the stepper reuses its propagators exp(L h/2) (a complex exp over the
-grid costs about three FFTs).
+than the step the controller proposes, so the records are hit exactly (no interpolation).
+Within an interval the step stays the same unless the controller asks for a shorter one or for
+one at least ``REPLAN_GROWTH`` times longer, so the stepper reuses its propagators exp(L h/2)
+(a complex exp over the grid costs about three FFTs).
 
 Faults end the run with ``success=False`` and keep what was computed (the records so far plus
 one at the position reached, and the last good field): a non-finite field, a step below
@@ -51,6 +51,9 @@ FftBackendName = Literal["fftw", "scipy"]
 ATOL_FRACTION = 1e-3
 #: Intensity range of the ionisation-rate tables. [W/m^2] (1e11 to 1e17 W/cm^2)
 RATE_TABLE_RANGE = (1e15, 1e21)
+#: Within a sampling interval the step is re-planned when the controller proposes this factor
+#: more (a longer step saves steps, a new length costs one complex exp ~ 3 FFTs).
+REPLAN_GROWTH = 1.2
 #: Field energy outside the model's valid band above which a warning is given. [fraction]
 INVALID_BAND_LIMIT = 1e-6
 
@@ -277,9 +280,10 @@ def _run(u0, field, grid, waveguide, runner, nonlinear, opts, notes) -> Propagat
 
 
 def _next_step(state, target: float, current: float | None) -> float:
-    """Step for the next attempt: equal steps to the target, kept unless a shorter is asked."""
+    """Step for the next attempt: equal steps to the target, kept unless the proposal is
+    shorter or longer by ``REPLAN_GROWTH`` (a new step length costs a new exp(L h/2))."""
     remaining = target - state.z
-    if current is None or state.h < current * (1 - 1e-9):
+    if current is None or not current * (1 - 1e-9) <= state.h < REPLAN_GROWTH * current:
         return remaining / max(1, math.ceil(remaining / state.h * (1 - 1e-12)))
     return remaining / max(1, round(remaining / current))
 
