@@ -196,6 +196,7 @@ def check_command(
         return
     _echo(f"# {config}: valid. Resolved values (defaults filled in; units in the key names):")
     _echo(dump_toml(cfg.resolved).rstrip())
+    _print_cautions()
 
 
 # ---------------------------------------------------------------------------------------------
@@ -293,31 +294,40 @@ def _default_out_dir(config: Path) -> Path:
     return candidate
 
 
-class _Progress:
-    """A terminal progress bar over z (stderr), or nothing when quiet / not a terminal."""
+class TerminalBar:
+    """A one-line progress bar on stderr, drawn only when stderr is a terminal."""
 
-    def __init__(self, enabled: bool, length: float):
+    WIDTH = 30
+
+    def __init__(self, enabled: bool, label: str):
         self.enabled = enabled and sys.stderr.isatty()
-        self.length = length
+        self.label = label
         self.last = -1
 
-    def __call__(self, z: float, length: float, steps: int) -> None:
-        if not self.enabled:
-            return
-        permille = int(1000 * z / length) if length > 0 else 1000
-        if permille == self.last:
+    def draw(self, fraction: float, tail: str) -> None:
+        permille = int(1000 * min(max(fraction, 0.0), 1.0))
+        if not self.enabled or permille == self.last:
             return
         self.last = permille
-        width = 30
-        done = int(width * permille / 1000)
-        sys.stderr.write(f"\r  fiber [{'#' * done}{'.' * (width - done)}] "
-                         f"z = {z:.4g} / {length:.4g} m, {steps} steps")
+        done = self.WIDTH * permille // 1000
+        sys.stderr.write(f"\r  {self.label} [{'#' * done}{'.' * (self.WIDTH - done)}] {tail}")
         sys.stderr.flush()
 
     def close(self) -> None:
         if self.enabled:
             sys.stderr.write("\n")
             sys.stderr.flush()
+
+
+class _Progress(TerminalBar):
+    """Progress over z of one propagation (the solver's ``progress`` callback)."""
+
+    def __init__(self, enabled: bool):
+        super().__init__(enabled, "fiber")
+
+    def __call__(self, z: float, length: float, steps: int) -> None:
+        self.draw(z / length if length > 0 else 1.0,
+                  f"z = {z:.4g} / {length:.4g} m, {steps} steps")
 
 
 @app.command("simulate")
@@ -345,7 +355,7 @@ def simulate_command(
     spread_plan = _spread_plan(cfg, spread, set_ or [])
     out_dir = prepare_output_dir(out if out is not None else _default_out_dir(config),
                                  force=force)
-    bar = _Progress(not quiet and not as_json, cfg.fiber.length)
+    bar = _Progress(not quiet and not as_json)
     try:
         chain = run_chain(cfg, progress=bar)
     finally:

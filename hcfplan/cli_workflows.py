@@ -8,7 +8,6 @@ helpers of :mod:`hcfplan.cli` are looked up when a command runs.
 from __future__ import annotations
 
 import contextlib
-import sys
 from pathlib import Path
 from typing import Optional
 
@@ -68,20 +67,13 @@ class _ScanProgress:
     """Overall progress over the points on stderr, only when stderr is a terminal."""
 
     def __init__(self, enabled: bool):
-        self.enabled = enabled and sys.stderr.isatty()
+        self.bar = _cli().TerminalBar(enabled, "scan")
 
     def __call__(self, done: int, total: int, record: dict) -> None:
-        if self.enabled:
-            width = 30
-            filled = int(width * done / max(total, 1))
-            sys.stderr.write(f"\r  scan [{'#' * filled}{'.' * (width - filled)}] "
-                             f"{done}/{total} points")
-            sys.stderr.flush()
+        self.bar.draw(done / max(total, 1), f"{done}/{total} points")
 
     def close(self) -> None:
-        if self.enabled:
-            sys.stderr.write("\n")
-            sys.stderr.flush()
+        self.bar.close()
 
 
 # ---------------------------------------------------------------------------------------------
