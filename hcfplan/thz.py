@@ -317,7 +317,7 @@ def pump_crystal_warnings(
     beam_radius : float or None
         1/e^2 intensity radius of a Gaussian beam; ``None`` skips the intensity checks. [m]
     damage_fluence : float or None
-        Damage (or safe working) fluence; ``None`` uses the crystal table's value. [J/m^2]
+        Damage (or working-limit) fluence; ``None`` uses the crystal table's value. [J/m^2]
 
     Returns
     -------

@@ -1,5 +1,5 @@
 """The scan, recommend and compare commands: JSON fields, files written, exit codes, one-line
-errors. Contract tests (no physics values)."""
+errors. Contract tests (no physics values). No external source is needed for these checks."""
 
 from __future__ import annotations
 

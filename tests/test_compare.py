@@ -1,4 +1,5 @@
-"""compare: the table of A and B with B - A and B / A. Invariant/contract tests."""
+"""compare: the table of A and B with B - A and B / A. Invariant/contract tests. No external source
+is needed for these checks."""
 
 from __future__ import annotations
 

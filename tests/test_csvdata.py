@@ -1,7 +1,8 @@
 """CSV readers of hcfplan.io.csvdata: accepted layouts and one error test per problem.
 
 Kinds: contract (layout, unit conversion nm -> m and fs^2 -> s^2, exact SI definitions) and
-error tests matching the file:line and the offending value.
+error tests matching the file:line and the offending value. No external source is needed for
+these checks.
 """
 
 from __future__ import annotations

@@ -5,7 +5,8 @@ Error-contract tests (STYLE.md section 6): for any TOML-like mapping and any ``-
 :class:`~hcfplan.errors.ConfigError` with a one-line message; never any other exception.
 Inputs mix schema sections and keys with unknown ones, and values of every TOML type
 (NaN, infinities, huge and negative numbers, integers beyond the float range, strings,
-lists, nested tables, dates). Bounded by ``max_examples``; the whole module runs in seconds.
+lists, nested tables, dates). Bounded by ``max_examples``; the whole module runs in seconds. No
+external source is needed for these checks.
 """
 
 from __future__ import annotations

@@ -3,7 +3,8 @@ folder with complete files only (or no folder), never a temporary or half-writte
 
 Contract tests of hcfplan.io.results (atomic writes, SIGTERM held back while a file is being
 written) and of ``simulate --out`` (a non-empty folder is refused without ``--force``).
-The runs are real ``python -m hcfplan`` processes on an invented 1 m capillary scenario.
+The runs are real ``python -m hcfplan`` processes on an invented 1 m capillary scenario. No
+external source is needed for these checks.
 """
 
 from __future__ import annotations

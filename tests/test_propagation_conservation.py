@@ -1,6 +1,7 @@
 """Invariants of the propagation equation.
 
-Kinds: invariant. (1) With self-steepening, Raman and no loss the photon number
+Kinds: invariant (analytic conservation laws; sources named). (1) With self-steepening, Raman
+and no loss the photon number
 sum |A~|^2 / omega is conserved while the energy is not (Blow & Wood, IEEE J. Quantum Electron.
 25, 2665 (1989)). (2) With photoionisation, the energy lost equals the ionisation potential
 times the electrons generated (the plasma refraction at omega0 conserves energy, Geissler et

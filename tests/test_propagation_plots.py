@@ -1,5 +1,5 @@
 """Smoke test of hcfplan.plotting.propagation: every function draws into the given Axes and
-returns it (contract test; no numbers checked)."""
+returns it (contract test; no numbers checked). No external source is needed for these checks."""
 
 from __future__ import annotations
 

@@ -1,7 +1,8 @@
 """Scans: parsing of --vary, point files (resume, damage detection), local vs Dask executors.
 
 Contract tests (no physics values are checked here; the chain's numbers are tested beside
-each model). The scans use a 20 cm argon capillary on a 1024-point grid (~0.5 s per point).
+each model). The scans use a 20 cm argon capillary on a 1024-point grid (~0.5 s per point). No
+external source is needed for these checks.
 """
 
 from __future__ import annotations

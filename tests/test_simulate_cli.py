@@ -2,7 +2,8 @@
 
 Contract tests: the output files and the summary/fields keys that users and later issues rely
 on; plus invariants of the chain (phase-only compression keeps the energy; the THz spectrum is
-limited by the optical bandwidth). No published values are checked here.
+limited by the optical bandwidth). No published values are checked here. No external source is
+needed for these checks.
 """
 
 from __future__ import annotations

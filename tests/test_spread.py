@@ -1,4 +1,5 @@
-"""``--spread``: the chain at the corners of an input band (invariant and error tests)."""
+"""``--spread``: the chain at the corners of an input band (invariant and error tests). No external
+source is needed for these checks."""
 
 from __future__ import annotations
 
