@@ -338,7 +338,7 @@ def pulse_ionization_fraction(
     rates : sequence of (weight, rate)
         For each ionising species its number fraction in the gas [-] (mole fraction of the
         component times the species fraction of the table record, e.g. 0.2095 for O2 in air)
-        and its rate W(I) [1/s], e.g. an :class:`hcfplan.ionization.RateTable`.
+        and its rate W(I) [1/s], e.g. an :class:`hcfplan.ionization_tables.RateTable`.
 
     Returns
     -------
@@ -348,11 +348,12 @@ def pulse_ionization_fraction(
 
     Notes
     -----
-    Integrated over +-3 FWHM with 801 samples (:func:`hcfplan.ionization.ionization_fraction`);
-    single ionisation, no recombination, each species depletes independently. The rate model
+    Integrated over +-3 FWHM with 801 samples
+    (:func:`hcfplan.ionization_tables.ionization_fraction`); single ionisation, no
+    recombination, each species depletes independently. The rate model
     holds below barrier suppression (see :func:`hcfplan.ionization.ppt_rate` [5]).
     """
-    from .ionization import ionization_fraction
+    from .ionization_tables import ionization_fraction
 
     _check_positive("duration_fwhm", duration_fwhm, "s")
     peak = np.asarray(peak_intensity, dtype=float)

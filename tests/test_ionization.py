@@ -15,6 +15,7 @@ import pytest
 from scipy import integrate
 
 from hcfplan import ionization as ion
+from hcfplan import ionization_tables as tables
 from hcfplan.constants import au_energy, au_field, au_time, c, e, epsilon_0, eV, hbar, m_e
 from hcfplan.errors import ConfigError
 
@@ -46,7 +47,7 @@ def _adk_au(field: float, ip_au: float, l: int, m: int = 0, z: int = 1) -> float
 
 @pytest.fixture(scope="module")
 def ar_table_800():
-    return ion.tabulate_rate("ppt", 800e-9, _ip("Ar"), 1, 0, 1, 1e12 * W_CM2, 1e16 * W_CM2)
+    return tables.tabulate_rate("ppt", 800e-9, _ip("Ar"), 1, 0, 1, 1e12 * W_CM2, 1e16 * W_CM2)
 
 
 # ----------------------------------------------------------------------------- barrier suppression
@@ -296,8 +297,8 @@ def test_rate_table_accuracy(model, gas, wavelength, ar_table_800):
     if (model, gas, wavelength) == ("ppt", "Ar", 800e-9):
         table = ar_table_800
     else:
-        table = ion.tabulate_rate(model, wavelength, ip, l, 0, 1, lo, hi)
-    closings = ion._ppt_channel_closings(wavelength, ip, lo, hi)
+        table = tables.tabulate_rate(model, wavelength, ip, l, 0, 1, lo, hi)
+    closings = tables._ppt_channel_closings(wavelength, ip, lo, hi)
     closings = closings[ion.keldysh_parameter(closings, wavelength, ip) > 0.2]
     probe = np.concatenate(
         [np.geomspace(lo, hi, 1499), closings * (1 - 3e-5), closings * (1 - 1e-3), closings * 1.001]
@@ -320,9 +321,9 @@ def test_rate_table_outside_range(ar_table_800):
 
 def test_rate_table_rejects_bad_range():
     with pytest.raises(ConfigError, match=r"intensity_max = 1000000000000000\.0 W/m\^2"):
-        ion.tabulate_rate("adk", 800e-9, _ip("Ar"), 1, 0, 1, 1e16, 1e15)
+        tables.tabulate_rate("adk", 800e-9, _ip("Ar"), 1, 0, 1, 1e16, 1e15)
     with pytest.raises(ConfigError, match="'tunnel'"):
-        ion.tabulate_rate("tunnel", 800e-9, _ip("Ar"), 1)
+        tables.tabulate_rate("tunnel", 800e-9, _ip("Ar"), 1)
 
 
 # ----------------------------------------------------------------------------- fractions
@@ -331,7 +332,7 @@ def test_fraction_exact_for_constant_rate(neutral_start):
     # analytic: dρ/dt = W (1 - ρ) with constant W gives ρ(t) = 1 - n0 exp(-W t)
     w, dt = 3e12, 1e-15
     t = dt * np.arange(2000)
-    rho = ion.ionization_fraction(
+    rho = tables.ionization_fraction(
         np.full(t.size, 1e17), dt, lambda i: np.full_like(i, w), neutral_start
     )
     np.testing.assert_allclose(rho, 1 - neutral_start * np.exp(-w * t), rtol=1e-12, atol=1e-15)
@@ -340,13 +341,13 @@ def test_fraction_exact_for_constant_rate(neutral_start):
 def test_fraction_tiny_rate_and_batches():
     # analytic: a rate far below 1/dt is not lost to rounding (rho = W t to first order), and a
     # 2-D history is integrated along its last axis
-    rho = ion.ionization_fraction(np.ones((3, 5)), 1e-15, lambda i: 1e-5 * i)
+    rho = tables.ionization_fraction(np.ones((3, 5)), 1e-15, lambda i: 1e-5 * i)
     np.testing.assert_allclose(rho, np.broadcast_to(1e-20 * np.arange(5), (3, 5)), rtol=1e-12)
 
 
 def _gaussian_fraction(peak, fwhm, rate):
     x = np.linspace(-3, 3, 2401)
-    return ion.ionization_fraction(
+    return tables.ionization_fraction(
         peak * np.exp(-4 * math.log(2) * x**2), (x[1] - x[0]) * fwhm, rate
     )[-1]
 
@@ -354,7 +355,7 @@ def _gaussian_fraction(peak, fwhm, rate):
 @pytest.fixture(scope="module")
 def ar_onset_800():
     return {
-        fwhm: ion.intensity_for_fraction(1e-4, fwhm, "gaussian", 800e-9, _ip("Ar"), 1)
+        fwhm: tables.intensity_for_fraction(1e-4, fwhm, "gaussian", 800e-9, _ip("Ar"), 1)
         for fwhm in (30e-15, 100e-15, 300e-15)
     }
 
@@ -383,7 +384,7 @@ def test_intensity_for_fraction_reproduces_target(fwhm, ar_onset_800):
 
 def test_sech2_onset_close_to_gaussian(ar_onset_800):
     # physics: same FWHM, similar core -> the onset intensity differs by only a few per cent
-    sech2 = ion.intensity_for_fraction(1e-4, 100e-15, "sech2", 800e-9, _ip("Ar"), 1)
+    sech2 = tables.intensity_for_fraction(1e-4, 100e-15, "sech2", 800e-9, _ip("Ar"), 1)
     assert sech2 == pytest.approx(ar_onset_800[100e-15], rel=0.05)
 
 
@@ -423,14 +424,14 @@ def test_other_functions_reject_bad_input():
     with pytest.raises(ConfigError, match=r"ip = -1\.0 J"):
         ion.barrier_suppression_intensity(-1.0)
     with pytest.raises(ConfigError, match=r"dt = 0\.0 s"):
-        ion.ionization_fraction(np.ones(3), 0.0, lambda i: i)
+        tables.ionization_fraction(np.ones(3), 0.0, lambda i: i)
     with pytest.raises(ConfigError, match=r"intensity = -1\.0"):
-        ion.ionization_fraction(np.array([1.0, -1.0]), 1e-15, lambda i: i)
+        tables.ionization_fraction(np.array([1.0, -1.0]), 1e-15, lambda i: i)
     with pytest.raises(ConfigError, match=r"target_fraction = 1\.5"):
-        ion.intensity_for_fraction(1.5, 30e-15, "gaussian", 800e-9, ip, 1)
+        tables.intensity_for_fraction(1.5, 30e-15, "gaussian", 800e-9, ip, 1)
     with pytest.raises(ConfigError, match=r"'square'.*\['gaussian', 'sech2'\]"):
-        ion.intensity_for_fraction(1e-4, 30e-15, "square", 800e-9, ip, 1)
+        tables.intensity_for_fraction(1e-4, 30e-15, "square", 800e-9, ip, 1)
     with pytest.raises(ConfigError, match=r"target_fraction = 0\.0001: not reached"):
-        ion.intensity_for_fraction(
+        tables.intensity_for_fraction(
             1e-4, 30e-15, "gaussian", 800e-9, ip, 1, intensity_bounds=(1e15, 1e16)
         )

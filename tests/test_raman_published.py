@@ -55,8 +55,8 @@ def test_rotational_raman_red_shifts_a_long_pulse():
     from hcfplan.fibers import CapillaryFiber
     from hcfplan.grid import choose_grid
     from hcfplan.materials.gases import GasFill, gas_medium
-    from hcfplan.pulse import pulse_field
     from hcfplan.propagation.solve import propagate
+    from hcfplan.pulse import pulse_field
 
     medium = gas_medium(GasFill(components=(("N2", 1.0),), pressure=2e5, temperature=ROOM))
     fiber = CapillaryFiber(core_radius=100e-6, length=0.5, gas=medium)

@@ -135,7 +135,7 @@ def condensation_ceiling(medium, temperature: float, upper: float) -> float:
 @lru_cache(maxsize=32)
 def _rate_table(model: str, wavelength: float, ip: float, l: int, m: int, charge: int):
     """Tabulated rate (pure function of scalars, cached; the table arrays are read-only)."""
-    from ..ionization import tabulate_rate
+    from ..ionization_tables import tabulate_rate
 
     return tabulate_rate(model, wavelength, ip, l, m, charge, *RATE_TABLE_RANGE, points=41,
                          rtol=RATE_TABLE_RTOL)

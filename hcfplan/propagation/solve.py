@@ -135,7 +135,7 @@ def _ionizing_species(grid: Grid, waveguide, gas, model) -> tuple[tuple, list[st
 @functools.lru_cache(maxsize=32)
 def _rate_table(model, wavelength, potential, l, m, charge):  # noqa: E741 - PPT quantum numbers
     """Rate table (pure, scalar inputs: cached, it costs 1-3 s per gas component)."""
-    from ..ionization import tabulate_rate
+    from ..ionization_tables import tabulate_rate
 
     return tabulate_rate(model, wavelength, potential, l, m, charge, *RATE_TABLE_RANGE)
 
