@@ -18,7 +18,7 @@ from hcfplan.io.config import load_config
 from hcfplan.materials.gases import GasFill, gas_medium
 from hcfplan.planning.build import build_medium, build_waveguide, coupling, pump_omega
 from hcfplan.planning.envelope import envelope_json, envelope_map, thz_cutoff_gaussian_estimate
-from hcfplan.planning.limits_report import weighted_rates
+from hcfplan.planning.limits_gas import weighted_rates
 from hcfplan.planning.validity import quiet_validity
 
 CONFIGS = {p.stem: p for p in

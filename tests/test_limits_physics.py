@@ -13,7 +13,7 @@ from hcfplan import limits
 from hcfplan.constants import eV
 from hcfplan.errors import ConfigError
 from hcfplan.materials.gases import GasFill, gas_medium, load_gas_table
-from hcfplan.planning.limits_report import lowest_barrier_suppression, weighted_rates
+from hcfplan.planning.limits_gas import lowest_barrier_suppression, weighted_rates
 
 W_CM2 = 1e4  # W/cm^2 -> W/m^2
 

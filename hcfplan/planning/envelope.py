@@ -24,7 +24,7 @@ import numpy as np
 from ..constants import c
 from ..errors import ConfigError
 from .build import build_medium, build_waveguide, coupling, pump_omega
-from .limits_report import (
+from .limits_gas import (
     PRESSURE_SEARCH_MAX,
     RATE_TABLE_RANGE,
     ScaledGas,
@@ -156,7 +156,7 @@ def _axes(config, medium, energies, pressures, points):
 @dataclass(frozen=True)
 class _RowwiseGas:
     """GasLike whose density differs per leading index: row i of an omega array sees
-    ``ratios[i]`` N_ref (see :class:`~hcfplan.planning.limits_report.ScaledGas`).
+    ``ratios[i]`` N_ref (see :class:`~hcfplan.planning.limits_gas.ScaledGas`).
 
     Lets one vectorised waveguide evaluation cover the whole pressure axis: every fiber model
     evaluates the gas index element by element, so row i of beta(omega) belongs to pressure i.
