@@ -68,3 +68,27 @@ def test_bad_range(text, fragment):
 def test_bad_goal(strong):
     with pytest.raises(ConfigError, match="--goal = 'fastest'"):
         recommend(strong, "fastest")
+
+
+def test_shortest_ignores_spikes_on_a_pedestal(tmp_path, monkeypatch):
+    # contract (common practice, no source): for the goal "shortest" a compressed pulse with
+    # less than MIN_MAIN_LOBE_FRACTION of its energy in the main lobe does not count, and the
+    # reason is named
+    from hcfplan.planning import recommend as rec
+    from hcfplan.planning import scan
+
+    def fake_point(task):
+        value = task["values"]["gas.pressure_bar"]
+        lobe = 0.2 if value > 2.0 else 0.9  # high pressure: shorter spike, poor pulse
+        return {"status": "ok", "message": "", "values": task["values"],
+                "summary": {"compressed": {"fwhm_s": 10e-15 / value,
+                                           "main_lobe_energy_fraction": lobe}},
+                "margins": {"acceptable": True, "binding": ""}}
+
+    monkeypatch.setattr(scan, "compute_point", fake_point)
+    config = write_fast_config(tmp_path)
+    recs = rec.recommend(config, "shortest", search="gas.pressure_bar=0.5:4", budget=8)
+    best = rec.overall_best(recs)
+    assert best is not None and best.best.value <= 2.0 + 1e-9
+    runner_reasons = [e.binding for r in recs for e in r.evaluations if not e.acceptable]
+    assert any("main-lobe energy fraction 0.2" in b for b in runner_reasons)

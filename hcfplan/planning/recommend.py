@@ -37,6 +37,10 @@ GOALS: dict[str, tuple[str, str, float]] = {
     "peak_power": ("compressed", "peak_power_w", -1.0),
     "thz_cutoff": ("thz", "cutoff_hz", -1.0),
 }
+#: For the goal "shortest", a compressed pulse counts only with at least this share of its
+#: energy in the main lobe: a short spike on a broad pedestal is not a short pulse for a lab
+#: (common practice, no source).
+MIN_MAIN_LOBE_FRACTION = 0.5
 SEARCH_KEYS = ("gas.pressure_bar", "laser.energy_uj")
 #: Default evaluation budget (full chain runs per gas).
 DEFAULT_BUDGET = 12
@@ -216,10 +220,17 @@ class _Runner:
         section, name, _ = GOALS[self.goal]
         objective = record["summary"].get(section, {}).get(name)
         ok = record["status"] == "ok" and objective is not None
+        binding = record["margins"].get("binding", "") or ("" if ok else
+                                                           record["message"] or "run failed")
         acceptable = ok and record["margins"]["acceptable"]
-        self.done[value] = Evaluation(value, record["status"], objective, acceptable,
-                                      record["margins"].get("binding", "") or
-                                      ("" if ok else record["message"] or "run failed"),
+        lobe = record["summary"].get("compressed", {}).get("main_lobe_energy_fraction")
+        if ok and self.goal == "shortest" and (lobe is None or lobe < MIN_MAIN_LOBE_FRACTION):
+            acceptable = False
+            share = "unknown" if lobe is None else f"{lobe:.2g}"
+            binding = ", ".join(b for b in (binding, f"pulse quality: main-lobe energy "
+                                            f"fraction {share} < {MIN_MAIN_LOBE_FRACTION:g}")
+                                if b)
+        self.done[value] = Evaluation(value, record["status"], objective, acceptable, binding,
                                       record)
         return self.done[value]
 
