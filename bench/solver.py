@@ -132,6 +132,17 @@ def _chirped_compression_case():
     return grid, pulse_field(grid, "sech2", 50e-15, 16 * 2 * p1 * t0, gdd=gdd), fiber
 
 
+def _lossy_fission_case():
+    """The fission case over five times the length in a lossy fiber (power down 30 dB over the
+    first fifth): an intense stage, then a long weakly nonlinear stretch (a delivery fiber)."""
+    grid, field0, fiber = _fission_case()
+    first = fiber.length
+    lossy = TaylorFiber(omega0=OMEGA0, betas=fiber.betas, gamma=fiber.gamma, length=5 * first,
+                        loss=math.log(1e3) / (2 * first), self_steepening=True,
+                        raman_fraction=fiber.raman_fraction)
+    return grid, field0, lossy
+
+
 def _error(result, reference) -> float:
     return float(np.max(np.abs(result.field_out_spectrum - reference))
                  / np.max(np.abs(reference)))
@@ -202,3 +213,4 @@ if __name__ == "__main__":
     adaptive_vs_fixed("soliton fission", _fission_case(), tolerances)
     adaptive_vs_fixed("wave breaking", _wave_breaking_case(), tolerances)
     adaptive_vs_fixed("chirped self-compression", _chirped_compression_case(), tolerances)
+    adaptive_vs_fixed("fission then lossy stretch", _lossy_fission_case(), tolerances)
