@@ -25,6 +25,12 @@ def _cli():
     return cli
 
 
+def _out():
+    from . import cli_output
+
+    return cli_output
+
+
 def _gas_dirs():
     import os
 
@@ -34,7 +40,7 @@ def _gas_dirs():
 
 
 def _fmt(value, scale: float = 1.0, digits: int = 4) -> str:
-    return _cli()._fmt(value, scale, digits)
+    return _out()._fmt(value, scale, digits)
 
 
 def _table(header: list[str], rows: list[list[str]]) -> None:
@@ -67,7 +73,7 @@ class _ScanProgress:
     """Overall progress over the points on stderr, only when stderr is a terminal."""
 
     def __init__(self, enabled: bool):
-        self.bar = _cli().TerminalBar(enabled, "scan")
+        self.bar = _out().TerminalBar(enabled, "scan")
 
     def __call__(self, done: int, total: int, record: dict) -> None:
         self.bar.draw(done / max(total, 1), f"{done}/{total} points")
@@ -138,7 +144,6 @@ def scan_command(
 
     from .planning.scan import parse_vary, plan_scan, run_scan
 
-    cli = _cli()
     varies = [parse_vary(text) for text in vary]
     plan = plan_scan(config, varies, overrides=tuple(set_ or ()), extra_gas_dirs=_gas_dirs())
     out_dir = out if out is not None else Path("scans") / config.stem
@@ -152,7 +157,7 @@ def scan_command(
     figures = [] if no_figures else _scan_figures(outcome.out_dir, plan, outcome.records)
     failed = [r for r in outcome.records if r["status"] != "ok"]
     if as_json:
-        cli._print_json(_scan_json(outcome, figures, failed))
+        _out()._print_json(_scan_json(outcome, figures, failed))
     else:
         _print_scan(outcome, figures, failed)
     if failed:
@@ -184,7 +189,6 @@ def _cautions() -> list[str]:
 
 
 def _print_scan(outcome, figures, failed) -> None:
-    cli = _cli()
     header, rows = _scan_rows(outcome.plan, outcome.records)
     _table(header, rows)
     damaged = f", {len(outcome.damaged)} damaged point files recomputed" if outcome.damaged \
@@ -193,7 +197,7 @@ def _print_scan(outcome, figures, failed) -> None:
                f"{len(outcome.reused)} reused{damaged}; {len(failed)} failed.")
     typer.echo(f"Written to {outcome.out_dir}/: table.csv, points/"
                + (f", {', '.join(figures)}" if figures else ""))
-    cli._print_cautions()
+    _out()._print_cautions()
 
 
 # ---------------------------------------------------------------------------------------------
@@ -220,18 +224,17 @@ def recommend_command(
     """Search the allowed pressure (or energy) range for the point that best meets a goal."""
     from .planning.recommend import overall_best, recommend
 
-    cli = _cli()
     gas_list = tuple(g.strip() for g in gases.split(",") if g.strip()) if gases else ()
     recs = recommend(config, goal, search=vary, gases=gas_list, target_thz=target_thz,
                      overrides=tuple(set_ or ()), extra_gas_dirs=_gas_dirs(), budget=budget)
     chosen = overall_best(recs)
     if as_json:
-        cli._print_json({"chosen": _rec_json(chosen) if chosen else None,
+        _out()._print_json({"chosen": _rec_json(chosen) if chosen else None,
                          "searches": [_rec_json(r) for r in recs], "cautions": _cautions()})
     else:
         for rec in recs:
             _print_recommendation(rec, rec is chosen and len(recs) > 1)
-        cli._print_cautions()
+        _out()._print_cautions()
     if chosen is None:
         typer.echo("hcfplan: no point meets the goal within the modelled limits: "
                    + "; ".join(r.reason for r in recs), err=True)
@@ -320,15 +323,15 @@ def compare_command(
     spreads = _compare_spreads(comparison, plans, workers, as_json)
     figures = _compare_outputs(out, comparison, force, spreads) if out is not None else []
     if as_json:
-        cli._print_json({"labels": list(labels), "rows": list(comparison.rows),
+        _out()._print_json({"labels": list(labels), "rows": list(comparison.rows),
                          "margins": {"a": comparison.a.margins, "b": comparison.b.margins},
                          "spread": spreads, "figures": figures, "cautions": _cautions()})
     else:
         _print_comparison(comparison, figures, out)
         for name, side in zip(("A", "B"), (spreads or {}).values(), strict=False):
             typer.echo(f"\n{name}:", nl=False)
-            cli._print_spread({"spread": side})
-        cli._print_cautions()
+            _out()._print_spread({"spread": side})
+        _out()._print_cautions()
 
 
 def _compare_spreads(comparison, plans, workers: int, quiet: bool) -> dict | None:
