@@ -18,7 +18,7 @@ import numpy as np
 
 from ..constants import P_1ATM, T_ROOM
 from .build import build_medium, build_waveguide, coupling, pump_omega
-from .validity import light_band, quiet_validity_of_materials, range_notes
+from .validity import light_band, quiet_validity, quiet_validity_of_materials, range_notes
 
 #: Ambient air assumed for the compressor's air path (dry air at 1 atm and 20 degC).
 AIR_PRESSURE = P_1ATM
@@ -40,6 +40,7 @@ class ChainResult:
     compression: Any | None
     thz: Any | None
     phase_matching: Any | None
+    fiber_report: dict  #: the analytic first-look numbers (:func:`fiber_report`) of the config
     warnings: tuple[str, ...]
 
 
@@ -126,7 +127,8 @@ def _run_chain(config, progress, workers) -> ChainResult:
     return ChainResult(config=config, grid=grid, waveguide=waveguide, medium=medium,
                        coupling_efficiency=efficiency, launched_energy=energy,
                        input_peak_power=peak_in, propagation=result, compression=compression,
-                       thz=thz, phase_matching=pm_map, warnings=tuple(dict.fromkeys(warnings)))
+                       thz=thz, phase_matching=pm_map, fiber_report=report,
+                       warnings=tuple(dict.fromkeys(warnings)))
 
 
 # ---------------------------------------------------------------------------------------------
@@ -143,15 +145,11 @@ def _air_index(omega: np.ndarray) -> np.ndarray:
 
 
 def _material_index(name: str, omega: np.ndarray) -> np.ndarray:
-    import warnings
-
-    from ..errors import ValidityWarning
     from ..materials import solids
 
-    with warnings.catch_warnings():
-        # the broadened grid extends beyond the Sellmeier ranges far outside the spectrum;
-        # range checks on the spectrum itself are reported by the compressor warnings
-        warnings.simplefilter("ignore", ValidityWarning)
+    # the broadened grid extends beyond the Sellmeier ranges far outside the spectrum; the
+    # ranges are checked against the light itself by range_notes
+    with quiet_validity():
         return solids.refractive_index(name, omega)
 
 
@@ -166,12 +164,7 @@ def fixed_phase(config, grid) -> np.ndarray:
         n = _material_index(cell.window_material, omega)
         phase += material_phase(omega, grid.omega0, n, cell.window_thickness)
     if config.compressor.air_path > 0:
-        import warnings
-
-        from ..errors import ValidityWarning
-
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore", ValidityWarning)
+        with quiet_validity():
             n_air = _air_index(omega)
         phase += material_phase(omega, grid.omega0, n_air, config.compressor.air_path)
     return phase
@@ -411,10 +404,8 @@ def limits_part(chain: ChainResult) -> dict:
 
 def summary_dict(chain: ChainResult) -> dict:
     """The ``summary.json`` content (see the README's output reference)."""
-    from .fiber_report import fiber_report
-
     prop = chain.propagation
-    report = fiber_report(chain.config)
+    report = chain.fiber_report
     summary: dict[str, Any] = {}
     summary.update(_input_part(chain))
     summary.update(_fiber_part(chain, report))
