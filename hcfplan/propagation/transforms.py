@@ -22,6 +22,9 @@ References
 ----------
 .. [1] M. Frigo and S. G. Johnson, "The design and implementation of FFTW3," Proc. IEEE,
        vol. 93, no. 2, pp. 216-231, 2005, doi:10.1109/JPROC.2004.840301.
+.. [2] FFTW 3 manual, sec. 4.3.2 "Planner Flags": with FFTW_MEASURE and stronger flags "the
+       input/output arrays are overwritten during planning" unless wisdom is available.
+       [from memory]
 """
 
 from __future__ import annotations
@@ -85,8 +88,14 @@ class FftwTransforms:
         self.transforms = {"c2c": 0, "r2c": 0, "c2r": 0}
 
     def _plan(self, a, b, direction):
-        return self._pyfftw.FFTW(a, b, direction=direction, flags=self._flags,
+        """A plan a -> b. FFTW's measuring planner overwrites both arrays unless it has wisdom
+        for the problem [2]; plans are made lazily, when ``a`` may hold data, so both arrays are
+        saved and restored around the planning."""
+        saved = a.copy(), b.copy()
+        plan = self._pyfftw.FFTW(a, b, direction=direction, flags=self._flags,
                                  threads=self.workers, planning_timelimit=FFTW_PLANNING_LIMIT)
+        a[...], b[...] = saved
+        return plan
 
     def forward(self) -> np.ndarray:
         self.transforms["c2c"] += 1

@@ -1,0 +1,49 @@
+"""FFT back ends of the solver against numpy.fft (a general-purpose reference library).
+
+Kind: contract tests over :data:`hcfplan.propagation.transforms.FFT_BACKENDS`, plus a
+regression test: FFTW's measuring planner overwrites the arrays of a plan it has no wisdom for
+(FFTW 3 manual, sec. 4.3.2 "Planner Flags", from memory); the back end makes plans on first use,
+when the arrays already hold data, and must not lose that data.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+from hcfplan.propagation.transforms import (
+    FFT_BACKENDS,
+    FFTW_MEASURE_POINTS,
+    fftw_available,
+    work_array,
+)
+
+#: A size no other test uses (so no FFTW wisdom exists for it) at which plans are measured.
+POINTS = 9 * 512
+assert POINTS >= FFTW_MEASURE_POINTS
+
+
+@pytest.mark.parametrize("name", sorted(FFT_BACKENDS))
+def test_first_transforms_match_numpy(name):
+    if name == "fftw":
+        if not fftw_available():
+            pytest.skip("pyFFTW not installed (optional)")
+        import pyfftw
+
+        pyfftw.forget_wisdom()
+    rng = np.random.default_rng(7)
+    spectrum = rng.standard_normal(POINTS) + 1j * rng.standard_normal(POINTS)
+    fft = FFT_BACKENDS[name](POINTS)
+    fft.spectrum_in[...] = spectrum
+    a = fft.forward()
+    np.testing.assert_allclose(a, np.fft.fft(spectrum), rtol=0, atol=1e-10 * POINTS)
+    a *= 2.0  # the caller changes the time buffer in place (as the Kerr kernel does)
+    out = work_array(fft, POINTS)
+    fft.backward(a, out)  # first use of this target: a new plan
+    np.testing.assert_allclose(out, 2.0 * POINTS * spectrum, rtol=1e-12, atol=1e-9 * POINTS)
+    real = rng.standard_normal(POINTS)
+    fft.real_in[...] = real
+    half = fft.real_forward()  # first use: both real plans are made here
+    np.testing.assert_allclose(half, np.fft.rfft(real), rtol=0, atol=1e-10 * POINTS)
+    back = fft.real_backward(half)
+    np.testing.assert_allclose(back, POINTS * real, rtol=0, atol=1e-9 * POINTS)
