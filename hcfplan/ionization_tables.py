@@ -79,16 +79,22 @@ class RateTable:
         """Highest tabulated intensity. [W/m^2]"""
         return float(np.exp(self.log_intensity[-1]))
 
+    @functools.cached_property
+    def top_slope(self) -> float:
+        """d ln(rate) / d ln(intensity) used above the table: the mean slope over the top
+        factor e in intensity (steadier than the slope of one PPT cusp). [1]"""
+        x, y = self.log_intensity, self.log_rate
+        k = min(int(np.searchsorted(x, x[-1] - 1.0)), x.size - 2)
+        return float((y[-1] - y[k]) / (x[-1] - x[k]))
+
     def __call__(self, intensity: npt.ArrayLike) -> np.ndarray:
         """Rate [1/s] at ``intensity`` [W/m^2] (float or ndarray)."""
         intensity = np.asarray(intensity, dtype=float)
         x, y = self.log_intensity, self.log_rate
         with np.errstate(divide="ignore"):
             li = np.log(intensity)
-        k = min(int(np.searchsorted(x, x[-1] - 1.0)), x.size - 2)  # mean slope over the last
-        slope_top = (y[-1] - y[k]) / (x[-1] - x[k])  # factor e: steadier than one PPT cusp
         log_w = np.interp(li, x, y)
-        log_w = np.where(li > x[-1], y[-1] + slope_top * (li - x[-1]), log_w)
+        log_w = np.where(li > x[-1], y[-1] + self.top_slope * (li - x[-1]), log_w)
         return np.where(li >= x[0], np.exp(log_w), 0.0)[()]
 
 

@@ -99,3 +99,42 @@ def test_ionisation_stop_level(argon):
     assert not result.success and result.status == "ionization_stop"
     assert "exceeded the stop level 0.001 at z = " in result.message
     assert result.z[-1] < 0.01 and result.spectrum_z.shape[0] == result.z.size
+
+
+@pytest.mark.parametrize("fill", [(("Ar", 1.0),), (("He", 0.5), ("Ar", 0.5))])
+def test_fused_plasma_kernel_matches_numpy_reference(fill):
+    # contract: NonlinearTerms.evaluate (fused kernel) gives the same N(u), ionisation fraction
+    # and electron line density as the numpy reference NonlinearTerms._plasma_time
+    from hcfplan.propagation.operators import NonlinearTerms
+    from hcfplan.propagation.solve import _ionizing_species
+
+    gas = gas_medium(GasFill(fill, 2e5, 293.15))
+    area = CapillaryFiber(core_radius=50e-6, length=0.02, gas=gas).peak_intensity_area
+    fiber = TaylorFiber(omega0=OMEGA_800, betas=(-5e-30,), gamma=gas.n2 * OMEGA_800 / (c * area),
+                        length=0.02, self_steepening=False, mode_area=area)
+    grid = Grid(points=2**11, dt=1.5e-15, omega0=OMEGA_800)
+    species, _ = _ionizing_species(grid, fiber, gas, "ppt")
+    assert len(species) == len(fill)
+    rng = np.random.default_rng(5)
+    gamma = np.full(grid.points, fiber.gamma)
+    response = rng.random(grid.points) * 1e-3  # an arbitrary delayed response
+    terms = NonlinearTerms(grid, gamma, 0.8, response, species, area)
+    u = grid.to_spectrum(pulse_field(grid, "sech2", 30e-15, 80e-6)) * (
+        1 + 0.01 * rng.standard_normal(grid.points))
+    found = terms(u, np.empty(grid.points, complex))
+    fraction, line = terms.ionization_fraction, terms.electron_line_density
+    assert fraction > 1e-4  # ionisation matters: the check is not void
+    # numpy reference of the same terms
+    scale = terms.scale
+    a = np.fft.fft(u)  # = scale A(t)
+    power = np.abs(a) ** 2
+    delayed = np.fft.irfft(np.fft.rfft(power) * terms.response_rfft, n=grid.points) * grid.points
+    plasma = terms._plasma_time(a, power / scale**2)
+    kerr = a * (0.8 * power + delayed)
+    expected = terms.factor * np.fft.ifft(kerr) * grid.points + np.fft.ifft(plasma)
+    assert np.max(np.abs(found - expected)) < 1e-10 * np.max(np.abs(expected))
+    # _plasma_time has set the fraction again, now from the numpy reference
+    assert terms.ionization_fraction == pytest.approx(fraction, rel=1e-12)
+    assert fraction == pytest.approx(line / (area * terms.neutral_density), rel=1e-12)
+    # the recorder's entry point: the same fraction from the power alone
+    assert terms.ionization_of(power / scale**2)[0] == pytest.approx(fraction, rel=1e-12)

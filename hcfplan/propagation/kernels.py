@@ -162,3 +162,81 @@ def multiply_in_place(x, y):  # pragma: no cover - compiled
         xr, xj = X[i, 0], X[i, 1]
         yr, yj = Y[i, 0], Y[i, 1]
         X[i, 0], X[i, 1] = xr * yr - xj * yj, xr * yj + xj * yr
+
+
+@njit(**_JIT)
+def _table_rate(li, x, y, first, top, slope_top):  # pragma: no cover - compiled
+    """Rate of the log-log table (x, y)[first:top + 1] at ln(intensity) ``li`` >= x[first]
+    (RateTable.__call__ for one value). A call with array arguments costs reference counting
+    (about 35 ns): the caller tests li >= x[first] first, and passes indices, not slices."""
+    if li > x[top]:
+        return np.exp(y[top] + slope_top * (li - x[top]))
+    lo, hi = first, top
+    while hi - lo > 1:  # x[lo] <= li <= x[hi]
+        mid = (lo + hi) // 2
+        if x[mid] <= li:
+            lo = mid
+        else:
+            hi = mid
+    if li == x[hi]:
+        return np.exp(y[hi])
+    return np.exp(y[lo] + (y[hi] - y[lo]) / (x[hi] - x[lo]) * (li - x[lo]))
+
+
+@njit(**_JIT)
+def plasma_in_place(a, p, power, delayed, instantaneous, log_i, log_w, starts, slopes,
+                    densities, potentials, to_watt, area, dt, refraction):  # pragma: no cover
+    """Kerr and plasma terms of the field a = scale A(t) in one pass over time.
+
+    power = scale^2 |A|^2 (given); p = a (-i refraction rho - damping) (the plasma terms);
+    a = a (f_i power + delayed) (the Kerr and delayed terms). Species s has the rate table
+    (log_i, log_w)[starts[s]:starts[s+1]] with top slope slopes[s], neutral density
+    densities[s] [1/m^3] and ionisation potential potentials[s] [J]; to_watt = 1/scale^2.
+    rho is the mid-sample electron density of the piecewise-constant-rate solution and the
+    damping the ionisation loss over twice the power, as in ``NonlinearTerms._ionization``
+    (the numpy reference). Returns the electron density at the window's end [1/m^3].
+    """
+    A, P = _pairs(a), _pairs(p)
+    count = densities.size
+    watt_min = np.inf
+    for s in range(count):
+        watt_min = min(watt_min, area * np.exp(log_i[starts[s]]) * (1 - 1e-12))
+    exposure = np.zeros(count)  # sum of W dt over the samples before this one
+    before = np.zeros(count)  # electron density at the start of this sample
+    end = 0.0
+    for i in range(A.shape[0]):
+        watt = power[i] * to_watt
+        # below every table's lowest intensity all rates are 0: no logarithm needed
+        li = np.log(watt / area) if watt >= watt_min else -np.inf
+        rho, loss, end = 0.0, 0.0, 0.0
+        for s in range(count):
+            first, w_dt = starts[s], 0.0
+            if li >= log_i[first]:  # (False for li = nan) below the table the rate is 0
+                w_dt = _table_rate(li, log_i, log_w, first, starts[s + 1] - 1, slopes[s]) * dt
+            increment = 0.0
+            if w_dt > 0:
+                increment = densities[s] * np.exp(-exposure[s]) * (-np.expm1(-w_dt))
+                exposure[s] += w_dt
+            rho += before[s] + 0.5 * increment
+            loss += potentials[s] * increment
+            end += before[s] + increment
+            if w_dt > 0:
+                before[s] = densities[s] * (-np.expm1(-exposure[s]))
+        damping = loss * (area / dt) / (2.0 * watt) if loss > 0 and watt > 0 else 0.0
+        ar, aj = A[i, 0], A[i, 1]
+        cr, ci = -damping, -refraction * rho
+        P[i, 0], P[i, 1] = ar * cr - aj * ci, ar * ci + aj * cr
+        v = instantaneous * power[i] + delayed[i]
+        A[i, 0], A[i, 1] = ar * v, aj * v
+    return end
+
+
+@njit(**_JIT)
+def add_scaled_product(out, factor, extra, weight):  # pragma: no cover - compiled
+    """out = factor out + weight extra (complex arrays, real weight)."""
+    O, F, E = _pairs(out), _pairs(factor), _pairs(extra)
+    for i in range(O.shape[0]):
+        orr, oj = O[i, 0], O[i, 1]
+        fr, fi = F[i, 0], F[i, 1]
+        O[i, 0] = fr * orr - fi * oj + weight * E[i, 0]
+        O[i, 1] = fr * oj + fi * orr + weight * E[i, 1]

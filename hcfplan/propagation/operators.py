@@ -191,7 +191,7 @@ class IonizingSpecies:
 
     number_density: float
     potential: float
-    rate: object  #: callable intensity [W/m^2] -> rate [1/s]
+    rate: object  #: RateTable of :mod:`hcfplan.ionization_tables`: intensity [W/m^2] -> 1/s
 
 
 def plasma_refraction_coefficient(omega0: float) -> float:
@@ -245,6 +245,10 @@ class NonlinearTerms:
         self.ionization_fraction = 0.0
         self.electron_line_density = 0.0
         self.n_calls = 0
+        if species:  # work arrays and packed rate tables of the fused plasma kernel
+            self.plasma_time, self.plasma_spectrum = self.new_work(), self.new_work()
+            self.no_delay = np.zeros(n)
+            self.tables = _packed_tables(species)
 
     def evaluate(self, out: np.ndarray) -> np.ndarray:
         """Raw nonlinear spectrum of the spectrum in :attr:`input` into ``out`` (N = gain out)."""
@@ -258,18 +262,24 @@ class NonlinearTerms:
         power = fft.real_in
         kn.power_of(a, power)  # = scale^2 |A|^2
         if self.response_rfft is None:
-            delayed = np.zeros_like(power)
+            delayed = self.no_delay if self.species else np.zeros_like(power)
         else:
             half = fft.real_forward()
             half *= self.response_rfft
             delayed = fft.real_backward(half)
-        plasma = self._plasma_time(a, power / self.scale**2) if self.species else None
-        kn.delayed_in_place(a, power, delayed, self.instantaneous)
+        if not self.species:
+            kn.delayed_in_place(a, power, delayed, self.instantaneous)
+            fft.backward(a, out)
+            return out
+        end = kn.plasma_in_place(a, self.plasma_time, power, delayed, self.instantaneous,
+                                 *self.tables, 1.0 / self.scale**2, self.intensity_area,
+                                 self.dt, self.refraction)
+        self.ionization_fraction = end / self.neutral_density
+        self.electron_line_density = end * self.intensity_area
         fft.backward(a, out)
-        if plasma is not None:  # N = factor raw_Kerr + grid spectrum of the plasma terms
-            kn.multiply_in_place(out, self.factor)
-            fft.transforms["c2c"] += 1
-            out += sfft.ifft(plasma, overwrite_x=True, workers=fft.workers)
+        fft.backward(self.plasma_time, self.plasma_spectrum)
+        # N = factor raw_Kerr + grid spectrum of the plasma terms (ifft = backward / n)
+        kn.add_scaled_product(out, self.factor, self.plasma_spectrum, 1.0 / out.size)
         return out
 
     def __call__(self, u: np.ndarray, out: np.ndarray) -> np.ndarray:
@@ -279,8 +289,23 @@ class NonlinearTerms:
         np.multiply(raw, self.gain, out=out)
         return out
 
+    def ionization_of(self, power: np.ndarray) -> tuple[float, float]:
+        """Ionisation fraction and electron line density [1/m] left by the power [W] (fused
+        kernel; also stored in :attr:`ionization_fraction` and :attr:`electron_line_density`).
+        """
+        end = self.kernels.plasma_in_place(
+            self.plasma_spectrum, self.plasma_time, power, self.no_delay, 0.0, *self.tables, 1.0,
+            self.intensity_area, self.dt, self.refraction)  # work arrays as scratch
+        self.ionization_fraction = end / self.neutral_density
+        self.electron_line_density = end * self.intensity_area
+        return self.ionization_fraction, self.electron_line_density
+
     def _plasma_time(self, a: np.ndarray, power: np.ndarray) -> np.ndarray:
-        """Time-domain plasma terms (times scale) for the field a = scale * A(t) (module notes)."""
+        """Time-domain plasma terms (times scale) for the field a = scale * A(t) (module notes).
+
+        The numpy reference of the fused kernel :func:`~.kernels.plasma_in_place` (which
+        :meth:`evaluate` uses; a test checks that both agree); ``power`` in W.
+        """
         intensity = power / self.intensity_area
         rho, loss_power = self._ionization(intensity)
         with np.errstate(divide="ignore", invalid="ignore"):
@@ -300,6 +325,19 @@ class NonlinearTerms:
         self.electron_line_density = line * self.intensity_area
         self.ionization_fraction = line / self.neutral_density
         return rho, loss
+
+
+def _packed_tables(species: tuple[IonizingSpecies, ...]) -> tuple[np.ndarray, ...]:
+    """Rate tables of the species for :func:`~.kernels.plasma_in_place`: the concatenated
+    (ln I, ln W) nodes, the start index of each species (and the end), the top slopes, neutral
+    densities [1/m^3] and ionisation potentials [J]."""
+    sizes = [sp.rate.log_intensity.size for sp in species]
+    return (np.concatenate([sp.rate.log_intensity for sp in species]),
+            np.concatenate([sp.rate.log_rate for sp in species]),
+            np.concatenate([[0], np.cumsum(sizes)]).astype(np.int64),
+            np.array([sp.rate.top_slope for sp in species]),
+            np.array([sp.number_density for sp in species], dtype=float),
+            np.array([sp.potential for sp in species], dtype=float))
 
 
 def _electron_density(rate: np.ndarray, density: float, dt: float) -> tuple[np.ndarray, np.ndarray]:

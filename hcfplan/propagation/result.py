@@ -123,6 +123,8 @@ class Recorder:
         self.resonance = _Threshold(RESONANCE_ENERGY_LIMIT)
         far = np.abs(grid.domega) > (1 - 2 * EDGE_ZONE) * np.pi / grid.dt
         self._far_frequency = far
+        self._ascending = np.argsort(grid.frequency, kind="stable")  # sorted once, not per record
+        self._frequency_sorted = grid.frequency[self._ascending]
         k = np.arange(grid.points)
         self._far_time = (k < EDGE_ZONE * grid.points) | (k >= (1 - EDGE_ZONE) * grid.points)
         self._in_band, self._resonances = _resonance_bands(grid, waveguide)
@@ -140,7 +142,8 @@ class Recorder:
         values["peak_power"][i] = float(power.max())
         values["peak_intensity"][i] = float(power.max()) / self.intensity_area
         values["ionization"][i], values["electrons"][i] = self._ionization(power)
-        values["bandwidth"][i] = spectral_width(grid.frequency, density, BANDWIDTH_LEVEL_DB)
+        values["bandwidth"][i] = spectral_width(self._frequency_sorted, density[self._ascending],
+                                                BANDWIDTH_LEVEL_DB)
         if energy > 0:
             far_w = grid.dnu * density[self._far_frequency].sum() / energy
             self.edge_frequency.update(far_w, z)
@@ -162,8 +165,7 @@ class Recorder:
     def _ionization(self, power: np.ndarray) -> tuple[float, float]:
         if self.plasma is None:
             return 0.0, 0.0
-        self.plasma._ionization(power / self.intensity_area)
-        return self.plasma.ionization_fraction, self.plasma.electron_line_density
+        return self.plasma.ionization_of(power)
 
     def edge_warnings(self) -> list[str]:
         """Warnings: pulse at the window edges, spectrum in a fiber resonance band."""

@@ -6,8 +6,8 @@ What a back end provides (the nonlinear terms in :mod:`.operators` rely on these
 2. ``forward() -> ndarray``: the unnormalised FFT of ``spectrum_in`` (= N dt A(t), grid
    convention 2 of :mod:`hcfplan.grid`), written into the back end's time buffer and returned;
    the caller may change that buffer in place.
-3. ``backward(source, out)``: the unnormalised inverse FFT (no 1/N) of ``source`` (a time
-   buffer) into ``out``; ``source`` may be destroyed.
+3. ``backward(source, out)``: the unnormalised inverse FFT (no 1/N) of ``source`` (the time
+   buffer or an array from :func:`work_array`) into ``out``; ``source`` may be destroyed.
 4. ``real_in`` (float, N), ``real_forward() -> half`` and ``real_backward(half) -> ndarray``:
    unnormalised real FFT pair of length N (for the delayed response); ``half`` is the array
    ``real_forward`` returned, changed in place by the caller.
@@ -83,7 +83,7 @@ class FftwTransforms:
         self.half = pyfftw.zeros_aligned(points // 2 + 1, complex)
         self.real_out = pyfftw.zeros_aligned(points, float)
         self._forward = self._plan(self.spectrum_in, self.time, "FFTW_FORWARD")
-        self._backward: dict[int, tuple[np.ndarray, object]] = {}
+        self._backward: dict[tuple[int, int], tuple[np.ndarray, np.ndarray, object]] = {}
         self._real = None
         self.transforms = {"c2c": 0, "r2c": 0, "c2r": 0}
 
@@ -104,13 +104,14 @@ class FftwTransforms:
 
     def backward(self, source: np.ndarray, out: np.ndarray) -> None:
         self.transforms["c2c"] += 1
-        entry = self._backward.get(id(out))
-        if entry is None or source is not self.time or not _aligned(out):
-            if source is not self.time or not _aligned(out):  # foreign arrays: plain scipy
+        entry = self._backward.get((id(source), id(out)))
+        if entry is None or entry[0] is not source or entry[1] is not out:
+            if not (_aligned(source) and _aligned(out)):  # foreign arrays: plain scipy
                 out[...] = sfft.ifft(source, norm="forward")
                 return
-            entry = self._backward[id(out)] = (out, self._plan(self.time, out, "FFTW_BACKWARD"))
-        entry[1].execute()
+            plan = self._plan(source, out, "FFTW_BACKWARD")
+            entry = self._backward[(id(source), id(out))] = (source, out, plan)
+        entry[2].execute()
 
     def real_forward(self) -> np.ndarray:
         self.transforms["r2c"] += 1
