@@ -246,3 +246,28 @@ def test_missing_scheduler_is_one_line_error(fast, tmp_path, monkeypatch):
     plan = plan_scan(fast, [parse_vary("gas.pressure_bar=1,2")])
     with pytest.raises(ConfigError, match="--dask-scheduler tcp://127.0.0.1:1: cannot connect"):
         run_scan(plan, tmp_path / "s", address="tcp://127.0.0.1:1")
+
+
+def test_worker_environment_is_set_for_the_workers_and_restored(monkeypatch):
+    # contract: the numerical libraries of the scan workers run one thread each (the workers
+    # are the parallelism); the parent's environment is left as it was
+    import os
+
+    from hcfplan.planning import scan
+
+    monkeypatch.setenv("OMP_NUM_THREADS", "7")
+    monkeypatch.delenv("OPENBLAS_NUM_THREADS", raising=False)
+    with scan._worker_environment():
+        assert all(os.environ[key] == "1" for key in scan.WORKER_THREADS)
+    assert os.environ["OMP_NUM_THREADS"] == "7"
+    assert "OPENBLAS_NUM_THREADS" not in os.environ
+
+
+def test_worker_preload_modules_import():
+    # the fork server ignores a failing preload silently: check every module imports
+    import importlib
+
+    from hcfplan.planning.scan import WORKER_PRELOAD
+
+    for name in WORKER_PRELOAD:
+        importlib.import_module(name)

@@ -20,10 +20,12 @@ its name or its config, missing fields or a wrong checksum is recomputed.
 
 from __future__ import annotations
 
+import contextlib
 import hashlib
 import itertools
 import json
 import math
+import os
 import time
 from collections.abc import Callable
 from dataclasses import dataclass
@@ -427,9 +429,33 @@ def _run_serial(tasks: list[dict], on_done: Callable[[dict], None], _workers, _a
         on_done(compute_point(task))
 
 
-#: Modules a fork server imports once before forking the scan workers (start-up cost).
+#: Modules a fork server imports once before forking the scan workers (start-up cost); the
+#: last one also loads the compiled solver kernels and the FFT library (about 1.5 s per worker
+#: otherwise, measured with ``bench/scan.py``).
 WORKER_PRELOAD = ["hcfplan.planning.chain", "hcfplan.propagation.solve", "hcfplan.thz",
-                  "hcfplan.compression", "hcfplan.planning.limits_report"]
+                  "hcfplan.compression", "hcfplan.planning.limits_report",
+                  "hcfplan.propagation.warmup"]
+#: Thread counts of the numerical libraries in the scan workers: the workers are the
+#: parallelism. OpenBLAS's own threads (it busy-waits) in two workers on two cores doubled the
+#: time per point (0.29 s instead of 0.15 s, 1024-point grid, bench/scan.py).
+WORKER_THREADS = {"OMP_NUM_THREADS": "1", "OPENBLAS_NUM_THREADS": "1", "MKL_NUM_THREADS": "1",
+                  "NUMBA_NUM_THREADS": "1"}
+
+
+@contextlib.contextmanager
+def _worker_environment():
+    """Set :data:`WORKER_THREADS` in os.environ while worker processes (and the fork server)
+    are started from it, then restore it."""
+    saved = {key: os.environ.get(key) for key in WORKER_THREADS}
+    os.environ.update(WORKER_THREADS)
+    try:
+        yield
+    finally:
+        for key, value in saved.items():
+            if value is None:
+                os.environ.pop(key, None)
+            else:
+                os.environ[key] = value
 
 
 def _pool_context():
@@ -452,7 +478,8 @@ def _run_processes(tasks, on_done, workers: int, _address) -> None:
     context = _pool_context()
     pool = ProcessPoolExecutor(max_workers=min(workers, len(tasks)), mp_context=context)
     try:
-        futures = [pool.submit(compute_point, t) for t in tasks]
+        with _worker_environment():  # the workers start at the first submissions
+            futures = [pool.submit(compute_point, t) for t in tasks]
         for future in as_completed(futures):
             on_done(future.result())
     except BaseException:
