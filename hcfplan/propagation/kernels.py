@@ -155,16 +155,6 @@ def delayed_in_place(a, power, delayed, instantaneous):  # pragma: no cover - co
 
 
 @njit(**_JIT)
-def multiply_in_place(x, y):  # pragma: no cover - compiled
-    """x = x y (complex)."""
-    X, Y = _pairs(x), _pairs(y)
-    for i in range(X.shape[0]):
-        xr, xj = X[i, 0], X[i, 1]
-        yr, yj = Y[i, 0], Y[i, 1]
-        X[i, 0], X[i, 1] = xr * yr - xj * yj, xr * yj + xj * yr
-
-
-@njit(**_JIT)
 def _table_rate(li, x, y, first, top, slope_top):  # pragma: no cover - compiled
     """Rate of the log-log table (x, y)[first:top + 1] at ln(intensity) ``li`` >= x[first]
     (RateTable.__call__ for one value). A call with array arguments costs reference counting
@@ -240,3 +230,23 @@ def add_scaled_product(out, factor, extra, weight):  # pragma: no cover - compil
         fr, fi = F[i, 0], F[i, 1]
         O[i, 0] = fr * orr - fi * oj + weight * E[i, 0]
         O[i, 1] = fr * oj + fi * orr + weight * E[i, 1]
+
+
+def warm_kernels() -> None:
+    """Call every kernel once with 4-point arrays (loads or compiles the machine code; used by
+    :mod:`.warmup` and ``bench/solver.py``). A new kernel is added here."""
+    a, b, c, d, e, f, g, h = (np.ones(4, complex) for _ in range(8))
+    real, zero = np.ones(4), np.zeros(4)
+    stage_first(a, b, c, d, e, f, g, 0.1)
+    stage_middle(a, b, c, d, e, 0.1)
+    stage_last(a, b, c, d, e, 0.1, f)
+    stage_combine(a, b, c, d, e, f, g, h, 0.1)
+    difference_norm2(a, b, c)
+    difference_scaled_rms(a, b, c, d, e, 0.1, 1e-6, 0.0)
+    kerr_in_place(a)
+    power_of(a, real)
+    delayed_in_place(a, real, zero, 1.0)
+    add_scaled_product(a, b, c, 0.5)
+    table = (np.array([30.0, 31.0]), np.array([1.0, 2.0]), np.array([0, 2], dtype=np.int64),
+             np.array([1.0]), np.array([1e25]), np.array([2.5e-18]))
+    plasma_in_place(a, b, real, zero, 1.0, *table, 1.0, 1e-9, 1e-15, 1e-3)
