@@ -8,7 +8,6 @@ the setup still within the modelled limits?". Both configs run the same chain as
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 from typing import Any
 
@@ -48,10 +47,9 @@ class Comparison:
 
 
 def _number(flat: dict, key: str) -> float | None:
-    value = flat.get(key)
-    if isinstance(value, bool) or not isinstance(value, (int, float)):
-        return None
-    return float(value) if math.isfinite(value) else None
+    from .scan import number_or_none
+
+    return number_or_none(flat.get(key), finite=True)
 
 
 def comparison_rows(a: Side, b: Side) -> tuple[dict, ...]:

@@ -232,10 +232,16 @@ def limits_values(config, summary: dict | None = None) -> dict:
     return plain(limits_report(config, run=run))
 
 
+def number_or_none(value, *, finite: bool = False) -> float | None:
+    """``value`` as a float if it is a number (not a bool; with ``finite``, not inf or nan),
+    else None: how the planning tables read a summary or margin value."""
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        return None
+    return None if finite and not math.isfinite(value) else float(value)
+
+
 def _number(flat: dict, name: str) -> float | None:
-    value = flat.get(name)
-    return float(value) if isinstance(value, (int, float)) and not isinstance(value, bool) \
-        else None
+    return number_or_none(flat.get(name))
 
 
 def point_margins(config, report: dict) -> dict:

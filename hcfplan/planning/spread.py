@@ -115,9 +115,9 @@ def corner_tasks(config, spec: SpreadSpec, overrides=(), extra_gas_dirs=()) -> l
 
 def _value(record: dict, section: str, key: str):
     holder = record["margins"] if section == "margins" else record["summary"].get(section, {})
-    value = holder.get(key) if isinstance(holder, dict) else None
-    return float(value) if isinstance(value, (int, float)) and not isinstance(value, bool) \
-        else None
+    from .scan import number_or_none
+
+    return number_or_none(holder.get(key) if isinstance(holder, dict) else None)
 
 
 def _ranges(corners, nominal: dict) -> dict:

@@ -6,13 +6,14 @@ from __future__ import annotations
 import numpy as np
 
 from ..constants import c
+from .levels import decibels, per_wavelength
 
 _FLOOR_DB = -50.0
 _COLOURS = ("C0", "C3")
 
 
 def _db(values: np.ndarray, reference: float) -> np.ndarray:
-    return 10 * np.log10(np.maximum(values / reference, 10 ** (_FLOOR_DB / 10)))
+    return decibels(values, reference, _FLOOR_DB)
 
 
 def draw_spectra(fig, a, b):
@@ -25,8 +26,7 @@ def draw_spectra(fig, a, b):
         freq = np.asarray(grid.frequency)[order]
         dens = np.abs(np.asarray(prop.field_out_spectrum)[order]) ** 2
         keep = freq > 0
-        wl = c / freq[keep]
-        curves.append((wl * 1e9, dens[keep] * c / wl**2))  # J/Hz -> J/m
+        curves.append((c / freq[keep] * 1e9, per_wavelength(freq[keep], dens[keep])))
     peak = max(np.max(d) for _, d in curves)
     for (wl, dens), side, colour in zip(curves, (a, b), _COLOURS, strict=True):
         ax.plot(wl, _db(dens, peak), color=colour, label=side.label)

@@ -11,6 +11,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..constants import c
+from .levels import decibels, per_wavelength
 
 #: Lowest level shown in the logarithmic spectral plots, relative to the peak. [dB]
 DYNAMIC_RANGE_DB = 60.0
@@ -23,12 +24,11 @@ def _per_wavelength(result, density: np.ndarray) -> tuple[np.ndarray, np.ndarray
     grid = result.grid
     wavelength = grid.shifted(grid.wavelength)[::-1]
     values = grid.shifted(np.asarray(density, dtype=float))[..., ::-1]
-    return wavelength * 1e9, values * c / wavelength**2
+    return wavelength * 1e9, per_wavelength(c / wavelength, values)
 
 
 def _db(values: np.ndarray, peak: float) -> np.ndarray:
-    with np.errstate(divide="ignore"):
-        return np.maximum(10 * np.log10(values / peak), -DYNAMIC_RANGE_DB)
+    return decibels(values, peak, -DYNAMIC_RANGE_DB)
 
 
 def _crop(ax, x: np.ndarray, keep: np.ndarray, margin: float = 0.1) -> None:

@@ -12,12 +12,13 @@ from typing import Any
 import numpy as np
 
 from ..constants import c
+from .levels import decibels, per_wavelength
 
 _FLOOR_DB = -60.0  # lowest level drawn on dB axes
 
 
 def _db(power: np.ndarray) -> np.ndarray:
-    return 10.0 * np.log10(np.maximum(power / np.max(power), 10.0 ** (_FLOOR_DB / 10.0)))
+    return decibels(power, np.max(power), _FLOOR_DB)
 
 
 def plot_thz_spectrum(ax: Any, result: Any, *, log_scale: bool = True) -> Any:
@@ -126,9 +127,9 @@ def plot_optical_spectrum(ax: Any, result: Any) -> Any:
     frequency = result.optical_frequency
     keep = frequency > 0
     wavelength_nm = c / frequency[keep] * 1e9
-    per_wavelength = result.optical_spectrum[keep] * frequency[keep] ** 2 / c  # J/Hz -> J/m
-    ax.plot(wavelength_nm, per_wavelength / np.max(per_wavelength))
-    lit = wavelength_nm[per_wavelength > 1e-4 * np.max(per_wavelength)]
+    density = per_wavelength(frequency[keep], result.optical_spectrum[keep])
+    ax.plot(wavelength_nm, density / np.max(density))
+    lit = wavelength_nm[density > 1e-4 * np.max(density)]
     if lit.size:
         span = lit.max() - lit.min()
         ax.set_xlim(lit.min() - 0.1 * span, lit.max() + 0.1 * span)
