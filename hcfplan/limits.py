@@ -189,8 +189,6 @@ def max_pressure_for_self_focusing(
     slow variation of n0), so the real-gas density, not p/(k_B T), fixes the answer at high
     pressure. Validity as :func:`self_focusing_power`.
     """
-    from scipy.optimize import brentq  # lazy: keeps CLI start-up short
-
     _check_positive("peak_power", peak_power, "W")
     _check_margin(margin)
     lo, hi = (float(p) for p in pressure_range)
@@ -201,12 +199,20 @@ def max_pressure_for_self_focusing(
     def excess(log_p: float) -> float:
         return math.log(critical_power_at(math.exp(log_p)) / target)
 
-    f_lo, f_hi = excess(math.log(lo)), excess(math.log(hi))
-    if f_hi >= 0:
+    return _falling_crossing(excess, lo, hi, 1e-13)
+
+
+def _falling_crossing(excess: Callable[[float], float], lo: float, hi: float,
+                      tol: float) -> float:
+    """x in [lo, hi] where ``excess(ln x)`` (decreasing) crosses 0, by Brent's method in ln x
+    with tolerance ``tol``; ``inf`` if excess >= 0 still at ``hi``, ``nan`` if < 0 at ``lo``."""
+    from scipy.optimize import brentq  # lazy: keeps CLI start-up short
+
+    if excess(math.log(hi)) >= 0:
         return math.inf
-    if f_lo < 0:
+    if excess(math.log(lo)) < 0:
         return math.nan
-    return math.exp(brentq(excess, math.log(lo), math.log(hi), xtol=1e-13, rtol=1e-13))
+    return math.exp(brentq(excess, math.log(lo), math.log(hi), xtol=tol, rtol=tol))
 
 
 def max_energy_for_self_focusing(
@@ -391,8 +397,6 @@ def peak_intensity_for_fraction(
         fraction stays below the limit over the range, ``nan`` if it exceeds it at the bottom.
         [W/m^2]
     """
-    from scipy.optimize import brentq
-
     weights = sum(w for w, _ in rates)
     if not 0 < fraction_limit < weights:
         raise ConfigError(
@@ -401,16 +405,11 @@ def peak_intensity_for_fraction(
     if not 0 < lo < hi:
         raise ConfigError(f"intensity_range = ({lo}, {hi}) W/m^2: need 0 < min < max")
 
-    def excess(log_i: float) -> float:
+    def margin_left(log_i: float) -> float:  # ln(limit / fraction): falls with intensity
         rho = pulse_ionization_fraction(math.exp(log_i), duration_fwhm, shape, rates)
-        return math.log(max(rho, 1e-300) / fraction_limit)
+        return math.log(fraction_limit / max(rho, 1e-300))
 
-    f_lo, f_hi = excess(math.log(lo)), excess(math.log(hi))
-    if f_hi < 0:
-        return math.inf
-    if f_lo > 0:
-        return math.nan
-    return math.exp(brentq(excess, math.log(lo), math.log(hi), xtol=1e-12, rtol=1e-12))
+    return _falling_crossing(margin_left, lo, hi, 1e-12)
 
 
 def energy_from_peak_intensity(
