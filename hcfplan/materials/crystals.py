@@ -40,11 +40,7 @@ import numpy as np
 
 from ..constants import c, eV
 from ..errors import ConfigError, ValidityWarning
-
-try:
-    import tomllib
-except ModuleNotFoundError:  # Python 3.10
-    import tomli as tomllib
+from .table_files import read_table_toml
 
 OpticalModelName = Literal["sellmeier_pole_um", "sellmeier_pole_um2", "tabulated_um", "constant"]
 ThzModelName = Literal["lorentz", "constant"]
@@ -188,17 +184,7 @@ def load_crystal(name: str, search_dirs: Sequence[str | Path] = ()) -> CrystalTa
         raise ConfigError(
             f"crystal = {name!r}: unknown; valid names: {', '.join(crystal_names(search_dirs))}"
         )
-    try:
-        data = tomllib.loads(entry.read_text(encoding="utf-8"))
-    except tomllib.TOMLDecodeError as exc:
-        raise ConfigError(f"{entry.name}: not valid TOML: {exc}") from exc
-    except UnicodeDecodeError as exc:
-        raise ConfigError(f"{entry.name}: not UTF-8 text ({exc.reason} at byte {exc.start})"
-                          ) from None
-    except OSError as exc:
-        raise ConfigError(f"{entry.name}: cannot read ({exc.strerror})") from None
-    except ValueError as exc:  # e.g. an integer literal longer than Python converts
-        raise ConfigError(f"{entry.name}: not valid TOML: {str(exc).splitlines()[0]}") from None
+    data = read_table_toml(entry, entry.name)
     return _table_from_dict(data, str(entry))
 
 

@@ -40,11 +40,7 @@ import numpy as np
 from ..constants import eV
 from ..errors import ConfigError
 from ..units import SUFFIXES
-
-try:  # Python >= 3.11
-    import tomllib
-except ModuleNotFoundError:  # pragma: no cover - Python 3.10
-    import tomli as tomllib
+from .table_files import read_table_toml
 
 #: Environment variable with extra table directories (os.pathsep-separated); read only by
 #: :func:`gas_search_dirs` when the caller passes an environment mapping.
@@ -579,24 +575,10 @@ def _all_dirs(search_dirs: Sequence[str | Path]) -> tuple[str, ...]:
     return tuple(str(Path(d).resolve()) for d in search_dirs) + (str(shipped_gas_dir()),)
 
 
-def _parse(path: Path) -> dict:
-    try:
-        with path.open("rb") as handle:
-            return tomllib.load(handle)
-    except tomllib.TOMLDecodeError as err:
-        raise ConfigError(f"{path}: not valid TOML: {err}") from err
-    except UnicodeDecodeError as err:
-        raise ConfigError(f"{path}: not UTF-8 text ({err.reason} at byte {err.start})") from None
-    except OSError as err:
-        raise ConfigError(f"{path}: cannot read ({err.strerror})") from None
-    except ValueError as err:  # e.g. an integer literal longer than Python converts
-        raise ConfigError(f"{path}: not valid TOML: {str(err).splitlines()[0]}") from None
-
-
 def _identifiers(path: Path) -> set[str]:
     """Lower-case symbol and name of a table (empty if the file cannot be parsed)."""
     try:
-        gas = _parse(path).get("gas", {})
+        gas = read_table_toml(path).get("gas", {})
     except ConfigError:
         return set()
     if not isinstance(gas, Mapping):
@@ -617,7 +599,7 @@ def _stems(dirs: tuple[str, ...]) -> list[str]:
 
 @lru_cache(maxsize=64)
 def _load_file(path: str) -> GasTable:
-    return _table_from_data(_parse(Path(path)), path)
+    return _table_from_data(read_table_toml(path), path)
 
 
 def _find_table(name: str, dirs: tuple[str, ...]) -> Path:

@@ -32,14 +32,10 @@ from pathlib import Path
 
 import numpy as np
 
-try:  # Python >= 3.11
-    import tomllib
-except ModuleNotFoundError:  # pragma: no cover - Python 3.10
-    import tomli as tomllib
-
 from ..constants import c
 from ..derivatives import derivative_table
 from ..errors import ConfigError, ValidityWarning
+from .table_files import read_table_toml
 
 _MICROMETRE = 1e-6  # [m]
 _NANOMETRE = 1e-9  # [m]
@@ -225,16 +221,7 @@ def read_solid_table(path: str | Path) -> dict[str, SolidMaterial]:
         negative value; the message names the file and the key.
     """
     path = Path(path)
-    try:
-        data = tomllib.loads(path.read_text(encoding="utf-8"))
-    except tomllib.TOMLDecodeError as exc:
-        raise ConfigError(f"{path}: not valid TOML ({exc})") from exc
-    except UnicodeDecodeError as exc:
-        raise ConfigError(f"{path}: not UTF-8 text ({exc.reason} at byte {exc.start})") from None
-    except OSError as exc:
-        raise ConfigError(f"{path}: cannot read ({exc.strerror})") from None
-    except ValueError as exc:  # e.g. an integer literal longer than Python converts
-        raise ConfigError(f"{path}: not valid TOML ({str(exc).splitlines()[0]})") from None
+    data = read_table_toml(path)
     return {name: _parse_material(name, rec, str(path)) for name, rec in data.items()}
 
 

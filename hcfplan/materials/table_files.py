@@ -1,0 +1,33 @@
+"""Reading the TOML files of the gas, solid and crystal tables (one place for the messages).
+
+The materials layer does not import :mod:`hcfplan.io`; this is its own small reader. Every
+failure becomes one :class:`~hcfplan.errors.ConfigError` line that names the file.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Any
+
+from ..errors import ConfigError
+
+try:  # Python >= 3.11
+    import tomllib
+except ModuleNotFoundError:  # pragma: no cover - Python 3.10
+    import tomli as tomllib
+
+
+def read_table_toml(path: str | Path, label: str | None = None) -> dict[str, Any]:
+    """Parse the table file ``path``; messages start with ``label`` (default: the path)."""
+    path = Path(path)
+    name = str(path) if label is None else label
+    try:
+        return tomllib.loads(path.read_text(encoding="utf-8"))
+    except tomllib.TOMLDecodeError as exc:
+        raise ConfigError(f"{name}: not valid TOML: {exc}") from None
+    except UnicodeDecodeError as exc:
+        raise ConfigError(f"{name}: not UTF-8 text ({exc.reason} at byte {exc.start})") from None
+    except OSError as exc:
+        raise ConfigError(f"{name}: cannot read ({exc.strerror})") from None
+    except ValueError as exc:  # e.g. an integer literal longer than Python converts
+        raise ConfigError(f"{name}: not valid TOML: {str(exc).splitlines()[0]}") from None
