@@ -245,9 +245,9 @@ class NonlinearTerms:
         self.ionization_fraction = 0.0
         self.electron_line_density = 0.0
         self.n_calls = 0
+        self.no_delay = np.zeros(n)  # the delayed term without a delayed response
         if species:  # work arrays and packed rate tables of the fused plasma kernel
             self.plasma_time, self.plasma_spectrum = self.new_work(), self.new_work()
-            self.no_delay = np.zeros(n)
             self.tables = _packed_tables(species)
 
     def evaluate(self, out: np.ndarray) -> np.ndarray:
@@ -262,7 +262,7 @@ class NonlinearTerms:
         power = fft.real_in
         kn.power_of(a, power)  # = scale^2 |A|^2
         if self.response_rfft is None:
-            delayed = self.no_delay if self.species else np.zeros_like(power)
+            delayed = self.no_delay
         else:
             half = fft.real_forward()
             half *= self.response_rfft
