@@ -41,7 +41,7 @@ from .errors import ConfigError
 from .materials.crystals import CrystalTable, coherence_length, optical_group_index, thz_index
 
 #: Below this |Delta k L| the slab integral is evaluated by its Taylor series.
-_SERIES_LIMIT = 1e-4
+SERIES_LIMIT = 1e-4
 
 
 def phase_matching_integral(
@@ -74,7 +74,7 @@ def phase_matching_integral(
     delta_k = np.asarray(delta_k, dtype=complex)
     k_out = np.asarray(k_out, dtype=complex)
     x = 1j * delta_k * thickness
-    small = np.abs(x) < _SERIES_LIMIT
+    small = np.abs(x) < SERIES_LIMIT
     safe = np.where(small, 1.0, delta_k)
     direct = (np.exp(1j * (k_out + delta_k) * thickness) - np.exp(1j * k_out * thickness)) / (
         1j * safe
