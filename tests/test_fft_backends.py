@@ -24,12 +24,16 @@ assert POINTS >= FFTW_MEASURE_POINTS
 
 
 @pytest.mark.parametrize("name", sorted(FFT_BACKENDS))
-def test_first_transforms_match_numpy(name):
+def test_first_transforms_match_numpy(name, tmp_path, monkeypatch):
     if name == "fftw":
         if not fftw_available():
             pytest.skip("pyFFTW not installed (optional)")
         import pyfftw
 
+        from hcfplan.io.fftw_wisdom import forget_loaded
+
+        monkeypatch.setenv("HCFPLAN_CACHE_DIR", str(tmp_path))  # no wisdom file either
+        forget_loaded()
         pyfftw.forget_wisdom()
     rng = np.random.default_rng(7)
     spectrum = rng.standard_normal(POINTS) + 1j * rng.standard_normal(POINTS)

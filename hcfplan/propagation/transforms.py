@@ -90,11 +90,16 @@ class FftwTransforms:
     def _plan(self, a, b, direction):
         """A plan a -> b. FFTW's measuring planner overwrites both arrays unless it has wisdom
         for the problem [2]; plans are made lazily, when ``a`` may hold data, so both arrays are
-        saved and restored around the planning."""
+        saved and restored around the planning. Wisdom is read from and written to hcfplan's
+        cache folder (:mod:`hcfplan.io.fftw_wisdom`)."""
+        from ..io.fftw_wisdom import load_wisdom, save_wisdom
+
+        load_wisdom(self._pyfftw)  # plans measured by earlier runs (hcfplan.io.fftw_wisdom)
         saved = a.copy(), b.copy()
         plan = self._pyfftw.FFTW(a, b, direction=direction, flags=self._flags,
                                  threads=self.workers, planning_timelimit=FFTW_PLANNING_LIMIT)
         a[...], b[...] = saved
+        save_wisdom(self._pyfftw)
         return plan
 
     def forward(self) -> np.ndarray:

@@ -1,0 +1,111 @@
+"""FFTW wisdom kept on disk between runs, so a new process does not measure its plans again.
+
+FFTW's measuring planner times candidate algorithms for each transform size; the result
+("wisdom") lets a later planner skip that [1]. Without a file, every new process of hcfplan
+measured its plans again: 0.7 s of a 0.5 s scan point at N = 8192 (first point of each scan
+worker and of every ``simulate``, profile of bench/scan.py's config). Wisdom only chooses among
+algorithms that all compute the same transform, so results agree to rounding (about 1e-16)
+with or without it; a file from another machine of the same kind is still correct, only
+perhaps slower.
+
+File: ``fftw-wisdom.json`` in the cache folder (``HCFPLAN_CACHE_DIR``, else
+``$XDG_CACHE_HOME/hcfplan``, else ``~/.cache/hcfplan``), a JSON object with ``format``
+(``hcfplan-fftw-wisdom``), ``version`` (1), ``fftw`` (pyFFTW's version), ``machine`` (processor
+architecture and model) and ``wisdom`` (FFTW's three wisdom texts: double, single, long
+double). A file that is unreadable, of another format, pyFFTW version or machine is ignored
+and replaced; a cache folder that cannot be written is not an error (the plans are then
+measured in each process, as before).
+
+References
+----------
+.. [1] M. Frigo and S. G. Johnson, "The design and implementation of FFTW3," Proc. IEEE,
+       vol. 93, no. 2, pp. 216-231, 2005, doi:10.1109/JPROC.2004.840301.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import platform
+from pathlib import Path
+
+WISDOM_FORMAT = "hcfplan-fftw-wisdom"
+WISDOM_VERSION = 1
+WISDOM_FILE = "fftw-wisdom.json"
+
+#: Per process: whether the file was read, and the wisdom last written or read.
+_state: dict = {"loaded": False, "known": None}
+
+
+def cache_dir() -> Path:
+    """hcfplan's cache folder: ``HCFPLAN_CACHE_DIR``, ``$XDG_CACHE_HOME/hcfplan`` or
+    ``~/.cache/hcfplan`` (common practice on Linux, XDG base directory specification)."""
+    if os.environ.get("HCFPLAN_CACHE_DIR"):
+        return Path(os.environ["HCFPLAN_CACHE_DIR"])
+    base = os.environ.get("XDG_CACHE_HOME") or str(Path.home() / ".cache")
+    return Path(base) / "hcfplan"
+
+
+def _machine() -> str:
+    model = ""
+    try:
+        with open("/proc/cpuinfo", encoding="utf-8", errors="replace") as handle:
+            model = next((line.split(":", 1)[1].strip() for line in handle
+                          if line.startswith("model name")), "")
+    except OSError:
+        pass
+    return f"{platform.machine()} {model or platform.processor()}".strip()
+
+
+def _header(pyfftw) -> dict:
+    return {"format": WISDOM_FORMAT, "version": WISDOM_VERSION,
+            "fftw": str(getattr(pyfftw, "__version__", "")), "machine": _machine()}
+
+
+def _read(pyfftw) -> tuple[bytes, ...] | None:
+    try:
+        data = json.loads((cache_dir() / WISDOM_FILE).read_text(encoding="ascii"))
+    except (OSError, UnicodeDecodeError, ValueError):
+        return None
+    if not isinstance(data, dict) or any(data.get(k) != v for k, v in _header(pyfftw).items()):
+        return None
+    texts = data.get("wisdom")
+    if not (isinstance(texts, list) and len(texts) == 3 and all(isinstance(t, str) for t in texts)):
+        return None
+    return tuple(t.encode("ascii", errors="replace") for t in texts)
+
+
+def load_wisdom(pyfftw) -> None:
+    """Give FFTW the wisdom of the cache file, once per process (before the first plan)."""
+    if _state["loaded"]:
+        return
+    _state["loaded"] = True
+    wisdom = _read(pyfftw)
+    if wisdom is not None:
+        pyfftw.import_wisdom(wisdom)
+    _state["known"] = pyfftw.export_wisdom()
+
+
+def save_wisdom(pyfftw) -> None:
+    """Write FFTW's wisdom to the cache file if it grew since the last read or write (merged
+    with what another process wrote meanwhile; atomic: temporary file + rename)."""
+    from .results import write_text
+
+    wisdom = pyfftw.export_wisdom()
+    if wisdom == _state["known"]:
+        return
+    on_disk = _read(pyfftw)
+    if on_disk is not None:
+        pyfftw.import_wisdom(on_disk)
+        wisdom = pyfftw.export_wisdom()
+    data = dict(_header(pyfftw), wisdom=[w.decode("ascii", errors="replace") for w in wisdom])
+    try:
+        write_text(cache_dir() / WISDOM_FILE, json.dumps(data) + "\n")
+    except OSError:
+        pass  # a cache that cannot be written only costs planning time (module docstring)
+    _state["known"] = wisdom
+
+
+def forget_loaded() -> None:
+    """Read the file again before the next plan (for tests that change the cache folder)."""
+    _state["loaded"], _state["known"] = False, None

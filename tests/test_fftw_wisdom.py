@@ -1,0 +1,85 @@
+"""FFTW wisdom kept on disk (hcfplan.io.fftw_wisdom): written after planning, read by a new
+process before its first plan, ignored when damaged or foreign, never an error."""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pytest
+
+from hcfplan.io import fftw_wisdom
+from hcfplan.propagation.transforms import FFTW_MEASURE_POINTS, FftwTransforms, fftw_available
+
+pytestmark = pytest.mark.skipif(not fftw_available(), reason="pyFFTW not installed (optional)")
+#: A measured size no other test uses.
+POINTS = 5 * 1024
+assert POINTS >= FFTW_MEASURE_POINTS
+
+
+@pytest.fixture()
+def fresh(tmp_path, monkeypatch):
+    """An empty cache folder and a process state as after start-up (no wisdom in memory)."""
+    import pyfftw
+
+    monkeypatch.setenv("HCFPLAN_CACHE_DIR", str(tmp_path))
+    fftw_wisdom.forget_loaded()
+    pyfftw.forget_wisdom()
+    yield tmp_path
+    fftw_wisdom.forget_loaded()
+
+
+def _wisdom_only_plan(pyfftw):
+    a, b = pyfftw.zeros_aligned(POINTS, complex), pyfftw.zeros_aligned(POINTS, complex)
+    return pyfftw.FFTW(a, b, flags=("FFTW_MEASURE", "FFTW_DESTROY_INPUT", "FFTW_WISDOM_ONLY"))
+
+
+def test_plans_measured_once_are_read_by_a_new_process(fresh):
+    """FFTW_WISDOM_ONLY plans succeed only from wisdom: after a restart (wisdom forgotten) the
+    forward plan of the back end is found again through the file."""
+    import pyfftw
+
+    FftwTransforms(POINTS)
+    data = json.loads((fresh / fftw_wisdom.WISDOM_FILE).read_text())
+    assert data["format"] == fftw_wisdom.WISDOM_FORMAT and len(data["wisdom"]) == 3
+    pyfftw.forget_wisdom()
+    fftw_wisdom.forget_loaded()
+    with pytest.raises(RuntimeError):
+        _wisdom_only_plan(pyfftw)
+    fftw_wisdom.load_wisdom(pyfftw)
+    plan = _wisdom_only_plan(pyfftw)
+    x = np.random.default_rng(3).standard_normal(POINTS) + 0j
+    plan.input_array[...] = x
+    np.testing.assert_allclose(plan(), np.fft.fft(x), rtol=0, atol=1e-10 * POINTS)
+
+
+@pytest.mark.parametrize("content", ["not json {", json.dumps([1, 2]),
+                                     json.dumps({"format": "hcfplan-fftw-wisdom", "version": 1,
+                                                 "fftw": "0.0", "machine": "other",
+                                                 "wisdom": ["", "", ""]})])
+def test_damaged_or_foreign_file_is_ignored_and_replaced(fresh, content):
+    import pyfftw
+
+    path = fresh / fftw_wisdom.WISDOM_FILE
+    path.write_text(content)
+    fft = FftwTransforms(POINTS)
+    fft.spectrum_in[...] = 1.0
+    assert fft.forward()[0] == pytest.approx(POINTS)
+    data = json.loads(path.read_text())
+    assert data["fftw"] == pyfftw.__version__ and data["wisdom"][0].startswith("(fftw")
+
+
+def test_unwritable_cache_is_not_an_error(tmp_path, monkeypatch):
+    import pyfftw
+
+    blocker = tmp_path / "a-file"
+    blocker.write_text("")
+    monkeypatch.setenv("HCFPLAN_CACHE_DIR", str(blocker / "cache"))  # below a file: no folder
+    fftw_wisdom.forget_loaded()
+    pyfftw.forget_wisdom()
+    try:
+        fft = FftwTransforms(POINTS)
+        fft.spectrum_in[...] = 1.0
+        assert fft.forward()[0] == pytest.approx(POINTS)
+    finally:
+        fftw_wisdom.forget_loaded()
