@@ -8,13 +8,12 @@ algorithms that all compute the same transform, so results agree to rounding (ab
 with or without it; a file from another machine of the same kind is still correct, only
 perhaps slower.
 
-File: ``fftw-wisdom.json`` in the cache folder (``HCFPLAN_CACHE_DIR``, else
-``$XDG_CACHE_HOME/hcfplan``, else ``~/.cache/hcfplan``), a JSON object with ``format``
-(``hcfplan-fftw-wisdom``), ``version`` (1), ``fftw`` (pyFFTW's version), ``machine`` (processor
-architecture and model) and ``wisdom`` (FFTW's three wisdom texts: double, single, long
-double). A file that is unreadable, of another format, pyFFTW version or machine is ignored
-and replaced; a cache folder that cannot be written is not an error (the plans are then
-measured in each process, as before).
+File: ``fftw-wisdom.json`` in hcfplan's cache folder (:func:`.cache.cache_dir`), a JSON
+object with ``format`` (``hcfplan-fftw-wisdom``), ``version`` (1), ``fftw`` (pyFFTW's
+version), ``machine`` (processor architecture and model) and ``wisdom`` (FFTW's three wisdom
+texts: double, single, long double). A file that is unreadable, of another format, pyFFTW
+version or machine is ignored and replaced; a cache folder that cannot be written is not an
+error (the plans are then measured in each process, as before).
 
 References
 ----------
@@ -25,9 +24,9 @@ References
 from __future__ import annotations
 
 import json
-import os
 import platform
-from pathlib import Path
+
+from .cache import cache_dir
 
 WISDOM_FORMAT = "hcfplan-fftw-wisdom"
 WISDOM_VERSION = 1
@@ -35,15 +34,6 @@ WISDOM_FILE = "fftw-wisdom.json"
 
 #: Per process: whether the file was read, and the wisdom last written or read.
 _state: dict = {"loaded": False, "known": None}
-
-
-def cache_dir() -> Path:
-    """hcfplan's cache folder: ``HCFPLAN_CACHE_DIR``, ``$XDG_CACHE_HOME/hcfplan`` or
-    ``~/.cache/hcfplan`` (common practice on Linux, XDG base directory specification)."""
-    if os.environ.get("HCFPLAN_CACHE_DIR"):
-        return Path(os.environ["HCFPLAN_CACHE_DIR"])
-    base = os.environ.get("XDG_CACHE_HOME") or str(Path.home() / ".cache")
-    return Path(base) / "hcfplan"
 
 
 def _machine() -> str:

@@ -134,10 +134,11 @@ def _ionizing_species(grid: Grid, waveguide, gas, model) -> tuple[tuple, list[st
 
 @functools.lru_cache(maxsize=32)
 def _rate_table(model, wavelength, potential, l, m, charge):  # noqa: E741 - PPT quantum numbers
-    """Rate table (pure, scalar inputs: cached, it costs 1-3 s per gas component)."""
-    from ..ionization_tables import tabulate_rate
+    """Rate table (pure, scalar inputs: cached in memory and in hcfplan's cache folder, it
+    costs 1-3 s per gas component to compute)."""
+    from ..io.cache import cached_rate_table
 
-    return tabulate_rate(model, wavelength, potential, l, m, charge, *RATE_TABLE_RANGE)
+    return cached_rate_table(model, wavelength, potential, l, m, charge, *RATE_TABLE_RANGE)
 
 
 def _build(grid, waveguide, gas, opts):
