@@ -15,6 +15,9 @@ from pathlib import Path
 import typer
 
 from .cli_output import (
+    JSON_HELP,
+    SET_HELP,
+    SPREAD_WORKERS_HELP,
     TerminalBar,
     _echo,
     _fmt,
@@ -38,8 +41,6 @@ app = typer.Typer(
     help="Plan pulse compression in gas-filled hollow-core fibers and the THz it drives.",
 )
 
-SET_HELP = "Override one config value, e.g. --set gas.pressure_bar=3 (repeatable)."
-JSON_HELP = "Print machine-readable JSON (SI values, unit in the key name)."
 
 
 # ---------------------------------------------------------------------------------------------
@@ -201,8 +202,7 @@ def simulate_command(
         None, "--spread", help="Input uncertainty band, e.g. energy=5%,pressure=2%,fwhm=5%: the "
         "chain also runs at its corners and reports the ranges; 'default' uses the [spread] "
         "keys of the config."),
-    workers: int = typer.Option(0, "--workers", help="Processes for the --spread corners "
-                                "(default: all cores)."),
+    workers: int = typer.Option(0, "--workers", help=SPREAD_WORKERS_HELP),
 ) -> None:
     """Run fiber (GNLSE) -> compressor -> THz and write summary.json, fields.npz and figures."""
     from .io.results import prepare_output_dir

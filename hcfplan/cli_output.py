@@ -13,6 +13,12 @@ from pathlib import Path
 
 import typer
 
+#: Help texts of options that several commands share.
+SET_HELP = "Override one config value, e.g. --set gas.pressure_bar=3 (repeatable)."
+JSON_HELP = "Print machine-readable JSON (SI values, unit in the key name)."
+SPREAD_WORKERS_HELP = ("Corners of --spread computed at a time, by this process and worker "
+                       "processes (default: all cores).")
+
 
 def _echo(text: str = "") -> None:
     typer.echo(text)

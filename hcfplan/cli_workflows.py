@@ -13,10 +13,10 @@ from typing import Optional
 
 import typer
 
-SET_HELP = "Override one config value, e.g. --set gas.pressure_bar=3 (repeatable)."
+from .cli_output import JSON_HELP, SET_HELP, SPREAD_WORKERS_HELP
+
 VARY_HELP = ("Varied key: section.key=START:STOP:COUNT (COUNT linearly spaced values, both "
              "ends included; numeric keys) or section.key=a,b,c (any key). Give one or two.")
-JSON_HELP = "Print machine-readable JSON (SI values, unit in the key name)."
 
 
 def _cli():
@@ -124,8 +124,8 @@ def scan_command(
     config: Path = typer.Argument(..., help="Config TOML file."),
     vary: list[str] = typer.Option(..., "--vary", help=VARY_HELP),
     workers: Optional[int] = typer.Option(  # noqa: UP007, UP045 (typer needs Optional)
-        None, "--workers", help="Local worker processes (default: all cores); 1 runs the "
-        "points in this process."),
+        None, "--workers", help="Points computed at a time, by this process and local worker "
+        "processes (default: all cores); 1 runs the points in this process only."),
     dask_scheduler: Optional[str] = typer.Option(  # noqa: UP007, UP045
         None, "--dask-scheduler", help="Run the points on a running Dask scheduler at this "
         "address (needs 'distributed'; the workers must have hcfplan installed)."),
@@ -301,8 +301,7 @@ def compare_command(
     spread: Optional[str] = typer.Option(  # noqa: UP007, UP045
         None, "--spread", help="Input uncertainty band for both setups, e.g. "
         "energy=5%,pressure=2%,fwhm=5% ('default': the [spread] keys of each config)."),
-    workers: int = typer.Option(0, "--workers", help="Processes for the --spread corners "
-                                "(default: all cores)."),
+    workers: int = typer.Option(0, "--workers", help=SPREAD_WORKERS_HELP),
     as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
 ) -> None:
     """Run two setups and show them side by side with B - A and B / A."""

@@ -26,6 +26,8 @@ import itertools
 import json
 import math
 import os
+import queue
+import threading
 import time
 from collections.abc import Callable
 from dataclasses import dataclass
@@ -477,19 +479,73 @@ def _pool_context():
     return multiprocessing.get_context("spawn")
 
 
-def _run_processes(tasks, on_done, workers: int, _address) -> None:
-    """Local process pool (see :func:`_pool_context`); each worker serves many points."""
-    from concurrent.futures import ProcessPoolExecutor, as_completed
+class _ParentWorker:
+    """The parent's own share of a local-process run: a daemon thread that takes tasks with
+    ``take()`` until it gives None, and puts ``(self, record or None, exception or None)`` on
+    ``results``. It feeds itself, so it keeps computing while the main thread waits for the
+    pool's first process (the fork server imports first). A daemon thread, so an interrupted
+    CLI exits without waiting for the point in progress (only the main thread writes files)."""
 
-    context = _pool_context()
-    pool = ProcessPoolExecutor(max_workers=min(workers, len(tasks)), mp_context=context)
+    def __init__(self, take: Callable[[], dict | None], results: queue.Queue) -> None:
+        self._take, self._results = take, results
+        threading.Thread(target=self._serve, name="hcfplan-scan-parent", daemon=True).start()
+
+    def _serve(self) -> None:
+        while (task := self._take()) is not None:
+            try:
+                self._results.put((self, compute_point(task), None))
+            except BaseException as exc:  # handed to the main thread, which raises it
+                self._results.put((self, None, exc))
+                return
+
+
+def _run_processes(tasks, on_done, workers: int, _address) -> None:
+    """``workers`` points at a time: ``workers - 1`` pool processes (see :func:`_pool_context`)
+    and the parent itself, in a thread (:class:`_ParentWorker`), which starts at once: the
+    first points are computed while the fork server imports :data:`WORKER_PRELOAD` (about
+    2.5 s, during which starting a pool process blocks the main thread). A pool process is
+    given its next task when it hands in a result (no queued tasks: none waits behind a long
+    point at the end). BLAS runs one thread in the parent meanwhile (threadpoolctl), as in the
+    workers (:data:`WORKER_THREADS`)."""
+    from concurrent.futures import ProcessPoolExecutor
+
+    from threadpoolctl import threadpool_limits
+
+    pending = list(reversed(tasks))  # pop() gives plan order
+    lock = threading.Lock()
+    stopped = False
+
+    def take() -> dict | None:
+        with lock:
+            return pending.pop() if pending and not stopped else None
+
+    results: queue.Queue = queue.Queue()
+    children = min(workers, len(tasks)) - 1
+    pool = ProcessPoolExecutor(max_workers=children, mp_context=_pool_context())
+
+    def give_pool() -> None:
+        task = take()
+        if task is not None:
+            pool.submit(compute_point, task).add_done_callback(
+                lambda future: results.put((pool, future, None)))
+
     try:
-        with _worker_environment():  # the workers start at the first submissions
-            futures = [pool.submit(compute_point, t) for t in tasks]
-        for future in as_completed(futures):
-            on_done(future.result())
+        with threadpool_limits(limits=1):
+            parent = _ParentWorker(take, results)
+            with _worker_environment():  # the pool's processes start at these submissions
+                for _ in range(children):
+                    give_pool()
+            for _ in range(len(tasks)):
+                worker, record, error = results.get()
+                if error is not None:
+                    raise error
+                on_done(record if worker is parent else record.result())
+                if worker is pool:
+                    give_pool()
     except BaseException:
         # interrupted (Ctrl-C, SIGTERM via the CLI) or a bug: stop the pool's own workers
+        with lock:
+            stopped = True
         workers_started = list(getattr(pool, "_processes", {}).values())
         pool.shutdown(wait=False, cancel_futures=True)
         for process in workers_started:
