@@ -240,6 +240,46 @@ def test_dask_and_local_pool_give_identical_tables(fast, tmp_path):
         (tmp_path / "dask" / "table.csv").read_text()
 
 
+def test_parent_computes_points_beside_the_pool(fast, tmp_path, monkeypatch):
+    # contract: with --workers 2 the parent takes the first point at once (it does not wait for
+    # the fork server) and the pool process gets one at the start; together they compute
+    # every point once, and the table equals the serial one
+    from hcfplan.planning import scan
+
+    taken = []
+
+    class Counting(scan._ParentWorker):
+        def __init__(self, take, results):
+            def counted():
+                task = take()
+                if task is not None:
+                    taken.append(task["key"])
+                return task
+            super().__init__(counted, results)
+
+    monkeypatch.setattr(scan, "_ParentWorker", Counting)
+    plan = plan_scan(fast, [parse_vary("gas.pressure_bar=1:2:4")])
+    both = run_scan(plan, tmp_path / "both", workers=2)
+    assert both.executor == "processes" and sorted(both.computed) == sorted(p.key for p in
+                                                                            plan.points)
+    assert taken[0] == plan.points[0].key and 1 <= len(taken) <= 3
+    run_scan(plan, tmp_path / "serial", workers=1)
+    assert (tmp_path / "both" / "table.csv").read_text() == \
+        (tmp_path / "serial" / "table.csv").read_text()
+
+
+def test_parent_worker_hands_a_bug_to_the_main_thread():
+    # a non-validation exception in the parent's own point reaches the caller, it is not lost
+    import queue
+
+    from hcfplan.planning import scan
+
+    tasks, results = [{"raw": {}}], queue.Queue()
+    worker = scan._ParentWorker(lambda: tasks.pop() if tasks else None, results)
+    source, record, error = results.get(timeout=30)
+    assert source is worker and record is None and isinstance(error, KeyError)
+
+
 def test_missing_scheduler_is_one_line_error(fast, tmp_path, monkeypatch):
     pytest.importorskip("distributed")
     monkeypatch.setattr("hcfplan.planning.scan.DASK_CONNECT_TIMEOUT", 0.5)
