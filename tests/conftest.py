@@ -8,9 +8,9 @@ import tempfile
 
 
 def pytest_configure(config):
-    """Keep hcfplan's cache (FFTW wisdom, hcfplan.io.fftw_wisdom) in a folder of this session,
-    also for the CLI subprocesses the tests start: no test reads plans measured by another run
-    or writes into the user's cache."""
+    """Keep hcfplan's cache folder (FFTW wisdom and rate tables, hcfplan.io.cache) in a folder
+    of this session, also for the CLI subprocesses the tests start: no test reads what another
+    run stored or writes into the user's cache."""
     folder = tempfile.mkdtemp(prefix="hcfplan-test-cache-")
     config._hcfplan_cache = folder
     os.environ["HCFPLAN_CACHE_DIR"] = folder

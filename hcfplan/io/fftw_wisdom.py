@@ -2,11 +2,11 @@
 
 FFTW's measuring planner times candidate algorithms for each transform size; the result
 ("wisdom") lets a later planner skip that [1]. Without a file, every new process of hcfplan
-measured its plans again: 0.7 s of a 0.5 s scan point at N = 8192 (first point of each scan
-worker and of every ``simulate``, profile of bench/scan.py's config). Wisdom only chooses among
-algorithms that all compute the same transform, so results agree to rounding (about 1e-16)
-with or without it; a file from another machine of the same kind is still correct, only
-perhaps slower.
+measured its plans again: 0.7 s in the first point of every ``simulate`` and scan worker at
+N = 8192, where a warm point of bench/scan.py's config takes 0.5 s (profiled). Wisdom only
+chooses among algorithms that all compute the same transform, so results agree to rounding
+(about 1e-16) with or without it; a file from another machine of the same kind is still
+correct, only perhaps slower.
 
 File: ``fftw-wisdom.json`` in hcfplan's cache folder (:func:`.cache.cache_dir`), a JSON
 object with ``format`` (``hcfplan-fftw-wisdom``), ``version`` (1), ``fftw`` (pyFFTW's
@@ -23,6 +23,7 @@ References
 
 from __future__ import annotations
 
+import functools
 import json
 import platform
 
@@ -36,6 +37,7 @@ WISDOM_FILE = "fftw-wisdom.json"
 _state: dict = {"loaded": False, "known": None}
 
 
+@functools.lru_cache(maxsize=1)
 def _machine() -> str:
     model = ""
     try:
