@@ -151,9 +151,10 @@ def _fission_case(points: int = 2**13):
 
 
 def _wave_breaking_case(points: int = 2**13):
-    """N = 15 Gaussian in normal dispersion over 3 L_D: the peak power falls as it spreads."""
+    """N = 15 Gaussian in normal dispersion over 3 L_D: the peak power falls as it spreads. The
+    time window is 32.8 ps at every N (at 16.4 ps, 3 % of the energy reached its edges)."""
     t0 = 100e-15
-    grid = Grid(points=points, dt=2.0e-15, omega0=OMEGA0)
+    grid = Grid(points=points, dt=32.768e-12 / points, omega0=OMEGA0)
     beta2 = 20e-27
     p0 = 225 * beta2 / (0.11 * t0**2)
     fiber = TaylorFiber(omega0=OMEGA0, betas=(beta2,), gamma=0.11, length=3 * t0**2 / beta2,
