@@ -42,7 +42,6 @@ app = typer.Typer(
 )
 
 
-
 # ---------------------------------------------------------------------------------------------
 # config loading (output helpers: hcfplan.cli_output)
 
