@@ -1,5 +1,9 @@
 """hcfplan's cache folder (hcfplan.io.cache): a cached rate table is the computed one, is read
-back instead of computed again, and a damaged file or unwritable folder is never an error."""
+back instead of computed again, and a damaged file or unwritable folder is never an error.
+
+Invariant checks: a cache returns exactly what the formula computes (common practice, no
+source); the reference values are hcfplan's own tabulate_rate, whose published checks are in
+tests/test_ionization.py."""
 
 from __future__ import annotations
 
@@ -10,7 +14,8 @@ from hcfplan import ionization_tables
 from hcfplan.io import cache
 
 EV = 1.602176634e-19
-#: Argon at 800 nm: Ip 15.76 eV (NIST ASD), 3p shell l = 1, m = 0; a narrow range keeps it fast.
+#: Argon at 800 nm: Ip 15.7596 eV (NIST Atomic Spectra Database, ionization energies), 3p
+#: shell l = 1, m = 0; a narrow intensity range keeps the test fast.
 ARGON = ("ppt", 800e-9, 15.7596 * EV, 1, 0, 1, 1e16, 1e18)
 
 
@@ -61,6 +66,8 @@ def test_readable_file_with_wrong_content_is_not_used(folder):
     np.savez(path, log_intensity=np.array([2.0, 1.0]), log_rate=np.array([0.0, 0.0]))
     table = cache.cached_rate_table(*ARGON)
     np.testing.assert_array_equal(table.log_rate, ionization_tables.tabulate_rate(*ARGON).log_rate)
+    with np.load(path) as stored:  # and the file is replaced by the computed table
+        np.testing.assert_array_equal(stored["log_rate"], table.log_rate)
 
 
 def test_unwritable_folder_is_not_an_error(tmp_path, monkeypatch):

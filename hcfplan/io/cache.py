@@ -50,15 +50,21 @@ def _fingerprint(kind: str, inputs: tuple, sources: tuple[Path, ...]) -> str:
 
 
 def cached_arrays(kind: str, inputs: tuple, sources: tuple[Path, ...],
-                  compute: Callable[[], dict[str, np.ndarray]]) -> dict[str, np.ndarray]:
+                  compute: Callable[[], dict[str, np.ndarray]],
+                  sound: Callable[[dict[str, np.ndarray]], bool] = lambda arrays: True,
+                  ) -> dict[str, np.ndarray]:
     """The arrays ``compute()`` returns, read from ``<kind>-<key>.npz`` in the cache folder when
-    an earlier run stored them for the same ``inputs`` and ``sources`` (module docstring)."""
+    an earlier run stored them for the same ``inputs`` and ``sources`` (module docstring). A
+    file that cannot be read, or whose arrays ``sound`` rejects, is computed again and
+    replaced."""
     from .results import write_npz
 
     path = cache_dir() / f"{kind}-{_fingerprint(kind, inputs, sources)}.npz"
     try:
         with np.load(path, allow_pickle=False) as stored:
-            return {name: stored[name] for name in stored.files}
+            arrays = {name: stored[name] for name in stored.files}
+        if sound(arrays):
+            return arrays
     except (OSError, ValueError, EOFError, zipfile.BadZipFile):
         pass  # missing or damaged: computed again and replaced
     arrays = compute()
@@ -69,11 +75,17 @@ def cached_arrays(kind: str, inputs: tuple, sources: tuple[Path, ...],
     return arrays
 
 
+def _sound_rate_table(arrays: dict[str, np.ndarray]) -> bool:
+    x, y = arrays.get("log_intensity"), arrays.get("log_rate")
+    return (x is not None and y is not None and x.ndim == y.ndim == 1 and x.size == y.size >= 2
+            and bool(np.all(np.diff(x) > 0)) and bool(np.all(np.isfinite(x))))
+
+
 def cached_rate_table(model: str, wavelength: float, ip: float, l: int, m: int,  # noqa: E741
                       charge: int, intensity_min: float, intensity_max: float):
     """:func:`hcfplan.ionization_tables.tabulate_rate` with its default accuracy, kept in the
     cache folder (the same numbers: the nodes and log rates are stored exactly)."""
-    from .. import ionization, ionization_tables
+    from .. import constants, ionization, ionization_tables
     from ..ionization_tables import RateTable, tabulate_rate
 
     def compute() -> dict[str, np.ndarray]:
@@ -82,13 +94,9 @@ def cached_rate_table(model: str, wavelength: float, ip: float, l: int, m: int, 
 
     inputs = (model, float(wavelength), float(ip), int(l), int(m), int(charge),
               float(intensity_min), float(intensity_max))
-    arrays = cached_arrays("rate-table", inputs,
-                           (Path(ionization.__file__), Path(ionization_tables.__file__)), compute)
-    x, y = arrays.get("log_intensity"), arrays.get("log_rate")
-    sound = (x is not None and y is not None and x.ndim == y.ndim == 1 and x.size == y.size >= 2
-             and bool(np.all(np.diff(x) > 0)) and bool(np.all(np.isfinite(x))))
-    if not sound:  # a readable file of wrong content: use the formula
-        return tabulate_rate(model, wavelength, ip, l, m, charge, intensity_min, intensity_max)
+    sources = tuple(Path(module.__file__) for module in (constants, ionization, ionization_tables))
+    arrays = cached_arrays("rate-table", inputs, sources, compute, _sound_rate_table)
+    x, y = arrays["log_intensity"], arrays["log_rate"]
     x.setflags(write=False)
     y.setflags(write=False)
     return RateTable(log_intensity=x, log_rate=y, model=model)
