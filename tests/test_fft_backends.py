@@ -51,3 +51,34 @@ def test_first_transforms_match_numpy(name, tmp_path, monkeypatch):
     np.testing.assert_allclose(half, np.fft.rfft(real), rtol=0, atol=1e-10 * POINTS)
     back = fft.real_backward(half)
     np.testing.assert_allclose(back, POINTS * real, rtol=0, atol=1e-9 * POINTS)
+
+
+_IMPORT_CHECK = """
+import importlib.util, sys
+from hcfplan.propagation.transforms import import_pyfftw
+if {dask_first}:
+    import dask.array.fft
+pyfftw = import_pyfftw()
+print(int("dask.array" in sys.modules), int(hasattr(pyfftw.interfaces, "dask_fft")),
+      int(sys.modules.get("dask.array.fft", 0) is None))
+import dask.array.fft
+print(int(callable(dask.array.fft.fft)))
+"""
+
+
+@pytest.mark.parametrize("dask_first", [False, True])
+def test_pyfftw_import_leaves_dask_alone(dask_first):
+    """Without Dask imported, pyFFTW is imported without its Dask interface (0.4 s of start-up)
+    and Dask imports as usual afterwards; with Dask already imported nothing is blocked.
+    Contract test of import_pyfftw (a fresh interpreter each)."""
+    import subprocess
+    import sys
+
+    if not fftw_available():
+        pytest.skip("pyFFTW not installed (optional)")
+    pytest.importorskip("dask.array")
+    code = _IMPORT_CHECK.format(dask_first=dask_first)
+    out = subprocess.run([sys.executable, "-c", code], check=True, capture_output=True,
+                         text=True).stdout.split()
+    expected = ["1", "1", "0", "1"] if dask_first else ["0", "0", "0", "1"]
+    assert out == expected

@@ -77,10 +77,20 @@ def _env() -> dict:
     return dict(os.environ, PYTHONPATH=str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", ""))
 
 
+def _default_sigint() -> None:
+    """In the child before exec: SIGINT as in a terminal's foreground job. A shell starts a
+    background job with SIGINT ignored and an ignored signal stays ignored across exec (POSIX;
+    Python then installs no KeyboardInterrupt handler), so a test suite started with ``&``
+    would see Ctrl-C ignored, as it should be for a background job. Common practice, no
+    source."""
+    signal.signal(signal.SIGINT, signal.SIG_DFL)
+
+
 def _start(config: Path, out: Path) -> subprocess.Popen:
     return subprocess.Popen([sys.executable, "-m", "hcfplan", "simulate", str(config), "--out",
                              str(out), "--quiet"], env=_env(), cwd=config.parent,
-                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True,
+                            preexec_fn=_default_sigint)
 
 
 def _wait_for(condition, proc: subprocess.Popen, timeout: float = 60.0) -> None:
