@@ -80,3 +80,21 @@ def test_unwritable_cache_is_not_an_error(fresh, monkeypatch):
     fft = FftwTransforms(POINTS)
     fft.spectrum_in[...] = 1.0
     assert fft.forward()[0] == pytest.approx(POINTS)
+
+
+def test_file_of_an_earlier_version_is_measured_again(fresh):
+    """Version 1 files hold plans measured under a 0.5 s time limit (cut short at N = 16384):
+    their wisdom is not used, and the file is replaced by one of the current version."""
+    import pyfftw
+
+    FftwTransforms(POINTS)
+    path = fresh / fftw_wisdom.WISDOM_FILE
+    data = json.loads(path.read_text())
+    path.write_text(json.dumps(dict(data, version=1)))
+    fftw_wisdom.forget_loaded()
+    pyfftw.forget_wisdom()
+    fftw_wisdom.load_wisdom(pyfftw)
+    with pytest.raises(RuntimeError):
+        _wisdom_only_plan(pyfftw)
+    FftwTransforms(POINTS)
+    assert json.loads(path.read_text())["version"] == fftw_wisdom.WISDOM_VERSION == 2

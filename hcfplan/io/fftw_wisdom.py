@@ -9,11 +9,12 @@ chooses among algorithms that all compute the same transform, so results agree t
 correct, only perhaps slower.
 
 File: ``fftw-wisdom.json`` in hcfplan's cache folder (:func:`.cache.cache_dir`), a JSON
-object with ``format`` (``hcfplan-fftw-wisdom``), ``version`` (1), ``fftw`` (pyFFTW's
-version), ``machine`` (processor architecture and model) and ``wisdom`` (FFTW's three wisdom
-texts: double, single, long double). A file that is unreadable, of another format, pyFFTW
-version or machine is ignored and replaced; a cache folder that cannot be written is not an
-error (the plans are then measured in each process, as before).
+object with ``format`` (``hcfplan-fftw-wisdom``), ``version`` (2; files of version 1 hold
+plans whose measurement a 0.5 s time limit cut short, and are measured again), ``fftw``
+(pyFFTW's version), ``machine`` (processor architecture and model) and ``wisdom`` (FFTW's
+three wisdom texts: double, single, long double). A file that is unreadable, of another
+format, version, pyFFTW version or machine is ignored and replaced; a cache folder that cannot
+be written is not an error (the plans are then measured in each process, as before).
 
 References
 ----------
@@ -30,7 +31,7 @@ import platform
 from .cache import cache_dir
 
 WISDOM_FORMAT = "hcfplan-fftw-wisdom"
-WISDOM_VERSION = 1
+WISDOM_VERSION = 2
 WISDOM_FILE = "fftw-wisdom.json"
 
 #: Per process: whether the file was read, and the wisdom last written or read.
