@@ -212,6 +212,8 @@ def simulate_command(
     spread_plan = _spread_plan(cfg, spread, set_ or [])
     out_dir = prepare_output_dir(out if out is not None else _default_out_dir(config),
                                  force=force)
+    if spread_plan is not None:
+        _start_worker_server(workers)  # imports on another core while the nominal chain runs
     bar = _Progress(not quiet and not as_json)
     try:
         chain = run_chain(cfg, progress=bar)
@@ -249,6 +251,15 @@ def _spread_plan(cfg, text: str | None, overrides: list[str]):
     spec = parse_spread(text)
     dirs = tuple(gas_search_dirs(environ=os.environ))
     return spec, corner_tasks(cfg, spec, overrides, dirs)
+
+
+def _start_worker_server(workers: int) -> None:
+    """Start the local worker processes' fork server now (see start_worker_server)."""
+    import os
+
+    from .planning.scan import start_worker_server
+
+    start_worker_server(workers or os.cpu_count() or 1)
 
 
 def _run_spread(cfg, chain, plan, workers: int, quiet: bool):

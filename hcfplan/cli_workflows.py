@@ -145,6 +145,8 @@ def scan_command(
     from .planning.scan import parse_vary, plan_scan, run_scan
 
     varies = [parse_vary(text) for text in vary]
+    if dask_scheduler is None:  # the fork server imports while the points are planned
+        _cli()._start_worker_server(workers or 0)
     plan = plan_scan(config, varies, overrides=tuple(set_ or ()), extra_gas_dirs=_gas_dirs())
     out_dir = out if out is not None else Path("scans") / config.stem
     bar = _ScanProgress(not as_json)
@@ -318,6 +320,8 @@ def compare_command(
                                                                      (cfg_b, over_b))]
     labels = (str(config_a), str(config_b) if config_b is not None else
               f"{config_a} with " + " ".join(set_b or []))
+    if plans[0] is not None:  # the fork server imports while the nominal chains run
+        cli._start_worker_server(workers)
     comparison = compare_configs(cfg_a, cfg_b, labels)
     spreads = _compare_spreads(comparison, plans, workers, as_json)
     figures = _compare_outputs(out, comparison, force, spreads) if out is not None else []

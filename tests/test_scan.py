@@ -311,3 +311,44 @@ def test_worker_preload_modules_import():
 
     for name in WORKER_PRELOAD:
         importlib.import_module(name)
+
+
+_SERVER_CHECK = """
+import os, sys, time
+from pathlib import Path
+from hcfplan.planning.scan import start_worker_server
+
+def children():
+    found = []
+    for stat in Path("/proc").glob("[0-9]*/stat"):
+        try:
+            fields = stat.read_text().rsplit(")", 1)[1].split()
+        except OSError:
+            continue
+        if int(fields[1]) == os.getpid():
+            found.append(int(stat.parent.name))
+    return found
+
+os.environ["OMP_NUM_THREADS"] = "7"
+start_worker_server(int(sys.argv[1]))
+time.sleep(0.2)
+kids = children()  # the fork server and multiprocessing's resource tracker
+env = [Path(f"/proc/{pid}/environ").read_bytes().split(b"\\0") for pid in kids]
+one_thread = all(b"OMP_NUM_THREADS=1" in e for e in env)
+print(int(len(kids) > 0), int(one_thread), os.environ["OMP_NUM_THREADS"])
+"""
+
+
+@pytest.mark.skipif(not Path("/proc/self/stat").exists(), reason="needs /proc (Linux)")
+@pytest.mark.parametrize(("workers", "expected"), [(1, ["0", "1", "7"]), (2, ["1", "1", "7"])])
+def test_worker_server_starts_early_with_the_worker_environment(workers, expected):
+    """Contract: with more than one worker the fork server is started at once (it imports while
+    the command plans), in the workers' one-thread environment; the caller's is unchanged."""
+    import multiprocessing
+
+    if "forkserver" not in multiprocessing.get_all_start_methods():
+        pytest.skip("no fork server on this platform")
+    env = dict(os.environ, PYTHONPATH=str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", ""))
+    out = subprocess.run([sys.executable, "-c", _SERVER_CHECK, str(workers)], env=env,
+                         check=True, capture_output=True, text=True, timeout=120).stdout.split()
+    assert out == expected

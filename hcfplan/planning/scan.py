@@ -479,6 +479,24 @@ def _pool_context():
     return multiprocessing.get_context("spawn")
 
 
+def start_worker_server(workers: int) -> None:
+    """Start the fork server of the local worker processes now, when ``workers`` > 1.
+
+    The server imports :data:`WORKER_PRELOAD` (about 2 s) before it can fork the first worker.
+    A command that will run points on local processes calls this first, so the server imports
+    on another core while the command loads its config and plans (scan: 0.5-1 s) or runs its
+    nominal chain (``--spread``: a whole point). Without a fork server (``spawn``), or with one
+    worker, nothing is done; a server that is already running is kept.
+    """
+    context = _pool_context()
+    if workers <= 1 or context.get_start_method() != "forkserver":
+        return
+    from multiprocessing import forkserver
+
+    with _worker_environment():  # the server's environment is the workers' environment
+        forkserver.ensure_running()
+
+
 class _ParentWorker:
     """The parent's own share of a local-process run: a daemon thread that takes tasks with
     ``take()`` until it gives None, and puts ``(self, record or None, exception or None)`` on
