@@ -87,21 +87,19 @@ class _ScanProgress:
 
 
 def _scan_figures(out_dir: Path, plan, records) -> list[str]:
-    from .io.results import write_figure
+    from .io.results import write_figures
     from .plotting import scan as plots
 
     keys = tuple(v.key for v in plan.varies)
     values = tuple(v.values for v in plan.varies)
-    names = []
     if len(keys) == 1:
-        write_figure(out_dir / "spectrum_map.png", plots.draw_spectrum_map, keys[0], values[0],
-                     records)
-        write_figure(out_dir / "results.png", plots.draw_results_1d, keys[0], values[0], records)
-        names = ["spectrum_map.png", "results.png"]
+        jobs = [(out_dir / "spectrum_map.png", plots.draw_spectrum_map,
+                 (keys[0], values[0], records)),
+                (out_dir / "results.png", plots.draw_results_1d, (keys[0], values[0], records))]
     else:
-        write_figure(out_dir / "results_map.png", plots.draw_results_2d, keys, values, records)
-        names = ["results_map.png"]
-    return names
+        jobs = [(out_dir / "results_map.png", plots.draw_results_2d, (keys, values, records))]
+    write_figures(jobs)
+    return [path.name for path, _, _ in jobs]
 
 
 def _scan_rows(plan, records) -> tuple[list[str], list[list[str]]]:
@@ -353,14 +351,13 @@ def _compare_spreads(comparison, plans, workers: int, quiet: bool) -> dict | Non
 
 
 def _compare_outputs(out: Path, comparison, force: bool, spreads=None) -> list[str]:
-    from .io.results import prepare_output_dir, write_figure, write_json
+    from .io.results import prepare_output_dir, write_figures, write_json
     from .plotting.compare import FIGURES
 
     out_dir = prepare_output_dir(out, force=force)
-    names = []
-    for stem, draw in FIGURES.items():
-        write_figure(out_dir / f"{stem}.png", draw, comparison.a, comparison.b)
-        names.append(f"{stem}.png")
+    write_figures([(out_dir / f"{stem}.png", draw, (comparison.a, comparison.b))
+                   for stem, draw in FIGURES.items()])
+    names = [f"{stem}.png" for stem in FIGURES]
     write_json(out_dir / "comparison.json", {
         "labels": [comparison.a.label, comparison.b.label], "rows": list(comparison.rows),
         "a": {"summary": comparison.a.summary, "margins": comparison.a.margins},

@@ -9,7 +9,7 @@ from __future__ import annotations
 from pathlib import Path
 
 from ..planning.chain import ChainResult, field_arrays, summary_dict
-from .results import write_figure, write_json, write_npz, write_text
+from .results import write_figures, write_json, write_npz, write_text
 from .tomlio import dump_toml
 
 
@@ -32,11 +32,11 @@ def write_run(out_dir: Path, chain: ChainResult, *, figures: bool = True, spread
     if figures:
         from ..plotting import report
 
-        for name, draw in report.FIGURES.items():
-            if report.applies(name, chain):
-                write_figure(out_dir / f"{name}.png", draw, chain)
+        jobs = [(out_dir / f"{name}.png", draw, (chain,))
+                for name, draw in report.FIGURES.items() if report.applies(name, chain)]
         if spread is not None and spread.corners:
-            write_figure(out_dir / "spread.png", report.draw_spread, chain, spread)
+            jobs.insert(2, (out_dir / "spread.png", report.draw_spread, (chain, spread)))
+        write_figures(jobs)
         summary["figures"] = sorted(p.name for p in out_dir.glob("*.png"))
     write_json(out_dir / "summary.json", summary)
     return summary
