@@ -124,3 +124,19 @@ def test_sigterm_during_the_figures_leaves_complete_files_and_no_helper(tmp_path
         assert proc.returncode == 0 and "all written" in proc.stdout, proc.stderr
         assert names == [f"f{k}.png" for k in range(6)]
     assert sorted(p.name for p in folder.iterdir()) == names
+
+
+def _draw_stuck_in_helper(fig, k, log):
+    if os.getpid() != PARENT:
+        time.sleep(3600)  # a helper that never finishes its figure
+    _draw(fig, k, log)
+
+
+def test_stuck_helper_is_killed_and_its_figure_drawn_here(tmp_path, monkeypatch):
+    monkeypatch.setattr(results, "HELPER_STALL_LIMIT", 1.0)
+    jobs, log = _jobs(tmp_path / "two", _draw_stuck_in_helper)
+    start = time.monotonic()
+    results.write_figures(jobs)
+    assert time.monotonic() - start < 30
+    drawn = {p.name: p.read_bytes() for p in (tmp_path / "two").iterdir()}
+    assert drawn == _serial(tmp_path / "one")

@@ -16,6 +16,7 @@ import os
 import signal
 import tempfile
 import threading
+import time
 from collections.abc import Callable, Iterator
 from pathlib import Path
 from typing import Any
@@ -195,14 +196,35 @@ def write_figures(jobs: list[FigureJob]) -> None:
     try:
         with _child_stopped_on_sigterm(child):
             serve()
-            child.join()
+            _wait_while_busy(child, done)
     finally:
         if child.is_alive():
             child.terminate()  # SIGTERM: held until the child's current file is complete
             child.join()
     for index, (path, draw, args) in enumerate(jobs):
         if not done[index]:
+            for stale in path.parent.glob(f".{path.name}.*"):  # of a child that was killed
+                stale.unlink(missing_ok=True)
             write_figure(path, draw, *args)
+
+
+#: Longest wait [s] for the helper of :func:`write_figures` to finish a figure once this process
+#: has drawn its share (a figure takes 0.3-2 s). A helper that exceeds it is taken to be stuck
+#: (a fork can in principle inherit a lock held by another thread) and is killed; its figures
+#: are then drawn here.
+HELPER_STALL_LIMIT = 120.0
+
+
+def _wait_while_busy(child, done) -> None:
+    """Wait for ``child`` to end; kill it if no figure is completed for HELPER_STALL_LIMIT."""
+    count, since = sum(done), time.monotonic()
+    while child.is_alive():
+        child.join(0.1)
+        if sum(done) != count:
+            count, since = sum(done), time.monotonic()
+        elif time.monotonic() - since > HELPER_STALL_LIMIT:
+            child.kill()
+            child.join()
 
 
 def _serve_in_child(serve: Callable[[], None]) -> None:
