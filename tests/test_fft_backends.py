@@ -54,7 +54,7 @@ def test_first_transforms_match_numpy(name, tmp_path, monkeypatch):
 
 
 _IMPORT_CHECK = """
-import importlib.util, sys
+import sys
 from hcfplan.propagation.transforms import import_pyfftw
 if {dask_first}:
     import dask.array.fft
