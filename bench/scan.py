@@ -75,6 +75,43 @@ def machine_ceiling() -> float:
     return serial / parallel
 
 
+def handoff_latency(interval: float) -> tuple[float, float]:
+    """(start of a new pool process, median submit-to-start of a task) [s] with a busy Python
+    thread beside the main thread (the parent's compute thread of a scan) at the given switch
+    interval; the fork server is started and warm first. The task is ``time.perf_counter``
+    (CLOCK_MONOTONIC, one clock for all processes), so the pool process imports nothing."""
+    import statistics
+    import threading
+    from concurrent.futures import ProcessPoolExecutor
+
+    from hcfplan.planning.scan import _pool_context, start_worker_server
+
+    start_worker_server(2)
+    with ProcessPoolExecutor(1, mp_context=_pool_context()) as pool:  # the server is warm
+        pool.submit(time.perf_counter).result()
+    stop = threading.Event()
+
+    def busy() -> None:
+        while not stop.is_set():
+            sum(range(1000))
+
+    saved = sys.getswitchinterval()
+    sys.setswitchinterval(interval)
+    threading.Thread(target=busy, daemon=True).start()
+    try:
+        with ProcessPoolExecutor(1, mp_context=_pool_context()) as pool:
+            start = time.perf_counter()
+            first = pool.submit(time.perf_counter).result() - start  # one clock for all
+            delays = []
+            for _ in range(20):
+                sent = time.perf_counter()
+                delays.append(pool.submit(time.perf_counter).result() - sent)
+    finally:
+        stop.set()
+        sys.setswitchinterval(saved)
+    return first, statistics.median(delays)
+
+
 #: The demo config of the README at 16384 points: an anti-resonant fiber with argon, points of
 #: 1-2 s (a lab-sized planning scan), pressures 1-4 bar.
 DEMO = (Path(__file__).resolve().parents[1] / "configs" / "yb_arf_argon.toml", "gas.pressure_bar",
@@ -154,6 +191,12 @@ if __name__ == "__main__":
     os.environ["HCFPLAN_CACHE_DIR"] = tempfile.mkdtemp(prefix="hcfplan-bench-cache-")
     print(f"machine ceiling: 2 processes of a plain FFT loop run {machine_ceiling():.2f}x as fast "
           "as 1 (an ideal 2-core machine gives 2.0)")
+    from hcfplan.planning.scan import HANDOFF_SWITCH_INTERVAL
+
+    for interval in (sys.getswitchinterval(), HANDOFF_SWITCH_INTERVAL):
+        first, task = handoff_latency(interval)
+        print(f"hand-off beside a busy thread, switch interval {interval * 1e3:g} ms: new pool "
+              f"process {first * 1e3:.0f} ms, task submit-to-start {task * 1e3:.1f} ms (median)")
     for n in (int(a) for a in (sys.argv[1:] or ["1024", "8192"])):
         main(n)
     if not sys.argv[1:]:

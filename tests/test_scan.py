@@ -246,7 +246,7 @@ def test_parent_computes_points_beside_the_pool(fast, tmp_path, monkeypatch):
     # every point once, and the table equals the serial one
     from hcfplan.planning import scan
 
-    taken = []
+    taken, intervals = [], []
 
     class Counting(scan._ParentWorker):
         def __init__(self, take, results):
@@ -254,15 +254,20 @@ def test_parent_computes_points_beside_the_pool(fast, tmp_path, monkeypatch):
                 task = take()
                 if task is not None:
                     taken.append(task["key"])
+                    intervals.append(sys.getswitchinterval())
                 return task
             super().__init__(counted, results)
 
     monkeypatch.setattr(scan, "_ParentWorker", Counting)
     plan = plan_scan(fast, [parse_vary("gas.pressure_bar=1:2:4")])
+    before = sys.getswitchinterval()
     both = run_scan(plan, tmp_path / "both", workers=2)
     assert both.executor == "processes" and sorted(both.computed) == sorted(p.key for p in
                                                                             plan.points)
     assert taken[0] == plan.points[0].key and 1 <= len(taken) <= 3
+    # hand-offs do not wait for the compute thread; the interval is restored afterwards
+    assert intervals and all(i == pytest.approx(scan.HANDOFF_SWITCH_INTERVAL) for i in intervals)
+    assert sys.getswitchinterval() == before
     run_scan(plan, tmp_path / "serial", workers=1)
     assert (tmp_path / "both" / "table.csv").read_text() == \
         (tmp_path / "serial" / "table.csv").read_text()
@@ -301,6 +306,29 @@ def test_worker_environment_is_set_for_the_workers_and_restored(monkeypatch):
         assert all(os.environ[key] == "1" for key in scan.WORKER_THREADS)
     assert os.environ["OMP_NUM_THREADS"] == "7"
     assert "OPENBLAS_NUM_THREADS" not in os.environ
+
+
+_PRELOAD_CHECK = """
+import importlib, sys
+from pathlib import Path
+from hcfplan.planning.scan import (WORKER_PRELOAD, compute_point, parse_vary, plan_scan,
+                                   point_task)
+plan = plan_scan(Path(sys.argv[1]), [parse_vary("gas.pressure_bar=1.5")])
+for name in WORKER_PRELOAD:
+    importlib.import_module(name)
+before = set(sys.modules)
+record = compute_point(point_task(plan, plan.points[0]))
+print(record["status"], *sorted(m for m in set(sys.modules) - before if m.startswith("hcfplan")))
+"""
+
+
+def test_worker_preload_covers_every_module_a_point_imports(fast):
+    """Contract: the fork server preloads every hcfplan module a scan point imports, so no
+    worker imports one during its first point (a fresh interpreter)."""
+    env = dict(os.environ, PYTHONPATH=str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", ""))
+    out = subprocess.run([sys.executable, "-c", _PRELOAD_CHECK, str(fast)], env=env, check=True,
+                         capture_output=True, text=True, timeout=300).stdout.split()
+    assert out == ["ok"]
 
 
 def test_worker_preload_modules_import():

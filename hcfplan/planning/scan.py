@@ -27,6 +27,7 @@ import json
 import math
 import os
 import queue
+import sys
 import threading
 import time
 from collections.abc import Callable
@@ -437,12 +438,18 @@ def _run_serial(tasks: list[dict], on_done: Callable[[dict], None], _workers, _a
         on_done(compute_point(task))
 
 
-#: Modules a fork server imports once before forking the scan workers (start-up cost); the
-#: last one also loads the compiled solver kernels and the FFT library (about 1.5 s per worker
-#: otherwise, measured with ``bench/scan.py``).
-WORKER_PRELOAD = ["hcfplan.planning.chain", "hcfplan.propagation.solve", "hcfplan.thz",
-                  "hcfplan.compression", "hcfplan.planning.limits_report",
-                  "hcfplan.propagation.warmup"]
+#: Modules a fork server imports once before forking the scan workers (start-up cost): every
+#: module a point imports (a test checks that a point imports no other hcfplan module), and
+#: ``__main__``, the command's own script, which each worker would otherwise import again
+#: (``hcfplan.cli`` for the ``hcfplan`` command; 0.1-0.2 s). The last one also loads the
+#: compiled solver kernels and the FFT library (about 1.5 s per worker otherwise, measured with
+#: ``bench/scan.py``).
+WORKER_PRELOAD = ["__main__", "hcfplan.planning.chain", "hcfplan.propagation.solve",
+                  "hcfplan.thz", "hcfplan.compression", "hcfplan.planning.limits_report",
+                  "hcfplan.planning.fiber_report", "hcfplan.limits", "hcfplan.limits_cell",
+                  "hcfplan.cautions", "hcfplan.ionization", "hcfplan.ionization_tables",
+                  "hcfplan.pulse", "hcfplan.fibers.derived", "hcfplan.io.results",
+                  "hcfplan.io.csvdata", "hcfplan.propagation.warmup"]
 #: Thread counts of the numerical libraries in the scan workers: the workers are the
 #: parallelism. OpenBLAS's own threads (it busy-waits) in two workers on two cores doubled the
 #: time per point (0.29 s instead of 0.15 s, 1024-point grid, bench/scan.py).
@@ -497,6 +504,17 @@ def start_worker_server(workers: int) -> None:
         forkserver.ensure_running()
 
 
+#: Interpreter switch interval [s] while the parent computes points beside the pool
+#: (:func:`sys.setswitchinterval`; Python's default is 5 ms). The main thread, which hands the
+#: pool its tasks and takes its results, and the executor's own threads wait for the parent's
+#: compute thread to give up the GIL at each step of a hand-off. With a busy thread beside
+#: them, a task took 16-17 ms from submission to its start in a pool process at the default
+#: interval and 1.0-1.3 ms at this one, and a new pool process 23-115 ms to take its first
+#: task against 21-25 ms (``bench/scan.py``, hand-off). A thread that waits for nothing is
+#: not interrupted.
+HANDOFF_SWITCH_INTERVAL = 2e-4
+
+
 class _ParentWorker:
     """The parent's own share of a local-process run: a daemon thread that takes tasks with
     ``take()`` until it gives None, and puts ``(self, record or None, exception or None)`` on
@@ -524,7 +542,8 @@ def _run_processes(tasks, on_done, workers: int, _address) -> None:
     2.5 s, during which starting a pool process blocks the main thread). A pool process is
     given its next task when it hands in a result (no queued tasks: none waits behind a long
     point at the end). BLAS runs one thread in the parent meanwhile (threadpoolctl), as in the
-    workers (:data:`WORKER_THREADS`)."""
+    workers (:data:`WORKER_THREADS`), and the switch interval is
+    :data:`HANDOFF_SWITCH_INTERVAL`, so hand-offs do not wait for the compute thread."""
     from concurrent.futures import ProcessPoolExecutor
 
     from threadpoolctl import threadpool_limits
@@ -547,6 +566,8 @@ def _run_processes(tasks, on_done, workers: int, _address) -> None:
             pool.submit(compute_point, task).add_done_callback(
                 lambda future: results.put((pool, future, None)))
 
+    switch = sys.getswitchinterval()
+    sys.setswitchinterval(HANDOFF_SWITCH_INTERVAL)
     try:
         with threadpool_limits(limits=1):
             parent = _ParentWorker(take, results)
@@ -569,6 +590,8 @@ def _run_processes(tasks, on_done, workers: int, _address) -> None:
         for process in workers_started:
             process.terminate()
         raise
+    finally:
+        sys.setswitchinterval(switch)
     pool.shutdown(wait=True)
 
 
