@@ -440,11 +440,13 @@ def _run_serial(tasks: list[dict], on_done: Callable[[dict], None], _workers, _a
 
 #: Modules a fork server imports once before forking the scan workers (start-up cost): every
 #: module a point imports (a test checks that a point imports no other hcfplan module), and
-#: ``__main__``, the command's own script, which each worker would otherwise import again
-#: (``hcfplan.cli`` for the ``hcfplan`` command; 0.1-0.2 s). The last one also loads the
-#: compiled solver kernels and the FFT library (about 1.5 s per worker otherwise, measured with
+#: ``hcfplan.cli``: a worker runs the command's script again (multiprocessing does so for a
+#: script run by path, such as the ``hcfplan`` command), which imports the command line
+#: (0.1-0.2 s per worker otherwise; listing ``"__main__"`` instead does nothing in Python 3.11,
+#: whose fork server is never given the script's path). The last one also loads the compiled
+#: solver kernels and the FFT library (about 1.5 s per worker otherwise, measured with
 #: ``bench/scan.py``).
-WORKER_PRELOAD = ["__main__", "hcfplan.planning.chain", "hcfplan.propagation.solve",
+WORKER_PRELOAD = ["hcfplan.cli", "hcfplan.planning.chain", "hcfplan.propagation.solve",
                   "hcfplan.thz", "hcfplan.compression", "hcfplan.planning.limits_report",
                   "hcfplan.planning.fiber_report", "hcfplan.limits", "hcfplan.limits_cell",
                   "hcfplan.cautions", "hcfplan.ionization", "hcfplan.ionization_tables",
