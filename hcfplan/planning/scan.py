@@ -512,7 +512,7 @@ def start_worker_server(workers: int) -> None:
 #: compute thread to give up the GIL at each step of a hand-off. With a busy thread beside
 #: them, a task took 16-22 ms from submission to its start in a pool process at the default
 #: interval and 0.5-1.3 ms at this one, and a new pool process 23-115 ms to take its first
-#: task against 21-25 ms (``bench/scan.py``, hand-off). A thread that waits for nothing is
+#: task against 14-39 ms (``bench/scan.py``, hand-off). A thread that waits for nothing is
 #: not interrupted.
 HANDOFF_SWITCH_INTERVAL = 2e-4
 
