@@ -2,7 +2,9 @@
 
 Run: ``PYTHONPATH=. python bench/scan.py [GRID_POINTS ...]`` (default: 1024 and 8192 points of
 a small invented capillary config with 0.1-0.5 s points, then the README's demo config at 16384
-points, 1-2 s points). For each, two measurements:
+points, 1-2 s points). First the hand-off latency between this process and a pool process
+beside a busy thread, at Python's default switch interval and at the scan's
+(:func:`handoff_latency`). Then, for each scan, two measurements:
 
 1. In this process (``run_scan``): the wall time per executor, the speed-up of 2 workers over
    1 and the overhead per point outside the chain (wall time x workers / points minus the mean
@@ -10,9 +12,8 @@ points, 1-2 s points). For each, two measurements:
    are warmed up first (imports and kernels in this process; the fork server, which a process
    starts once), so this is the steady state of a session that runs several scans; with 2
    workers the second one is a new pool process forked from the server, which pays its own
-   first-call set-up as overhead. Beside it, this
-   machine's own ceiling for the same points (:func:`chain_ceiling`: two warm processes, each
-   computing a fixed half, against one).
+   first-call set-up as overhead. Beside it, this machine's own ceiling for the same points
+   (:func:`chain_ceiling`: two warm processes, each computing a fixed half, against one).
 2. The whole command as a user runs it, ``hcfplan scan ... --workers 1`` and ``--workers 2``
    in a new process each (imports, kernel load and the fork server's start included; no
    figures).

@@ -253,18 +253,21 @@ def _spread_plan(cfg, text: str | None, overrides: list[str]):
     return spec, corner_tasks(cfg, spec, overrides, dirs)
 
 
-def _start_worker_server(workers: int) -> None:
-    """Start the local worker processes' fork server now (see start_worker_server)."""
+def _worker_count(workers: int | None) -> int:
+    """Points or corners computed at a time for ``--workers`` (0 or not given: all cores)."""
     import os
 
+    return workers or os.cpu_count() or 1
+
+
+def _start_worker_server(workers: int | None) -> None:
+    """Start the local worker processes' fork server now (see start_worker_server)."""
     from .planning.scan import start_worker_server
 
-    start_worker_server(workers or os.cpu_count() or 1)
+    start_worker_server(_worker_count(workers))
 
 
 def _run_spread(cfg, chain, plan, workers: int, quiet: bool):
-    import os
-
     from .planning.scan import run_summary
     from .planning.spread import run_spread
 
@@ -273,7 +276,7 @@ def _run_spread(cfg, chain, plan, workers: int, quiet: bool):
     if not quiet:
         typer.echo(f"  spread: {len(tasks)} corner runs ...", err=True)
     return run_spread(tasks, spec, {"summary": summary, "margins": margins},
-                      workers=workers or os.cpu_count() or 1)
+                      workers=_worker_count(workers))
 
 
 # ---------------------------------------------------------------------------------------------

@@ -138,19 +138,17 @@ def scan_command(
     as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
 ) -> None:
     """Run the full chain over one or two varied keys; saves every point as it finishes."""
-    import os
-
     from .planning.scan import parse_vary, plan_scan, run_scan
 
     varies = [parse_vary(text) for text in vary]
     if dask_scheduler is None:  # the fork server imports while the points are planned
-        _cli()._start_worker_server(workers or 0)
+        _cli()._start_worker_server(workers)
     plan = plan_scan(config, varies, overrides=tuple(set_ or ()), extra_gas_dirs=_gas_dirs())
     out_dir = out if out is not None else Path("scans") / config.stem
     bar = _ScanProgress(not as_json)
     try:
         with _sigterm_as_exit():
-            outcome = run_scan(plan, out_dir, workers=workers or os.cpu_count() or 1,
+            outcome = run_scan(plan, out_dir, workers=_cli()._worker_count(workers),
                                address=dask_scheduler, fresh=fresh, force=force, on_point=bar)
     finally:
         bar.close()

@@ -86,10 +86,10 @@ def cached_rate_table(model: str, wavelength: float, ip: float, l: int, m: int, 
     """:func:`hcfplan.ionization_tables.tabulate_rate` with its default accuracy, kept in the
     cache folder (the same numbers: the nodes and log rates are stored exactly)."""
     from .. import constants, ionization, ionization_tables
-    from ..ionization_tables import RateTable, tabulate_rate
 
     def compute() -> dict[str, np.ndarray]:
-        table = tabulate_rate(model, wavelength, ip, l, m, charge, intensity_min, intensity_max)
+        table = ionization_tables.tabulate_rate(model, wavelength, ip, l, m, charge,
+                                                intensity_min, intensity_max)
         return {"log_intensity": table.log_intensity, "log_rate": table.log_rate}
 
     inputs = (model, float(wavelength), float(ip), int(l), int(m), int(charge),
@@ -99,4 +99,4 @@ def cached_rate_table(model: str, wavelength: float, ip: float, l: int, m: int, 
     x, y = arrays["log_intensity"], arrays["log_rate"]
     x.setflags(write=False)
     y.setflags(write=False)
-    return RateTable(log_intensity=x, log_rate=y, model=model)
+    return ionization_tables.RateTable(log_intensity=x, log_rate=y, model=model)

@@ -14,6 +14,7 @@ import json
 import math
 import os
 import signal
+import sys
 import tempfile
 import threading
 import time
@@ -138,8 +139,6 @@ def figure_helpers(jobs: int) -> int:
     """Child processes :func:`write_figures` forks to draw ``jobs`` figures: one where fork is
     the platform's usual start method (Linux), more than one core is free to this process and
     there are at least two figures; otherwise 0 (all figures drawn here)."""
-    import sys
-
     if sys.platform != "linux" or jobs < 2:
         return 0
     return 1 if len(os.sched_getaffinity(0)) > 1 else 0
@@ -164,7 +163,6 @@ def write_figures(jobs: list[FigureJob]) -> None:
             write_figure(path, draw, *args)
         return
     import multiprocessing
-    import sys
 
     import matplotlib
 
