@@ -23,6 +23,8 @@ Definitions used throughout
 
 from __future__ import annotations
 
+import copy
+import threading
 from collections.abc import Callable
 from dataclasses import dataclass
 from typing import Literal
@@ -35,6 +37,7 @@ from .compression_elements import clip_to_band, material_phase, phase_derivative
 from .errors import ConfigError
 from .grid import Grid
 from .metrics import PulseMetrics, pulse_metrics
+from .propagation.transforms import FFT_BACKENDS, default_backend
 
 Objective = Literal["peak_power", "fwhm"]
 
@@ -233,15 +236,78 @@ def _scan_then_refine(fun: Callable[[float], float], lo: float, hi: float) -> tu
     return float(xs[i]), float(values[i])
 
 
-def _score_fn(
-    grid: Grid, spectrum: np.ndarray, objective: Callable[[Grid, np.ndarray], float]
-) -> Callable[[np.ndarray], float]:
-    """Return phase -> objective score of ``spectrum * exp(i phase)``."""
+class _Scorer:
+    """Objective score of ``spectrum * exp(i phase)`` for the many phases of the search.
 
-    def score(phase: np.ndarray) -> float:
-        return objective(grid, grid.to_time(spectrum * np.exp(1j * phase)))
+    The searches call the objective 100-500 times per compressor (each call a complex
+    exponential and an FFT over the grid), more than the rest of a scan point's chain after the
+    fiber. So the work per call is kept to that exponential and that FFT:
 
-    return score
+    * Only the samples where ``spectrum`` is nonzero are computed (outside the mirror band the
+      clipped spectrum is exactly zero). The phases of the search are given on those samples
+      only, as :meth:`part` of the full arrays.
+    * A phase common to every call of one search (the fixed elements, the mirrors of one bounce
+      count) is folded into the spectrum once (:meth:`with_phase`).
+    * The polynomial phases of the references use the precomputed 0.5 dw^2 and dw^3 / 6.
+    * The FFT is the solver's back end (:mod:`hcfplan.propagation.transforms`, pyFFTW when it
+      is installed) with its buffers, kept per thread and grid size.
+
+    The score is the same function of the phase as before; only rounding differs.
+    """
+
+    def __init__(self, grid: Grid, spectrum: np.ndarray,
+                 objective: Callable[[Grid, np.ndarray], float]) -> None:
+        self.grid, self.objective = grid, objective
+        keep = np.flatnonzero(spectrum)
+        self._keep = None if keep.size == grid.points else keep
+        self.spectrum = self.part(spectrum)
+        self.quadratic = self.part(0.5 * grid.domega**2)
+        self.cubic = self.part(grid.domega**3 / 6.0)
+        self._fft = _search_transforms(grid.points)
+        self._scale = 1.0 / (grid.points * grid.dt)  # unnormalised FFT -> envelope
+
+    def part(self, array: np.ndarray) -> np.ndarray:
+        """``array`` on the samples the search computes (all when the spectrum has no zeros)."""
+        return array if self._keep is None else array[self._keep]
+
+    def with_phase(self, phase: np.ndarray) -> _Scorer:
+        """A scorer of ``spectrum * exp(i phase)`` (``phase`` given as a :meth:`part`)."""
+        other = copy.copy(self)
+        other.spectrum = self.spectrum * np.exp(1j * phase)
+        return other
+
+    def polynomial(self, gdd: float, tod: float) -> np.ndarray:
+        """0.5 gdd dw^2 + tod/6 dw^3 on the searched samples. [rad]"""
+        return gdd * self.quadratic + tod * self.cubic
+
+    def __call__(self, phase: np.ndarray) -> float:
+        """Objective of ``spectrum * exp(i phase)``, ``phase`` given as a :meth:`part`. [rad]"""
+        factor = np.exp(1j * phase)
+        target = self._fft.spectrum_in
+        if self._keep is None:
+            np.multiply(self.spectrum, factor, out=target)
+        else:  # the FFT may overwrite its input: every sample is written each call
+            target.fill(0.0)
+            target[self._keep] = self.spectrum * factor
+        field_t = self._fft.forward()
+        field_t *= self._scale
+        return self.objective(self.grid, field_t)
+
+
+_SEARCH_TRANSFORMS = threading.local()
+
+
+def _search_transforms(points: int):
+    """The default FFT back end for ``points`` samples, one per thread and size (planning a
+    transform, even from FFTW wisdom, costs tens of ms; a search takes a few hundred)."""
+    kept = getattr(_SEARCH_TRANSFORMS, "by_points", None)
+    if kept is None:
+        kept = _SEARCH_TRANSFORMS.by_points = {}
+    if points not in kept:
+        if len(kept) >= 4:
+            kept.pop(next(iter(kept)))
+        kept[points] = FFT_BACKENDS[default_backend()](points)
+    return kept[points]
 
 
 def _bounce_counts(max_bounces: int, in_pairs: bool) -> np.ndarray:
@@ -278,7 +344,7 @@ def _check_inputs(grid: Grid, arrays: dict[str, np.ndarray], objective: str) -> 
 
 
 def _scan_bounces(
-    score: Callable[[np.ndarray], float],
+    score: _Scorer,
     base: np.ndarray,
     per_bounce: np.ndarray,
     counts: np.ndarray,
@@ -286,14 +352,17 @@ def _scan_bounces(
 ) -> tuple[np.ndarray, np.ndarray]:
     """Best score and trim insertion for each candidate bounce count."""
     scores, trims = [], []
+    base, per_bounce = score.part(base), score.part(per_bounce)
+    trim_phase = None if trim is None else score.part(trim.phase_per_length)
     for n in counts:
         phase_n = base + n * per_bounce
         if trim is None:
             scores.append(score(phase_n))
             trims.append(0.0)
             continue
+        shaped = score.with_phase(phase_n)
         best_l, best_s = _scan_then_refine(
-            lambda l, p=phase_n: score(p + l * trim.phase_per_length),
+            lambda l, shaped=shaped: shaped(l * trim_phase),
             trim.insertion_min,
             trim.insertion_max,
         )
@@ -302,9 +371,12 @@ def _scan_bounces(
     return np.array(scores), np.array(trims)
 
 
-def _peak_powers(grid: Grid, spectrum: np.ndarray, phases: list[np.ndarray]) -> np.ndarray:
-    """Peak power of ``spectrum * exp(i phase)`` for each phase. [W]"""
-    return np.array([metrics.peak_power(grid.to_time(spectrum * np.exp(1j * p))) for p in phases])
+def _peak_powers(score: _Scorer, phases: list[np.ndarray]) -> np.ndarray:
+    """Peak power of ``score.spectrum * exp(i phase)`` for each phase (full arrays). [W]"""
+    if score.objective is not _negative_peak_power:
+        score = copy.copy(score)
+        score.objective = _negative_peak_power
+    return np.array([-score(score.part(p)) for p in phases])
 
 
 def _reference(
@@ -322,27 +394,28 @@ def _polynomial(grid: Grid, gdd: float, tod: float) -> np.ndarray:
     return 0.5 * gdd * grid.domega**2 + tod / 6.0 * grid.domega**3
 
 
-def _best_quadratic(score, grid: Grid, fixed: np.ndarray, center: float, span: float) -> float:
-    """GDD of the ideal quadratic compressor minimising ``score`` on center +- span. [s^2]"""
+def _best_quadratic(shaped: _Scorer, center: float, span: float) -> float:
+    """GDD of the ideal quadratic compressor minimising ``shaped`` (the spectrum after the
+    fixed elements) on center +- span. [s^2]"""
     gdd, _ = _scan_then_refine(
-        lambda g: score(fixed + _polynomial(grid, g, 0.0)), center - span, center + span
+        lambda g: shaped(shaped.polynomial(g, 0.0)), center - span, center + span
     )
     return gdd
 
 
 def _best_cubic(
-    score, grid: Grid, fixed: np.ndarray, gdd0: float, tod_center: float, scale: float
+    shaped: _Scorer, gdd0: float, tod_center: float, scale: float
 ) -> tuple[float, float]:
     """(GDD, TOD) of the ideal quadratic + cubic compressor, starting from ``gdd0``."""
-    s_quadratic = score(fixed + _polynomial(grid, gdd0, 0.0))
+    s_quadratic = shaped(shaped.polynomial(gdd0, 0.0))
     span = max(20.0 * scale**3, 2.0 * abs(tod_center))
     tod0, _ = _scan_then_refine(
-        lambda t: score(fixed + _polynomial(grid, gdd0, t)), tod_center - span, tod_center + span
+        lambda t: shaped(shaped.polynomial(gdd0, t)), tod_center - span, tod_center + span
     )
     norm = abs(s_quadratic) if s_quadratic != 0 else 1.0
 
     def scaled(x: np.ndarray) -> float:
-        return score(fixed + _polynomial(grid, x[0] * scale**2, x[1] * scale**3)) / norm
+        return shaped(shaped.polynomial(x[0] * scale**2, x[1] * scale**3)) / norm
 
     res = minimize(
         scaled,
@@ -359,7 +432,7 @@ def _references(
     grid: Grid,
     clipped: np.ndarray,
     fixed: np.ndarray,
-    score: Callable[[np.ndarray], float],
+    score: _Scorer,
     compressor: tuple[float, float, float],
     peak_in: float | None,
 ) -> tuple[ReferencePulse, ReferencePulse, ReferencePulse]:
@@ -372,8 +445,9 @@ def _references(
     scale = metrics.fwhm(grid.time, np.abs(tl_field) ** 2)
     scale = scale if np.isfinite(scale) else 10.0 * grid.dt
     gdd_center, tod_center, gdd_span = compressor
-    gdd_q = _best_quadratic(score, grid, fixed, gdd_center, max(gdd_span, 20.0 * scale**2))
-    gdd_c, tod_c = _best_cubic(score, grid, fixed, gdd_q, tod_center, scale)
+    shaped = score.with_phase(score.part(fixed))
+    gdd_q = _best_quadratic(shaped, gdd_center, max(gdd_span, 20.0 * scale**2))
+    gdd_c, tod_c = _best_cubic(shaped, gdd_q, tod_center, scale)
     tl = ReferencePulse(
         "transform_limit",
         float("nan"),
@@ -505,7 +579,7 @@ def optimize_bounces(
         raise ConfigError(f"input_peak_power = {input_peak_power} W: must be > 0")
     counts = _bounce_counts(max_bounces, in_pairs)
     chain = _chain(grid, spectrum, fixed_phase, mirror_phase_per_bounce, band, trim)
-    score = _score_fn(grid, chain.clipped, OBJECTIVES[objective])
+    score = _Scorer(grid, chain.clipped, OBJECTIVES[objective])
     scores, trims = _scan_bounces(score, chain.fixed, chain.mirror, counts, chain.trim)
     best = int(np.argmin(scores))
     n, insertion = int(counts[best]), float(trims[best])
@@ -516,11 +590,11 @@ def optimize_bounces(
     fixed_gdd, fixed_tod = chain.gdd_tod(chain.fixed)
     compressor = (gdd - fixed_gdd, tod - fixed_tod, chain.search_span(counts))
     refs = _references(grid, chain.clipped, chain.fixed, score, compressor, input_peak_power)
-    curve = _peak_powers(grid, chain.clipped, [chain.phase(k, 0.0) for k in counts])
+    curve = _peak_powers(score, [chain.phase(k, 0.0) for k in counts])
     curve_trim = None
     if chain.trim is not None:
         phases = [chain.phase(k, l) for k, l in zip(counts, trims, strict=True)]
-        curve_trim = _peak_powers(grid, chain.clipped, phases)
+        curve_trim = _peak_powers(score, phases)
     return CompressionResult(
         grid=grid,
         objective=objective,

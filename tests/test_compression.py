@@ -281,6 +281,41 @@ def test_pulse_metrics_of_transform_limit(grid: Grid) -> None:
     assert (m.pre_pulse_energy + m.post_pulse_energy) / m.energy < 3e-4
 
 
+# --- the search's scorer ------------------------------------------------------------------
+
+
+@pytest.mark.parametrize("objective", ["peak_power", "fwhm"])
+@pytest.mark.parametrize("clipped", [False, True])
+def test_scorer_scores_the_plain_formula(grid: Grid, objective: str, clipped: bool) -> None:
+    # consistency: the search's scorer (only the nonzero samples, a folded common phase, the
+    # solver's FFT back end) gives objective(to_time(spectrum exp(i phase))) to 1e-12, for a
+    # band-clipped spectrum (exact zeros outside the band) and an unclipped one
+    from hcfplan.compression import OBJECTIVES, _peak_powers, _Scorer
+
+    rng = np.random.default_rng(3)
+    spectrum = _chirped(grid, 900e-30) * np.exp(1j * rng.normal(0, 0.3, grid.points))
+    if clipped:
+        spectrum, _ = el.clip_to_band(grid, spectrum, _wing_band(grid, spectrum, 0.02))
+        assert 0 < np.count_nonzero(spectrum) < grid.points // 2
+    common = el.mirror_phase(grid.omega, grid.omega0, 300e-30, 2e-42)
+    polynomial = 0.5 * -700e-30 * grid.domega**2 + 5e-42 / 6 * grid.domega**3
+    fun = OBJECTIVES[objective]
+
+    def plain(phase: np.ndarray) -> float:
+        return fun(grid, grid.to_time(spectrum * np.exp(1j * phase)))
+
+    score = _Scorer(grid, spectrum, fun)
+    assert score(score.part(common)) == pytest.approx(plain(common), rel=1e-12)
+    shaped = score.with_phase(score.part(common))
+    assert shaped(shaped.polynomial(-700e-30, 5e-42)) == pytest.approx(
+        plain(common + polynomial), rel=1e-12)
+    assert score(score.part(common)) == pytest.approx(plain(common), rel=1e-12)  # unchanged
+    peaks = _peak_powers(score, [common, common + polynomial])
+    expected = [metrics.peak_power(grid.to_time(spectrum * np.exp(1j * p)))
+                for p in (common, common + polynomial)]
+    np.testing.assert_allclose(peaks, expected, rtol=1e-12)
+
+
 # --- errors --------------------------------------------------------------------------------
 
 
