@@ -542,8 +542,8 @@ def _run_processes(tasks, on_done, workers: int, _address) -> None:
     and the parent itself, in a thread (:class:`_ParentWorker`), which starts at once: the
     first points are computed while the fork server imports :data:`WORKER_PRELOAD` (about
     2.5 s, during which starting a pool process blocks the main thread). A pool process is
-    given its next task when it hands in a result (no queued tasks: none waits behind a long
-    point at the end). BLAS runs one thread in the parent meanwhile (threadpoolctl), as in the
+    given its next task when it hands in a result, before that result is written (no queued
+    tasks: none waits behind a long point at the end). BLAS runs one thread in the parent meanwhile (threadpoolctl), as in the
     workers (:data:`WORKER_THREADS`), and the switch interval is
     :data:`HANDOFF_SWITCH_INTERVAL`, so hand-offs do not wait for the compute thread."""
     from concurrent.futures import ProcessPoolExecutor
@@ -580,9 +580,10 @@ def _run_processes(tasks, on_done, workers: int, _address) -> None:
                 worker, record, error = results.get()
                 if error is not None:
                     raise error
-                on_done(record if worker is parent else record.result())
-                if worker is pool:
+                if worker is pool:  # its next task first: on_done writes a file (about 6 ms)
+                    record = record.result()
                     give_pool()
+                on_done(record)
     except BaseException:
         # interrupted (Ctrl-C, SIGTERM via the CLI) or a bug: stop the pool's own workers
         with lock:
