@@ -590,11 +590,16 @@ def optimize_bounces(
     fixed_gdd, fixed_tod = chain.gdd_tod(chain.fixed)
     compressor = (gdd - fixed_gdd, tod - fixed_tod, chain.search_span(counts))
     refs = _references(grid, chain.clipped, chain.fixed, score, compressor, input_peak_power)
-    curve = _peak_powers(score, [chain.phase(k, 0.0) for k in counts])
+    # with the peak-power objective the bounce scan has computed the curves already
+    by_peak = objective == "peak_power"
+    if by_peak and chain.trim is None:
+        curve = -scores
+    else:
+        curve = _peak_powers(score, [chain.phase(k, 0.0) for k in counts])
     curve_trim = None
     if chain.trim is not None:
         phases = [chain.phase(k, l) for k, l in zip(counts, trims, strict=True)]
-        curve_trim = _peak_powers(score, phases)
+        curve_trim = -scores if by_peak else _peak_powers(score, phases)
     return CompressionResult(
         grid=grid,
         objective=objective,

@@ -220,6 +220,40 @@ def test_peak_power_curve_peaks_at_chosen_count(grid: Grid) -> None:
     assert result.peak_power_vs_bounces_trimmed is None
 
 
+@pytest.mark.parametrize("objective", ["peak_power", "fwhm"])
+@pytest.mark.parametrize("trimmed", [False, True])
+def test_curves_are_the_peak_powers_of_each_count(grid: Grid, objective: str, trimmed: bool):
+    # consistency: each point of the reported curves is the peak power of its own candidate
+    # (count k, and its own best trim insertion on the trimmed curve), whichever objective
+    # chose them (with the peak-power objective the curves are taken from the bounce scan)
+    spectrum = _chirped(grid, -4 * MIRROR_GDD - 100e-30)
+    fixed = el.material_phase(grid.omega, grid.omega0, _constant_gdd_index(grid, 20e-27), 2e-3)
+    trim = TrimSpec.from_index(grid, _constant_gdd_index(grid, 50e-27), 0.0, 5e-3) \
+        if trimmed else None
+    result = optimize_bounces(grid, spectrum, fixed, _mirror(grid), max_bounces=6,
+                              objective=objective, trim=trim)
+
+    def peak(k: int, insertion: float) -> float:
+        phase = fixed + k * _mirror(grid)
+        if trim is not None:
+            phase = phase + insertion * trim.phase_per_length
+        return metrics.peak_power(grid.to_time(spectrum * np.exp(1j * phase)))
+
+    counts = result.bounce_counts
+    np.testing.assert_allclose(result.peak_power_vs_bounces, [peak(k, 0.0) for k in counts],
+                               rtol=1e-10)
+    if trim is None:
+        assert result.peak_power_vs_bounces_trimmed is None
+        return
+    # the insertion of each count is not reported; the best count's is
+    i = int(np.flatnonzero(counts == result.bounces)[0])
+    assert result.peak_power_vs_bounces_trimmed[i] == pytest.approx(
+        peak(result.bounces, result.trim_insertion), rel=1e-10)
+    if objective == "peak_power":  # the trim search includes insertion 0: it can only gain
+        assert np.all(result.peak_power_vs_bounces_trimmed
+                      >= result.peak_power_vs_bounces * (1 - 1e-12))
+
+
 @pytest.mark.parametrize(("max_bounces", "flagged"), [(4, True), (8, False)])
 def test_caution_when_best_count_is_the_largest(grid: Grid, max_bounces: int, flagged: bool):
     # invariant: 6 bounces' worth of GDD with at most 4 allowed -> 4, with a caution

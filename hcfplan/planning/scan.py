@@ -543,9 +543,10 @@ def _run_processes(tasks, on_done, workers: int, _address) -> None:
     first points are computed while the fork server imports :data:`WORKER_PRELOAD` (about
     2.5 s, during which starting a pool process blocks the main thread). A pool process is
     given its next task when it hands in a result, before that result is written (no queued
-    tasks: none waits behind a long point at the end). BLAS runs one thread in the parent meanwhile (threadpoolctl), as in the
-    workers (:data:`WORKER_THREADS`), and the switch interval is
-    :data:`HANDOFF_SWITCH_INTERVAL`, so hand-offs do not wait for the compute thread."""
+    tasks: none waits behind a long point at the end). BLAS runs one thread in the parent
+    meanwhile (threadpoolctl), as in the workers (:data:`WORKER_THREADS`), and the switch
+    interval is :data:`HANDOFF_SWITCH_INTERVAL`, so hand-offs do not wait for the compute
+    thread."""
     from concurrent.futures import ProcessPoolExecutor
 
     from threadpoolctl import threadpool_limits
@@ -572,7 +573,7 @@ def _run_processes(tasks, on_done, workers: int, _address) -> None:
     sys.setswitchinterval(HANDOFF_SWITCH_INTERVAL)
     try:
         with threadpool_limits(limits=1):
-            parent = _ParentWorker(take, results)
+            _ParentWorker(take, results)  # its thread keeps it alive
             with _worker_environment():  # the pool's processes start at these submissions
                 for _ in range(children):
                     give_pool()
