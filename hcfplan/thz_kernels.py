@@ -39,25 +39,47 @@ def mixing_sums(band, k_opt, k_thz, thickness, count, out):  # pragma: no cover 
     tests/test_thz.py.
     """
     size = band.size
-    carried = np.empty(size, dtype=np.complex128)  # band * exp(i k_opt L)
+    # real and imaginary parts in arrays of their own, complex products written out in real
+    # arithmetic in the branch nearly every term takes (numba's complex multiply and its
+    # division, Smith's algorithm with branches, made the sum 2.1x slower on a scan point)
+    b_re, b_im = band.real.copy(), band.imag.copy()
+    c_re, c_im = np.empty(size), np.empty(size)  # band * exp(i k_opt L)
     for k in range(size):
-        carried[k] = band[k] * cmath.exp(1j * k_opt[k] * thickness)
+        cos, sin = np.cos(k_opt[k] * thickness), np.sin(k_opt[k] * thickness)
+        c_re[k] = b_re[k] * cos - b_im[k] * sin
+        c_im[k] = b_re[k] * sin + b_im[k] * cos
+    series2 = (SERIES_LIMIT / thickness) ** 2  # the limits on |delta_k|^2
+    product2 = (_PRODUCT_LIMIT / thickness) ** 2
     for m in range(count):
         k_out = k_thz[m]
         exit_phase = cmath.exp(1j * k_out * thickness)
-        total = 0j
+        e_re, e_im = exit_phase.real, exit_phase.imag
+        d_im = -k_out.imag  # imaginary part of delta_k, the same for every k
+        t_re, t_im = 0.0, 0.0
         for k in range(size - m):
-            delta_k = (k_opt[k + m] - k_opt[k]) - k_out
+            d_re = (k_opt[k + m] - k_opt[k]) - k_out.real
+            d2 = d_re * d_re + d_im * d_im
+            # pair = band[k + m] conj(band[k])
+            p_re = b_re[k + m] * b_re[k] + b_im[k + m] * b_im[k]
+            p_im = b_im[k + m] * b_re[k] - b_re[k + m] * b_im[k]
+            if d2 >= product2:
+                # (carried[k + m] conj(carried[k]) - pair exit_phase) / (i delta_k)
+                n_re = c_re[k + m] * c_re[k] + c_im[k + m] * c_im[k] - (p_re * e_re - p_im * e_im)
+                n_im = c_im[k + m] * c_re[k] - c_re[k + m] * c_im[k] - (p_re * e_im + p_im * e_re)
+                inverse = 1.0 / d2  # 1 / (i delta_k) = (-d_im - i d_re) / |delta_k|^2
+                v_re, v_im = -d_im * inverse, -d_re * inverse
+                t_re += n_re * v_re - n_im * v_im
+                t_im += n_re * v_im + n_im * v_re
+                continue
+            pair, delta_k = complex(p_re, p_im), complex(d_re, d_im)
             x = 1j * delta_k * thickness
-            pair = band[k + m] * np.conj(band[k])
-            if abs(x) < SERIES_LIMIT:
-                total += pair * thickness * exit_phase * (1.0 + x / 2.0 + x * x / 6.0)
-            elif abs(x) < _PRODUCT_LIMIT:  # exp(i q L) from q itself: no cancellation of k L
-                total += pair * exit_phase * (cmath.exp(x) - 1.0) / (1j * delta_k)
-            else:
-                total += (carried[k + m] * np.conj(carried[k]) - pair * exit_phase) / (
-                    1j * delta_k)
-        out[m] = total
+            if d2 < series2:
+                term = pair * thickness * exit_phase * (1.0 + x / 2.0 + x * x / 6.0)
+            else:  # exp(i q L) from q itself: no cancellation of k L
+                term = pair * exit_phase * (cmath.exp(x) - 1.0) / (1j * delta_k)
+            t_re += term.real
+            t_im += term.imag
+        out[m] = complex(t_re, t_im)
 
 
 def warm_kernels() -> None:
