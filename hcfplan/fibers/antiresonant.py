@@ -39,7 +39,10 @@ from .base import GasLike
 from .capillary import ATTENUATION_CONVENTION, _check_common, capillary_propagation_constant
 from .modes import U11, effective_area_j0, peak_intensity_area
 
-_RESONANCE_ITERATIONS = 60  # fixed-point steps for lambda_m = (2d/m) sqrt(n_glass^2 - n_gas^2)
+_RESONANCE_ITERATIONS = 60  # most fixed-point steps for lambda_m = (2d/m) sqrt(n_glass^2 - n_gas^2)
+#: Relative change of every lambda_m at which the iteration stops (it converges in a few steps;
+#: the 60 steps each evaluated both indices, 10 % of a scan point of the demo config).
+_RESONANCE_TOLERANCE = 1e-14
 
 
 def wall_phase(omega: np.ndarray, wall_thickness: float, n_glass, n_gas) -> np.ndarray:
@@ -200,7 +203,11 @@ class AntiresonantFiber:
             omega = 2.0 * np.pi * c / wavelength
             n_glass = solid_index(material, omega)
             n_gas = self.gas.refractive_index(omega)
+            previous = wavelength
             wavelength = 2.0 * self.wall_thickness / orders * np.sqrt(n_glass**2 - n_gas**2)
+            settled = np.abs(wavelength - previous) <= _RESONANCE_TOLERANCE * wavelength
+            if np.all(settled | np.isnan(wavelength)):  # nan (beyond a table) stays nan
+                break
         return wavelength
 
     def in_resonance_band(self, omega: np.ndarray, width: float = 0.05) -> np.ndarray:
