@@ -24,7 +24,6 @@ Definitions used throughout
 from __future__ import annotations
 
 import copy
-import threading
 from collections.abc import Callable
 from dataclasses import dataclass
 from typing import Literal
@@ -37,7 +36,7 @@ from .compression_elements import clip_to_band, material_phase, phase_derivative
 from .errors import ConfigError
 from .grid import Grid
 from .metrics import PulseMetrics, pulse_metrics
-from .propagation.transforms import FFT_BACKENDS, default_backend
+from .propagation.transforms import shared_transforms
 
 Objective = Literal["peak_power", "fwhm"]
 
@@ -249,8 +248,8 @@ class _Scorer:
     * A phase common to every call of one search (the fixed elements, the mirrors of one bounce
       count) is folded into the spectrum once (:meth:`with_phase`).
     * The polynomial phases of the references use the precomputed 0.5 dw^2 and dw^3 / 6.
-    * The FFT is the solver's back end (:mod:`hcfplan.propagation.transforms`, pyFFTW when it
-      is installed) with its buffers, kept per thread and grid size.
+    * The FFT is the solver's default back end with its buffers
+      (:func:`~hcfplan.propagation.transforms.shared_transforms`, pyFFTW when it is installed).
 
     The score is the same function of the phase as before; only rounding differs.
     """
@@ -263,7 +262,7 @@ class _Scorer:
         self.spectrum = self.part(spectrum)
         self.quadratic = self.part(0.5 * grid.domega**2)
         self.cubic = self.part(grid.domega**3 / 6.0)
-        self._fft = _search_transforms(grid.points)
+        self._fft = shared_transforms(grid.points)
         self._scale = 1.0 / (grid.points * grid.dt)  # unnormalised FFT -> envelope
 
     def part(self, array: np.ndarray) -> np.ndarray:
@@ -292,22 +291,6 @@ class _Scorer:
         field_t = self._fft.forward()
         field_t *= self._scale
         return self.objective(self.grid, field_t)
-
-
-_SEARCH_TRANSFORMS = threading.local()
-
-
-def _search_transforms(points: int):
-    """The default FFT back end for ``points`` samples, one per thread and size (planning a
-    transform, even from FFTW wisdom, costs tens of ms; a search takes a few hundred)."""
-    kept = getattr(_SEARCH_TRANSFORMS, "by_points", None)
-    if kept is None:
-        kept = _SEARCH_TRANSFORMS.by_points = {}
-    if points not in kept:
-        if len(kept) >= 4:
-            kept.pop(next(iter(kept)))
-        kept[points] = FFT_BACKENDS[default_backend()](points)
-    return kept[points]
 
 
 def _bounce_counts(max_bounces: int, in_pairs: bool) -> np.ndarray:

@@ -1,6 +1,7 @@
 """FFT back ends of the solver against numpy.fft (a general-purpose reference library).
 
-Kind: contract tests over :data:`hcfplan.propagation.transforms.FFT_BACKENDS`, plus a
+Kind: contract tests over :data:`hcfplan.propagation.transforms.FFT_BACKENDS` (and the back
+ends kept by ``shared_transforms`` for the compressor search and the solver's records), plus a
 regression test: FFTW's measuring planner overwrites the arrays of a plan it has no wisdom for
 (FFTW 3 manual, sec. 4.3.2 "Planner Flags", from memory); the back end makes plans on first use,
 when the arrays already hold data, and must not lose that data.
@@ -82,3 +83,44 @@ def test_pyfftw_import_leaves_dask_alone(dask_first):
                          text=True).stdout.split()
     expected = ["1", "1", "0", "1"] if dask_first else ["0", "0", "0", "1"]
     assert out == expected
+
+
+@pytest.mark.parametrize("name", sorted(FFT_BACKENDS))
+def test_shared_back_end_is_kept_per_thread_back_end_and_size(name):
+    # contract: shared_transforms gives the same back end again in one thread, another one in
+    # another thread (buffers are never shared between threads), and its forward() is numpy's
+    # fft of what was put into spectrum_in
+    import threading
+
+    from hcfplan.propagation.transforms import shared_transforms
+
+    if name == "fftw" and not fftw_available():
+        pytest.skip("pyFFTW not installed (optional)")
+    first = shared_transforms(256, name)
+    assert shared_transforms(256, name) is first and first.name == name
+    assert shared_transforms(512, name) is not first
+    other = []
+    thread = threading.Thread(target=lambda: other.append(shared_transforms(256, name)))
+    thread.start()
+    thread.join()
+    assert other[0] is not first and other[0].name == name
+    spectrum = np.random.default_rng(2).standard_normal(256) * (1 + 0.5j)
+    first.spectrum_in[...] = spectrum
+    np.testing.assert_allclose(first.forward(), np.fft.fft(spectrum), rtol=0, atol=1e-12)
+
+
+@pytest.mark.parametrize("name", sorted(FFT_BACKENDS))
+def test_recorded_power_is_the_envelope_of_the_spectrum(name):
+    # consistency: the recorder's power |A(t)|^2 (taken on a kept back end) equals
+    # |grid.to_time(u)|^2, the grid's convention 2, to 1e-12 of its peak
+    from hcfplan.grid import Grid
+    from hcfplan.propagation.result import Recorder
+
+    if name == "fftw" and not fftw_available():
+        pytest.skip("pyFFTW not installed (optional)")
+    grid = Grid(points=1024, dt=2e-15, omega0=2.3e15)
+    rng = np.random.default_rng(4)
+    u = (rng.standard_normal(1024) + 1j * rng.standard_normal(1024)) * 1e-9
+    power = Recorder(grid, 2, 1e-9, None, fft_backend=name)._power(u)
+    expected = np.abs(grid.to_time(u)) ** 2
+    np.testing.assert_allclose(power, expected, rtol=0, atol=1e-12 * expected.max())

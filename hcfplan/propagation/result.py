@@ -10,6 +10,7 @@ import numpy as np
 from ..constants import c
 from ..grid import Grid
 from ..metrics import spectral_width
+from .transforms import shared_transforms
 
 Status = Literal["completed", "nonfinite", "step_collapse", "step_budget", "ionization_stop"]
 
@@ -110,8 +111,9 @@ class Recorder:
     _SCALARS = ("energy", "peak_power", "peak_intensity", "ionization", "electrons", "bandwidth")
 
     def __init__(self, grid: Grid, capacity: int, intensity_area: float, plasma,
-                 waveguide=None) -> None:
+                 waveguide=None, fft_backend: str | None = None) -> None:
         self.grid = grid
+        self.fft_backend = fft_backend  # of the envelope at each record (transforms.py)
         self.intensity_area = intensity_area
         self.plasma = plasma  # NonlinearTerms with ionising species, or None
         self.z = np.empty(capacity)
@@ -132,8 +134,8 @@ class Recorder:
     def record(self, z: float, u: np.ndarray) -> None:
         """Store the spectrum and the tracked quantities of spectrum ``u`` at ``z``."""
         i, grid = self.count, self.grid
-        density = np.abs(u) ** 2
-        power = np.abs(grid.to_time(u)) ** 2
+        density = u.real**2 + u.imag**2
+        power = self._power(u)
         energy = float(np.sum(density) * grid.dnu)
         self.z[i] = z
         self.spectra[i] = density
@@ -150,6 +152,15 @@ class Recorder:
             self.edge_time.update(grid.dt * power[self._far_time].sum() / energy, z)
             self._check_resonance(z, density, energy)
         self.count += 1
+
+    def _power(self, u: np.ndarray) -> np.ndarray:
+        """|A(t)|^2 of the spectrum ``u`` (``grid.to_time``, on a kept FFT back end). [W]"""
+        fft = shared_transforms(self.grid.points, self.fft_backend)
+        fft.spectrum_in[...] = u
+        field = fft.forward()  # = points dt A(t)
+        power = field.real**2 + field.imag**2
+        power *= 1.0 / (self.grid.points * self.grid.dt) ** 2
+        return power
 
     def _check_resonance(self, z: float, density: np.ndarray, energy: float) -> None:
         if self._in_band is None:

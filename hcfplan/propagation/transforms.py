@@ -12,6 +12,7 @@ What a back end provides (the nonlinear terms in :mod:`.operators` rely on these
    unnormalised real FFT pair of length N (for the delayed response); ``half`` is the array
    ``real_forward`` returned, changed in place by the caller.
 5. ``transforms`` (dict): count of each kind of transform done, for the benchmark.
+6. ``name`` (str): its key in :data:`FFT_BACKENDS`.
 
 Two back ends, in :data:`FFT_BACKENDS`: ``"fftw"`` (pyFFTW, an optional speed-up: about twice
 as fast as scipy's pocketfft at N = 2^13 on our 2-core test machine, see ``bench/solver.py``,
@@ -31,6 +32,7 @@ from __future__ import annotations
 
 import importlib.util
 import sys
+import threading
 
 import numpy as np
 from scipy import fft as sfft
@@ -46,6 +48,8 @@ FFTW_PLANNING_LIMIT = 10.0
 
 class ScipyTransforms:
     """scipy.fft (pocketfft) back end; each transform returns a new array that is reused."""
+
+    name = "scipy"
 
     def __init__(self, points: int, workers: int = 1) -> None:
         self.points, self.workers = points, workers
@@ -73,6 +77,8 @@ class ScipyTransforms:
 
 class FftwTransforms:
     """pyFFTW back end [1]: plans bound to aligned buffers, executed without copies."""
+
+    name = "fftw"
 
     def __init__(self, points: int, workers: int = 1) -> None:
         pyfftw = import_pyfftw()
@@ -189,6 +195,27 @@ def import_pyfftw():
 def default_backend() -> str:
     """``"fftw"`` when pyFFTW is installed, else ``"scipy"``."""
     return "fftw" if fftw_available() else "scipy"
+
+
+_SHARED = threading.local()
+
+
+def shared_transforms(points: int, backend: str | None = None):
+    """A back end (``backend``, else :func:`default_backend`) for ``points`` samples, kept per
+    thread, back end and size, for code outside the solver's steps that transforms many
+    spectra one after the other (the compressor search, the solver's records). Planning, even
+    from FFTW wisdom, costs 10-40 ms; a kept back end costs nothing after its first use. The
+    caller fills ``spectrum_in``, calls ``forward()`` and uses the result before it calls
+    other code, which may use the same back end."""
+    kept = getattr(_SHARED, "by_points", None)
+    if kept is None:
+        kept = _SHARED.by_points = {}
+    key = (backend or default_backend(), points)
+    if key not in kept:
+        if len(kept) >= 4:
+            kept.pop(next(iter(kept)))
+        kept[key] = FFT_BACKENDS[key[0]](points)
+    return kept[key]
 
 
 def work_array(transforms, points: int) -> np.ndarray:
