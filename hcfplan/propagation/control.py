@@ -34,6 +34,7 @@ References
 
 from __future__ import annotations
 
+import math
 from collections.abc import Callable
 from typing import Literal
 
@@ -79,7 +80,7 @@ ERROR_NORMS: dict[str, Callable[..., float]] = {
 
 def step_factor(err: float, embedded_order: int) -> float:
     """Factor for the next step from the error norm (inf/nan -> MIN_FACTOR). [1]"""
-    if not np.isfinite(err):
+    if not math.isfinite(err):  # (math: a Python float per step, 10x cheaper than numpy's)
         return MIN_FACTOR
     if err == 0.0:
         return MAX_FACTOR

@@ -35,6 +35,7 @@ References
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -121,7 +122,7 @@ class RK4IP(_InteractionPicture):
     def step(self, state: StepState, h: float) -> tuple[bool, str]:
         norm2 = self._rk4(state.u, h, self.half_propagator(h))
         state.h = h
-        if not np.isfinite(norm2):
+        if not math.isfinite(norm2):
             return False, "nonfinite"
         self._accept(state, h)
         self.nonlinear.evaluate(self.nu)  # k1 of the next step (the FFT input holds u4)
@@ -130,11 +131,11 @@ class RK4IP(_InteractionPicture):
 
 def _relative_l2(stepper, s: float, norm2: float) -> float:
     """||s g (r4 - r5)|| / (rtol max(||u||, ||u4||) + atol sqrt(n)) (control.py)."""
-    delta = abs(s) * np.sqrt(stepper.kernels.difference_norm2(stepper.nonlinear.gain,
-                                                              stepper.r4, stepper.r5))
+    delta = abs(s) * math.sqrt(stepper.kernels.difference_norm2(stepper.nonlinear.gain,
+                                                                stepper.r4, stepper.r5))
     size = stepper.linear.size
-    return float(delta / (stepper.rtol * np.sqrt(max(norm2, stepper.norm_u))
-                          + stepper.atol * np.sqrt(size)))
+    return delta / (stepper.rtol * math.sqrt(max(norm2, stepper.norm_u))
+                    + stepper.atol * math.sqrt(size))
 
 
 def _scaled_rms(stepper, s: float, norm2: float, u: np.ndarray) -> float:
@@ -157,7 +158,7 @@ class ERK43IP(_InteractionPicture):
 
     def step(self, state: StepState, h: float) -> tuple[bool, str]:
         norm2 = self._rk4(state.u, h, self.half_propagator(h))
-        if not np.isfinite(norm2):
+        if not math.isfinite(norm2):
             state.h = h * step_factor(np.inf, self.embedded_order)
             return False, "nonfinite"
         self.nonlinear.evaluate(self.r5)  # k5 = g r5 = N(u4)
@@ -168,7 +169,7 @@ class ERK43IP(_InteractionPicture):
         else:
             err = _scaled_rms(self, s, norm2, state.u)
         state.h = h * step_factor(err, self.embedded_order)
-        if not np.isfinite(err):
+        if not math.isfinite(err):
             return False, "nonfinite"
         if err > 1.0:
             return False, ""
