@@ -238,7 +238,7 @@ def _scan_then_refine(fun: Callable[[float], float], lo: float, hi: float) -> tu
 class _Scorer:
     """Objective score of ``spectrum * exp(i phase)`` for the many phases of the search.
 
-    The searches call the objective 100-500 times per compressor (each call a complex
+    The searches call the objective 100-1000 times per compressor (each call a complex
     exponential and an FFT over the grid), more than the rest of a scan point's chain after the
     fiber. So the work per call is kept to that exponential and that FFT:
 
