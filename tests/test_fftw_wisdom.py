@@ -98,3 +98,23 @@ def test_file_of_an_earlier_version_is_measured_again(fresh):
         _wisdom_only_plan(pyfftw)
     FftwTransforms(POINTS)
     assert json.loads(path.read_text())["version"] == fftw_wisdom.WISDOM_VERSION == 2
+
+
+def test_a_problem_saved_once_is_not_exported_again(fresh, monkeypatch):
+    """A second back end of the same size makes the same plans, which add no wisdom: no export
+    (2-3 ms each) and no write. A new size is saved as before, and after forget_loaded (another
+    cache folder) a known problem is checked against the file again."""
+    import pyfftw
+
+    FftwTransforms(POINTS)
+    exports = []
+    real_export = pyfftw.export_wisdom
+    monkeypatch.setattr(pyfftw, "export_wisdom", lambda: exports.append(1) or real_export())
+    FftwTransforms(POINTS)
+    assert exports == []
+    FftwTransforms(POINTS // 5)  # 1024 points: new problems, their wisdom is saved
+    assert exports
+    exports.clear()
+    fftw_wisdom.forget_loaded()
+    FftwTransforms(POINTS)
+    assert exports  # compared with the file's wisdom again

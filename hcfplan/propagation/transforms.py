@@ -108,7 +108,8 @@ class FftwTransforms:
         plan = self._pyfftw.FFTW(a, b, direction=direction, flags=self._flags,
                                  threads=self.workers, planning_timelimit=FFTW_PLANNING_LIMIT)
         a[...], b[...] = saved
-        save_wisdom(self._pyfftw)
+        save_wisdom(self._pyfftw, (a.shape, a.dtype.str, b.shape, b.dtype.str, direction,
+                                   self._flags, self.workers))
         return plan
 
     def forward(self) -> np.ndarray:
