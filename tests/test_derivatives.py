@@ -92,3 +92,24 @@ def test_bad_omega_and_width_rejected():
         derivative(eps, -1.0, 2)
     with pytest.raises(ConfigError, match="rel_width = 0.7"):
         derivative(eps, 2e15, 2, rel_width=0.7)
+
+
+def test_ladder_samples_every_rung_in_few_calls():
+    # consistency: the adaptive rule samples all rungs of a block of points in one call of the
+    # function, with the same samples and weights as one call per rung (results identical), so
+    # a fiber model's per-call cost is paid once per block instead of once per rung
+    from hcfplan import derivatives as dv
+
+    calls = []
+
+    def counted(w):
+        calls.append(np.shape(w))
+        return beta_like(w)
+
+    omega = 2 * np.pi * C / np.geomspace(500e-9, 2500e-9, 1200)
+    table = dv._ladder_estimates(counted, omega, 3, dv.DEFAULT_DEGREE)
+    per_call = len(dv.WIDTH_LADDER) * (dv.DEFAULT_DEGREE + 1)
+    assert len(calls) == -(-omega.size // (dv._SAMPLES_PER_CALL // per_call))  # 3 blocks
+    reference = np.stack([dv._estimates(beta_like, omega, w, 3, dv.DEFAULT_DEGREE)
+                          for w in dv.WIDTH_LADDER])
+    np.testing.assert_array_equal(table, reference)
