@@ -247,7 +247,8 @@ class _Scorer:
       only, as :meth:`part` of the full arrays.
     * A phase common to every call of one search (the fixed elements, the mirrors of one bounce
       count) is folded into the spectrum once (:meth:`with_phase`).
-    * The polynomial phases of the references use the precomputed 0.5 dw^2 and dw^3 / 6.
+    * The polynomial phases of the references use the precomputed 0.5 dw^2 and dw^3 / 6
+      (:func:`_polynomial` with unit coefficients).
     * The FFT is the solver's default back end with its buffers
       (:func:`~hcfplan.propagation.transforms.shared_transforms`, pyFFTW when it is installed).
 
@@ -260,8 +261,8 @@ class _Scorer:
         keep = np.flatnonzero(spectrum)
         self._keep = None if keep.size == grid.points else keep
         self.spectrum = self.part(spectrum)
-        self.quadratic = self.part(0.5 * grid.domega**2)
-        self.cubic = self.part(grid.domega**3 / 6.0)
+        self.quadratic = self.part(_polynomial(grid, 1.0, 0.0))  # 0.5 dw^2
+        self.cubic = self.part(_polynomial(grid, 0.0, 1.0))  # dw^3 / 6
         self._fft = shared_transforms(grid.points)
         self._scale = 1.0 / (grid.points * grid.dt)  # unnormalised FFT -> envelope
 
@@ -276,7 +277,7 @@ class _Scorer:
         return other
 
     def polynomial(self, gdd: float, tod: float) -> np.ndarray:
-        """0.5 gdd dw^2 + tod/6 dw^3 on the searched samples. [rad]"""
+        """:func:`_polynomial` on the searched samples. [rad]"""
         return gdd * self.quadratic + tod * self.cubic
 
     def __call__(self, phase: np.ndarray) -> float:

@@ -75,13 +75,19 @@ def _check_order(max_order: int) -> None:
         raise ConfigError(f"derivative order = {max_order!r}: must be an integer 0..{MAX_ORDER}")
 
 
+def _from_samples(samples: np.ndarray, half_width: np.ndarray, weights: np.ndarray) -> np.ndarray:
+    """Derivatives 0..K-1 (K rows of ``weights``) from ``samples`` (n, nodes), C-contiguous, of
+    the intervals of ``half_width`` (n,); shape (K, n)."""
+    scale = half_width[None, :] ** np.arange(weights.shape[0])[:, None]
+    return (samples @ weights.T).T / scale
+
+
 def _estimates(func: Callable, omega: np.ndarray, rel_width: float, max_order: int, degree: int):
     """Derivatives 0..max_order at each omega for one half-width; shape (max_order+1, n)."""
     nodes, weights = _centre_weights(degree, max_order)
     half_width = rel_width * omega
     samples = np.asarray(func(omega[:, None] + half_width[:, None] * nodes[None, :]), dtype=float)
-    scale = half_width[None, :] ** np.arange(max_order + 1)[:, None]
-    return (samples @ weights.T).T / scale
+    return _from_samples(samples, half_width, weights)
 
 
 def derivative_table(
@@ -146,7 +152,6 @@ def _ladder_estimates(func: Callable, omega: np.ndarray, max_order: int,
     widths = np.asarray(WIDTH_LADDER)
     block = max(1, _SAMPLES_PER_CALL // (widths.size * nodes.size))
     out = np.empty((widths.size, max_order + 1, omega.size))
-    powers = np.arange(max_order + 1)
     for start in range(0, omega.size, block):
         part = omega[start:start + block]
         half_width = widths[:, None] * part[None, :]  # (rungs, points)
@@ -154,9 +159,8 @@ def _ladder_estimates(func: Callable, omega: np.ndarray, max_order: int,
         flat = where.transpose(1, 0, 2).reshape(part.size, -1)  # one row per point
         samples = np.asarray(func(flat), dtype=float).reshape(part.size, widths.size, -1)
         for r in range(widths.size):
-            scale = half_width[r][None, :] ** powers[:, None]
             rung = np.ascontiguousarray(samples[:, r, :])  # as in _estimates: same rounding
-            out[r, :, start:start + part.size] = (rung @ weights.T).T / scale
+            out[r, :, start:start + part.size] = _from_samples(rung, half_width[r], weights)
     return out
 
 
