@@ -249,14 +249,14 @@ def test_parent_computes_points_beside_the_pool(fast, tmp_path, monkeypatch):
     taken, intervals = [], []
 
     class Counting(scan._ParentWorker):
-        def __init__(self, take, results):
+        def __init__(self, take, results, finished=None):
             def counted():
                 task = take()
                 if task is not None:
                     taken.append(task["key"])
                     intervals.append(sys.getswitchinterval())
                 return task
-            super().__init__(counted, results)
+            super().__init__(counted, results, finished)
 
     monkeypatch.setattr(scan, "_ParentWorker", Counting)
     plan = plan_scan(fast, [parse_vary("gas.pressure_bar=1:2:4")])
@@ -271,6 +271,78 @@ def test_parent_computes_points_beside_the_pool(fast, tmp_path, monkeypatch):
     run_scan(plan, tmp_path / "serial", workers=1)
     assert (tmp_path / "both" / "table.csv").read_text() == \
         (tmp_path / "serial" / "table.csv").read_text()
+
+
+def _work_record(key: str, evaluations: int, points: int = 1024) -> dict:
+    return {"key": key, "summary": {"solver": {"rhs_evaluations": evaluations},
+                                    "grid": {"points": points}}}
+
+
+def _simulated_run(costs: list[float], starts: tuple[float, ...] = (0.0, 0.0)):
+    """Tasks taken by workers that start at ``starts`` and take the next task when they finish
+    one (a point of cost c takes c seconds and reports c evaluations). Returns (order of the
+    task indices taken, makespan)."""
+    import heapq
+
+    from hcfplan.planning import scan
+
+    tasks = [{"key": f"p{i}", "index": i} for i in range(len(costs))]
+    order, taken = scan._CostlierEndFirst(tasks), []
+    running = []  # (finish time, worker, task)
+    for worker, start in sorted(enumerate(starts), key=lambda item: item[1]):
+        task = order.take()
+        taken.append(task["index"])
+        heapq.heappush(running, (start + costs[task["index"]], worker, task))
+    end = 0.0
+    while running:
+        end, worker, task = heapq.heappop(running)
+        order.finished(_work_record(task["key"], costs[task["index"]]))
+        task = order.take()
+        if task is not None:
+            taken.append(task["index"])
+            heapq.heappush(running, (end + costs[task["index"]], worker, task))
+    return taken, end
+
+
+def _plan_order_makespan(costs: list[float], starts=(0.0, 0.0)) -> float:
+    free = sorted(starts)
+    for cost in costs:
+        free[0] += cost
+        free.sort()
+    return free[-1]
+
+
+def test_costliest_points_are_taken_first():
+    # contract: with costs that grow (or fall) along the task list, the workers take the two
+    # ends first, then go on from the costlier end, so no worker ends on a long point while
+    # the other waits (Graham's longest-processing-time-first rule, SIAM J. Appl. Math. 17,
+    # 416 (1969)); every task is taken once
+    rising = [1.0 + 0.004 * i**2 for i in range(16)]  # as a pressure scan's points
+    taken, makespan = _simulated_run(rising)
+    assert taken == [0, 15, *range(14, 0, -1)]
+    assert makespan < _plan_order_makespan(rising)
+    assert makespan <= sum(rising) / 2 + min(rising)  # at most the cheapest point of idling
+    falling = rising[::-1]
+    taken, makespan = _simulated_run(falling)
+    assert taken == [0, 15, *range(1, 15)]
+    assert makespan <= sum(falling) / 2 + min(falling)
+    # a second worker that starts late first finishes its cheap end late: the order turns
+    # to the costlier end once both ends have a finished point
+    taken, makespan = _simulated_run(falling, starts=(0.0, 2.2))
+    assert taken == [0, 15, 14, *range(1, 14)]
+    assert makespan <= _plan_order_makespan(falling, starts=(0.0, 2.2))
+    taken, makespan = _simulated_run(rising, starts=(0.0, 2.2))
+    assert taken == [0, 15, *range(14, 0, -1)]
+    assert makespan < _plan_order_makespan(rising, starts=(0.0, 2.2))
+
+
+def test_point_work_counts_solver_evaluations_and_grid():
+    # the work measure of the ordering: N evaluations x N log2 N; a point without a solver
+    # run (a config problem of that point) counts 0
+    from hcfplan.planning import scan
+
+    assert scan.point_work(_work_record("a", 10, 1024)) == pytest.approx(10 * 1024 * 10)
+    assert scan.point_work({"key": "b", "summary": {}}) == 0.0
 
 
 def test_parent_worker_hands_a_bug_to_the_main_thread():
