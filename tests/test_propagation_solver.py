@@ -130,7 +130,7 @@ def test_fused_error_kernel_matches_reference_norm(norm):
     g, r4, r5, u4, u = (rng.standard_normal(64) + 1j * rng.standard_normal(64) for _ in range(5))
     s, rtol, atol = 0.1, 1e-6, 1e-9
     expected = ERROR_NORMS[norm](s * g * (r4 - r5), u4, u, rtol, atol)
-    stepper = SimpleNamespace(kernels=kernels, nonlinear=SimpleNamespace(gain=g), r4=r4, r5=r5,
+    stepper = SimpleNamespace(kernels=kernels, nonlinear=SimpleNamespace(gain=g), r=r4, r5=r5,
                               u4=u4, linear=u, rtol=rtol, atol=atol,
                               norm_u=float(np.sum(np.abs(u) ** 2)))
     norm2 = float(np.sum(np.abs(u4) ** 2))

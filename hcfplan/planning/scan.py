@@ -544,7 +544,8 @@ class _CostlierEndFirst:
     References
     ----------
     .. [1] R. L. Graham, "Bounds on multiprocessing timing anomalies," SIAM J. Appl. Math.,
-           vol. 17, no. 2, pp. 416-429, 1969, doi:10.1137/0117039.
+           vol. 17, no. 2, pp. 416-429, 1969, doi:10.1137/0117039. [from memory, with the
+           4/3 - 1/(3m) bound]
     """
 
     def __init__(self, tasks: list[dict]) -> None:

@@ -79,15 +79,14 @@ def stage_last(x, acc, ui, g, r, s, d):  # pragma: no cover - compiled
 
 
 @njit(**_JIT)
-def stage_combine(u4, x, r4, d, ui, acc, g, r, s):  # pragma: no cover - compiled
-    """u4 = x = d (ui + s acc) + s g r;  r4 = r.  Returns sum |u4|^2 (inf/nan if not finite)."""
-    U4, X, R4, D, UI, ACC, G, R = _pairs(u4), _pairs(x), _pairs(r4), _pairs(d), _pairs(ui), \
-        _pairs(acc), _pairs(g), _pairs(r)
+def stage_combine(u4, x, d, ui, acc, g, r, s):  # pragma: no cover - compiled
+    """u4 = x = d (ui + s acc) + s g r.  Returns sum |u4|^2 (inf/nan if not finite)."""
+    U4, X, D, UI, ACC, G, R = _pairs(u4), _pairs(x), _pairs(d), _pairs(ui), _pairs(acc), \
+        _pairs(g), _pairs(r)
     total = 0.0
     for i in range(R.shape[0]):
         gr, gi = G[i, 0], G[i, 1]
         rr, rj = R[i, 0], R[i, 1]
-        R4[i, 0], R4[i, 1] = rr, rj
         yr, yj = UI[i, 0] + s * ACC[i, 0], UI[i, 1] + s * ACC[i, 1]
         dr, di = D[i, 0], D[i, 1]
         vr = dr * yr - di * yj + s * (gr * rr - gi * rj)
@@ -240,7 +239,7 @@ def warm_kernels() -> None:
     stage_first(a, b, c, d, e, f, g, 0.1)
     stage_middle(a, b, c, d, e, 0.1)
     stage_last(a, b, c, d, e, 0.1, f)
-    stage_combine(a, b, c, d, e, f, g, h, 0.1)
+    stage_combine(a, b, c, d, e, f, g, 0.1)
     difference_norm2(a, b, c)
     difference_scaled_rms(a, b, c, d, e, 0.1, 1e-6, 0.0)
     kerr_in_place(a)

@@ -78,7 +78,7 @@ class _InteractionPicture:
         self.nonlinear = nonlinear
         self.rtol, self.atol, self.norm = rtol, atol, norm
         shape = linear.shape
-        self.ui, self.acc, self.r4, self.u4 = (np.empty(shape, complex) for _ in range(4))
+        self.ui, self.acc, self.u4 = (np.empty(shape, complex) for _ in range(3))
         # targets of the inverse FFT (aligned for pyFFTW)
         self.r, self.nu, self.r5 = (nonlinear.new_work() for _ in range(3))
         self.norm_u = 0.0  # sum |u|^2 of the current state (set by the first stage)
@@ -100,7 +100,7 @@ class _InteractionPicture:
 
     def _rk4(self, u: np.ndarray, h: float, d: np.ndarray) -> float:
         """RK4IP step of Hult [1] from u (N(u) raw in self.nu): u4 (also in the FFT input) and
-        raw k4 in self.r4. Returns sum |u4|^2 (not finite when the step overflowed)."""
+        raw k4 in self.r. Returns sum |u4|^2 (not finite when the step overflowed)."""
         kn, n, g = self.kernels, self.nonlinear, self.nonlinear.gain
         ui, acc, x, r = self.ui, self.acc, self.nonlinear.input, self.r
         self.norm_u = kn.stage_first(ui, acc, x, d, u, g, self.nu, 0.5 * h)  # u_I, k1
@@ -109,7 +109,7 @@ class _InteractionPicture:
         n.evaluate(r)  # k3
         kn.stage_last(x, acc, ui, g, r, h, d)
         n.evaluate(r)  # k4
-        return kn.stage_combine(self.u4, x, self.r4, d, ui, acc, g, r, h * RK4_WEIGHTS[0])
+        return kn.stage_combine(self.u4, x, d, ui, acc, g, r, h * RK4_WEIGHTS[0])
 
     def _accept(self, state: StepState, h: float) -> None:
         state.u, self.u4 = self.u4, state.u  # swap buffers instead of copying
@@ -130,18 +130,20 @@ class RK4IP(_InteractionPicture):
 
 
 def _relative_l2(stepper, s: float, norm2: float) -> float:
-    """||s g (r4 - r5)|| / (rtol max(||u||, ||u4||) + atol sqrt(n)) (control.py)."""
+    """||s g (r4 - r5)|| / (rtol max(||u||, ||u4||) + atol sqrt(n)) (control.py); raw k4 is
+    ``stepper.r``."""
     delta = abs(s) * math.sqrt(stepper.kernels.difference_norm2(stepper.nonlinear.gain,
-                                                                stepper.r4, stepper.r5))
+                                                                stepper.r, stepper.r5))
     size = stepper.linear.size
     return delta / (stepper.rtol * math.sqrt(max(norm2, stepper.norm_u))
                     + stepper.atol * math.sqrt(size))
 
 
 def _scaled_rms(stepper, s: float, norm2: float, u: np.ndarray) -> float:
-    """RMS of s g (r4 - r5) / (atol + rtol max(|u|, |u4|)) (control.py)."""
+    """RMS of s g (r4 - r5) / (atol + rtol max(|u|, |u4|)) (control.py); raw k4 is
+    ``stepper.r``."""
     return float(stepper.kernels.difference_scaled_rms(
-        stepper.nonlinear.gain, stepper.r4, stepper.r5, stepper.u4, u, s, stepper.rtol,
+        stepper.nonlinear.gain, stepper.r, stepper.r5, stepper.u4, u, s, stepper.rtol,
         stepper.atol))
 
 
