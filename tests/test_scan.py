@@ -345,6 +345,41 @@ def test_point_work_counts_solver_evaluations_and_grid():
     assert scan.point_work({"key": "b", "summary": {}}) == 0.0
 
 
+def test_json_ready_gives_plain_values():
+    # the converter of every JSON file and of the point checksums: numpy values to Python,
+    # non-finite floats to null, paths to strings, tuples to lists, keys to strings
+    import numpy as np
+
+    from hcfplan.io.results import json_ready
+
+    data = {"a": np.arange(3.0), "b": (np.float64(1.5), np.int64(2), np.bool_(True)),
+            "c": [float("nan"), float("inf"), -0.25, np.float32(np.nan)], 4: Path("x/y"),
+            "d": {"e": None, "f": "text", "g": True, "h": 7}, "i": np.array([[1, 2]])}
+    ready = json_ready(data)
+    assert ready == {"a": [0.0, 1.0, 2.0], "b": [1.5, 2, True], "c": [None, None, -0.25, None],
+                     "4": "x/y", "d": {"e": None, "f": "text", "g": True, "h": 7},
+                     "i": [[1, 2]]}
+    assert type(ready["b"][0]) is float and type(ready["b"][1]) is int
+    assert type(ready["b"][2]) is bool
+
+
+def test_point_files_hold_one_field_per_line(tmp_path):
+    # the scan's point files: the same JSON data, each top-level field on a line of its own
+    import numpy as np
+
+    from hcfplan.io.results import json_ready, write_json
+
+    record = {"key": "abc", "summary": {"x": {"y": np.float64(2.0)}, "z": float("nan")},
+              "spectrum": {"f": list(np.linspace(0, 1, 5))}, "seconds": {"point": 0.1}}
+    write_json(tmp_path / "p.json", record, one_line_fields=True)
+    text = (tmp_path / "p.json").read_text()
+    assert json.loads(text) == json_ready(record)
+    assert text.count("\n") == len(record) + 2 and text.startswith('{\n  "key": "abc",\n')
+    write_json(tmp_path / "q.json", record)  # the default: indented by 2
+    assert json.loads((tmp_path / "q.json").read_text()) == json_ready(record)
+    assert (tmp_path / "q.json").read_text().count("\n") > len(record) + 2
+
+
 def test_parent_worker_hands_a_bug_to_the_main_thread():
     # a non-validation exception in the parent's own point reaches the caller, it is not lost
     import queue

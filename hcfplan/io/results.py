@@ -78,17 +78,30 @@ def _umask() -> int:
     return mask
 
 
-def _jsonable(value: Any) -> Any:
+def json_ready(value: Any) -> Any:
+    """JSON-ready copy: numpy arrays and scalars to Python values, non-finite floats to None,
+    paths to strings, dict keys to strings, tuples to lists.
+
+    Plain Python values are told apart by their exact type first (one comparison each): a
+    scan point record holds about 2000 numbers, and a chain of isinstance tests per value cost
+    3 ms per record."""
+    kind = type(value)
+    if kind is float:
+        return value if math.isfinite(value) else None
+    if kind is str or kind is int or kind is bool or value is None:
+        return value
+    if kind is dict:
+        return {str(k): json_ready(v) for k, v in value.items()}
+    if kind is list or kind is tuple:
+        return [json_ready(v) for v in value]
     if isinstance(value, dict):
-        return {str(k): _jsonable(v) for k, v in value.items()}
+        return {str(k): json_ready(v) for k, v in value.items()}
     if isinstance(value, (list, tuple)):
-        return [_jsonable(v) for v in value]
-    if isinstance(value, np.ndarray):
-        return _jsonable(value.tolist())
-    if isinstance(value, (np.floating, np.integer, np.bool_)):
-        value = value.item()
-    if isinstance(value, float) and not math.isfinite(value):
-        return None
+        return [json_ready(v) for v in value]
+    if isinstance(value, (np.ndarray, np.generic)):
+        return json_ready(value.tolist())
+    if isinstance(value, float):
+        return float(value) if math.isfinite(value) else None
     if isinstance(value, Path):
         return str(value)
     return value
@@ -100,9 +113,19 @@ def write_text(path: Path, text: str) -> None:
         tmp.write_text(text, encoding="utf-8")
 
 
-def write_json(path: Path, data: dict) -> None:
-    """Write ``data`` as indented JSON atomically (NaN/inf become null)."""
-    write_text(path, json.dumps(_jsonable(data), indent=2) + "\n")
+def write_json(path: Path, data: dict, *, one_line_fields: bool = False) -> None:
+    """Write ``data`` as JSON atomically (NaN/inf become null), indented by 2.
+
+    With ``one_line_fields``, each top-level field is written on one line of its own instead
+    (for machine records such as scan points, 40 kB each): Python's C encoder writes only
+    unindented JSON, and the indenting one, in Python, took 3.9 ms per point record against
+    1.1 ms. Both are the same JSON data."""
+    ready = json_ready(data)
+    if one_line_fields and isinstance(ready, dict) and ready:
+        fields = (f"  {json.dumps(k)}: {json.dumps(v)}" for k, v in ready.items())
+        write_text(path, "{\n" + ",\n".join(fields) + "\n}\n")
+    else:
+        write_text(path, json.dumps(ready, indent=2) + "\n")
 
 
 def write_npz(path: Path, arrays: dict[str, np.ndarray]) -> None:

@@ -36,6 +36,7 @@ from pathlib import Path
 from typing import Any
 
 from ..errors import ConfigError, HcfplanError
+from ..io.results import json_ready
 
 POINT_FORMAT = "hcfplan-scan-point"
 POINT_VERSION = 1
@@ -172,7 +173,7 @@ def _canonical(data: Any) -> str:
 
 def config_key(resolved: dict) -> str:
     """First 16 hex digits of the sha256 of the canonical JSON of a resolved config."""
-    return hashlib.sha256(_canonical(plain(resolved)).encode()).hexdigest()[:16]
+    return hashlib.sha256(_canonical(json_ready(resolved)).encode()).hexdigest()[:16]
 
 
 def plan_scan(config_path: str | Path, varies: list[Vary] | tuple[Vary, ...],
@@ -232,7 +233,7 @@ def limits_values(config, summary: dict | None = None) -> dict:
     from .limits_report import limits_report
 
     run = run_numbers(summary) if summary else None
-    return plain(limits_report(config, run=run))
+    return json_ready(limits_report(config, run=run))
 
 
 def number_or_none(value, *, finite: bool = False) -> float | None:
@@ -277,23 +278,6 @@ def point_margins(config, report: dict) -> dict:
 # one point (runs in a worker process)
 
 
-def plain(value: Any) -> Any:
-    """JSON-ready copy: numpy scalars/arrays to Python, non-finite floats to None."""
-    if isinstance(value, dict):
-        return {str(k): plain(v) for k, v in value.items()}
-    if isinstance(value, (list, tuple)):
-        return [plain(v) for v in value]
-    if hasattr(value, "tolist") and not isinstance(value, (str, bytes)):
-        value = value.tolist()
-        if isinstance(value, list):
-            return plain(value)
-    if isinstance(value, float) and not math.isfinite(value):
-        return None
-    if isinstance(value, Path):
-        return str(value)
-    return value
-
-
 def flatten(data: dict, prefix: str = "") -> dict:
     """Nested dict -> ``{"a.b.c": leaf}``; keys already holding dots are kept as they are."""
     out: dict[str, Any] = {}
@@ -327,7 +311,7 @@ def _spectrum(chain) -> dict:
 
 
 def _with_checksum(record: dict) -> dict:
-    record = plain(record)
+    record = json_ready(record)
     body = {k: v for k, v in record.items() if k != "checksum"}
     record["checksum"] = "sha256:" + hashlib.sha256(_canonical(body).encode()).hexdigest()
     return record
@@ -337,7 +321,7 @@ def run_summary(config, chain) -> tuple[dict, dict]:
     """(summary, margins) of a chain run; a partial run gets the analytic limits only."""
     from .chain import summary_dict
 
-    summary = plain(summary_dict(chain))
+    summary = json_ready(summary_dict(chain))
     if chain.propagation.success:  # summary_dict holds limits_report with the run's peaks
         report = {f"limits.{k}": v for k, v in summary["limits"].items()}
     else:
@@ -781,7 +765,7 @@ def run_scan(plan: ScanPlan, out_dir: Path, *, workers: int = 1, address: str | 
     computed: list[str] = []
 
     def done(record: dict) -> None:
-        write_json(points_dir / f"{record['key']}.json", record)
+        write_json(points_dir / f"{record['key']}.json", record, one_line_fields=True)
         found[record["key"]] = record
         computed.append(record["key"])
         if on_point is not None:
