@@ -416,15 +416,13 @@ def test_worker_environment_is_set_for_the_workers_and_restored(monkeypatch):
 
 
 _PRELOAD_CHECK = """
-import importlib, sys
-from pathlib import Path
-from hcfplan.planning.scan import (WORKER_PRELOAD, compute_point, parse_vary, plan_scan,
-                                   point_task)
-plan = plan_scan(Path(sys.argv[1]), [parse_vary("gas.pressure_bar=1.5")])
+import importlib, json, sys
+from hcfplan.planning.scan import WORKER_PRELOAD, compute_point
+task = json.loads(sys.argv[1])  # planned by the test: a worker never plans
 for name in WORKER_PRELOAD:
     importlib.import_module(name)
 before = set(sys.modules)
-record = compute_point(point_task(plan, plan.points[0]))
+record = compute_point(task)
 print(record["status"], *sorted(m for m in set(sys.modules) - before if m.startswith("hcfplan")))
 """
 
@@ -432,8 +430,12 @@ print(record["status"], *sorted(m for m in set(sys.modules) - before if m.starts
 def test_worker_preload_covers_every_module_a_point_imports(fast):
     """Contract: the fork server preloads every hcfplan module a scan point imports, so no
     worker imports one during its first point (a fresh interpreter)."""
+    from hcfplan.planning.scan import point_task
+
+    plan = plan_scan(fast, [parse_vary("gas.pressure_bar=1.5")])
+    task = json.dumps(point_task(plan, plan.points[0]))
     env = dict(os.environ, PYTHONPATH=str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", ""))
-    out = subprocess.run([sys.executable, "-c", _PRELOAD_CHECK, str(fast)], env=env, check=True,
+    out = subprocess.run([sys.executable, "-c", _PRELOAD_CHECK, task], env=env, check=True,
                          capture_output=True, text=True, timeout=300).stdout.split()
     assert out == ["ok"]
 

@@ -435,7 +435,9 @@ WORKER_PRELOAD = ["hcfplan.cli", "hcfplan.planning.chain", "hcfplan.propagation.
                   "hcfplan.planning.fiber_report", "hcfplan.limits", "hcfplan.limits_cell",
                   "hcfplan.cautions", "hcfplan.ionization", "hcfplan.ionization_tables",
                   "hcfplan.pulse", "hcfplan.fibers.derived", "hcfplan.io.results",
-                  "hcfplan.io.csvdata", "hcfplan.propagation.warmup"]
+                  "hcfplan.io.csvdata", "hcfplan.io.config", "hcfplan.materials.gases",
+                  "hcfplan.materials.data.crystals", "hcfplan._gases",
+                  "hcfplan.propagation.warmup"]
 #: Thread counts of the numerical libraries in the scan workers: the workers are the
 #: parallelism. OpenBLAS's own threads (it busy-waits) in two workers on two cores doubled the
 #: time per point (0.29 s instead of 0.15 s, 1024-point grid, bench/scan.py).
