@@ -158,6 +158,44 @@ def _arf_run(argon, wall: float, energy: float):
                          rtol=1e-5, z_samples=11, ionization_model=None), fiber
 
 
+def test_recorder_values_are_the_plain_numpy_ones(argon):
+    # consistency: the recorder's compiled passes give what the numpy expressions of its
+    # docstring give (energy, peak power, bandwidth, energy at the window edges, energy and
+    # centre in the wall-resonance bands), on a spectrum that reaches the edges and a band
+    from hcfplan.metrics import spectral_width
+    from hcfplan.propagation.result import BANDWIDTH_LEVEL_DB, EDGE_ZONE, Recorder
+
+    grid = Grid(points=2**10, dt=2e-15, omega0=OMEGA_1030)
+    fiber = AntiresonantFiber(core_radius=25e-6, wall_thickness=0.93e-6, length=0.1, gas=argon)
+    rng = np.random.default_rng(8)
+    u = (rng.standard_normal(grid.points) + 1j * rng.standard_normal(grid.points)) * 1e-12
+    u *= np.exp(-((grid.domega * 2e-15) ** 2))  # a broad spectrum, still above zero at the edges
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityWarning)  # the Ar fit beyond 1000 nm
+        recorder = Recorder(grid, 2, 1e-9, None, fiber)
+        band = fiber.in_resonance_band(grid.omega, 0.05)
+    recorder.record(0.0, u)
+    density = np.abs(u) ** 2
+    power = np.abs(grid.to_time(u)) ** 2
+    energy = np.sum(density) * grid.dnu
+    np.testing.assert_array_equal(recorder.spectra[0], density.astype(np.float32))
+    assert recorder.values["energy"][0] == pytest.approx(energy, rel=1e-12)
+    assert recorder.values["peak_power"][0] == pytest.approx(power.max(), rel=1e-12)
+    assert recorder.values["bandwidth"][0] == pytest.approx(
+        spectral_width(grid.frequency, density, BANDWIDTH_LEVEL_DB), rel=1e-12)
+    far = np.abs(grid.domega) > (1 - 2 * EDGE_ZONE) * np.pi / grid.dt
+    assert recorder.edge_frequency.largest == pytest.approx(
+        np.sum(density[far]) * grid.dnu / energy, rel=1e-12)
+    k = np.arange(grid.points)
+    outer = (k < EDGE_ZONE * grid.points) | (k >= (1 - EDGE_ZONE) * grid.points)
+    assert recorder.edge_time.largest == pytest.approx(
+        np.sum(power[outer]) * grid.dt / energy, rel=1e-12)
+    assert band.any() and recorder.resonance.largest == pytest.approx(
+        np.sum(density[band]) * grid.dnu / energy, rel=1e-12)
+    assert recorder.resonance.where == pytest.approx(
+        np.sum(grid.wavelength[band] * density[band]) / np.sum(density[band]), rel=1e-12)
+
+
 def test_resonance_band_warning(argon):
     # wall 0.93 um: the m = 2 resonance lies near 977 nm, 5 % from the 1030 nm pump
     result, fiber = _arf_run(argon, 0.93e-6, 1e-6)

