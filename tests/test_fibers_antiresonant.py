@@ -59,6 +59,31 @@ def test_loss_peaks_at_arrow_resonances(m, window):
     assert fiber.resonance_wavelengths(2)[m - 1] == pytest.approx(expected, rel=1e-12)
 
 
+@pytest.mark.filterwarnings("ignore::hcfplan.errors.ValidityWarning")  # orders below 210 nm
+def test_resonances_do_not_depend_on_how_many_are_asked_and_are_kept(monkeypatch):
+    # contract: lambda_m is the same whatever m_max; an equal fiber reuses the solved orders
+    # (no index evaluated again); the caller gets a copy
+    from hcfplan.fibers import antiresonant
+
+    gas = DiluteGas()
+    fiber = AntiresonantFiber(15e-6, 0.5e-6, 1.0, gas)
+    eight = fiber.resonance_wavelengths(8)
+    antiresonant._KNOWN_RESONANCES.clear()
+    three = fiber.resonance_wavelengths(3)
+    np.testing.assert_array_equal(three, eight[:3])
+    calls = []
+    real = antiresonant.solid_index
+    monkeypatch.setattr(antiresonant, "solid_index", lambda *a: calls.append(1) or real(*a))
+    equal = AntiresonantFiber(15e-6, 0.5e-6, 1.0, gas)
+    kept = equal.resonance_wavelengths(2)
+    np.testing.assert_array_equal(kept, eight[:2])
+    assert calls == []
+    kept[0] = 0.0
+    assert equal.resonance_wavelengths(2)[0] == eight[0]
+    equal.resonance_wavelengths(9)  # more orders than kept: solved again
+    assert calls
+
+
 def test_self_consistent_resonance_with_malitson_silica():
     # analytic: independent root of lambda = 2 d sqrt(n(lambda)^2 - 1) with the Malitson 1965 fit
     # (d = 0.5 um, empty fiber); about 1.0497 um, a few nm below the fixed-index 1.0500 um

@@ -45,6 +45,10 @@ _RESONANCE_ITERATIONS = 60  # most fixed-point steps for lambda_m = (2d/m) sqrt(
 #: Orders whose lambda_m lies beyond the glass table's range need not settle (seen at m >= 11,
 #: below 115 nm for a 0.7 um silica wall) and take all 60 steps, as before.
 _RESONANCE_TOLERANCE = 1e-14
+#: Resonance wavelengths solved so far, per fiber (equal fibers share them): a chain asks for
+#: them seven times (fiber report, recorder, limits), 4-6 ms each for the demo fiber.
+_KNOWN_RESONANCES: dict = {}
+_KNOWN_RESONANCES_KEPT = 32
 
 
 def wall_phase(omega: np.ndarray, wall_thickness: float, n_glass, n_gas) -> np.ndarray:
@@ -195,20 +199,38 @@ class AntiresonantFiber:
 
         Solves lambda_m = (2 d / m) sqrt(n_glass(lambda_m)^2 - n_gas(lambda_m)^2) ([2]) by
         fixed-point iteration (the right side varies slowly with lambda, so it converges fast).
+        Each order stops at its own convergence, so lambda_m does not depend on ``m_max``; the
+        orders solved are kept per fiber (:data:`_KNOWN_RESONANCES`) and reused.
         """
         if not (isinstance(m_max, (int, np.integer)) and m_max >= 1):
             raise ConfigError(f"m_max = {m_max!r}: must be an integer >= 1")
+        try:
+            known = _KNOWN_RESONANCES.get(self)
+        except TypeError:  # a gas or material that cannot be hashed: solve every time
+            return self._solve_resonances(int(m_max))
+        if known is None or known.size < m_max:
+            known = self._solve_resonances(int(m_max))
+            if len(_KNOWN_RESONANCES) >= _KNOWN_RESONANCES_KEPT:
+                _KNOWN_RESONANCES.pop(next(iter(_KNOWN_RESONANCES)))
+            _KNOWN_RESONANCES[self] = known
+        return known[:m_max].copy()
+
+    def _solve_resonances(self, m_max: int) -> np.ndarray:
         orders = np.arange(1, m_max + 1, dtype=float)
         material = self._material()
         wavelength = 2.0 * self.wall_thickness / orders * 1.45  # start from a typical glass
+        active = np.ones(m_max, dtype=bool)
         for _ in range(_RESONANCE_ITERATIONS):
-            omega = 2.0 * np.pi * c / wavelength
+            omega = 2.0 * np.pi * c / wavelength[active]
             n_glass = solid_index(material, omega)
             n_gas = self.gas.refractive_index(omega)
-            previous = wavelength
-            wavelength = 2.0 * self.wall_thickness / orders * np.sqrt(n_glass**2 - n_gas**2)
-            settled = np.abs(wavelength - previous) <= _RESONANCE_TOLERANCE * wavelength
-            if np.all(settled | np.isnan(wavelength)):  # nan (beyond a table) stays nan
+            previous = wavelength[active]
+            found = 2.0 * self.wall_thickness / orders[active] * np.sqrt(n_glass**2 - n_gas**2)
+            wavelength[active] = found
+            # settled orders, and nan (beyond a table), stay as they are
+            still = ~((np.abs(found - previous) <= _RESONANCE_TOLERANCE * found) | np.isnan(found))
+            active[active] = still
+            if not active.any():
                 break
         return wavelength
 
