@@ -59,6 +59,18 @@ def test_loss_peaks_at_arrow_resonances(m, window):
     assert fiber.resonance_wavelengths(2)[m - 1] == pytest.approx(expected, rel=1e-12)
 
 
+def test_wall_index_of_real_glass_is_the_complex_formula():
+    # consistency: real indices take the real-valued forms of the Notes; they give the complex
+    # formula's value (a glass index with a zero imaginary part takes the complex one)
+    omega = omega_of(np.linspace(0.6e-6, 2.0e-6, 3001))
+    n_glass = refractive_index("fused_silica", omega)
+    n_gas = np.full(omega.shape, 1.0003)
+    real = arf_wall_index_zeisberger2017(omega, 25e-6, 0.7e-6, n_glass, n_gas)
+    complex_form = arf_wall_index_zeisberger2017(omega, 25e-6, 0.7e-6, n_glass + 0j, n_gas)
+    assert real.dtype == complex and np.all(real.imag > 0)
+    np.testing.assert_allclose(real, complex_form, rtol=1e-14, atol=0)
+
+
 @pytest.mark.filterwarnings("ignore::hcfplan.errors.ValidityWarning")  # orders below 210 nm
 def test_resonances_do_not_depend_on_how_many_are_asked_and_are_kept(monkeypatch):
     # contract: lambda_m is the same whatever m_max; an equal fiber reuses the solved orders

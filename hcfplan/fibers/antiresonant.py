@@ -95,9 +95,26 @@ def arf_wall_index_zeisberger2017(
     Im = j01^3/(k0^4 n_g^3 R^4) (1 + cot^2 phi)(eps^2+1)/(2(eps-1)), the form of [1]
     (leading order in 1/(k0 R); d << R). Diverges at phi = m pi (resonances, [2]) where the
     perturbation expansion fails; trust it only outside the resonance bands.
+
+    Real indices (eps > 1, the usual case) are computed with these real-valued forms: the
+    complex square root, sine and cosine took most of a fiber report (the derivative rule
+    evaluates the model at about 10^5 frequencies per call).
     """
-    eps = np.asarray(n_glass, dtype=complex) ** 2 / n_gas**2
     k0 = omega / c
+    n_glass = np.asarray(n_glass)
+    if not np.iscomplexobj(n_glass):
+        eps_real = n_glass**2 / n_gas**2
+        if np.all(eps_real > 1.0):
+            root_real = np.sqrt(eps_real - 1.0)
+            phase = k0 * wall_thickness * np.sqrt(n_glass**2 - n_gas**2)  # wall_phase, real
+            cot_real = np.cos(phase) / np.sin(phase)
+            half = U11**2 / (k0**3 * n_gas**2 * core_radius**3) / (2.0 * root_real)
+            leak_real = U11 / (k0 * n_gas * core_radius * root_real)
+            out = np.empty(np.broadcast(k0, eps_real).shape, dtype=complex)
+            out.real = -half * (eps_real + 1.0) * cot_real
+            out.imag = half * leak_real * (eps_real**2 + 1.0) * (1.0 + cot_real**2)
+            return out
+    eps = np.asarray(n_glass, dtype=complex) ** 2 / n_gas**2
     root = np.sqrt(eps - 1.0)
     phi = wall_phase(omega, wall_thickness, n_glass, n_gas)
     cot = np.cos(phi) / np.sin(phi)
