@@ -82,7 +82,7 @@ def json_ready(value: Any) -> Any:
     """JSON-ready copy: numpy arrays and scalars to Python values, non-finite floats to None,
     paths to strings, dict keys to strings, tuples to lists.
 
-    Plain Python values are told apart by their exact type first (one comparison each): a
+    Plain Python leaves are told apart by their exact type first (one comparison each): a
     scan point record holds about 2000 numbers, and a chain of isinstance tests per value cost
     3 ms per record."""
     kind = type(value)
@@ -90,10 +90,6 @@ def json_ready(value: Any) -> Any:
         return value if math.isfinite(value) else None
     if kind is str or kind is int or kind is bool or value is None:
         return value
-    if kind is dict:
-        return {str(k): json_ready(v) for k, v in value.items()}
-    if kind is list or kind is tuple:
-        return [json_ready(v) for v in value]
     if isinstance(value, dict):
         return {str(k): json_ready(v) for k, v in value.items()}
     if isinstance(value, (list, tuple)):

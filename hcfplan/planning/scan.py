@@ -538,12 +538,12 @@ class _CostlierEndFirst:
         self._tasks, self._low, self._high = tasks, 0, len(tasks) - 1
         self._ends: dict[str, str] = {}  # key of a task in progress -> "low" or "high"
         self._work: dict[str, float | None] = {"low": None, "high": None}  # latest finished
-        self._taken = {"low": 0, "high": 0}
 
     def _pick(self) -> str:
-        for end in ("low", "high"):
-            if self._taken[end] == 0:  # the two ends first
-                return end
+        if self._low == 0:  # the two ends first
+            return "low"
+        if self._high == len(self._tasks) - 1:
+            return "high"
         low, high = self._work["low"], self._work["high"]
         if low is None or high is None:  # the end without a finished point: still running
             return "low" if low is None else "high"
@@ -558,7 +558,6 @@ class _CostlierEndFirst:
             task, self._low = self._tasks[self._low], self._low + 1
         else:
             task, self._high = self._tasks[self._high], self._high - 1
-        self._taken[end] += 1
         self._ends[task.get("key", "")] = end
         return task
 
