@@ -4,10 +4,11 @@ Each kernel does in one pass over the spectrum what would take numpy three to si
 temporaries. The stepper kernels also apply the gain g of the nonlinear term (N = g * raw, see
 :class:`~.operators.NonlinearTerms`), so the spectrum that comes out of the inverse FFT is never
 scaled in a pass of its own. Complex products are written out in real arithmetic on flat
-float views of the complex arrays (:func:`_flat`, no copy), which LLVM vectorises; the (n, 2)
+float views of the complex arrays (:func:`_flat`, no copy), which LLVM vectorises in the
+kernels without branches (not the plasma and recorder passes); the (n, 2)
 views used before were compiled to scalar code (on a 2-core AVX-512 machine, N = 2^13:
 ``stage_middle`` 17 -> 9 us, ``stage_combine`` 29 -> 13 us; on an earlier AVX2 machine the
-vectorised forms were not faster). The kernels that sum over the array allow ``reassoc``
+vectorised variants tried were not faster). The kernels that sum over the array allow ``reassoc``
 (:data:`_SUM_JIT`) so the sum is split into vector lanes; no other fast-math flag is set, so NaN
 and Inf propagate and are detected. The arrays must be C-contiguous (all work arrays of the
 solver are).
@@ -121,6 +122,8 @@ def difference_norm2(g, r4, r5):  # pragma: no cover - compiled
     return total
 
 
+# numpy error model: no zero-division check per bin (the check kept the loop scalar); 0/0
+# gives nan, as control.scaled_rms_norm does
 @njit(**_SUM_JIT, error_model="numpy")
 def difference_scaled_rms(g, r4, r5, u4, u, s, rtol, atol):  # pragma: no cover - compiled
     """RMS of s g (r4 - r5) / (atol + rtol max(|u4|, |u|))."""
