@@ -138,3 +138,38 @@ def test_fused_plasma_kernel_matches_numpy_reference(fill):
     assert fraction == pytest.approx(line / (area * terms.neutral_density), rel=1e-12)
     # the recorder's entry point: the same fraction from the power alone
     assert terms.ionization_of(power / scale**2)[0] == pytest.approx(fraction, rel=1e-12)
+
+
+@pytest.mark.parametrize("where", ["start", "end", "nan"])
+def test_fused_plasma_kernel_blocks_match_numpy_reference(where):
+    # contract: the plasma kernel's blocks (a block with no sample above the rate tables is one
+    # branch-free loop) give the numpy reference's terms and end density, also when the
+    # ionising samples lie in the first or the last block of the window or NaN samples occur
+    from hcfplan.propagation import kernels
+    from hcfplan.propagation.operators import NonlinearTerms
+    from hcfplan.propagation.solve import _ionizing_species
+
+    gas = gas_medium(GasFill((("Ar", 1.0),), 2e5, 293.15))
+    area = CapillaryFiber(core_radius=50e-6, length=0.02, gas=gas).peak_intensity_area
+    fiber = TaylorFiber(omega0=OMEGA_800, betas=(-5e-30,), gamma=1e-6, length=0.02,
+                        mode_area=area)
+    grid = Grid(points=3 * kernels.PLASMA_BLOCK + 17, dt=1.5e-15, omega0=OMEGA_800)
+    species, _ = _ionizing_species(grid, fiber, gas, "ppt")
+    terms = NonlinearTerms(grid, np.full(grid.points, 1e-6), 1.0, None, species, area)
+    pulse = np.abs(pulse_field(grid, "sech2", 30e-15, 80e-6)) ** 2  # centred, ionising
+    shift = {"start": -grid.points // 2 + 3, "end": grid.points // 2 - 2, "nan": 0}[where]
+    power = np.roll(pulse, shift)  # [W]
+    a = np.sqrt(power) * np.exp(1j * np.linspace(0, 7, grid.points))
+    if where == "nan":
+        a[[5, grid.points // 2 + 1, grid.points - 1]] = np.nan
+        power = np.abs(a) ** 2
+    assert (power / area > np.exp(terms.tables[0][0])).sum() > 10  # the check is not void
+    p = np.empty_like(a)
+    kerr = a.copy()
+    end = kernels.plasma_in_place(kerr, p, power, np.zeros(grid.points), 1.0, *terms.tables,
+                                  1.0, area, grid.dt, terms.refraction)
+    expected = terms._plasma_time(a, power)
+    np.testing.assert_allclose(p, expected, rtol=1e-12, atol=0, equal_nan=True)
+    np.testing.assert_array_equal(kerr, a * power)
+    line = terms.electron_line_density / area  # set by the reference
+    assert end == pytest.approx(line, rel=1e-12) or (np.isnan(end) and np.isnan(line))

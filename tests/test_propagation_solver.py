@@ -154,3 +154,34 @@ def test_fft_backends_agree(case, backend):
     assert a.n_steps == b.n_steps
     assert np.max(np.abs(a.field_out_spectrum - b.field_out_spectrum)) < 1e-9 * np.max(
         np.abs(b.field_out_spectrum))
+
+
+def _width_cases():
+    """(x, y) pairs for the compiled outermost width: smooth, side lobes, flat top, peak at an
+    end, above the level at an end, all zero, a NaN, too short, two equal maxima."""
+    x = np.linspace(-5.0, 5.0, 301)
+    rng = np.random.default_rng(11)
+    gauss = np.exp(-(x**2))
+    lobes = gauss + 0.2 * np.exp(-((x - 3.0) ** 2) * 8) + 0.05 * rng.random(x.size) * gauss
+    flat = np.clip(2 - x**2, 0, 1)
+    at_end = np.exp(-((x + 5.0) ** 2))
+    wide = np.exp(-(x**2) / 200)
+    twin = np.exp(-((np.abs(x) - 2) ** 2) * 4)
+    with_nan = gauss.copy()
+    with_nan[40] = np.nan
+    return [(x, y) for y in (gauss, lobes, flat, at_end, wide, twin, with_nan,
+                             np.zeros_like(x), rng.random(x.size))] + [(x[:2], gauss[:2])]
+
+
+@pytest.mark.parametrize("index", range(10))
+@pytest.mark.parametrize("level", [0.5, 0.01])
+def test_compiled_outermost_width_is_the_metrics_one(index, level):
+    # contract: the recorder's compiled bandwidth gives exactly what metrics.width_at_level
+    # (extent "outermost") gives, nan included
+    from hcfplan.metrics import width_at_level
+    from hcfplan.propagation import kernels
+
+    x, y = _width_cases()[index]
+    expected = width_at_level(x, y, level, extent="outermost")
+    found = kernels.outermost_width(x, y, level)
+    assert (np.isnan(found) and np.isnan(expected)) or found == expected

@@ -9,7 +9,6 @@ import numpy as np
 
 from ..constants import c
 from ..grid import Grid
-from ..metrics import spectral_width
 from .transforms import shared_transforms
 
 Status = Literal["completed", "nonfinite", "step_collapse", "step_budget", "ionization_stop"]
@@ -111,9 +110,15 @@ class Recorder:
     _SCALARS = ("energy", "peak_power", "peak_intensity", "ionization", "electrons", "bandwidth")
 
     def __init__(self, grid: Grid, capacity: int, intensity_area: float, plasma,
-                 waveguide=None, fft_backend: str | None = None) -> None:
+                 waveguide=None, fft_backend: str | None = None, transforms=None) -> None:
         self.grid = grid
-        self.fft_backend = fft_backend  # of the envelope at each record (transforms.py)
+        # the transform of the envelope at each record: ``transforms`` (a back end of
+        # transforms.py whose input and time buffers are free between calls; the solver passes
+        # its own, which are free between steps: no second set of buffers to bring into the
+        # cache), else one kept per thread for ``fft_backend``
+        self.fft_backend = fft_backend
+        self._transforms = transforms
+        self._bandwidth_level = 10.0 ** (BANDWIDTH_LEVEL_DB / 10.0)  # as metrics.spectral_width
         self.intensity_area = intensity_area
         self.plasma = plasma  # NonlinearTerms with ionising species, or None
         self.z = np.empty(capacity)
@@ -158,8 +163,9 @@ class Recorder:
         values["peak_power"][i] = peak
         values["peak_intensity"][i] = peak / self.intensity_area
         values["ionization"][i], values["electrons"][i] = self._ionization(power)
-        values["bandwidth"][i] = spectral_width(self._frequency_sorted, self._density_sorted,
-                                                BANDWIDTH_LEVEL_DB)
+        # metrics.spectral_width, compiled (kernels.outermost_width)
+        values["bandwidth"][i] = self._kernels.outermost_width(
+            self._frequency_sorted, self._density_sorted, self._bandwidth_level)
         if energy > 0:
             self.edge_frequency.update(grid.dnu * far_sum / energy, z)
             self.edge_time.update(grid.dt * far_time / energy, z)
@@ -169,7 +175,7 @@ class Recorder:
     def _power(self, u: np.ndarray) -> tuple[np.ndarray, float, float]:
         """|A(t)|^2 of the spectrum ``u`` (``grid.to_time``, on a kept FFT back end) [W], its
         maximum [W] and its sum over the outer time zones [W]."""
-        fft = shared_transforms(self.grid.points, self.fft_backend)
+        fft = self._transforms or shared_transforms(self.grid.points, self.fft_backend)
         fft.spectrum_in[...] = u
         field = fft.forward()  # = points dt A(t)
         scale = 1.0 / (self.grid.points * self.grid.dt) ** 2

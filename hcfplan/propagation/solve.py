@@ -256,7 +256,7 @@ def _run(u0, field, grid, waveguide, runner, nonlinear, opts, notes) -> Propagat
     targets = np.linspace(0.0, length, opts["z_samples"])
     plasma = nonlinear if nonlinear.species else None
     recorder = Recorder(grid, opts["z_samples"] + 1, nonlinear.intensity_area, plasma, waveguide,
-                        nonlinear.fft.name)
+                        transforms=nonlinear.fft)  # its buffers are free between steps
     recorder.record(0.0, u0)
     runner.start(u0)
     h0 = opts["step"] or _first_step(u0, nonlinear, targets[1])
