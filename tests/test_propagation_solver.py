@@ -127,9 +127,10 @@ def test_fused_error_kernel_matches_reference_norm(norm):
     from hcfplan.propagation.control import ERROR_NORMS
 
     rng = np.random.default_rng(3)
-    g, r4, r5, u4, u = (rng.standard_normal(64) + 1j * rng.standard_normal(64) for _ in range(5))
+    r4, r5, u4, u = (rng.standard_normal(64) + 1j * rng.standard_normal(64) for _ in range(4))
+    g = rng.standard_normal(64)  # the real gain: N = i g raw
     s, rtol, atol = 0.1, 1e-6, 1e-9
-    expected = ERROR_NORMS[norm](s * g * (r4 - r5), u4, u, rtol, atol)
+    expected = ERROR_NORMS[norm](s * 1j * g * (r4 - r5), u4, u, rtol, atol)
     stepper = SimpleNamespace(kernels=kernels, nonlinear=SimpleNamespace(gain=g), r=r4, r5=r5,
                               u4=u4, linear=u, rtol=rtol, atol=atol,
                               norm_u=float(np.sum(np.abs(u) ** 2)))

@@ -1,15 +1,16 @@
 """Fused elementwise kernels of the steppers and of the nonlinear terms (numba).
 
 Each kernel does in one pass over the spectrum what would take numpy three to six passes with
-temporaries. The stepper kernels also apply the gain g of the nonlinear term (N = g * raw, see
-:class:`~.operators.NonlinearTerms`), so the spectrum that comes out of the inverse FFT is never
-scaled in a pass of its own. Complex products are written out in real arithmetic on flat
-float views of the complex arrays (:func:`_flat`, no copy), which LLVM vectorises in the
-kernels without branches (not the plasma and recorder passes); the (n, 2)
-views used before were compiled to scalar code (on a 2-core AVX-512 machine, N = 2^13:
-``stage_middle`` 17 -> 9 us, ``stage_combine`` 29 -> 13 us; on an earlier AVX2 machine the
-vectorised variants tried were not faster). The kernels that sum over the array allow ``reassoc``
-(:data:`_SUM_JIT`) so the sum is split into vector lanes; no other fast-math flag is set, so NaN
+temporaries. The stepper kernels also apply the gain g of the nonlinear term (N = i g raw, g
+real, see :class:`~.operators.NonlinearTerms`), so the spectrum that comes out of the inverse
+FFT is never scaled in a pass of its own. Complex products are written out in real arithmetic
+on flat float views of the complex arrays (:func:`_flat`, no copy), which LLVM vectorises in
+the kernels without branches (not the recorder passes; the plasma kernel in its blocks below
+the rate tables); the (n, 2) views used before were compiled to scalar code (on a 2-core
+AVX-512 machine, N = 2^13: ``stage_middle`` 17 -> 9 us, ``stage_combine`` 29 -> 13 us; on an
+earlier AVX2 machine the vectorised variants tried were not faster). The kernels that sum over
+the array allow ``reassoc`` (:data:`_SUM_JIT`) so the sum is split into vector lanes; no other
+fast-math flag is set, so NaN
 and Inf propagate and are detected. The arrays must be C-contiguous (all work arrays of the
 solver are).
 
@@ -38,18 +39,15 @@ def _flat(a):  # pragma: no cover - compiled
 
 @njit(**_SUM_JIT)
 def stage_first(ui, acc, x, d, u, g, nu, s):  # pragma: no cover - compiled
-    """ui = d u;  acc = k1 = d g nu;  x = ui + s k1.  Returns sum |u|^2."""
-    UI, ACC, X, D, U, G, NU = _flat(ui), _flat(acc), _flat(x), _flat(d), _flat(u), _flat(g), \
-        _flat(nu)
+    """ui = d u;  acc = k1 = d i g nu;  x = ui + s k1.  Returns sum |u|^2."""
+    UI, ACC, X, D, U, NU = _flat(ui), _flat(acc), _flat(x), _flat(d), _flat(u), _flat(nu)
     total = 0.0
     for k in range(u.size):
         i, j = 2 * k, 2 * k + 1
         dr, di = D[i], D[j]
         ur, uj = U[i], U[j]
         total += ur * ur + uj * uj
-        gr, gi = G[i], G[j]
-        nr, nj = NU[i], NU[j]
-        kr, kj = gr * nr - gi * nj, gr * nj + gi * nr
+        kr, kj = -g[k] * NU[j], g[k] * NU[i]  # i g nu
         ar, aj = dr * ur - di * uj, dr * uj + di * ur
         br, bj = dr * kr - di * kj, dr * kj + di * kr
         UI[i], UI[j] = ar, aj
@@ -60,13 +58,11 @@ def stage_first(ui, acc, x, d, u, g, nu, s):  # pragma: no cover - compiled
 
 @njit(**_JIT)
 def stage_middle(x, acc, ui, g, r, s):  # pragma: no cover - compiled
-    """k = g r;  acc += 2 k;  x = ui + s k."""
-    X, ACC, UI, G, R = _flat(x), _flat(acc), _flat(ui), _flat(g), _flat(r)
+    """k = i g r;  acc += 2 k;  x = ui + s k."""
+    X, ACC, UI, R = _flat(x), _flat(acc), _flat(ui), _flat(r)
     for k in range(r.size):
         i, j = 2 * k, 2 * k + 1
-        gr, gi = G[i], G[j]
-        rr, rj = R[i], R[j]
-        kr, kj = gr * rr - gi * rj, gr * rj + gi * rr
+        kr, kj = -g[k] * R[j], g[k] * R[i]
         ACC[i] += 2.0 * kr
         ACC[j] += 2.0 * kj
         X[i], X[j] = UI[i] + s * kr, UI[j] + s * kj
@@ -74,13 +70,11 @@ def stage_middle(x, acc, ui, g, r, s):  # pragma: no cover - compiled
 
 @njit(**_JIT)
 def stage_last(x, acc, ui, g, r, s, d):  # pragma: no cover - compiled
-    """k = g r;  acc += 2 k;  x = d (ui + s k)."""
-    X, ACC, UI, G, R, D = _flat(x), _flat(acc), _flat(ui), _flat(g), _flat(r), _flat(d)
+    """k = i g r;  acc += 2 k;  x = d (ui + s k)."""
+    X, ACC, UI, R, D = _flat(x), _flat(acc), _flat(ui), _flat(r), _flat(d)
     for k in range(r.size):
         i, j = 2 * k, 2 * k + 1
-        gr, gi = G[i], G[j]
-        rr, rj = R[i], R[j]
-        kr, kj = gr * rr - gi * rj, gr * rj + gi * rr
+        kr, kj = -g[k] * R[j], g[k] * R[i]
         ACC[i] += 2.0 * kr
         ACC[j] += 2.0 * kj
         yr, yj = UI[i] + s * kr, UI[j] + s * kj
@@ -90,18 +84,15 @@ def stage_last(x, acc, ui, g, r, s, d):  # pragma: no cover - compiled
 
 @njit(**_SUM_JIT)
 def stage_combine(u4, x, d, ui, acc, g, r, s):  # pragma: no cover - compiled
-    """u4 = x = d (ui + s acc) + s g r.  Returns sum |u4|^2 (inf/nan if not finite)."""
-    U4, X, D, UI, ACC, G, R = _flat(u4), _flat(x), _flat(d), _flat(ui), _flat(acc), _flat(g), \
-        _flat(r)
+    """u4 = x = d (ui + s acc) + s i g r.  Returns sum |u4|^2 (inf/nan if not finite)."""
+    U4, X, D, UI, ACC, R = _flat(u4), _flat(x), _flat(d), _flat(ui), _flat(acc), _flat(r)
     total = 0.0
     for k in range(r.size):
         i, j = 2 * k, 2 * k + 1
-        gr, gi = G[i], G[j]
-        rr, rj = R[i], R[j]
         yr, yj = UI[i] + s * ACC[i], UI[j] + s * ACC[j]
         dr, di = D[i], D[j]
-        vr = dr * yr - di * yj + s * (gr * rr - gi * rj)
-        vj = dr * yj + di * yr + s * (gr * rj + gi * rr)
+        vr = dr * yr - di * yj + s * (-g[k] * R[j])
+        vj = dr * yj + di * yr + s * (g[k] * R[i])
         total += vr * vr + vj * vj
         U4[i], U4[j] = vr, vj
         X[i], X[j] = vr, vj
@@ -110,14 +101,13 @@ def stage_combine(u4, x, d, ui, acc, g, r, s):  # pragma: no cover - compiled
 
 @njit(**_SUM_JIT)
 def difference_norm2(g, r4, r5):  # pragma: no cover - compiled
-    """sum |g (r4 - r5)|^2."""
-    G, R4, R5 = _flat(g), _flat(r4), _flat(r5)
+    """sum |i g (r4 - r5)|^2."""
+    R4, R5 = _flat(r4), _flat(r5)
     total = 0.0
     for k in range(g.size):
         i, j = 2 * k, 2 * k + 1
         dr, dj = R4[i] - R5[i], R4[j] - R5[j]
-        gr, gi = G[i], G[j]
-        er, ej = gr * dr - gi * dj, gr * dj + gi * dr
+        er, ej = -g[k] * dj, g[k] * dr
         total += er * er + ej * ej
     return total
 
@@ -126,16 +116,15 @@ def difference_norm2(g, r4, r5):  # pragma: no cover - compiled
 # gives nan, as control.scaled_rms_norm does
 @njit(**_SUM_JIT, error_model="numpy")
 def difference_scaled_rms(g, r4, r5, u4, u, s, rtol, atol):  # pragma: no cover - compiled
-    """RMS of s g (r4 - r5) / (atol + rtol max(|u4|, |u|))."""
-    G, R4, R5, U4, U = _flat(g), _flat(r4), _flat(r5), _flat(u4), _flat(u)
+    """RMS of s i g (r4 - r5) / (atol + rtol max(|u4|, |u|))."""
+    R4, R5, U4, U = _flat(r4), _flat(r5), _flat(u4), _flat(u)
     total = 0.0
     for k in range(g.size):
         i, j = 2 * k, 2 * k + 1
         big = max(U4[i] ** 2 + U4[j] ** 2, U[i] ** 2 + U[j] ** 2)
         scale = atol + rtol * np.sqrt(big)
         dr, dj = R4[i] - R5[i], R4[j] - R5[j]
-        gr, gi = G[i], G[j]
-        er, ej = gr * dr - gi * dj, gr * dj + gi * dr
+        er, ej = -g[k] * dj, g[k] * dr
         total += (er * er + ej * ej) / (scale * scale)
     return abs(s) * np.sqrt(total / g.size)
 
@@ -364,14 +353,16 @@ def power_sums(a, power, scale, far):  # pragma: no cover - compiled
 
 @njit(**_JIT)
 def add_scaled_product(out, factor, extra, weight):  # pragma: no cover - compiled
-    """out = factor out + weight extra (complex arrays, real weight)."""
-    O, F, E = _flat(out), _flat(factor), _flat(extra)
+    """out = factor out - i weight extra (real factor and weight, complex arrays): the raw
+    spectrum of the plasma case, where N = i * raw (the gain 1 of the steppers' kernels) and
+    N = i factor out + weight extra."""
+    O, E = _flat(out), _flat(extra)
     for k in range(out.size):
         i, j = 2 * k, 2 * k + 1
         orr, oj = O[i], O[j]
-        fr, fi = F[i], F[j]
-        O[i] = fr * orr - fi * oj + weight * E[i]
-        O[j] = fr * oj + fi * orr + weight * E[j]
+        f = factor[k]
+        O[i] = f * orr + weight * E[j]
+        O[j] = f * oj - weight * E[i]
 
 
 def warm_kernels() -> None:
@@ -379,16 +370,16 @@ def warm_kernels() -> None:
     :mod:`.warmup` and ``bench/solver.py``). A new kernel is added here."""
     a, b, c, d, e, f, g, h = (np.ones(4, complex) for _ in range(8))
     real, zero = np.ones(4), np.zeros(4)
-    stage_first(a, b, c, d, e, f, g, 0.1)
-    stage_middle(a, b, c, d, e, 0.1)
-    stage_last(a, b, c, d, e, 0.1, f)
-    stage_combine(a, b, c, d, e, f, g, 0.1)
-    difference_norm2(a, b, c)
-    difference_scaled_rms(a, b, c, d, e, 0.1, 1e-6, 0.0)
+    stage_first(a, b, c, d, e, real, g, 0.1)
+    stage_middle(a, b, c, real, e, 0.1)
+    stage_last(a, b, c, real, e, 0.1, f)
+    stage_combine(a, b, c, d, e, real, g, 0.1)
+    difference_norm2(real, b, c)
+    difference_scaled_rms(real, b, c, d, e, 0.1, 1e-6, 0.0)
     kerr_in_place(a)
     power_of(a, real)
     delayed_in_place(a, real, zero, 1.0)
-    add_scaled_product(a, b, c, 0.5)
+    add_scaled_product(a, real, c, 0.5)
     flags, order = np.ones(4, dtype=np.bool_), np.arange(4)
     spectrum_sums(a, order, real.copy(), np.ones(4, np.float32), flags, flags, real)
     power_sums(a, real.copy(), 1.0, flags)

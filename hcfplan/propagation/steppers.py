@@ -5,7 +5,7 @@ What every stepper provides (the solver in :mod:`hcfplan.propagation.solve` reli
 1. ``adaptive`` (bool): whether the stepper estimates its local error and may reject a step.
 2. ``order`` (int): order of the propagated solution; ``embedded_order`` (int) for adaptive ones.
 3. ``__init__(linear, nonlinear, rtol, atol, norm)``: ``linear`` is L(omega) (complex
-   array), ``nonlinear`` the :class:`~.operators.NonlinearTerms` (N = gain * raw, evaluated on
+   array), ``nonlinear`` the :class:`~.operators.NonlinearTerms` (N = i gain raw, evaluated on
    its ``input`` buffer), ``norm`` a key of :data:`~.control.ERROR_NORMS`; all work arrays are
    allocated here, once per run.
 4. ``start(u)``: called once with the initial spectrum before the first step.
@@ -130,7 +130,7 @@ class RK4IP(_InteractionPicture):
 
 
 def _relative_l2(stepper, s: float, norm2: float) -> float:
-    """||s g (r4 - r5)|| / (rtol max(||u||, ||u4||) + atol sqrt(n)) (control.py); raw k4 is
+    """||s i g (r4 - r5)|| / (rtol max(||u||, ||u4||) + atol sqrt(n)) (control.py); raw k4 is
     ``stepper.r``."""
     delta = abs(s) * math.sqrt(stepper.kernels.difference_norm2(stepper.nonlinear.gain,
                                                                 stepper.r, stepper.r5))
@@ -140,7 +140,7 @@ def _relative_l2(stepper, s: float, norm2: float) -> float:
 
 
 def _scaled_rms(stepper, s: float, norm2: float, u: np.ndarray) -> float:
-    """RMS of s g (r4 - r5) / (atol + rtol max(|u|, |u4|)) (control.py); raw k4 is
+    """RMS of s i g (r4 - r5) / (atol + rtol max(|u|, |u4|)) (control.py); raw k4 is
     ``stepper.r``."""
     return float(stepper.kernels.difference_scaled_rms(
         stepper.nonlinear.gain, stepper.r, stepper.r5, stepper.u4, u, s, stepper.rtol,
