@@ -10,9 +10,8 @@ the rate tables); the (n, 2) views used before were compiled to scalar code (on 
 AVX-512 machine, N = 2^13: ``stage_middle`` 17 -> 9 us, ``stage_combine`` 29 -> 13 us; on an
 earlier AVX2 machine the vectorised variants tried were not faster). The kernels that sum over
 the array allow ``reassoc`` (:data:`_SUM_JIT`) so the sum is split into vector lanes; no other
-fast-math flag is set, so NaN
-and Inf propagate and are detected. The arrays must be C-contiguous (all work arrays of the
-solver are).
+fast-math flag is set, so NaN and Inf propagate and are detected. The arrays must be
+C-contiguous (all work arrays of the solver are).
 
 Only the solver imports this module (lazily), so importing :mod:`hcfplan` does not load numba.
 Compiled code is cached on disk (``cache=True``): the first run on a machine compiles (4.0 s on
