@@ -201,7 +201,8 @@ def plasma_in_place(a, p, power, delayed, instantaneous, log_i, log_w, starts, s
     no sample above the tables is one loop without branches, which LLVM vectorises; the others
     take the general loop. In the bench's ionising gas case (8192 points, 83 samples above the
     table) the kernel took 86 us per call before the rate-0 branch, 43 us with it (both on an
-    earlier machine) and 23 -> 6 us with the blocks.
+    earlier machine), and 22 -> 14 us with the blocks (most of what is left are the rates of
+    the samples above the tables).
     """
     A, P = _flat(a), _flat(p)
     count, n = densities.size, a.size
@@ -215,7 +216,8 @@ def plasma_in_place(a, p, power, delayed, instantaneous, log_i, log_w, starts, s
     for b0 in range(0, n, PLASMA_BLOCK):
         b1 = min(b0 + PLASMA_BLOCK, n)
         # views of the block, indexed from 0: LLVM vectorises these loops only so (with
-        # range(b0, b1) it did not, the indices not being known to be >= 0)
+        # range(b0, b1) it did not, seen in the assembly; probably numba's handling of
+        # negative indices, which it cannot rule out there)
         w_b, d_b = power[b0:b1], delayed[b0:b1]
         above = 0
         for k in range(w_b.size):
@@ -294,10 +296,11 @@ def outermost_width(x, y, level):  # pragma: no cover - compiled
     peak, crossings interpolated: :func:`hcfplan.metrics.width_at_level` with
     ``extent="outermost"``, the same arithmetic in the same order, for ascending ``x`` and
     0 < level < 1 (the caller's duty; not checked here). nan where that function gives nan
-    (fewer than 3 samples, no positive maximum or a NaN, above the level at an end).
+    (fewer than 3 samples, no positive maximum or a NaN, above the level at an end) and where
+    no sample reaches the level (possible only for a level near 1; that function raises).
 
-    The recorder's bandwidth at every record; the numpy function took 27 us at 8192 points
-    with warm caches and 150-180 us inside a run (its temporaries), this pass a few us.
+    The recorder's bandwidth at every record; at 8192 points the numpy function took 27 us
+    with warm caches and 150-180 us inside a run, this pass about 12 us inside a run.
     """
     n = y.size
     if n < 3:
@@ -353,7 +356,7 @@ def power_sums(a, power, scale, far):  # pragma: no cover - compiled
 @njit(**_JIT)
 def add_scaled_product(out, factor, extra, weight):  # pragma: no cover - compiled
     """out = factor out - i weight extra (real factor and weight, complex arrays): the raw
-    spectrum of the plasma case, where N = i * raw (the gain 1 of the steppers' kernels) and
+    spectrum of the plasma case, where N = i raw (the gain 1 of the steppers' kernels) and
     N = i factor out + weight extra."""
     O, E = _flat(out), _flat(extra)
     for k in range(out.size):

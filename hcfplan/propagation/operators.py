@@ -204,14 +204,13 @@ class NonlinearTerms:
 
     The fast interface of the steppers: fill :attr:`input` with a spectrum and call
     :meth:`evaluate(out) <evaluate>`, which writes the *raw* spectrum into ``out``; the steppers
-    multiply by i :attr:`gain` inside their fused kernels (N = i gain raw, ``gain`` real, so
-    the kernels read half the bytes of a complex gain and do a third of its arithmetic).
-    Without plasma, ``gain`` is gamma(omega) / (scale^2 N) (the Kerr/Raman term and the
-    normalisation of the unnormalised inverse FFT) and ``raw`` is one inverse FFT; with plasma
-    ``gain`` is 1 and ``raw`` is -i N. ``__call__(u, out)`` returns the full N(u) for other
-    callers. After every
-    evaluation :attr:`ionization_fraction` and :attr:`electron_line_density` hold the values
-    for that field.
+    multiply by i :attr:`gain` inside their fused kernels (N = i gain raw; ``gain`` is real,
+    so the kernels read half the bytes of a complex gain and do two products per sample
+    instead of four and two sums). Without plasma, ``gain`` is gamma(omega) / (scale^2 N) (the
+    Kerr/Raman term and the normalisation of the unnormalised inverse FFT) and ``raw`` is one
+    inverse FFT; with plasma ``gain`` is 1 and ``raw`` is -i N. ``__call__(u, out)`` returns
+    the full N(u) for other callers. After every evaluation :attr:`ionization_fraction` and
+    :attr:`electron_line_density` hold the values for that field.
     """
 
     def __init__(

@@ -175,7 +175,9 @@ class Recorder:
     def _power(self, u: np.ndarray) -> tuple[np.ndarray, float, float]:
         """|A(t)|^2 of the spectrum ``u`` (``grid.to_time``, on a kept FFT back end) [W], its
         maximum [W] and its sum over the outer time zones [W]."""
-        fft = self._transforms or shared_transforms(self.grid.points, self.fft_backend)
+        fft = self._transforms
+        if fft is None:
+            fft = shared_transforms(self.grid.points, self.fft_backend)
         fft.spectrum_in[...] = u
         field = fft.forward()  # = points dt A(t)
         scale = 1.0 / (self.grid.points * self.grid.dt) ** 2

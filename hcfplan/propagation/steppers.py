@@ -15,6 +15,8 @@ What every stepper provides (the solver in :mod:`hcfplan.propagation.solve` reli
    In every case ``state.h`` is set to the proposed next step. ``message`` is ``""`` or
    ``"nonfinite"`` when the attempted solution contained NaN or Inf.
 6. ``rhs_per_step`` (int): evaluations of N per attempted step (after ``start``).
+7. Between calls (before ``start``, after ``step``) nothing is kept in the FFT buffers of the
+   nonlinear terms (``input`` and the time buffer): the solver's recorder uses them.
 
 The half-step propagators exp(L h/2) are cached per step length (the solver keeps the step
 fixed within a sampling interval unless the controller asks for a shorter one, so only a few
