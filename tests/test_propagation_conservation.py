@@ -131,7 +131,7 @@ def test_fused_plasma_kernel_matches_numpy_reference(fill):
     delayed = np.fft.irfft(np.fft.rfft(power) * terms.response_rfft, n=grid.points) * grid.points
     plasma = terms._plasma_time(a, power / scale**2)
     kerr = a * (0.8 * power + delayed)
-    expected = terms.factor * np.fft.ifft(kerr) * grid.points + np.fft.ifft(plasma)
+    expected = 1j * terms.kerr_gain * np.fft.ifft(kerr) * grid.points + np.fft.ifft(plasma)
     assert np.max(np.abs(found - expected)) < 1e-10 * np.max(np.abs(expected))
     # _plasma_time has set the fraction again, now from the numpy reference
     assert terms.ionization_fraction == pytest.approx(fraction, rel=1e-12)

@@ -234,7 +234,6 @@ class NonlinearTerms:
         self.scale = n * dt  # grid spectrum = scale * ifft(A)
         # N = i gamma scale ifft(A V) = i gamma / (scale^2 n) * bwd(a scale^2 V), a = fwd(u)
         self.kerr_gain = np.asarray(gamma, dtype=float) / (self.scale**2 * n)  # real
-        self.factor = 1j * self.kerr_gain  # N_Kerr = factor * bwd(...)
         self.gain = self.kerr_gain if not species else np.ones(n)  # N = i gain raw
         self.new_work = lambda: work_array(self.fft, n)
         self.instantaneous = instantaneous
@@ -280,8 +279,8 @@ class NonlinearTerms:
         self.electron_line_density = end * self.intensity_area
         fft.backward(a, out)
         fft.backward(self.plasma_time, self.plasma_spectrum)
-        # N = factor raw_Kerr + grid spectrum of the plasma terms (ifft = backward / n), and
-        # raw = -i N = kerr_gain raw_Kerr - i (plasma spectrum) / n
+        # N = i kerr_gain raw_Kerr + grid spectrum of the plasma terms (ifft = backward / n),
+        # and raw = -i N = kerr_gain raw_Kerr - i (plasma spectrum) / n
         kn.add_scaled_product(out, self.kerr_gain, self.plasma_spectrum, 1.0 / out.size)
         return out
 

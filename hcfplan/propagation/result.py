@@ -9,6 +9,7 @@ import numpy as np
 
 from ..constants import c
 from ..grid import Grid
+from ..units import db_to_power_ratio
 from .transforms import shared_transforms
 
 Status = Literal["completed", "nonfinite", "step_collapse", "step_budget", "ionization_stop"]
@@ -118,7 +119,7 @@ class Recorder:
         # cache), else one kept per thread for ``fft_backend``
         self.fft_backend = fft_backend
         self._transforms = transforms
-        self._bandwidth_level = 10.0 ** (BANDWIDTH_LEVEL_DB / 10.0)  # as metrics.spectral_width
+        self._bandwidth_level = db_to_power_ratio(BANDWIDTH_LEVEL_DB)  # as spectral_width
         self.intensity_area = intensity_area
         self.plasma = plasma  # NonlinearTerms with ionising species, or None
         self.z = np.empty(capacity)
