@@ -11,9 +11,11 @@ beside a busy thread, at Python's default switch interval and at the scan's
    the chain (wall time x workers / points minus the mean time spent inside the point
    computation), as a fraction of a point's time. Both executors are warmed up first (imports
    and kernels in this process; the fork server, which a process starts once), so this is the
-   steady state of a session that runs several scans; with 2 workers the second one is a new
-   pool process forked from the server, which pays its own first-call set-up as overhead.
-   Beside it, this machine's own ceiling for the same points (:func:`chain_ceiling`: two warm
+   steady state of a session that runs several scans: with 2 workers the second one is the
+   pool process kept from the previous run (``hcfplan.planning.scan._local_pool``). A third
+   series, ``2 (new pool)``, drops the kept pool before each run, so its pool process is forked
+   from the server and pays its own first-call set-up: a session's first scan. Beside it,
+   this machine's own ceiling for the same points (:func:`chain_ceiling`: two warm
    processes, each computing a fixed half, against one).
 2. The whole command as a user runs it, ``hcfplan scan ... --workers 1`` and ``--workers 2``
    in a new process each, best of :data:`ROUNDS` (alternated; imports, kernel load and the
@@ -33,7 +35,7 @@ import tempfile
 import time
 from pathlib import Path
 
-from hcfplan.planning.scan import compute_point, parse_vary, plan_scan, run_scan
+from hcfplan.planning.scan import _drop_pool, compute_point, parse_vary, plan_scan, run_scan
 
 #: The tests folder (for the invented fast config of tests/test_scan.py). It is imported inside
 #: main() only: a pool process runs this script again at its start (multiprocessing does so for
@@ -169,21 +171,25 @@ def main(grid_points: int = 1024, config: Path | None = None, key: str = "gas.pr
     warm = plan_scan(config, [parse_vary(f"{key}={0.9 * span[0]},{0.95 * span[0]}")], over)
     run_scan(warm, folder / "warm", workers=1)  # imports and numba cache in this process
     run_scan(warm, folder / "warm2", workers=2)  # the fork server (started once per process)
-    runs: dict[int, list[tuple[float, list[float]]]] = {1: [], 2: []}
-    for _ in range(ROUNDS):  # alternated, so a slow spell of the machine hits both
-        for workers in (1, 2):
-            runs[workers].append(_run(plan, folder / f"w{workers}", workers))
+    runs: dict[str, list[tuple[float, list[float]]]] = {"1": [], "2": [], "2 (new pool)": []}
+    for _ in range(ROUNDS):  # alternated, so a slow spell of the machine hits all
+        for series in runs:
+            workers = int(series[0])
+            if series == "2 (new pool)":
+                _drop_pool(terminate=False)
+            runs[series].append(_run(plan, folder / f"w{workers}", workers))
     best = {}
-    for workers, found in runs.items():
+    for series, found in runs.items():
         wall, inside = min(found)
         mean_point = sum(inside) / len(inside)
-        overhead = wall * workers / POINTS - mean_point
-        best[workers] = wall
+        overhead = wall * int(series[0]) / POINTS - mean_point
+        best[series] = wall
         walls = ", ".join(f"{w:.2f}" for w, _ in found)
-        print(f"{workers} worker(s): best {wall:6.2f} s wall ({walls}), {mean_point:.3f} s per "
+        print(f"{series} worker(s): best {wall:6.2f} s wall ({walls}), {mean_point:.3f} s per "
               f"point inside, overhead {overhead:+.3f} s per point ({overhead / mean_point:+.1%})")
-    print(f"speed-up 2 vs 1 workers, best against best: {best[1] / best[2]:.2f} (target >= 1.8 on "
-          f"2 cores); this machine's ceiling for these points: {chain_ceiling(plan):.2f}")
+    print(f"speed-up 2 vs 1 workers, best against best: {best['1'] / best['2']:.2f} (target >= "
+          f"1.8 on 2 cores; with a new pool each run {best['1'] / best['2 (new pool)']:.2f}); this "
+          f"machine's ceiling for these points: {chain_ceiling(plan):.2f}")
     command: dict[int, list[float]] = {1: [], 2: []}
     for _ in range(ROUNDS):
         for w in (1, 2):

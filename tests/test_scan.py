@@ -273,6 +273,58 @@ def test_parent_computes_points_beside_the_pool(fast, tmp_path, monkeypatch):
         (tmp_path / "serial" / "table.csv").read_text()
 
 
+def test_local_pool_is_kept_between_runs(fast, tmp_path, monkeypatch):
+    # contract: a second run with the same number of workers in this process is given the same
+    # pool processes (warm: no new process, no first-point set-up); they compute in the
+    # parent's current folder even when they started in another (here the config and its gas
+    # table folder are given relative to it), and the table equals the serial one
+    import shutil
+
+    from hcfplan.planning import scan
+
+    run_scan(plan_scan(fast, [parse_vary("gas.pressure_bar=1:2:3")]), tmp_path / "first",
+             workers=2)
+    pool = scan._KEPT_POOL[0][0]
+    processes = set(pool._processes)
+    assert processes
+    folder = tmp_path / "elsewhere"
+    (folder / "tables").mkdir(parents=True)
+    shutil.copy(ROOT / "gases" / "Ar.toml", folder / "tables" / "Ar.toml")
+    config = write_fast_config(folder)
+    config.write_text(config.read_text().replace('species = "Ar"',
+                                                 'species = "Ar"\ntable_dir = "tables"'))
+    monkeypatch.chdir(folder)
+    plan = plan_scan(Path("fast.toml"), [parse_vary("gas.pressure_bar=1.5:2.5:4")])
+    kept = run_scan(plan, Path("kept"), workers=2)
+    assert scan._KEPT_POOL[0][0] is pool and set(pool._processes) == processes
+    assert [r["status"] for r in kept.records] == ["ok"] * 4
+    run_scan(plan, Path("serial"), workers=1)
+    assert Path("kept/table.csv").read_text() == Path("serial/table.csv").read_text()
+
+
+def test_interrupted_run_stops_the_kept_pool(fast, tmp_path):
+    # contract: a run that is interrupted (here the progress callback raises, as Ctrl-C
+    # would) stops the pool's processes and drops the kept pool; the next run gets a new one
+    from hcfplan.planning import scan
+
+    plan = plan_scan(fast, [parse_vary("gas.pressure_bar=1:2:3")])
+    run_scan(plan, tmp_path / "warm", workers=2)
+    old = scan._KEPT_POOL[0][0]
+    processes = list(old._processes.values())
+
+    def interrupt(*_args):
+        raise KeyboardInterrupt
+
+    with pytest.raises(KeyboardInterrupt):
+        run_scan(plan, tmp_path / "stopped", workers=2, on_point=interrupt)
+    assert scan._KEPT_POOL == []
+    for process in processes:
+        process.join(timeout=10)
+        assert not process.is_alive()
+    again = run_scan(plan, tmp_path / "again", workers=2)
+    assert scan._KEPT_POOL[0][0] is not old and len(again.computed) == 3
+
+
 def _work_record(key: str, evaluations: int, points: int = 1024) -> dict:
     return {"key": key, "summary": {"solver": {"rhs_evaluations": evaluations},
                                     "grid": {"points": points}}}

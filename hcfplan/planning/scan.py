@@ -592,19 +592,68 @@ class _ParentWorker:
                 return
 
 
-def _run_processes(tasks, on_done, workers: int, _address) -> None:
-    """``workers`` points at a time: ``workers - 1`` pool processes (see :func:`_pool_context`)
-    and the parent itself, in a thread (:class:`_ParentWorker`), which starts at once: the
-    first points are computed while the fork server imports :data:`WORKER_PRELOAD` (about
-    2.5 s, during which starting a pool process blocks the main thread). The tasks are
-    taken in the order of :class:`_CostlierEndFirst` (the costliest first). A pool process is
-    given its next task when it hands in a result, before that result is written (no queued
-    tasks: none waits behind a long point at the end). BLAS runs one thread in the parent
-    meanwhile (threadpoolctl), as in the workers (:data:`WORKER_THREADS`), and the switch
-    interval is :data:`HANDOFF_SWITCH_INTERVAL`, so hand-offs do not wait for the compute
-    thread."""
+#: The local pool kept between runs of one parent process: ``[(pool, processes)]`` or empty.
+_KEPT_POOL: list = []
+
+
+def _local_pool(children: int):
+    """A process pool of ``children`` processes for :func:`_run_processes`.
+
+    The pool of the previous run of this process is kept and given again when it has the same
+    size and is not broken (a session that runs several scans, or ``compare --spread``, which
+    runs the corners of each side in turn): its processes are warm, so a run does not wait for
+    a new process (30-90 ms from the fork server) nor pay a new process's first point (about
+    twice a warm point at 1024 points: per-process tables and plans; ``bench/scan.py``).
+    Otherwise the kept pool is shut down and a new one made. The processes of a kept pool are
+    idle between runs and end with this process: the executor stops them at exit, and the
+    kept pool is dropped then (:mod:`atexit`), while the modules its clean-up uses still exist.
+    """
+    import atexit
     from concurrent.futures import ProcessPoolExecutor
 
+    if _KEPT_POOL:
+        pool, size = _KEPT_POOL[0]
+        if size == children and not getattr(pool, "_broken", False):
+            return pool
+        _drop_pool(terminate=False)
+    pool = ProcessPoolExecutor(max_workers=children, mp_context=_pool_context())
+    _KEPT_POOL.append((pool, children))
+    atexit.unregister(_drop_pool)  # registered once
+    atexit.register(_drop_pool, terminate=False)
+    return pool
+
+
+def _drop_pool(*, terminate: bool) -> None:
+    """Shut down the kept pool; ``terminate``: stop its processes now (an interrupted run)."""
+    if not _KEPT_POOL:
+        return
+    pool, _ = _KEPT_POOL.pop()
+    started = list((getattr(pool, "_processes", None) or {}).values())
+    pool.shutdown(wait=not terminate, cancel_futures=True)
+    if terminate:
+        for process in started:
+            process.terminate()
+
+
+def _pool_point(task: dict, folder: str) -> dict:
+    """:func:`compute_point` in a pool process, in the parent's current folder ``folder``: a new
+    process starts in it, a kept one (:func:`_local_pool`) may have started in another, which
+    may no longer exist."""
+    os.chdir(folder)
+    return compute_point(task)
+
+
+def _run_processes(tasks, on_done, workers: int, _address) -> None:
+    """``workers`` points at a time: ``workers - 1`` pool processes (see :func:`_pool_context`;
+    the pool is kept for the next run of this process, :func:`_local_pool`) and the parent
+    itself, in a thread (:class:`_ParentWorker`), which starts at once: the first points are
+    computed while the fork server imports :data:`WORKER_PRELOAD` (about 2.5 s, during which
+    starting a pool process blocks the main thread). The tasks are taken in the order of
+    :class:`_CostlierEndFirst` (the costliest first). A pool process is given its next task
+    when it hands in a result, before that result is written (no queued tasks: none waits
+    behind a long point at the end). BLAS runs one thread in the parent meanwhile
+    (threadpoolctl), as in the workers (:data:`WORKER_THREADS`), and the switch interval is
+    :data:`HANDOFF_SWITCH_INTERVAL`, so hand-offs do not wait for the compute thread."""
     from threadpoolctl import threadpool_limits
 
     order = _CostlierEndFirst(tasks)
@@ -621,12 +670,13 @@ def _run_processes(tasks, on_done, workers: int, _address) -> None:
 
     results: queue.Queue = queue.Queue()
     children = min(workers, len(tasks)) - 1
-    pool = ProcessPoolExecutor(max_workers=children, mp_context=_pool_context())
+    pool = _local_pool(children)
+    folder = os.getcwd()
 
     def give_pool() -> None:
         task = take()
         if task is not None:
-            pool.submit(compute_point, task).add_done_callback(
+            pool.submit(_pool_point, task, folder).add_done_callback(
                 lambda future: results.put((pool, future, None)))
 
     switch = sys.getswitchinterval()
@@ -634,7 +684,7 @@ def _run_processes(tasks, on_done, workers: int, _address) -> None:
     try:
         with threadpool_limits(limits=1):
             _ParentWorker(take, results, finished)  # its thread keeps it alive
-            with _worker_environment():  # the pool's processes start at these submissions
+            with _worker_environment():  # a new pool's processes start at these submissions
                 for _ in range(children):
                     give_pool()
             for _ in range(len(tasks)):
@@ -650,14 +700,10 @@ def _run_processes(tasks, on_done, workers: int, _address) -> None:
         # interrupted (Ctrl-C, SIGTERM via the CLI) or a bug: stop the pool's own workers
         with lock:
             stopped = True
-        workers_started = list(getattr(pool, "_processes", {}).values())
-        pool.shutdown(wait=False, cancel_futures=True)
-        for process in workers_started:
-            process.terminate()
+        _drop_pool(terminate=True)
         raise
     finally:
         sys.setswitchinterval(switch)
-    pool.shutdown(wait=True)
 
 
 def _run_dask(tasks, on_done, _workers, address: str) -> None:
