@@ -118,3 +118,31 @@ def test_a_problem_saved_once_is_not_exported_again(fresh, monkeypatch):
     fftw_wisdom.forget_loaded()
     FftwTransforms(POINTS)
     assert exports  # compared with the file's wisdom again
+
+
+def test_a_forked_process_reads_the_file_again(fresh):
+    """A process forked after its parent read the file (a scan worker forked from the fork
+    server) reads it again before its first plan: here the file gains a plan after the read
+    and the parent forgets it, so only the file has it. The parent, which read the file
+    already, does not read it again; the forked child finds the plan (FFTW_WISDOM_ONLY)."""
+    import os
+
+    import pyfftw
+
+    fftw_wisdom.load_wisdom(pyfftw)  # the parent reads the (missing) file
+    FftwTransforms(POINTS)  # measured and saved to the file
+    pyfftw.forget_wisdom()
+    child = os.fork()
+    if child == 0:  # pragma: no cover - runs in the child, which reports by its exit code
+        code = 1
+        try:
+            fftw_wisdom.load_wisdom(pyfftw)
+            _wisdom_only_plan(pyfftw)
+            code = 0
+        finally:
+            os._exit(code)
+    _, status = os.waitpid(child, 0)
+    assert os.waitstatus_to_exitcode(status) == 0
+    fftw_wisdom.load_wisdom(pyfftw)
+    with pytest.raises(RuntimeError):
+        _wisdom_only_plan(pyfftw)
