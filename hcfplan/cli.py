@@ -222,6 +222,10 @@ def simulate_command(
     spread_result = None
     if spread_plan is not None and chain.propagation.success:
         spread_result = _run_spread(cfg, chain, spread_plan, workers, quiet or as_json)
+    if spread_plan is not None:
+        from .planning.scan import release_workers
+
+        release_workers()  # no more points to compute
     summary = write_run(out_dir, chain, figures=not no_figures, spread=spread_result)
     if as_json:
         _print_json(summary)

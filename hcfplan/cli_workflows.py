@@ -138,7 +138,7 @@ def scan_command(
     as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
 ) -> None:
     """Run the full chain over one or two varied keys; saves every point as it finishes."""
-    from .planning.scan import parse_vary, plan_scan, run_scan
+    from .planning.scan import parse_vary, plan_scan, release_workers, run_scan
 
     varies = [parse_vary(text) for text in vary]
     if dask_scheduler is None:  # the fork server imports while the points are planned
@@ -152,6 +152,7 @@ def scan_command(
                                address=dask_scheduler, fresh=fresh, force=force, on_point=bar)
     finally:
         bar.close()
+    release_workers()  # no more points to compute
     figures = [] if no_figures else _scan_figures(outcome.out_dir, plan, outcome.records)
     failed = [r for r in outcome.records if r["status"] != "ok"]
     if as_json:
@@ -320,6 +321,10 @@ def compare_command(
         cli._start_worker_server(workers)
     comparison = compare_configs(cfg_a, cfg_b, labels)
     spreads = _compare_spreads(comparison, plans, workers, as_json)
+    if plans[0] is not None:
+        from .planning.scan import release_workers
+
+        release_workers()  # no more points to compute
     figures = _compare_outputs(out, comparison, force, spreads) if out is not None else []
     if as_json:
         _out()._print_json({"labels": list(labels), "rows": list(comparison.rows),

@@ -36,6 +36,28 @@ def test_scan_1d_json_table_and_figures(capsys, tmp_path):
     assert "compressed.peak_power_w" in header and "margins.ionization_fraction" in header
 
 
+def test_scan_releases_its_workers_before_the_figures(capsys, tmp_path, monkeypatch):
+    # contract: a command with no more points to compute stops the pool processes kept for a
+    # next run before it draws its figures (their memory is given back, and the figures'
+    # helper is not forked beside the pool's threads)
+    from hcfplan import cli_workflows
+    from hcfplan.planning import scan
+
+    kept_at_figures = []
+    real = cli_workflows._scan_figures
+
+    def figures(*args):
+        kept_at_figures.append(list(scan._KEPT_POOL))
+        return real(*args)
+
+    monkeypatch.setattr(cli_workflows, "_scan_figures", figures)
+    config = write_fast_config(tmp_path)
+    code, _, err = run(capsys, "scan", config, "--vary", "gas.pressure_bar=1:2:3", "--out",
+                       tmp_path / "scan", "--workers", "2", "--json")
+    assert code == 0, err
+    assert kept_at_figures == [[]]
+
+
 def test_scan_2d_text_shows_table_and_cautions(capsys, tmp_path):
     config = write_fast_config(tmp_path)
     code, stdout, err = run(capsys, "scan", config, "--vary", "gas.pressure_bar=1,2",
