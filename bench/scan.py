@@ -12,7 +12,7 @@ beside a busy thread, at Python's default switch interval and at the scan's
    computation), as a fraction of a point's time. Both executors are warmed up first (imports
    and kernels in this process; the fork server, which a process starts once), so this is the
    steady state of a session that runs several scans: with 2 workers the second one is the
-   pool process kept from the previous run (``hcfplan.planning.scan._local_pool``). A third
+   pool process kept from the previous run (``hcfplan.planning.scan._KeptPool``). A third
    series, ``2 (new pool)``, drops the kept pool before each run, so its pool process is forked
    from the server and pays its own first-call set-up: a session's first scan. Beside it,
    this machine's own ceiling for the same points (:func:`chain_ceiling`: two warm
@@ -35,7 +35,13 @@ import tempfile
 import time
 from pathlib import Path
 
-from hcfplan.planning.scan import _drop_pool, compute_point, parse_vary, plan_scan, run_scan
+from hcfplan.planning.scan import (
+    compute_point,
+    parse_vary,
+    plan_scan,
+    release_workers,
+    run_scan,
+)
 
 #: The tests folder (for the invented fast config of tests/test_scan.py). It is imported inside
 #: main() only: a pool process runs this script again at its start (multiprocessing does so for
@@ -176,7 +182,7 @@ def main(grid_points: int = 1024, config: Path | None = None, key: str = "gas.pr
         for series in runs:
             workers = int(series[0])
             if series == "2 (new pool)":
-                _drop_pool(terminate=False)
+                release_workers()
             runs[series].append(_run(plan, folder / f"w{workers}", workers))
     best = {}
     for series, found in runs.items():

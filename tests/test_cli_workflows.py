@@ -47,7 +47,7 @@ def test_scan_releases_its_workers_before_the_figures(capsys, tmp_path, monkeypa
     real = cli_workflows._scan_figures
 
     def figures(*args):
-        kept_at_figures.append(list(scan._KEPT_POOL))
+        kept_at_figures.append(scan._KEPT._pool)
         return real(*args)
 
     monkeypatch.setattr(cli_workflows, "_scan_figures", figures)
@@ -55,7 +55,7 @@ def test_scan_releases_its_workers_before_the_figures(capsys, tmp_path, monkeypa
     code, _, err = run(capsys, "scan", config, "--vary", "gas.pressure_bar=1:2:3", "--out",
                        tmp_path / "scan", "--workers", "2", "--json")
     assert code == 0, err
-    assert kept_at_figures == [[]]
+    assert kept_at_figures == [None]
 
 
 def test_scan_2d_text_shows_table_and_cautions(capsys, tmp_path):

@@ -284,7 +284,7 @@ def test_local_pool_is_kept_between_runs(fast, tmp_path, monkeypatch):
 
     run_scan(plan_scan(fast, [parse_vary("gas.pressure_bar=1:2:3")]), tmp_path / "first",
              workers=2)
-    pool = scan._KEPT_POOL[0][0]
+    pool = scan._KEPT._pool
     processes = set(pool._processes)
     assert processes
     folder = tmp_path / "elsewhere"
@@ -296,10 +296,47 @@ def test_local_pool_is_kept_between_runs(fast, tmp_path, monkeypatch):
     monkeypatch.chdir(folder)
     plan = plan_scan(Path("fast.toml"), [parse_vary("gas.pressure_bar=1.5:2.5:4")])
     kept = run_scan(plan, Path("kept"), workers=2)
-    assert scan._KEPT_POOL[0][0] is pool and set(pool._processes) == processes
+    assert scan._KEPT._pool is pool and set(pool._processes) == processes
     assert [r["status"] for r in kept.records] == ["ok"] * 4
     run_scan(plan, Path("serial"), workers=1)
     assert Path("kept/table.csv").read_text() == Path("serial/table.csv").read_text()
+
+
+def test_runs_from_two_threads_do_not_share_the_kept_pool(fast, tmp_path):
+    # contract: while one run has the kept pool, a run from another thread (here with another
+    # number of workers, which would replace a free kept pool) gets a pool of its own; both
+    # complete and give the serial table
+    import threading
+
+    from hcfplan.planning import scan
+
+    plan = plan_scan(fast, [parse_vary("gas.pressure_bar=1:2:4")])
+    run_scan(plan, tmp_path / "serial", workers=1)
+    run_scan(plan, tmp_path / "warm", workers=2)
+    kept = scan._KEPT._pool
+    started, errors = threading.Event(), []
+
+    def other() -> None:
+        started.wait(60)
+        try:
+            run_scan(plan, tmp_path / "three", workers=3)
+        except BaseException as exc:  # handed to the test thread
+            errors.append(exc)
+
+    thread = threading.Thread(target=other)
+    thread.start()
+
+    def on_point(count, *_args):
+        if count == 1:  # the kept pool is lent to this run now
+            started.set()
+            thread.join(120)
+
+    run_scan(plan, tmp_path / "two", workers=2, on_point=on_point)
+    assert not thread.is_alive() and errors == []
+    assert scan._KEPT._pool is kept
+    serial = (tmp_path / "serial" / "table.csv").read_text()
+    for name in ("two", "three"):
+        assert (tmp_path / name / "table.csv").read_text() == serial
 
 
 def test_interrupted_run_stops_the_kept_pool(fast, tmp_path):
@@ -309,7 +346,7 @@ def test_interrupted_run_stops_the_kept_pool(fast, tmp_path):
 
     plan = plan_scan(fast, [parse_vary("gas.pressure_bar=1:2:3")])
     run_scan(plan, tmp_path / "warm", workers=2)
-    old = scan._KEPT_POOL[0][0]
+    old = scan._KEPT._pool
     processes = list(old._processes.values())
 
     def interrupt(*_args):
@@ -317,12 +354,12 @@ def test_interrupted_run_stops_the_kept_pool(fast, tmp_path):
 
     with pytest.raises(KeyboardInterrupt):
         run_scan(plan, tmp_path / "stopped", workers=2, on_point=interrupt)
-    assert scan._KEPT_POOL == []
+    assert scan._KEPT._pool is None
     for process in processes:
         process.join(timeout=10)
         assert not process.is_alive()
     again = run_scan(plan, tmp_path / "again", workers=2)
-    assert scan._KEPT_POOL[0][0] is not old and len(again.computed) == 3
+    assert scan._KEPT._pool is not old and len(again.computed) == 3
 
 
 def _work_record(key: str, evaluations: int, points: int = 1024) -> dict:

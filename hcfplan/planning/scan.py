@@ -592,42 +592,8 @@ class _ParentWorker:
                 return
 
 
-#: The local pool kept between runs of one parent process: ``[(pool, size)]`` or empty.
-_KEPT_POOL: list = []
-
-
-def _local_pool(children: int):
-    """A process pool of ``children`` processes for :func:`_run_processes`.
-
-    The pool of the previous run of this process is kept and given again when it has the same
-    size and is not broken (a session that runs several scans, or ``compare --spread``, which
-    runs the corners of each side in turn): its processes are warm, so a run does not wait for
-    a new process (30-90 ms from the fork server) nor pay a new process's first point (about
-    twice a warm point at 1024 points: per-process tables and plans; ``bench/scan.py``).
-    Otherwise the kept pool is shut down and a new one made. The processes of a kept pool are
-    idle between runs and end with this process: the executor stops them at exit, and the
-    kept pool is dropped then (:mod:`atexit`), while the modules its clean-up uses still exist.
-    """
-    import atexit
-    from concurrent.futures import ProcessPoolExecutor
-
-    if _KEPT_POOL:
-        pool, size = _KEPT_POOL[0]
-        if size == children and not getattr(pool, "_broken", False):
-            return pool
-        _drop_pool(terminate=False)
-    pool = ProcessPoolExecutor(max_workers=children, mp_context=_pool_context())
-    _KEPT_POOL.append((pool, children))
-    atexit.unregister(_drop_pool)  # registered once
-    atexit.register(_drop_pool, terminate=False)
-    return pool
-
-
-def _drop_pool(*, terminate: bool) -> None:
-    """Shut down the kept pool; ``terminate``: stop its processes now (an interrupted run)."""
-    if not _KEPT_POOL:
-        return
-    pool, _ = _KEPT_POOL.pop()
+def _shutdown(pool, *, terminate: bool) -> None:
+    """Shut ``pool`` down; ``terminate``: stop its processes now (an interrupted run)."""
     started = list((getattr(pool, "_processes", None) or {}).values())
     pool.shutdown(wait=not terminate, cancel_futures=True)
     if terminate:
@@ -635,19 +601,85 @@ def _drop_pool(*, terminate: bool) -> None:
             process.terminate()
 
 
+class _KeptPool:
+    """The local process pool kept between runs of one parent process.
+
+    :meth:`lend` gives a run the pool of the previous run when it has the same size and is not
+    broken (a session that runs several scans, or ``compare --spread``, which runs the corners
+    of each side in turn): its processes are warm, so a run does not wait for a new process
+    (30-90 ms from the fork server) nor pay a new process's first point (about twice a warm
+    point at 1024 points: per-process tables and plans; ``bench/scan.py``). Otherwise the kept
+    pool is shut down and a new one made and kept. While one run has it, a run from another
+    thread gets a pool of its own, which is not kept. A run that fails or is interrupted stops
+    the processes of its pool. The processes of a kept pool are idle between runs and end
+    with this process: the executor stops them at exit, and the kept pool is released then
+    (:mod:`atexit`), while the modules its clean-up uses still exist.
+    """
+
+    def __init__(self) -> None:
+        self._lock = threading.Lock()
+        self._pool, self._size, self._lent = None, 0, False
+
+    @staticmethod
+    def _new(children: int):
+        from concurrent.futures import ProcessPoolExecutor
+
+        return ProcessPoolExecutor(max_workers=children, mp_context=_pool_context())
+
+    def lend(self, children: int):
+        """(pool of ``children`` processes, whether it is the kept one) for one run."""
+        import atexit
+
+        with self._lock:
+            if self._lent:
+                return self._new(children), False
+            if self._pool is not None and (self._size != children
+                                           or getattr(self._pool, "_broken", False)):
+                _shutdown(self._pool, terminate=False)
+                self._pool = None
+            if self._pool is None:
+                self._pool, self._size = self._new(children), children
+                atexit.unregister(self.release)  # registered once
+                atexit.register(self.release)
+            self._lent = True
+            return self._pool, True
+
+    def give_back(self, pool, kept: bool, *, failed: bool) -> None:
+        """End of a run with ``pool`` (from :meth:`lend`); ``failed``: it ended by an exception
+        (the pool's processes are stopped, and a kept pool is not kept)."""
+        if not kept:
+            _shutdown(pool, terminate=failed)
+            return
+        with self._lock:
+            self._lent = False
+            if failed:
+                self._pool = None
+                _shutdown(pool, terminate=True)
+
+    def release(self) -> None:
+        """Shut the kept pool down, unless a run has it."""
+        with self._lock:
+            if self._pool is not None and not self._lent:
+                pool, self._pool = self._pool, None
+                _shutdown(pool, terminate=False)
+
+
+_KEPT = _KeptPool()
+
+
 def release_workers() -> None:
-    """Stop the pool processes kept for a next run (:func:`_local_pool`), if there are any.
+    """Stop the pool processes kept for a next run (:class:`_KeptPool`), if there are any.
 
     A command that has no more points to compute calls this before it draws its figures: the
     idle processes give back their memory (150 MB for one that ran the demo config), and the
     figures' helper process (:func:`hcfplan.io.results.write_figures` forks one) is not forked
     beside the pool's threads."""
-    _drop_pool(terminate=False)
+    _KEPT.release()
 
 
 def _pool_point(task: dict, folder: str) -> dict:
     """:func:`compute_point` in a pool process, in the parent's current folder ``folder``: a new
-    process starts in it, a kept one (:func:`_local_pool`) may have started in another, which
+    process starts in it, a kept one (:class:`_KeptPool`) may have started in another, which
     may no longer exist."""
     os.chdir(folder)
     return compute_point(task)
@@ -655,7 +687,7 @@ def _pool_point(task: dict, folder: str) -> dict:
 
 def _run_processes(tasks, on_done, workers: int, _address) -> None:
     """``workers`` points at a time: ``workers - 1`` pool processes (see :func:`_pool_context`;
-    the pool is kept for the next run of this process, :func:`_local_pool`) and the parent
+    the pool is kept for the next run of this process, :class:`_KeptPool`) and the parent
     itself, in a thread (:class:`_ParentWorker`), which starts at once: the first points are
     computed while the fork server imports :data:`WORKER_PRELOAD` (about 2.5 s, during which
     starting a pool process blocks the main thread). The tasks are taken in the order of
@@ -680,7 +712,7 @@ def _run_processes(tasks, on_done, workers: int, _address) -> None:
 
     results: queue.Queue = queue.Queue()
     children = min(workers, len(tasks)) - 1
-    pool = _local_pool(children)
+    pool, kept = _KEPT.lend(children)
     folder = os.getcwd()
 
     def give_pool() -> None:
@@ -710,10 +742,11 @@ def _run_processes(tasks, on_done, workers: int, _address) -> None:
         # interrupted (Ctrl-C, SIGTERM via the CLI) or a bug: stop the pool's own workers
         with lock:
             stopped = True
-        _drop_pool(terminate=True)
+        _KEPT.give_back(pool, kept, failed=True)
         raise
     finally:
         sys.setswitchinterval(switch)
+    _KEPT.give_back(pool, kept, failed=False)
 
 
 def _run_dask(tasks, on_done, _workers, address: str) -> None:
