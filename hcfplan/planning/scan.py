@@ -835,7 +835,10 @@ def choose_executor(workers: int, address: str | None, n_tasks: int) -> str:
 def run_scan(plan: ScanPlan, out_dir: Path, *, workers: int = 1, address: str | None = None,
              fresh: bool = False, force: bool = False,
              on_point: Callable[[int, int, dict], None] | None = None) -> ScanOutcome:
-    """Compute the missing points of ``plan`` into ``out_dir/points`` and write the table."""
+    """Compute the missing points of ``plan`` into ``out_dir/points`` and write the table.
+
+    With ``workers`` > 1 (and no ``address``), the worker processes are kept for the next run
+    of this process (:class:`_KeptPool`); :func:`release_workers` stops them."""
     from ..io.results import write_json
 
     if workers < 1:
