@@ -617,8 +617,11 @@ class _KeptPool:
     """
 
     def __init__(self) -> None:
+        import atexit
+
         self._lock = threading.Lock()
         self._pool, self._size, self._lent = None, 0, False
+        atexit.register(self.release)
 
     @staticmethod
     def _new(children: int):
@@ -628,8 +631,6 @@ class _KeptPool:
 
     def lend(self, children: int):
         """(pool of ``children`` processes, whether it is the kept one) for one run."""
-        import atexit
-
         with self._lock:
             if self._lent:
                 return self._new(children), False
@@ -639,8 +640,6 @@ class _KeptPool:
                 self._pool = None
             if self._pool is None:
                 self._pool, self._size = self._new(children), children
-                atexit.unregister(self.release)  # registered once
-                atexit.register(self.release)
             self._lent = True
             return self._pool, True
 
