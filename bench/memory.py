@@ -16,9 +16,9 @@ import numpy as np
 
 from hcfplan.constants import c
 from hcfplan.fibers.taylor import TaylorFiber
-from hcfplan.grid import Grid
+from hcfplan.numerics.grid import Grid
 from hcfplan.propagation.solve import propagate
-from hcfplan.pulse import pulse_field
+from hcfplan.pulse.fields import pulse_field
 
 OMEGA0 = 2 * np.pi * c / 835e-9
 

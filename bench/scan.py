@@ -35,13 +35,7 @@ import tempfile
 import time
 from pathlib import Path
 
-from hcfplan.planning.scan import (
-    compute_point,
-    parse_vary,
-    plan_scan,
-    release_workers,
-    run_scan,
-)
+from hcfplan.planning.scan import compute_point, parse_vary, plan_scan, release_workers, run_scan
 
 #: The tests folder (for the invented fast config of tests/test_scan.py). It is imported inside
 #: main() only: a pool process runs this script again at its start (multiprocessing does so for

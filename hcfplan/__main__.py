@@ -2,6 +2,6 @@
 
 import sys
 
-from .cli import main
+from hcfplan.cli.app import main
 
 sys.exit(main())

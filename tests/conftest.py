@@ -8,7 +8,7 @@ import tempfile
 
 
 def pytest_configure(config):
-    """Keep hcfplan's cache folder (FFTW wisdom and rate tables, hcfplan.io.cache) in a folder
+    """Keep hcfplan's cache folder (FFTW wisdom and rate tables, hcfplan.numerics.cache) in a folder
     of this session, also for the CLI subprocesses the tests start: no test reads what another
     run stored or writes into the user's cache."""
     folder = tempfile.mkdtemp(prefix="hcfplan-test-cache-")

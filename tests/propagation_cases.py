@@ -6,8 +6,8 @@ import numpy as np
 
 from hcfplan.constants import c
 from hcfplan.fibers.taylor import TaylorFiber
-from hcfplan.grid import Grid
-from hcfplan.pulse import pulse_field, shape_t0_factor
+from hcfplan.numerics.grid import Grid
+from hcfplan.pulse.fields import pulse_field, shape_t0_factor
 
 #: Carrier for the textbook cases: 1550 nm (only sets the self-steepening scale). [rad/s]
 OMEGA0 = 2 * np.pi * c / 1.55e-6

@@ -3,7 +3,7 @@
 Error tests (STYLE.md section 6): every malformed config, --set value, CSV file, gas table and
 command-line option of the corpus must stop with exactly one non-empty stderr line that names
 the key or the file:line, no traceback, and nothing written (no output folder for ``simulate``).
-Every case runs in-process through ``hcfplan.cli.main``; the cases marked ``subprocess = true``
+Every case runs in-process through ``hcfplan.cli.app.main``; the cases marked ``subprocess = true``
 also run through a real ``python -m hcfplan`` process, as a user would see them. The crystal
 table cases call the loader directly, since the CLI takes no user crystal tables.
 """
@@ -17,7 +17,7 @@ from pathlib import Path
 
 import pytest
 
-from hcfplan.cli import main
+from hcfplan.cli.app import main
 from hcfplan.errors import ConfigError
 from hcfplan.io.tomlio import parse_toml
 from hcfplan.materials.crystals import load_crystal

@@ -1,4 +1,4 @@
-"""hcfplan's cache folder (hcfplan.io.cache): a cached rate table is the computed one, is read
+"""hcfplan's cache folder (hcfplan.numerics.cache): a cached rate table is the computed one, is read
 back instead of computed again, and a damaged file or unwritable folder is never an error.
 
 Invariant checks: a cache returns exactly what the formula computes (common practice, no
@@ -10,8 +10,8 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from hcfplan import ionization_tables
-from hcfplan.io import cache
+from hcfplan.ionization import tables as ionization_tables
+from hcfplan.numerics import cache
 
 EV = 1.602176634e-19
 #: Argon at 800 nm: Ip 15.7596 eV (NIST Atomic Spectra Database, ionization energies), 3p

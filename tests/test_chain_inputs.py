@@ -15,8 +15,8 @@ import pytest
 from test_simulate_cli import FAST
 
 from hcfplan.constants import c
-from hcfplan.grid import Grid
 from hcfplan.io.config import load_config
+from hcfplan.numerics.grid import Grid
 from hcfplan.planning.chain import fixed_phase, run_chain
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -29,7 +29,7 @@ def _config(tmp_path, text, overrides=()):
 
 
 def _gdd_at_pump(grid, phase):
-    from hcfplan.compression_elements import phase_derivatives_at
+    from hcfplan.compression.elements import phase_derivatives_at
 
     return phase_derivatives_at(grid.omega, grid.omega0, phase)[2]
 

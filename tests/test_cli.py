@@ -13,7 +13,7 @@ from pathlib import Path
 
 import pytest
 
-from hcfplan.cli import main
+from hcfplan.cli.app import main
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMOS = sorted((ROOT / "configs").glob("*.toml"))
@@ -101,7 +101,7 @@ def test_bad_config_subprocess_no_traceback(tmp_path):
 def test_cli_import_is_light():
     # start-up rule: importing the CLI must not pull in the heavy modules (they are imported
     # inside the commands); checked structurally rather than by timing.
-    code = ("import sys, hcfplan.cli; heavy = [m for m in ('matplotlib', 'numba', 'CoolProp', "
+    code = ("import sys, hcfplan.cli.app; heavy = [m for m in ('matplotlib', 'numba', 'CoolProp', "
             "'scipy') if m in sys.modules]; print(','.join(heavy))")
     proc = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                           timeout=120)

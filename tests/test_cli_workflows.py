@@ -8,7 +8,7 @@ import json
 import pytest
 from test_scan import write_fast_config
 
-from hcfplan.cli import main
+from hcfplan.cli.app import main
 
 
 def run(capsys, *argv):
@@ -40,7 +40,7 @@ def test_scan_releases_its_workers_before_the_figures(capsys, tmp_path, monkeypa
     # contract: a command with no more points to compute stops the pool processes kept for a
     # next run before it draws its figures (their memory is given back, and the figures'
     # helper is not forked beside the pool's threads)
-    from hcfplan import cli_workflows
+    from hcfplan.cli import workflows as cli_workflows
     from hcfplan.planning import scan
 
     kept_at_figures = []

@@ -1,18 +1,18 @@
-"""Tests of the compressor elements (hcfplan.compression_elements) and the bounce optimisation
-(hcfplan.compression)."""
+"""Tests of the compressor elements (hcfplan.compression.elements) and the bounce optimisation
+(hcfplan.compression.compressor)."""
 
 from __future__ import annotations
 
 import numpy as np
 import pytest
 
-from hcfplan import compression_elements as el
-from hcfplan import metrics
-from hcfplan.compression import TrimSpec, optimize_bounces
+from hcfplan.compression import elements as el
+from hcfplan.compression.compressor import TrimSpec, optimize_bounces
 from hcfplan.constants import c
 from hcfplan.errors import ConfigError
-from hcfplan.grid import Grid
-from hcfplan.metrics import pulse_metrics
+from hcfplan.numerics.grid import Grid
+from hcfplan.pulse import metrics
+from hcfplan.pulse.metrics import pulse_metrics
 
 LN2 = np.log(2.0)
 TAU = 30e-15  # transform-limited FWHM of the test pulse [s]
@@ -324,7 +324,7 @@ def test_scorer_scores_the_plain_formula(grid: Grid, objective: str, clipped: bo
     # consistency: the search's scorer (only the nonzero samples, a folded common phase, the
     # solver's FFT back end) gives objective(to_time(spectrum exp(i phase))) to 1e-12, for a
     # band-clipped spectrum (exact zeros outside the band) and an unclipped one
-    from hcfplan.compression import OBJECTIVES, _peak_powers, _Scorer
+    from hcfplan.compression.compressor import OBJECTIVES, _peak_powers, _Scorer
 
     rng = np.random.default_rng(3)
     spectrum = _chirped(grid, 900e-30) * np.exp(1j * rng.normal(0, 0.3, grid.points))

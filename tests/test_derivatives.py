@@ -1,12 +1,13 @@
-"""Tests of hcfplan.derivatives (Chebyshev differentiation of smooth functions of omega)."""
+"""Tests of hcfplan.numerics.derivatives (Chebyshev differentiation of smooth functions of
+omega)."""
 
 from math import factorial
 
 import numpy as np
 import pytest
 
-from hcfplan.derivatives import derivative, derivative_table
 from hcfplan.errors import ConfigError
+from hcfplan.numerics.derivatives import derivative, derivative_table
 
 C = 299792458.0
 # Fused-silica Sellmeier terms of I. H. Malitson, J. Opt. Soc. Am. 55, 1205 (1965), used here only
@@ -98,7 +99,7 @@ def test_ladder_samples_every_rung_in_few_calls():
     # consistency: the adaptive rule samples all rungs of a block of points in one call of the
     # function, with the same samples and weights as one call per rung (results identical), so
     # a fiber model's per-call cost is paid once per block instead of once per rung
-    from hcfplan import derivatives as dv
+    from hcfplan.numerics import derivatives as dv
 
     calls = []
 

@@ -11,15 +11,16 @@ import numpy as np
 import pytest
 from scipy.special import lambertw
 
-from hcfplan import limits, pulse
 from hcfplan.errors import ConfigError
 from hcfplan.fibers import derived
 from hcfplan.io.config import load_config
+from hcfplan.limits import beam as limits
 from hcfplan.materials.gases import GasFill, gas_medium
 from hcfplan.planning.build import build_medium, build_waveguide, coupling, pump_omega
 from hcfplan.planning.envelope import envelope_json, envelope_map, thz_cutoff_gaussian_estimate
-from hcfplan.planning.limits_gas import weighted_rates
+from hcfplan.planning.reports.limits_gas import weighted_rates
 from hcfplan.planning.validity import quiet_validity
+from hcfplan.pulse import fields as pulse
 
 CONFIGS = {p.stem: p for p in
            sorted((Path(__file__).resolve().parent.parent / "configs").glob("*.toml"))}

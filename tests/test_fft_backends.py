@@ -1,6 +1,6 @@
 """FFT back ends of the solver against numpy.fft (a general-purpose reference library).
 
-Kind: contract tests over :data:`hcfplan.propagation.transforms.FFT_BACKENDS` (and the back
+Kind: contract tests over :data:`hcfplan.numerics.fft.FFT_BACKENDS` (and the back
 ends kept by ``shared_transforms`` for the compressor search and the solver's records), plus a
 regression test: FFTW's measuring planner overwrites the arrays of a plan it has no wisdom for
 (FFTW 3 manual, sec. 4.3.2 "Planner Flags", from memory); the back end makes plans on first use,
@@ -12,12 +12,7 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from hcfplan.propagation.transforms import (
-    FFT_BACKENDS,
-    FFTW_MEASURE_POINTS,
-    fftw_available,
-    work_array,
-)
+from hcfplan.numerics.fft import FFT_BACKENDS, FFTW_MEASURE_POINTS, fftw_available, work_array
 
 #: A size no other test uses (so no FFTW wisdom exists for it) at which plans are measured.
 POINTS = 9 * 512
@@ -31,7 +26,7 @@ def test_first_transforms_match_numpy(name, tmp_path, monkeypatch):
             pytest.skip("pyFFTW not installed (optional)")
         import pyfftw
 
-        from hcfplan.io.fftw_wisdom import forget_loaded
+        from hcfplan.numerics.fftw_wisdom import forget_loaded
 
         monkeypatch.setenv("HCFPLAN_CACHE_DIR", str(tmp_path))  # no wisdom file either
         forget_loaded()
@@ -56,7 +51,7 @@ def test_first_transforms_match_numpy(name, tmp_path, monkeypatch):
 
 _IMPORT_CHECK = """
 import sys
-from hcfplan.propagation.transforms import import_pyfftw
+from hcfplan.numerics.fft import import_pyfftw
 if {dask_first}:
     import dask.array.fft
 pyfftw = import_pyfftw()
@@ -92,7 +87,7 @@ def test_shared_back_end_is_kept_per_thread_back_end_and_size(name):
     # fft of what was put into spectrum_in
     import threading
 
-    from hcfplan.propagation.transforms import shared_transforms
+    from hcfplan.numerics.fft import shared_transforms
 
     if name == "fftw" and not fftw_available():
         pytest.skip("pyFFTW not installed (optional)")
@@ -113,7 +108,7 @@ def test_shared_back_end_is_kept_per_thread_back_end_and_size(name):
 def test_recorded_power_is_the_envelope_of_the_spectrum(name):
     # consistency: the recorder's power |A(t)|^2 (taken on a kept back end) equals
     # |grid.to_time(u)|^2, the grid's convention 2, to 1e-12 of its peak
-    from hcfplan.grid import Grid
+    from hcfplan.numerics.grid import Grid
     from hcfplan.propagation.result import Recorder
 
     if name == "fftw" and not fftw_available():

@@ -1,4 +1,4 @@
-"""FFTW wisdom kept on disk (hcfplan.io.fftw_wisdom): written after planning, read by a new
+"""FFTW wisdom kept on disk (hcfplan.numerics.fftw_wisdom): written after planning, read by a new
 process before its first plan, ignored when damaged or foreign, never an error.
 
 Invariant checks (common practice, no source): the transforms are compared with numpy.fft;
@@ -12,8 +12,8 @@ import json
 import numpy as np
 import pytest
 
-from hcfplan.io import fftw_wisdom
-from hcfplan.propagation.transforms import FFTW_MEASURE_POINTS, FftwTransforms, fftw_available
+from hcfplan.numerics import fftw_wisdom
+from hcfplan.numerics.fft import FFTW_MEASURE_POINTS, FftwTransforms, fftw_available
 
 pytestmark = pytest.mark.skipif(not fftw_available(), reason="pyFFTW not installed (optional)")
 #: A measured size no other test uses.

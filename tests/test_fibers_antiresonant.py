@@ -4,12 +4,12 @@ import numpy as np
 import pytest
 from scipy import optimize
 
-from hcfplan.derivatives import derivative
 from hcfplan.errors import ConfigError
 from hcfplan.fibers import AntiresonantFiber, CapillaryFiber, derived
 from hcfplan.fibers.antiresonant import arf_wall_index_zeisberger2017
 from hcfplan.fibers.modes import U11
 from hcfplan.materials.solids import QuotedValue, SellmeierFit, SolidMaterial, refractive_index
+from hcfplan.numerics.derivatives import derivative
 
 C = 299792458.0
 

@@ -20,7 +20,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from hcfplan.cli import main
+from hcfplan.cli.app import main
 from hcfplan.io.tomlio import parse_toml
 
 ROOT = Path(__file__).resolve().parents[1]

@@ -1,4 +1,4 @@
-"""Tests of hcfplan.ionization: PPT/ADK rates, barrier suppression, tables, ionised fractions.
+"""Tests of hcfplan.ionization.rates: PPT/ADK rates, barrier suppression, tables, ionised fractions.
 
 Every numerical test names its kind (published value / analytic / convergence / physics).
 Ionisation energies: NIST Atomic Spectra Database (A. Kramida, Yu. Ralchenko, J. Reader and
@@ -14,10 +14,10 @@ import numpy as np
 import pytest
 from scipy import integrate
 
-from hcfplan import ionization as ion
-from hcfplan import ionization_tables as tables
 from hcfplan.constants import au_energy, au_field, au_time, c, e, epsilon_0, eV, hbar, m_e
 from hcfplan.errors import ConfigError
+from hcfplan.ionization import rates as ion
+from hcfplan.ionization import tables
 
 W_CM2 = 1e4  # one W/cm^2 in W/m^2
 IP_EV = {"He": 24.587389011, "Ne": 21.564541, "Ar": 15.7596119, "Kr": 13.9996055, "Xe": 12.1298437}

@@ -1,4 +1,4 @@
-"""Tests of hcfplan.limits_cell: cell rating, window plate, oxygen depletion."""
+"""Tests of hcfplan.limits.cell: cell rating, window plate, oxygen depletion."""
 
 from __future__ import annotations
 
@@ -8,9 +8,9 @@ import numpy as np
 import pytest
 from numpy.polynomial import Polynomial
 
-from hcfplan import limits_cell as lc
 from hcfplan.constants import N_A, P_1ATM
 from hcfplan.errors import ConfigError
+from hcfplan.limits import cell as lc
 from hcfplan.materials.gases import load_gas_table, number_density
 
 

@@ -1,4 +1,4 @@
-"""Tests of the ionisation, beam and B-integral limits of hcfplan.limits."""
+"""Tests of the ionisation, beam and B-integral limits of hcfplan.limits.beam."""
 
 from __future__ import annotations
 
@@ -8,12 +8,12 @@ import numpy as np
 import pytest
 from scipy.integrate import trapezoid
 
-from hcfplan import ionization_tables as tables
-from hcfplan import limits
 from hcfplan.constants import eV
 from hcfplan.errors import ConfigError
+from hcfplan.ionization import tables
+from hcfplan.limits import beam as limits
 from hcfplan.materials.gases import GasFill, gas_medium, load_gas_table
-from hcfplan.planning.limits_gas import lowest_barrier_suppression, weighted_rates
+from hcfplan.planning.reports.limits_gas import lowest_barrier_suppression, weighted_rates
 
 W_CM2 = 1e4  # W/cm^2 -> W/m^2
 
@@ -41,7 +41,7 @@ def test_argon_onset_in_published_range(fwhm, argon_onsets):
 
 @pytest.mark.parametrize("fwhm", [30e-15, 300e-15])
 def test_onset_matches_ionization_module(fwhm, argon_onsets):
-    """Invariant: the same crossing as hcfplan.ionization_tables.intensity_for_fraction (its own
+    """Invariant: the same crossing as hcfplan.ionization.tables.intensity_for_fraction (its own
     1e-3 table and time grid); our 1 % table moves the intensity by well under 1 %."""
     ip = load_gas_table("Ar").ionization.potential
     reference = tables.intensity_for_fraction(1e-4, fwhm, "gaussian", 800e-9, ip, 1)

@@ -1,4 +1,4 @@
-"""Tests of hcfplan.planning.limits_report on the demo configs and on edited cases."""
+"""Tests of hcfplan.planning.reports.limits on the demo configs and on edited cases."""
 
 from __future__ import annotations
 
@@ -10,11 +10,11 @@ from types import SimpleNamespace
 import numpy as np
 import pytest
 
-from hcfplan import limits
-from hcfplan.cautions import caution_lines
 from hcfplan.io.config import load_config
+from hcfplan.limits import beam as limits
+from hcfplan.limits.cautions import caution_lines
 from hcfplan.materials.gases import GasFill, gas_medium
-from hcfplan.planning.limits_report import limits_report
+from hcfplan.planning.reports.limits import limits_report
 
 CONFIGS = sorted((Path(__file__).resolve().parent.parent / "configs").glob("*.toml"))
 STATUSES = {"within", "exceeds", "not checked"}

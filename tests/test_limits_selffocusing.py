@@ -1,4 +1,4 @@
-"""Tests of the self-focusing critical power (hcfplan.limits)."""
+"""Tests of the self-focusing critical power (hcfplan.limits.beam)."""
 
 from __future__ import annotations
 
@@ -9,7 +9,7 @@ import pytest
 
 from hcfplan.constants import c
 from hcfplan.errors import ConfigError
-from hcfplan.limits import (
+from hcfplan.limits.beam import (
     SELF_FOCUSING_MODELS,
     max_energy_for_self_focusing,
     max_pressure_for_self_focusing,
@@ -25,7 +25,7 @@ from hcfplan.materials.gases import (
     number_density,
     refractive_index,
 )
-from hcfplan.pulse import peak_power_from_energy
+from hcfplan.pulse.fields import peak_power_from_energy
 
 OMEGA_800 = 2 * math.pi * c / 800e-9
 

@@ -1,4 +1,4 @@
-"""Tests of hcfplan.metrics (widths, transform limit, main lobe, time-bandwidth product)."""
+"""Tests of hcfplan.pulse.metrics (widths, transform limit, main lobe, time-bandwidth product)."""
 
 from __future__ import annotations
 
@@ -6,10 +6,10 @@ import numpy as np
 import pytest
 from scipy.special import erf, erfc
 
-from hcfplan import metrics
 from hcfplan.constants import c
 from hcfplan.errors import ConfigError
-from hcfplan.grid import Grid
+from hcfplan.numerics.grid import Grid
+from hcfplan.pulse import metrics
 
 LN2 = np.log(2.0)
 

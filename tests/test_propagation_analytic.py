@@ -22,9 +22,9 @@ from propagation_cases import (
     textbook_grid,
 )
 
-from hcfplan.metrics import rms_width
 from hcfplan.propagation.solve import propagate
-from hcfplan.pulse import pulse_field, shape_t0_factor
+from hcfplan.pulse.fields import pulse_field, shape_t0_factor
+from hcfplan.pulse.metrics import rms_width
 
 
 def test_fundamental_soliton_keeps_its_shape_over_five_periods():

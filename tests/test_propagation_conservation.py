@@ -19,10 +19,10 @@ from hcfplan.constants import c
 from hcfplan.errors import ValidityWarning
 from hcfplan.fibers.capillary import CapillaryFiber
 from hcfplan.fibers.taylor import TaylorFiber
-from hcfplan.grid import Grid
 from hcfplan.materials.gases import GasFill, gas_medium
+from hcfplan.numerics.grid import Grid
 from hcfplan.propagation.solve import propagate
-from hcfplan.pulse import pulse_field
+from hcfplan.pulse.fields import pulse_field
 
 OMEGA_835 = 2 * np.pi * c / 835e-9
 OMEGA_800 = 2 * np.pi * c / 800e-9

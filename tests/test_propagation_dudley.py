@@ -19,9 +19,9 @@ import pytest
 
 from hcfplan.constants import c
 from hcfplan.fibers.taylor import TaylorFiber
-from hcfplan.grid import Grid
+from hcfplan.numerics.grid import Grid
 from hcfplan.propagation.solve import propagate
-from hcfplan.pulse import pulse_field
+from hcfplan.pulse.fields import pulse_field
 
 BETAS_PS_KM = (-11.830, 8.1038e-2, -9.5205e-5, 2.0737e-7, -5.3943e-10, 1.3486e-12,
                -2.5495e-15, 3.0524e-18, -1.7140e-21)  # beta2..beta10 [ps^n/km], from memory

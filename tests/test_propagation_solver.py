@@ -145,7 +145,7 @@ def test_fused_error_kernel_matches_reference_norm(norm):
 @pytest.mark.parametrize("backend", ["scipy", "fftw"])
 def test_fft_backends_agree(case, backend):
     # contract: both FFT back ends give the same run (to rounding)
-    from hcfplan.propagation.transforms import fftw_available
+    from hcfplan.numerics.fft import fftw_available
 
     if backend == "fftw" and not fftw_available():
         pytest.skip("pyFFTW not installed (optional)")
@@ -179,8 +179,8 @@ def _width_cases():
 def test_compiled_outermost_width_is_the_metrics_one(index, level):
     # contract: the recorder's compiled bandwidth gives exactly what metrics.width_at_level
     # (extent "outermost") gives, nan included
-    from hcfplan.metrics import width_at_level
     from hcfplan.propagation import kernels
+    from hcfplan.pulse.metrics import width_at_level
 
     x, y = _width_cases()[index]
     expected = width_at_level(x, y, level, extent="outermost")

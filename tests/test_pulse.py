@@ -1,4 +1,4 @@
-"""Input pulses (hcfplan.pulse) and grid selection (hcfplan.grid.choose_grid).
+"""Input pulses (hcfplan.pulse.fields) and grid selection (hcfplan.numerics.grid.choose_grid).
 
 Kinds: analytic (closed-form integrals of sech^2 and Gaussian pulses, linear chirp of a
 Gaussian, Agrawal, Nonlinear Fiber Optics, 6th ed., 2019, ch. 3 [from memory]) and error tests.
@@ -13,14 +13,14 @@ import pytest
 
 from hcfplan.constants import c
 from hcfplan.errors import ConfigError, ValidityWarning
-from hcfplan.grid import Grid, choose_grid
-from hcfplan.metrics import fwhm, rms_width
-from hcfplan.pulse import (
+from hcfplan.numerics.grid import Grid, choose_grid
+from hcfplan.pulse.fields import (
     field_from_measured_spectrum,
     peak_power_from_energy,
     pulse_field,
     shape_t0_factor,
 )
+from hcfplan.pulse.metrics import fwhm, rms_width
 
 OMEGA0 = 2 * np.pi * c / 800e-9
 
@@ -63,7 +63,7 @@ def test_gdd_broadens_gaussian_as_linear_dispersion(grid):
 
 @pytest.mark.parametrize(("gdd", "red_first"), [(500e-30, True), (-500e-30, False)])
 def test_gdd_sign_normal_dispersion_puts_red_first(grid, gdd, red_first):
-    # convention 4 of hcfplan.grid: positive GDD = normal material, red components lead
+    # convention 4 of hcfplan.numerics.grid: positive GDD = normal material, red components lead
     spectrum = grid.to_spectrum(pulse_field(grid, "gaussian", 20e-15, 1e-6, gdd))
     centroid = {}
     for name, part in (("red", grid.domega < 0), ("blue", grid.domega > 0)):

@@ -1,4 +1,4 @@
-"""Delayed responses of hcfplan.raman.
+"""Delayed responses of hcfplan.propagation.raman.
 
 Kinds:
 * analytic: unit area of the Blow & Wood response (IEEE J. Quantum Electron. 25, 2665, 1989);
@@ -20,7 +20,7 @@ from scipy.integrate import quad
 from scipy.special import sph_harm_y
 
 from hcfplan.constants import c, h, k_B
-from hcfplan.raman import (
+from hcfplan.propagation.raman import (
     raman_response_blowwood1989,
     rotational_kerr_n2,
     rotational_lines,

@@ -14,7 +14,7 @@ import pytest
 
 from hcfplan.constants import k_B
 from hcfplan.materials import gases
-from hcfplan.raman import rotational_kerr_n2
+from hcfplan.propagation.raman import rotational_kerr_n2
 
 ATM = 101325.0
 ROOM = 293.15
@@ -53,10 +53,10 @@ def test_rotational_raman_red_shifts_a_long_pulse():
     # physics invariant: a delayed (Raman) response shifts energy to the red; the same run
     # without the gas's delayed response (gas=None: Kerr only) keeps the centroid near the pump
     from hcfplan.fibers import CapillaryFiber
-    from hcfplan.grid import choose_grid
     from hcfplan.materials.gases import GasFill, gas_medium
+    from hcfplan.numerics.grid import choose_grid
     from hcfplan.propagation.solve import propagate
-    from hcfplan.pulse import pulse_field
+    from hcfplan.pulse.fields import pulse_field
 
     medium = gas_medium(GasFill(components=(("N2", 1.0),), pressure=2e5, temperature=ROOM))
     fiber = CapillaryFiber(core_radius=100e-6, length=0.5, gas=medium)

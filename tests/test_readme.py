@@ -24,7 +24,7 @@ def test_setup_commands_match_ci():
 
 def test_cautions_in_readme():
     # the README repeats the cautions the commands print (key phrases of each one)
-    from hcfplan.cautions import CAUTIONS
+    from hcfplan.limits.cautions import CAUTIONS
 
     phrases = {"estimates": "licensed practice", "pressure": "relief device",
                "laser": "Class 4", "gas": "odourless"}

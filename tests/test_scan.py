@@ -18,13 +18,7 @@ from pathlib import Path
 import pytest
 
 from hcfplan.errors import ConfigError
-from hcfplan.planning.scan import (
-    config_key,
-    parse_vary,
-    plan_scan,
-    read_point,
-    run_scan,
-)
+from hcfplan.planning.scan import config_key, parse_vary, plan_scan, read_point, run_scan
 
 ROOT = Path(__file__).resolve().parents[1]
 

@@ -14,7 +14,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from hcfplan.cli import main
+from hcfplan.cli.app import main
 
 ROOT = Path(__file__).resolve().parents[1]
 

@@ -18,11 +18,11 @@ from hcfplan.errors import ValidityWarning
 from hcfplan.fibers.antiresonant import AntiresonantFiber
 from hcfplan.fibers.capillary import CapillaryFiber
 from hcfplan.fibers.taylor import TaylorFiber
-from hcfplan.grid import MAX_HALF_WINDOW_FRACTION, Grid
 from hcfplan.materials.gases import GasFill, gas_medium
+from hcfplan.numerics.grid import MAX_HALF_WINDOW_FRACTION, Grid
 from hcfplan.propagation import control, operators
 from hcfplan.propagation.solve import propagate
-from hcfplan.pulse import pulse_field
+from hcfplan.pulse.fields import pulse_field
 
 OMEGA_1030 = 2 * np.pi * c / 1030e-9
 
@@ -162,8 +162,8 @@ def test_recorder_values_are_the_plain_numpy_ones(argon):
     # consistency: the recorder's compiled passes give what the numpy expressions of its
     # docstring give (energy, peak power, bandwidth, energy at the window edges, energy and
     # centre in the wall-resonance bands), on a spectrum that reaches the edges and a band
-    from hcfplan.metrics import spectral_width
     from hcfplan.propagation.result import BANDWIDTH_LEVEL_DB, EDGE_ZONE, Recorder
+    from hcfplan.pulse.metrics import spectral_width
 
     grid = Grid(points=2**10, dt=2e-15, omega0=OMEGA_1030)
     fiber = AntiresonantFiber(core_radius=25e-6, wall_thickness=0.93e-6, length=0.1, gas=argon)

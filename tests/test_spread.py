@@ -8,7 +8,7 @@ import json
 import pytest
 from test_simulate_cli import FAST
 
-from hcfplan.cli import main
+from hcfplan.cli.app import main
 from hcfplan.errors import ConfigError
 from hcfplan.planning.spread import parse_spread
 

@@ -1,4 +1,4 @@
-"""Tests of hcfplan.thz / hcfplan.thz_detection / hcfplan.plotting.thz.
+"""Tests of hcfplan.thz.generation / hcfplan.thz.detection / hcfplan.plotting.thz.
 
 Each numerical test states its kind (published value / analytic-or-invariant / convergence).
 """
@@ -10,9 +10,10 @@ import pytest
 
 from hcfplan.constants import c, epsilon_0
 from hcfplan.errors import ConfigError
-from hcfplan.grid import Grid
 from hcfplan.materials.crystals import load_crystal
-from hcfplan.thz import (
+from hcfplan.numerics.grid import Grid
+from hcfplan.thz.detection import EoDetector, phase_matching_integral, phase_matching_map
+from hcfplan.thz.generation import (
     PHASE_MATCHING,
     REFERENCE_AREA,
     REFERENCE_D_EFF,
@@ -20,7 +21,6 @@ from hcfplan.thz import (
     thz_estimate,
     thz_from_measured_spectrum,
 )
-from hcfplan.thz_detection import EoDetector, phase_matching_integral, phase_matching_map
 
 TWO_PI = 2 * np.pi
 LN2 = np.log(2.0)
@@ -147,7 +147,7 @@ def test_compiled_mixing_sum_matches_numpy_slab_integrals():
     form built from phase_matching_integral (two exponentials per term), for GaP with
     absorption up to the phonon band, including the series branch at Omega = 0 (delta_k = 0)."""
     from hcfplan.materials.crystals import optical_index, thz_index
-    from hcfplan.thz_kernels import mixing_sums
+    from hcfplan.thz.kernels import mixing_sums
 
     gap, length = load_crystal("gap"), 1e-3
     grid, spectrum = gaussian_pulse(20e-15, points=512, dt=2e-15)

@@ -11,10 +11,10 @@ depend on omega). :class:`TaylorFiber` returns a constant gamma and states throu
 
 from __future__ import annotations
 
-from .antiresonant import AntiresonantFiber
-from .base import GasLike, Waveguide
-from .capillary import CapillaryFiber
-from .taylor import TaylorFiber
+from hcfplan.fibers.antiresonant import AntiresonantFiber
+from hcfplan.fibers.base import GasLike, Waveguide
+from hcfplan.fibers.capillary import CapillaryFiber
+from hcfplan.fibers.taylor import TaylorFiber
 
 #: model key -> Waveguide class
 FIBER_MODELS: dict[str, type] = {

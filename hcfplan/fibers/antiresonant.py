@@ -1,8 +1,8 @@
 """Gas-filled tube-type anti-resonant hollow-core fiber: analytic model of Zeisberger & Schmidt.
 
 The fiber is modelled as a core of radius R bounded by one glass wall of thickness d with gas
-on both sides (the "tube-type" model of [1]). Conventions of :mod:`hcfplan.grid`; ``attenuation``
-is the FIELD attenuation (power ~ exp(-2 alpha z)).
+on both sides (the "tube-type" model of [1]). Conventions of :mod:`hcfplan.numerics.grid`;
+``attenuation`` is the FIELD attenuation (power ~ exp(-2 alpha z)).
 
 What was checked here (the formula of [1] was written from memory, then re-derived):
 the wall correction below was derived independently, to first order in the wall impedance, from
@@ -31,13 +31,17 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..constants import c
-from ..errors import ConfigError
-from ..materials.solids import SolidMaterial, load_material
-from ..materials.solids import refractive_index as solid_index
-from .base import GasLike
-from .capillary import ATTENUATION_CONVENTION, _check_common, capillary_propagation_constant
-from .modes import U11, effective_area_j0, peak_intensity_area
+from hcfplan.constants import c
+from hcfplan.errors import ConfigError
+from hcfplan.fibers.base import GasLike
+from hcfplan.fibers.capillary import (
+    ATTENUATION_CONVENTION,
+    _check_common,
+    capillary_propagation_constant,
+)
+from hcfplan.fibers.modes import U11, effective_area_j0, peak_intensity_area
+from hcfplan.materials.solids import SolidMaterial, load_material
+from hcfplan.materials.solids import refractive_index as solid_index
 
 _RESONANCE_ITERATIONS = 60  # most fixed-point steps for lambda_m = (2d/m) sqrt(n_glass^2 - n_gas^2)
 #: Relative change of every lambda_m at which the iteration stops: 17-25 steps for 6-8 orders

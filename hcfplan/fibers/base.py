@@ -1,8 +1,8 @@
 """The small interface every fiber model provides.
 
 A waveguide model is an object with the methods below, all vectorised over angular frequency
-and all in SI (see the conventions in :mod:`hcfplan.grid`). The propagation builder, the derived
-quantities and the CLI only use this interface, so a new fiber kind is one new module.
+and all in SI (see the conventions in :mod:`hcfplan.numerics.grid`). The propagation builder, the
+derived quantities and the CLI only use this interface, so a new fiber kind is one new module.
 
 1. ``propagation_constant(omega)`` -> beta(omega) [rad/m], real, the full dispersion of the mode
    including the filling medium.

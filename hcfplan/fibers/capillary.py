@@ -1,7 +1,7 @@
 """Gas-filled hollow capillary (dielectric tube): the Marcatili-Schmeltzer EH1m modes.
 
-Conventions of :mod:`hcfplan.grid`: fields vary as exp(i(beta z - omega t)); ``attenuation`` is
-the FIELD attenuation alpha, so the guided power falls as exp(-2 alpha z).
+Conventions of :mod:`hcfplan.numerics.grid`: fields vary as exp(i(beta z - omega t));
+``attenuation`` is the FIELD attenuation alpha, so the guided power falls as exp(-2 alpha z).
 
 References
 ----------
@@ -17,12 +17,12 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..constants import c
-from ..errors import ConfigError, ValidityWarning
-from ..materials.solids import SolidMaterial, load_material
-from ..materials.solids import refractive_index as solid_index
-from .base import GasLike
-from .modes import effective_area_j0, eh_eigenvalue, peak_intensity_area
+from hcfplan.constants import c
+from hcfplan.errors import ConfigError, ValidityWarning
+from hcfplan.fibers.base import GasLike
+from hcfplan.fibers.modes import effective_area_j0, eh_eigenvalue, peak_intensity_area
+from hcfplan.materials.solids import SolidMaterial, load_material
+from hcfplan.materials.solids import refractive_index as solid_index
 
 #: Text used by ``describe()``: what ``attenuation`` returns.
 ATTENUATION_CONVENTION = "field attenuation alpha [1/m]; power ~ exp(-2 alpha z)"

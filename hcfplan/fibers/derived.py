@@ -1,7 +1,7 @@
 """Quantities derived from any :class:`~hcfplan.fibers.base.Waveguide` and standard pulse scales.
 
-Pure functions in SI. Dispersion follows :mod:`hcfplan.grid` (beta_n = d^n beta / d omega^n,
-positive beta2 normal); ``alpha`` is the FIELD attenuation (power ~ exp(-2 alpha z)).
+Pure functions in SI. Dispersion follows :mod:`hcfplan.numerics.grid` (beta_n = d^n beta / d
+omega^n, positive beta2 normal); ``alpha`` is the FIELD attenuation (power ~ exp(-2 alpha z)).
 
 References
 ----------
@@ -22,11 +22,11 @@ from collections.abc import Callable
 import numpy as np
 from scipy import optimize
 
-from ..constants import c
-from ..derivatives import derivative, derivative_table
-from ..errors import ConfigError
-from ..pulse import PulseShape, shape_t0_factor
-from .base import Waveguide
+from hcfplan.constants import c
+from hcfplan.errors import ConfigError
+from hcfplan.fibers.base import Waveguide
+from hcfplan.numerics.derivatives import derivative, derivative_table
+from hcfplan.pulse.fields import PulseShape, shape_t0_factor
 
 #: Samples per ZDW search before each sign change is refined with brentq.
 ZDW_SEARCH_POINTS = 400
@@ -133,7 +133,7 @@ def zero_dispersion_pressure(
 def t0_from_fwhm(duration_fwhm: float, shape: PulseShape) -> float:
     """Shape parameter T0 from the intensity FWHM (sech^2: /1.7627, Gaussian: /1.6651). [s]
 
-    (duration_fwhm [s]; the shape registry is :func:`hcfplan.pulse.shape_t0_factor`.)
+    (duration_fwhm [s]; the shape registry is :func:`hcfplan.pulse.fields.shape_t0_factor`.)
     """
     return duration_fwhm / shape_t0_factor(shape)
 

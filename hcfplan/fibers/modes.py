@@ -20,7 +20,7 @@ from functools import lru_cache
 import numpy as np
 from scipy import optimize, special
 
-from ..errors import ConfigError
+from hcfplan.errors import ConfigError
 
 #: First zero of J0, the transverse eigenvalue u11 of the EH11 mode. [-]
 U11 = float(special.jn_zeros(0, 1)[0])

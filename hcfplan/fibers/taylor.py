@@ -1,6 +1,7 @@
 """A waveguide given directly by its Taylor dispersion coefficients and a constant gamma.
 
-Used for textbook cases and for fibers measured elsewhere. Conventions of :mod:`hcfplan.grid`.
+Used for textbook cases and for fibers measured elsewhere. Conventions of
+:mod:`hcfplan.numerics.grid`.
 
 How the nonlinearity is represented (read this when building the propagation equation)
 -------------------------------------------------------------------------------------
@@ -28,9 +29,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..constants import c
-from ..errors import ConfigError
-from .capillary import ATTENUATION_CONVENTION
+from hcfplan.constants import c
+from hcfplan.errors import ConfigError
+from hcfplan.fibers.capillary import ATTENUATION_CONVENTION
 
 
 def taylor_propagation_constant(omega: np.ndarray, omega0: float, betas) -> np.ndarray:

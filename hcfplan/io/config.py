@@ -19,10 +19,10 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
-from .. import units
-from ..errors import ConfigError
-from .schema import REQUIRED, REQUIRED_SECTIONS, SCHEMA, Key
-from .tomlio import parse_toml_value, read_toml
+from hcfplan import units
+from hcfplan.errors import ConfigError
+from hcfplan.io.schema import REQUIRED, REQUIRED_SECTIONS, SCHEMA, Key
+from hcfplan.io.tomlio import parse_toml_value, read_toml
 
 #: Largest radial order m of an EH1m mode accepted in ``fiber.mode``.
 MAX_MODE_ORDER = 1000
@@ -437,7 +437,7 @@ def _cross_check_compressor(resolved: dict) -> None:
 
 def _check_names(resolved: dict, present: set[str], table_dirs: tuple[Path, ...]) -> None:
     """Check gas, material and crystal names against the shipped and user tables."""
-    from ..materials import crystals, gases, solids
+    from hcfplan.materials import crystals, gases, solids
 
     if "gas" in present:
         names = ([resolved["gas"]["species"]] if resolved["gas"]["species"]
@@ -494,7 +494,7 @@ def _checked_csv(value: str | None, base: Path, key: str, column: str | None):
     path = _resolve_path(value, base, key)
     if path is None:
         return None
-    from .csvdata import read_curve_csv, read_spectrum_csv
+    from hcfplan.io.csvdata import read_curve_csv, read_spectrum_csv
 
     try:
         if column is None:

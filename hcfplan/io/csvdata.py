@@ -14,8 +14,8 @@ from pathlib import Path
 
 import numpy as np
 
-from ..errors import ConfigError
-from ..units import SUFFIXES, suffix_of
+from hcfplan.errors import ConfigError
+from hcfplan.units import SUFFIXES, suffix_of
 
 #: Wavelengths all below this value are taken to be micrometres given by mistake. [nm]
 MICROMETRE_SUSPICION = 20.0

@@ -24,7 +24,7 @@ from typing import Any
 
 import numpy as np
 
-from ..errors import ConfigError
+from hcfplan.errors import ConfigError
 
 #: Signals that end the process without clean-up by default; held back during a write.
 HELD_SIGNALS = tuple(getattr(signal, name) for name in ("SIGTERM", "SIGHUP")

@@ -8,9 +8,9 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from ..planning.chain import ChainResult, field_arrays, summary_dict
-from .results import write_figures, write_json, write_npz, write_text
-from .tomlio import dump_toml
+from hcfplan.io.results import write_figures, write_json, write_npz, write_text
+from hcfplan.io.tomlio import dump_toml
+from hcfplan.planning.chain import ChainResult, field_arrays, summary_dict
 
 
 def write_run(out_dir: Path, chain: ChainResult, *, figures: bool = True, spread=None) -> dict:
@@ -23,14 +23,14 @@ def write_run(out_dir: Path, chain: ChainResult, *, figures: bool = True, spread
     summary = summary_dict(chain)
     summary["config"] = chain.config.resolved
     if spread is not None:
-        from ..planning.spread import spread_summary, worst_case_limits
+        from hcfplan.planning.spread import spread_summary, worst_case_limits
 
         summary["spread"] = spread_summary(spread)
         summary.setdefault("limits", {}).update(worst_case_limits(spread, chain.config.limits))
     write_npz(out_dir / "fields.npz", field_arrays(chain))
     write_text(out_dir / "config.resolved.toml", dump_toml(chain.config.resolved))
     if figures:
-        from ..plotting import report
+        from hcfplan.plotting import report
 
         jobs = [(out_dir / f"{name}.png", draw, (chain,))
                 for name, draw in report.FIGURES.items() if report.applies(name, chain)]

@@ -7,7 +7,7 @@ import sys
 from pathlib import Path
 from typing import Any
 
-from ..errors import ConfigError
+from hcfplan.errors import ConfigError
 
 if sys.version_info >= (3, 11):
     import tomllib as _toml

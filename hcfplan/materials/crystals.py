@@ -6,8 +6,8 @@ a frozen :class:`CrystalTable` of SI values; the functions below evaluate it.
 
 Conventions
 -----------
-Plane waves vary as exp(i(kz - omega t)) (see :mod:`hcfplan.grid`). The complex THz index is
-n + i kappa with kappa >= 0 for an absorbing medium, so Im k = kappa Omega / c > 0 and the field
+Plane waves vary as exp(i(kz - omega t)) (see :mod:`hcfplan.numerics.grid`). The complex THz index
+is n + i kappa with kappa >= 0 for an absorbing medium, so Im k = kappa Omega / c > 0 and the field
 decays as exp(-Im k z); the *power* absorption coefficient is alpha = 2 kappa Omega / c.
 
 The THz dielectric function is a sum of Lorentz oscillators,
@@ -38,9 +38,9 @@ from typing import Any, Literal
 
 import numpy as np
 
-from ..constants import c, eV
-from ..errors import ConfigError, ValidityWarning
-from .table_files import read_table_toml
+from hcfplan.constants import c, eV
+from hcfplan.errors import ConfigError, ValidityWarning
+from hcfplan.materials.table_files import read_table_toml
 
 OpticalModelName = Literal["sellmeier_pole_um", "sellmeier_pole_um2", "tabulated_um", "constant"]
 ThzModelName = Literal["lorentz", "constant"]

@@ -37,10 +37,10 @@ from typing import Any
 
 import numpy as np
 
-from ..constants import eV
-from ..errors import ConfigError
-from ..units import SUFFIXES
-from .table_files import read_table_toml
+from hcfplan.constants import eV
+from hcfplan.errors import ConfigError
+from hcfplan.materials.table_files import read_table_toml
+from hcfplan.units import SUFFIXES
 
 #: Environment variable with extra table directories (os.pathsep-separated); read only by
 #: :func:`gas_search_dirs` when the caller passes an environment mapping.

@@ -39,9 +39,9 @@ from typing import Literal
 
 import numpy as np
 
-from ..constants import N_A, c, k_B
-from ..errors import ConfigError, GasPhaseError, ValidityWarning
-from .gas_tables import (
+from hcfplan.constants import N_A, c, k_B
+from hcfplan.errors import ConfigError, GasPhaseError, ValidityWarning
+from hcfplan.materials.gas_tables import (
     GAS_PATH_VARIABLE,
     DispersionFit,
     GasTable,

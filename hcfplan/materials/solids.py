@@ -3,7 +3,8 @@
 The data live in ``hcfplan/materials/data/solids.toml`` (one table per material, the numbers in the
 units of the source, each with its citation and a ``from_memory`` flag). This module reads and
 checks that table once, converts it to SI and evaluates the Sellmeier fits. Dispersion follows the
-conventions of :mod:`hcfplan.grid` (k(omega) = n omega / c; positive GVD is normal dispersion).
+conventions of :mod:`hcfplan.numerics.grid` (k(omega) = n omega / c; positive GVD is normal
+dispersion).
 
 Materials: ``fused_silica`` (Malitson 1965 [1]), ``caf2`` (Malitson 1963 [2]), ``mgf2_ordinary``
 (Dodge 1984 [3], coefficients from memory), ``sapphire_ordinary`` (Malitson & Dodge 1972 [4],
@@ -32,10 +33,10 @@ from pathlib import Path
 
 import numpy as np
 
-from ..constants import c
-from ..derivatives import derivative_table
-from ..errors import ConfigError, ValidityWarning
-from .table_files import read_table_toml
+from hcfplan.constants import c
+from hcfplan.errors import ConfigError, ValidityWarning
+from hcfplan.materials.table_files import read_table_toml
+from hcfplan.numerics.derivatives import derivative_table
 
 _MICROMETRE = 1e-6  # [m]
 _NANOMETRE = 1e-9  # [m]

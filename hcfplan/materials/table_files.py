@@ -9,7 +9,7 @@ from __future__ import annotations
 from pathlib import Path
 from typing import Any
 
-from ..errors import ConfigError
+from hcfplan.errors import ConfigError
 
 try:  # Python >= 3.11
     import tomllib

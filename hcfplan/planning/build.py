@@ -8,8 +8,8 @@ from __future__ import annotations
 
 import math
 
-from ..constants import c
-from ..errors import ConfigError, GasPhaseError
+from hcfplan.constants import c
+from hcfplan.errors import ConfigError, GasPhaseError
 
 
 def pump_omega(laser) -> float:
@@ -19,7 +19,7 @@ def pump_omega(laser) -> float:
 
 def build_medium(gas_spec):
     """GasMedium for the configured fill; a refused phase becomes a ConfigError on the key."""
-    from ..materials import gases
+    from hcfplan.materials import gases
 
     fill = gases.GasFill(components=gas_spec.components, pressure=gas_spec.pressure,
                          temperature=gas_spec.temperature, eos=gas_spec.equation_of_state)
@@ -31,7 +31,7 @@ def build_medium(gas_spec):
 
 def build_waveguide(fiber, medium, omega0: float):
     """Waveguide model for the configured fiber (see :mod:`hcfplan.fibers.base`)."""
-    from .. import fibers
+    from hcfplan import fibers
 
     if fiber.kind == "capillary":
         return fibers.CapillaryFiber(core_radius=fiber.core_radius, length=fiber.length,
@@ -56,7 +56,7 @@ def coupling(config) -> tuple[float, float | None, float | None]:
     fiber = config.fiber
     if fiber.kind == "taylor":
         return 1.0, None, None
-    from ..fibers import modes
+    from hcfplan.fibers import modes
 
     optimum = modes.optimum_beam_waist(fiber.core_radius)
     waist = config.laser.beam_waist or optimum

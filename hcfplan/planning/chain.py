@@ -16,9 +16,14 @@ from typing import Any
 
 import numpy as np
 
-from ..constants import P_1ATM, T_ROOM
-from .build import build_medium, build_waveguide, coupling, pump_omega
-from .validity import light_band, quiet_validity, quiet_validity_of_materials, range_notes
+from hcfplan.constants import P_1ATM, T_ROOM
+from hcfplan.planning.build import build_medium, build_waveguide, coupling, pump_omega
+from hcfplan.planning.validity import (
+    light_band,
+    quiet_validity,
+    quiet_validity_of_materials,
+    range_notes,
+)
 
 #: Ambient air assumed for the compressor's air path (dry air at 1 atm and 20 degC).
 AIR_PRESSURE = P_1ATM
@@ -51,8 +56,8 @@ def _broadening_estimate(report: dict) -> float:
 
 
 def _input_field(config, grid, energy: float):
-    from .. import pulse
-    from ..io.csvdata import read_spectrum_csv
+    from hcfplan.io.csvdata import read_spectrum_csv
+    from hcfplan.pulse import fields as pulse
 
     laser = config.laser
     if laser.spectrum_csv is not None:
@@ -95,9 +100,9 @@ def _grid_notes(chain: ChainResult, caught: list[str]) -> list[str]:
 
 
 def _run_chain(config, progress, workers) -> ChainResult:
-    from ..grid import choose_grid
-    from ..propagation.solve import propagate
-    from .fiber_report import fiber_report
+    from hcfplan.numerics.grid import choose_grid
+    from hcfplan.planning.reports.fiber import fiber_report
+    from hcfplan.propagation.solve import propagate
 
     laser = config.laser
     omega0 = pump_omega(laser)
@@ -137,7 +142,7 @@ def _run_chain(config, progress, workers) -> ChainResult:
 
 def _air_index(omega: np.ndarray) -> np.ndarray:
     """Lab air (Ciddor 1996 standard-air fit) at :data:`AIR_PRESSURE`, :data:`AIR_TEMPERATURE`."""
-    from ..materials import gases
+    from hcfplan.materials import gases
 
     table = gases.load_gas_table("air")
     density = gases.number_density(table, AIR_PRESSURE, AIR_TEMPERATURE, eos="ideal")
@@ -145,7 +150,7 @@ def _air_index(omega: np.ndarray) -> np.ndarray:
 
 
 def _material_index(name: str, omega: np.ndarray) -> np.ndarray:
-    from ..materials import solids
+    from hcfplan.materials import solids
 
     # the broadened grid extends beyond the Sellmeier ranges far outside the spectrum; the
     # ranges are checked against the light itself by range_notes
@@ -155,7 +160,7 @@ def _material_index(name: str, omega: np.ndarray) -> np.ndarray:
 
 def fixed_phase(config, grid) -> np.ndarray:
     """Phase of the exit window and the air path on the grid (grid.py convention 4). [rad]"""
-    from ..compression_elements import material_phase
+    from hcfplan.compression.elements import material_phase
 
     omega = grid.omega
     phase = np.zeros_like(omega)
@@ -171,12 +176,12 @@ def fixed_phase(config, grid) -> np.ndarray:
 
 
 def _mirror_phase(config, grid) -> np.ndarray:
-    from ..compression_elements import mirror_phase, phase_from_gdd_curve
-    from ..io.csvdata import read_curve_csv
+    from hcfplan.compression.elements import mirror_phase, phase_from_gdd_curve
+    from hcfplan.io.csvdata import read_curve_csv
 
     comp = config.compressor
     if comp.mirror_gdd_csv is not None:
-        from ..constants import c
+        from hcfplan.constants import c
 
         wavelength, gdd_curve = read_curve_csv(comp.mirror_gdd_csv, "gdd_fs2")  # SI [s^2]
         omega_curve = 2 * math.pi * c / wavelength
@@ -190,8 +195,8 @@ def _mirror_phase(config, grid) -> np.ndarray:
 
 def compress_output(config, grid, spectrum: np.ndarray, input_peak_power: float):
     """Best bounce count (and trim) for the fiber output, with the ideal references."""
-    from ..compression import TrimSpec, optimize_bounces
-    from ..compression_elements import band_from_wavelengths
+    from hcfplan.compression.compressor import TrimSpec, optimize_bounces
+    from hcfplan.compression.elements import band_from_wavelengths
 
     comp = config.compressor
     band = None if comp.mirror_band is None else band_from_wavelengths(*comp.mirror_band)
@@ -224,9 +229,9 @@ def _compression_warnings(comp) -> list[str]:
 
 def _detector(config, grid):
     """EO detector of the config; a given probe FWHM means a transform-limited Gaussian probe."""
-    from .. import pulse
-    from ..materials import crystals
-    from ..thz_detection import EoDetector
+    from hcfplan.materials import crystals
+    from hcfplan.pulse import fields as pulse
+    from hcfplan.thz.detection import EoDetector
 
     thz = config.thz
     if thz.detector_crystal is None:
@@ -242,8 +247,8 @@ def thz_output(config, grid, compression):
     """THz estimate from the compressed pulse (None when the config has no [thz] section)."""
     if "thz" not in config.present_sections:
         return None
-    from ..materials import crystals
-    from ..thz import thz_estimate
+    from hcfplan.materials import crystals
+    from hcfplan.thz.generation import thz_estimate
 
     thz = config.thz
     return thz_estimate(grid, compression.spectrum, crystals.load_crystal(thz.crystal),
@@ -263,8 +268,8 @@ PM_MAP_MIN_FREQUENCY = 5e12
 
 def phase_matching_output(config, thz):
     """Coherence length of the generation crystal over pump wavelength and THz frequency."""
-    from ..materials import crystals
-    from ..thz_detection import phase_matching_map
+    from hcfplan.materials import crystals
+    from hcfplan.thz.detection import phase_matching_map
 
     lam0 = config.laser.wavelength
     wavelengths = np.linspace(PM_MAP_WAVELENGTH_SPAN[0] * lam0, PM_MAP_WAVELENGTH_SPAN[1] * lam0,
@@ -280,7 +285,7 @@ def phase_matching_output(config, thz):
 
 
 def _input_part(chain: ChainResult) -> dict:
-    from ..metrics import fwhm
+    from hcfplan.pulse.metrics import fwhm
 
     grid, prop = chain.grid, chain.propagation
     power_in = np.abs(prop.field_in_t) ** 2
@@ -294,7 +299,7 @@ def _input_part(chain: ChainResult) -> dict:
 
 
 def _output_part(chain: ChainResult) -> dict:
-    from ..metrics import spectral_width, transform_limited_fwhm
+    from hcfplan.pulse.metrics import spectral_width, transform_limited_fwhm
 
     grid, prop = chain.grid, chain.propagation
     power = np.abs(prop.field_out_spectrum) ** 2
@@ -392,7 +397,7 @@ class RunPeaks:
 
 def limits_part(chain: ChainResult) -> dict:
     """``limits.*`` of the run: the analytic checks plus the peaks reached inside the fiber."""
-    from .limits_report import limits_report
+    from hcfplan.planning.reports.limits import limits_report
 
     prop = chain.propagation
     peaks = RunPeaks(max_peak_power=float(np.nanmax(prop.peak_power_z)),

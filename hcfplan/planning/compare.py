@@ -47,14 +47,14 @@ class Comparison:
 
 
 def _number(flat: dict, key: str) -> float | None:
-    from .scan import number_or_none
+    from hcfplan.planning.scan import number_or_none
 
     return number_or_none(flat.get(key), finite=True)
 
 
 def comparison_rows(a: Side, b: Side) -> tuple[dict, ...]:
     """The table: each quantity for A and B, B - A and B / A (SI; None where undefined)."""
-    from .scan import flatten
+    from hcfplan.planning.scan import flatten
 
     flat_a = flatten(a.summary) | flatten(a.margins, "margins.")
     flat_b = flatten(b.summary) | flatten(b.margins, "margins.")
@@ -70,8 +70,8 @@ def comparison_rows(a: Side, b: Side) -> tuple[dict, ...]:
 
 def run_side(config, label: str) -> Side:
     """Run the chain for one config and collect its summary and margins."""
-    from .chain import run_chain
-    from .scan import run_summary
+    from hcfplan.planning.chain import run_chain
+    from hcfplan.planning.scan import run_summary
 
     chain = run_chain(config)
     summary, margins = run_summary(config, chain)

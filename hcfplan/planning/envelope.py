@@ -21,10 +21,10 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..constants import c
-from ..errors import ConfigError
-from .build import build_medium, build_waveguide, coupling, pump_omega
-from .limits_gas import (
+from hcfplan.constants import c
+from hcfplan.errors import ConfigError
+from hcfplan.planning.build import build_medium, build_waveguide, coupling, pump_omega
+from hcfplan.planning.reports.limits_gas import (
     PRESSURE_SEARCH_MAX,
     RATE_TABLE_RANGE,
     ScaledGas,
@@ -32,7 +32,7 @@ from .limits_gas import (
     gas_density_at,
     weighted_rates,
 )
-from .validity import quiet_validity
+from hcfplan.planning.validity import quiet_validity
 
 #: Default energy axis: this range around the configured energy, log-spaced.
 ENERGY_SPAN = (0.05, 5.0)
@@ -60,7 +60,7 @@ def thz_cutoff_gaussian_estimate(duration_fwhm, level_db: float = -20.0,
     level_db : float
         Cutoff level relative to the spectral peak (< 0). [dB]
     quantity : {"power", "field"}
-        What ``level_db`` refers to, as in :func:`hcfplan.thz.thz_cutoff`.
+        What ``level_db`` refers to, as in :func:`hcfplan.thz.generation.thz_cutoff`.
 
     Returns
     -------
@@ -82,7 +82,7 @@ def thz_cutoff_gaussian_estimate(duration_fwhm, level_db: float = -20.0,
     """
     from scipy.special import lambertw
 
-    from ..thz import CUTOFF_LEVELS
+    from hcfplan.thz.generation import CUTOFF_LEVELS
 
     if quantity not in CUTOFF_LEVELS:
         raise ConfigError(f"cutoff quantity = {quantity!r}: valid: {', '.join(CUTOFF_LEVELS)}")
@@ -156,7 +156,7 @@ def _axes(config, medium, energies, pressures, points):
 @dataclass(frozen=True)
 class _RowwiseGas:
     """GasLike whose density differs per leading index: row i of an omega array sees
-    ``ratios[i]`` N_ref (see :class:`~hcfplan.planning.limits_gas.ScaledGas`).
+    ``ratios[i]`` N_ref (see :class:`~hcfplan.planning.reports.limits_gas.ScaledGas`).
 
     Lets one vectorised waveguide evaluation cover the whole pressure axis: every fiber model
     evaluates the gas index element by element, so row i of beta(omega) belongs to pressure i.
@@ -198,7 +198,7 @@ def _densities(config, medium, pressures: np.ndarray) -> np.ndarray:
 def _pressure_axis(config, medium, pressures, omega0):
     """Arrays over the pressure axis: n0, n2 [m^2/W], beta2 [s^2/m], gamma [1/(W m)], alpha
     [1/m] at the pump, from one vectorised evaluation of the waveguide."""
-    from ..derivatives import derivative_table
+    from hcfplan.numerics.derivatives import derivative_table
 
     gas = _RowwiseGas(medium, _densities(config, medium, pressures) / medium.number_density)
     wg = build_waveguide(config.fiber, gas, omega0)
@@ -211,7 +211,7 @@ def _pressure_axis(config, medium, pressures, omega0):
 
 def _beta2_at(config, medium, omega0: float, pressure: float) -> float:
     """beta2 [s^2/m] at one pressure, same stencil as :func:`_pressure_axis`."""
-    from ..derivatives import derivative_table
+    from hcfplan.numerics.derivatives import derivative_table
 
     gas = ScaledGas(medium, gas_density_at(config.gas, medium, float(pressure)))
     wg = build_waveguide(config.fiber, gas, omega0)
@@ -233,8 +233,8 @@ def _zero_dispersion_pressure(config, medium, omega0, pressures, beta2) -> float
 
 def _map_estimates(config, energies, efficiency, beta2, gamma, alpha):
     """Soliton order, compressed duration [s] and THz cutoff [Hz] on the (E, p) grid."""
-    from .. import pulse
-    from ..fibers import derived
+    from hcfplan.fibers import derived
+    from hcfplan.pulse import fields as pulse
 
     laser = config.laser
     peak = pulse.peak_power_from_energy(1.0, laser.duration_fwhm, laser.shape) * efficiency
@@ -288,7 +288,7 @@ def envelope_map(config, *, energies=None, pressures=None,
 
 
 def _envelope_map(config, energies, pressures, points) -> EnvelopeResult:
-    from .. import limits
+    from hcfplan.limits import beam as limits
 
     laser, lim = config.laser, config.limits
     omega0 = pump_omega(laser)

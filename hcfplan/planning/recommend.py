@@ -5,7 +5,7 @@ Two stages:
 1. Analytic bound (no propagation): the largest value of the searched key that keeps the
    input self-focusing margin, the input ionisation fraction and the cell rating
    (``limits.self_focusing.max_pressure_pa``, ``limits.*.max_energy_j`` of
-   :func:`hcfplan.planning.limits_report.limits_report`; without that module a bisection on
+   :func:`hcfplan.planning.reports.limits.limits_report`; without that module a bisection on
    P_cr / P of :func:`hcfplan.planning.scan.point_margins`). Both margins fall monotonically
    with pressure and with energy, so the allowed range is ``[low, bound]``.
 2. Full chain runs (:func:`hcfplan.planning.scan.compute_point`) inside the allowed range,
@@ -27,7 +27,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Literal
 
-from ..errors import ConfigError
+from hcfplan.errors import ConfigError
 
 Goal = Literal["shortest", "peak_power", "thz_cutoff"]
 
@@ -97,7 +97,7 @@ def parse_range(text: str) -> tuple[str, tuple[float, float]]:
 
 
 def _config(raw, base_dir, overrides, gas_dirs, source):
-    from ..io.config import config_from_mapping
+    from hcfplan.io.config import config_from_mapping
 
     return config_from_mapping(raw, base_dir=base_dir, overrides=overrides,
                                extra_gas_dirs=gas_dirs, source=source)
@@ -115,7 +115,7 @@ def analytic_bound(make_config, key: str, lo: float, hi: float) -> tuple[float, 
     bound is below ``lo`` when the whole range is beyond a limit; reason "" when ``hi`` is
     allowed.
     """
-    from .scan import limits_values
+    from hcfplan.planning.scan import limits_values
 
     config = make_config(lo)
     report = limits_values(config)
@@ -146,7 +146,7 @@ EDGE_RTOL = 1e-5
 
 def _beyond(make_config, value: float) -> list[str]:
     """Names of the input-side checks (severity "limit") beyond their limit at ``value``."""
-    from .scan import limits_values
+    from hcfplan.planning.scan import limits_values
 
     checks = limits_values(make_config(value)).get("limits.checks", [])
     return [c["name"] for c in checks
@@ -196,7 +196,7 @@ class _Runner:
         self.done: dict[float, Evaluation] = {}
 
     def config(self, value: float):
-        from .scan import override_text
+        from hcfplan.planning.scan import override_text
 
         raw, base, over, dirs, source = self.args
         return _config(raw, base, over + (override_text(self.key, float(value)),), dirs, source)
@@ -206,7 +206,7 @@ class _Runner:
         return self.budget - len(self.done)
 
     def __call__(self, value: float) -> Evaluation:
-        from .scan import compute_point, config_key, override_text
+        from hcfplan.planning.scan import compute_point, config_key, override_text
 
         value = float(value)
         if value in self.done:
@@ -365,7 +365,7 @@ def recommend(config_path: str | Path, goal: Goal, *, search: str | None = None,
     ``target_thz`` (goal ``thz_cutoff`` only) asks for the smallest value of the key whose
     cutoff reaches it [THz]; ``budget`` caps the full runs per gas.
     """
-    from ..io.tomlio import read_toml
+    from hcfplan.io.tomlio import read_toml
 
     if goal not in GOALS:
         raise ConfigError(f"--goal = {goal!r}: must be one of {', '.join(GOALS)}")

@@ -35,8 +35,8 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
-from ..errors import ConfigError, HcfplanError
-from ..io.results import json_ready
+from hcfplan.errors import ConfigError, HcfplanError
+from hcfplan.io.results import json_ready
 
 POINT_FORMAT = "hcfplan-scan-point"
 POINT_VERSION = 1
@@ -88,7 +88,7 @@ class ScanPlan:
 def _schema_key(path: str, option: str):
     import difflib
 
-    from ..io.schema import SCHEMA
+    from hcfplan.io.schema import SCHEMA
 
     parts = path.split(".")
     if len(parts) != 2 or not all(parts):
@@ -136,7 +136,7 @@ def _range_values(path: str, text: str, kind: str, option: str) -> tuple:
 def parse_vary(text: str, option: str = "--vary") -> Vary:
     """``section.key=START:STOP:COUNT`` (linear, COUNT values including both ends) or
     ``section.key=a,b,c`` (any key). Values are parsed as TOML, like ``--set``."""
-    from ..io.tomlio import parse_toml_value
+    from hcfplan.io.tomlio import parse_toml_value
 
     if "=" not in text:
         raise ConfigError(f"{option} {text!r}: expected section.key=START:STOP:COUNT or "
@@ -179,8 +179,8 @@ def config_key(resolved: dict) -> str:
 def plan_scan(config_path: str | Path, varies: list[Vary] | tuple[Vary, ...],
               overrides=(), extra_gas_dirs=()) -> ScanPlan:
     """Validate the base config and every point through the config machinery."""
-    from ..io.config import config_from_mapping
-    from ..io.tomlio import read_toml
+    from hcfplan.io.config import config_from_mapping
+    from hcfplan.io.tomlio import read_toml
 
     if not 1 <= len(varies) <= 2:
         raise ConfigError(f"--vary: give one or two keys, got {len(varies)}")
@@ -230,7 +230,7 @@ def run_numbers(summary: dict) -> RunNumbers:
 
 def limits_values(config, summary: dict | None = None) -> dict:
     """``limits_report(config, run)`` (flat, plain JSON types); ``run`` from ``summary``."""
-    from .limits_report import limits_report
+    from hcfplan.planning.reports.limits import limits_report
 
     run = run_numbers(summary) if summary else None
     return json_ready(limits_report(config, run=run))
@@ -319,7 +319,7 @@ def _with_checksum(record: dict) -> dict:
 
 def run_summary(config, chain) -> tuple[dict, dict]:
     """(summary, margins) of a chain run; a partial run gets the analytic limits only."""
-    from .chain import summary_dict
+    from hcfplan.planning.chain import summary_dict
 
     summary = json_ready(summary_dict(chain))
     if chain.propagation.success:  # summary_dict holds limits_report with the run's peaks
@@ -331,7 +331,7 @@ def run_summary(config, chain) -> tuple[dict, dict]:
 
 
 def _run_point(config) -> tuple[dict, dict, dict, str, str]:
-    from .chain import run_chain
+    from hcfplan.planning.chain import run_chain
 
     chain = run_chain(config, workers=1)
     summary, margins = run_summary(config, chain)
@@ -348,7 +348,7 @@ def compute_point(task: dict) -> dict:
     config or gas-phase problem of this point (HcfplanError) becomes a failed record; any
     other exception is a bug and propagates.
     """
-    from ..io.config import config_from_mapping
+    from hcfplan.io.config import config_from_mapping
 
     start = time.perf_counter()
     config = config_from_mapping(task["raw"], base_dir=Path(task["base_dir"]),
@@ -424,20 +424,35 @@ def _run_serial(tasks: list[dict], on_done: Callable[[dict], None], _workers, _a
 
 #: Modules a fork server imports once before forking the scan workers (start-up cost): every
 #: module a point imports (a test checks that a point imports no other hcfplan module), and
-#: ``hcfplan.cli``: a worker runs the command's script again (multiprocessing does so for a
+#: ``hcfplan.cli.app``: a worker runs the command's script again (multiprocessing does so for a
 #: script run by path, such as the ``hcfplan`` command), which imports the command line
 #: (0.1-0.2 s per worker otherwise; listing ``"__main__"`` instead does nothing in Python 3.11,
 #: whose fork server is never given the script's path). The last one also loads the compiled
 #: solver kernels and the FFT library (about 1.5 s per worker otherwise, measured with
 #: ``bench/scan.py``).
-WORKER_PRELOAD = ["hcfplan.cli", "hcfplan.planning.chain", "hcfplan.propagation.solve",
-                  "hcfplan.thz", "hcfplan.compression", "hcfplan.planning.limits_report",
-                  "hcfplan.planning.fiber_report", "hcfplan.limits", "hcfplan.limits_cell",
-                  "hcfplan.cautions", "hcfplan.ionization", "hcfplan.ionization_tables",
-                  "hcfplan.pulse", "hcfplan.fibers.derived", "hcfplan.io.results",
-                  "hcfplan.io.csvdata", "hcfplan.io.config", "hcfplan.materials.gases",
-                  "hcfplan.materials.data.crystals", "hcfplan._gases",
-                  "hcfplan.propagation.warmup"]
+WORKER_PRELOAD = [
+    "hcfplan.cli.app",
+    "hcfplan.planning.chain",
+    "hcfplan.propagation.solve",
+    "hcfplan.thz.generation",
+    "hcfplan.compression.compressor",
+    "hcfplan.planning.reports.limits",
+    "hcfplan.planning.reports.fiber",
+    "hcfplan.limits.beam",
+    "hcfplan.limits.cell",
+    "hcfplan.limits.cautions",
+    "hcfplan.ionization.rates",
+    "hcfplan.ionization.tables",
+    "hcfplan.pulse.fields",
+    "hcfplan.fibers.derived",
+    "hcfplan.io.results",
+    "hcfplan.io.csvdata",
+    "hcfplan.io.config",
+    "hcfplan.materials.gases",
+    "hcfplan.materials.data.crystals",
+    "hcfplan._gases",
+    "hcfplan.propagation.warmup",
+]
 #: Thread counts of the numerical libraries in the scan workers: the workers are the
 #: parallelism. OpenBLAS's own threads (it busy-waits) in two workers on two cores doubled the
 #: time per point (0.29 s instead of 0.15 s, 1024-point grid, bench/scan.py).
@@ -796,7 +811,7 @@ def _scan_state(plan: ScanPlan) -> dict:
 
 def prepare_scan_dir(out_dir: Path, plan: ScanPlan, *, fresh: bool, force: bool) -> Path:
     """Create or reopen the scan folder; refuse a folder of another scan or unrelated files."""
-    from ..io.results import write_json
+    from hcfplan.io.results import write_json
 
     out_dir = Path(out_dir)
     if out_dir.exists() and not out_dir.is_dir():
@@ -838,7 +853,7 @@ def run_scan(plan: ScanPlan, out_dir: Path, *, workers: int = 1, address: str | 
 
     With ``workers`` > 1 (and no ``address``), the worker processes are kept for the next run
     of this process (:class:`_KeptPool`); :func:`release_workers` stops them."""
-    from ..io.results import write_json
+    from hcfplan.io.results import write_json
 
     if workers < 1:
         raise ConfigError(f"--workers = {workers}: must be >= 1")
@@ -901,7 +916,7 @@ def write_table(path: Path, plan: ScanPlan, records) -> None:
     import csv
     import io
 
-    from ..io.results import write_text
+    from hcfplan.io.results import write_text
 
     header, rows = table_rows(plan, records)
     buffer = io.StringIO()

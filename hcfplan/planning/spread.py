@@ -18,8 +18,8 @@ import re
 from dataclasses import dataclass
 from pathlib import Path
 
-from ..errors import ConfigError
-from ..io.config import parse_override
+from hcfplan.errors import ConfigError
+from hcfplan.io.config import parse_override
 
 #: Short names accepted by ``--spread`` and the config keys they vary.
 SPREAD_KEYS = {"energy": "laser.energy_uj", "pressure": "gas.pressure_bar",
@@ -86,9 +86,9 @@ def corner_tasks(config, spec: SpreadSpec, overrides=(), extra_gas_dirs=()) -> l
     """The worker tasks of every corner, each validated through the config machinery."""
     if config.source is None:
         raise ConfigError("--spread: needs a config file")
-    from ..io.config import config_from_mapping
-    from ..io.tomlio import read_toml
-    from .scan import config_key, override_text
+    from hcfplan.io.config import config_from_mapping
+    from hcfplan.io.tomlio import read_toml
+    from hcfplan.planning.scan import config_key, override_text
 
 
     source = Path(config.source)
@@ -115,7 +115,7 @@ def corner_tasks(config, spec: SpreadSpec, overrides=(), extra_gas_dirs=()) -> l
 
 def _value(record: dict, section: str, key: str):
     holder = record["margins"] if section == "margins" else record["summary"].get(section, {})
-    from .scan import number_or_none
+    from hcfplan.planning.scan import number_or_none
 
     return number_or_none(holder.get(key) if isinstance(holder, dict) else None)
 
@@ -140,7 +140,7 @@ def run_spread(tasks: list[dict], spec: SpreadSpec, nominal: dict, *,
     ``nominal`` is the record-like dict ``{"summary": ..., "margins": ...}`` of the nominal run
     (the caller has it already). ``workers`` > 1 runs the corners in local processes.
     """
-    from .scan import _run_processes, _run_serial
+    from hcfplan.planning.scan import _run_processes, _run_serial
 
     records: list[dict] = []
     runner = _run_processes if workers > 1 and len(tasks) > 1 else _run_serial

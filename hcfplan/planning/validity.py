@@ -15,8 +15,8 @@ from collections.abc import Iterator
 
 import numpy as np
 
-from ..constants import c
-from ..errors import ValidityWarning
+from hcfplan.constants import c
+from hcfplan.errors import ValidityWarning
 
 #: Spectral level that defines "where the light is" for the range checks. [dB]
 LIGHT_LEVEL_DB = -40.0
@@ -61,7 +61,7 @@ def _note(what: str, lo: float, hi: float, band: tuple[float, float], where: str
 
 def range_notes(config, medium, band: tuple[float, float], where: str) -> list[str]:
     """Warnings for every fit (gas components, cladding, window) that ``band`` [m] leaves."""
-    from ..materials import solids
+    from hcfplan.materials import solids
 
     notes = []
     if medium is not None:

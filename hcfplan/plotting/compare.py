@@ -5,8 +5,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..constants import c
-from .levels import decibels, per_wavelength
+from hcfplan.constants import c
+from hcfplan.plotting.levels import decibels, per_wavelength
 
 _FLOOR_DB = -50.0
 _COLOURS = ("C0", "C3")

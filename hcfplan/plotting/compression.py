@@ -1,4 +1,5 @@
-"""Figures of a chirped-mirror compression result (:class:`hcfplan.compression.CompressionResult`).
+"""Figures of a chirped-mirror compression result
+(:class:`hcfplan.compression.compressor.CompressionResult`).
 
 Each function draws into the given ``ax`` and returns it; matplotlib is imported inside the
 functions. Values are converted from SI to display units here only (fs, THz, GW).
@@ -13,7 +14,7 @@ import numpy as np
 if TYPE_CHECKING:
     from matplotlib.axes import Axes
 
-    from ..compression import CompressionResult
+    from hcfplan.compression.compressor import CompressionResult
 
 FS = 1e15  # s -> fs
 THZ = 1e-12  # Hz -> THz
@@ -82,8 +83,8 @@ def plot_residual_phase(ax: Axes, result: CompressionResult) -> Axes:
     """Residual spectral phase over the spectrum, shaded by the spectral power.
 
     The phase is drawn only where the spectral power exceeds the floor used by
-    :func:`hcfplan.compression.residual_spectral_phase` (nan elsewhere); the normalised spectrum
-    is drawn on a twin axis.
+    :func:`hcfplan.compression.compressor.residual_spectral_phase` (nan elsewhere); the normalised
+    spectrum is drawn on a twin axis.
 
     Parameters
     ----------

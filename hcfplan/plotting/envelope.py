@@ -13,7 +13,7 @@ import numpy as np
 if TYPE_CHECKING:
     from matplotlib.axes import Axes
 
-    from ..planning.envelope import EnvelopeResult
+    from hcfplan.planning.envelope import EnvelopeResult
 
 BAR = 1e-5  # Pa -> bar
 UJ = 1e6  # J -> uJ

@@ -8,7 +8,7 @@ import numpy as np
 def plot_dispersion_and_loss(fig, curves: dict):
     """Draw beta2 (top) and power loss (bottom) vs wavelength, pump and resonances marked.
 
-    ``curves`` is the dict of :func:`hcfplan.planning.fiber_report.dispersion_curves`.
+    ``curves`` is the dict of :func:`hcfplan.planning.reports.fiber.dispersion_curves`.
     Returns the two axes.
     """
     ax_gvd, ax_loss = fig.subplots(2, 1, sharex=True)

@@ -7,7 +7,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..constants import c
+from hcfplan.constants import c
 
 
 def decibels(values: np.ndarray, reference: float, floor_db: float) -> np.ndarray:

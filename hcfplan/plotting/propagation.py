@@ -10,8 +10,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..constants import c
-from .levels import decibels, per_wavelength
+from hcfplan.constants import c
+from hcfplan.plotting.levels import decibels, per_wavelength
 
 #: Lowest level shown in the logarithmic spectral plots, relative to the peak. [dB]
 DYNAMIC_RANGE_DB = 60.0

@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from collections.abc import Callable
 
-from .propagation import (
+from hcfplan.plotting.propagation import (
     plot_energy_and_ionization,
     plot_spectra_in_out,
     plot_spectral_evolution,
@@ -46,7 +46,7 @@ def draw_energy_ionization(fig, chain):
 
 def draw_compressed(fig, chain):
     """Compressed vs transform-limited pulse (linear and log) and residual phase."""
-    from .compression import plot_residual_phase, plot_temporal_intensity
+    from hcfplan.plotting.compression import plot_residual_phase, plot_temporal_intensity
 
     ax_lin, ax_log, ax_phase = fig.subplots(3, 1)
     fig.set_size_inches(7.5, 10)
@@ -58,14 +58,14 @@ def draw_compressed(fig, chain):
 
 def draw_bounces(fig, chain):
     """Peak power against the number of chirped-mirror bounces."""
-    from .compression import plot_peak_power_vs_bounces
+    from hcfplan.plotting.compression import plot_peak_power_vs_bounces
 
     return plot_peak_power_vs_bounces(fig.subplots(), chain.compression)
 
 
 def draw_thz_result(fig, thz):
-    """THz spectrum and coherence length of a :class:`~hcfplan.thz.ThzResult` alone."""
-    from .thz import plot_coherence_length, plot_thz_spectrum
+    """THz spectrum and coherence length of a :class:`~hcfplan.thz.generation.ThzResult` alone."""
+    from hcfplan.plotting.thz import plot_coherence_length, plot_thz_spectrum
 
     ax_spec, ax_lc = fig.subplots(2, 1, sharex=True)
     fig.set_size_inches(7.5, 7.5)
@@ -76,7 +76,7 @@ def draw_thz_result(fig, thz):
 
 def draw_thz(fig, chain):
     """THz spectrum with the cutoff, coherence length, driving spectrum, phase-matching map."""
-    from .thz import (
+    from hcfplan.plotting.thz import (
         plot_coherence_length,
         plot_optical_spectrum,
         plot_phase_matching_map,
@@ -99,7 +99,7 @@ def draw_spread(fig, chain, spread):
     """Output spectra of the corner runs as a band around the nominal, and the value ranges."""
     import numpy as np
 
-    from ..constants import c
+    from hcfplan.constants import c
 
     ax_spec, ax_range = fig.subplots(1, 2, gridspec_kw={"width_ratios": [3, 2]})
     fig.set_size_inches(12, 4.8)

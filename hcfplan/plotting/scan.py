@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..constants import c
+from hcfplan.constants import c
 
 #: (figure label, summary/margins path, display scale, log axis)
 QUANTITIES = (

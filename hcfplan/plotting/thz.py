@@ -1,7 +1,7 @@
 """THz figures: power spectrum with the cutoff, phase-matching map, driving optical spectrum.
 
-Each function takes an ``ax`` and a result object (:class:`hcfplan.thz.ThzResult` or
-:class:`hcfplan.thz_detection.PhaseMatchingMap`), draws, and returns ``ax``. Unit conversion to
+Each function takes an ``ax`` and a result object (:class:`hcfplan.thz.generation.ThzResult` or
+:class:`hcfplan.thz.detection.PhaseMatchingMap`), draws, and returns ``ax``. Unit conversion to
 display units happens here only; no physics is recomputed.
 """
 
@@ -11,8 +11,8 @@ from typing import Any
 
 import numpy as np
 
-from ..constants import c
-from .levels import decibels, per_wavelength
+from hcfplan.constants import c
+from hcfplan.plotting.levels import decibels, per_wavelength
 
 _FLOOR_DB = -60.0  # lowest level drawn on dB axes
 
@@ -65,7 +65,7 @@ def plot_phase_matching_map(ax: Any, pm_map: Any, *, max_length: float | None = 
     ax : matplotlib.axes.Axes
         Axes to draw into.
     pm_map : PhaseMatchingMap
-        From :func:`hcfplan.thz_detection.phase_matching_map`.
+        From :func:`hcfplan.thz.detection.phase_matching_map`.
     max_length : float or None
         Upper end of the colour scale. [m]
 

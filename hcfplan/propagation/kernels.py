@@ -293,7 +293,7 @@ def spectrum_sums(u, rank, ascending, row, far, band, band_wavelength):  # pragm
 @njit(**_JIT)
 def outermost_width(x, y, level):  # pragma: no cover - compiled
     """Width of y(x) between its outermost samples at or above ``level`` times the refined
-    peak, crossings interpolated: :func:`hcfplan.metrics.width_at_level` with
+    peak, crossings interpolated: :func:`hcfplan.pulse.metrics.width_at_level` with
     ``extent="outermost"``, the same arithmetic in the same order, for ascending ``x`` and
     0 < level < 1 (the caller's duty; not checked here). nan where that function gives nan
     (fewer than 3 samples, no positive maximum or a NaN, above the level at an end) and where

@@ -1,6 +1,6 @@
 """Linear and nonlinear terms of the single-mode envelope equation (frequency domain).
 
-The equation (conventions of :mod:`hcfplan.grid`; :math:`\\tilde A` the grid spectrum,
+The equation (conventions of :mod:`hcfplan.numerics.grid`; :math:`\\tilde A` the grid spectrum,
 ``|A|^2`` the power) is
 
 .. math::
@@ -15,7 +15,7 @@ The equation (conventions of :mod:`hcfplan.grid`; :math:`\\tilde A` the grid spe
 
 * **Dispersion and loss**: the full :math:`\\beta(\\omega)` and field loss :math:`\\alpha(\\omega)`
   of the waveguide, not a Taylor series; :math:`\\beta_1` from a Chebyshev derivative
-  (:func:`hcfplan.derivatives.derivative`). Where the model gives no valid value
+  (:func:`hcfplan.numerics.derivatives.derivative`). Where the model gives no valid value
   (:math:`\\beta` or :math:`\\alpha` not finite) the field is removed: the initial field is set to
   zero there and :math:`\\hat L` is a strong loss. In the outer ``EDGE_FRACTION`` of the frequency
   window on each side a smooth absorber :math:`\\alpha_{edge}` (sin^2 ramp up to
@@ -30,10 +30,10 @@ The equation (conventions of :mod:`hcfplan.grid`; :math:`\\tilde A` the grid spe
   does so only approximately (the pseudo-field of Lægsgaard [3] would make it exact).
 * **Raman**: :math:`f_i` and the causal response h; damped oscillator of Blow & Wood [2] for a
   ``TaylorFiber`` (:math:`f_i = 1-f_R`, :math:`h = f_R h_{BW}`), and for molecular gases the
-  rotational response of :mod:`hcfplan.raman` divided by the waveguide's n2 (the electronic
-  n2 stays instantaneous, :math:`f_i = 1`). The response is sampled at :math:`\\tau = k\\,dt`,
-  cut at half the time window with a cos^2 taper over its last ``RESPONSE_TAPER`` part (so the
-  periodic convolution does not wrap) and applied by real FFTs.
+  rotational response of :mod:`hcfplan.propagation.raman` divided by the waveguide's n2 (the
+  electronic n2 stays instantaneous, :math:`f_i = 1`). The response is sampled at :math:`\\tau =
+  k\\,dt`, cut at half the time window with a cos^2 taper over its last ``RESPONSE_TAPER`` part (so
+  the periodic convolution does not wrap) and applied by real FFTs.
 * **Plasma** (Geissler et al. [4], in the envelope form of Saleh et al. [5]): for each gas
   component k with an ionisation table, the rate :math:`W_k(I)` at the on-axis intensity
   :math:`I = |A|^2/A_I` (``peak_intensity_area``; using the peak for the whole mode overestimates
@@ -72,10 +72,10 @@ from dataclasses import dataclass
 import numpy as np
 from scipy import fft as sfft
 
-from ..constants import c, e, epsilon_0, m_e
-from ..derivatives import derivative
-from ..grid import Grid
-from ..raman import raman_response_blowwood1989, rotational_raman_response
+from hcfplan.constants import c, e, epsilon_0, m_e
+from hcfplan.numerics.derivatives import derivative
+from hcfplan.numerics.grid import Grid
+from hcfplan.propagation.raman import raman_response_blowwood1989, rotational_raman_response
 
 #: Part of the frequency window, on each side, covered by the edge absorber.
 EDGE_FRACTION = 0.03
@@ -83,7 +83,7 @@ EDGE_FRACTION = 0.03
 EDGE_ATTENUATION = 30.0
 #: Last fraction of the (half-window) delayed response that is tapered to zero.
 RESPONSE_TAPER = 0.2
-#: Relative half-width of the Chebyshev stencil for beta0, beta1 (see hcfplan.derivatives).
+#: Relative half-width of the Chebyshev stencil for beta0, beta1 (see hcfplan.numerics.derivatives).
 _BETA1_REL_WIDTH = 0.02
 
 
@@ -191,7 +191,7 @@ class IonizingSpecies:
 
     number_density: float
     potential: float
-    rate: object  #: RateTable of :mod:`hcfplan.ionization_tables`: intensity [W/m^2] -> 1/s
+    rate: object  #: RateTable of :mod:`hcfplan.ionization.tables`: intensity [W/m^2] -> 1/s
 
 
 def plasma_refraction_coefficient(omega0: float) -> float:
@@ -224,8 +224,8 @@ class NonlinearTerms:
         workers: int = 1,
         backend: str = "scipy",
     ) -> None:
-        from . import kernels
-        from .transforms import FFT_BACKENDS, work_array
+        from hcfplan.numerics.fft import FFT_BACKENDS, work_array
+        from hcfplan.propagation import kernels
 
         n, dt = grid.points, grid.dt
         self.kernels = kernels

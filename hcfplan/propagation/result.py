@@ -7,10 +7,10 @@ from typing import Literal
 
 import numpy as np
 
-from ..constants import c
-from ..grid import Grid
-from ..units import db_to_power_ratio
-from .transforms import shared_transforms
+from hcfplan.constants import c
+from hcfplan.numerics.fft import shared_transforms
+from hcfplan.numerics.grid import Grid
+from hcfplan.units import db_to_power_ratio
 
 Status = Literal["completed", "nonfinite", "step_collapse", "step_budget", "ionization_stop"]
 
@@ -142,7 +142,7 @@ class Recorder:
         self._in_band, self._resonances = _resonance_bands(grid, waveguide)
         self._band = np.zeros(grid.points, bool) if self._in_band is None else self._in_band
         self._band_wavelength = np.where(self._band, grid.wavelength, 0.0)
-        from . import kernels  # numba, loaded by the solver anyway
+        from hcfplan.propagation import kernels  # numba, loaded by the solver anyway
 
         self._kernels = kernels
 
@@ -201,7 +201,7 @@ class Recorder:
 
     def edge_warnings(self) -> list[str]:
         """Warnings: pulse at the window edges, spectrum in a fiber resonance band."""
-        from ..grid import MAX_HALF_WINDOW_FRACTION
+        from hcfplan.numerics.grid import MAX_HALF_WINDOW_FRACTION
 
         found = []
         if self.edge_time.crossed:

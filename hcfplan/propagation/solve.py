@@ -28,21 +28,21 @@ from typing import Literal
 
 import numpy as np
 
-from ..constants import c
-from ..errors import ConfigError
-from ..fibers.base import Waveguide
-from ..grid import Grid
-from . import control
-from .operators import (
+from hcfplan.constants import c
+from hcfplan.errors import ConfigError
+from hcfplan.fibers.base import Waveguide
+from hcfplan.numerics.fft import FFT_BACKENDS, default_backend, fftw_available
+from hcfplan.numerics.grid import Grid
+from hcfplan.propagation import control
+from hcfplan.propagation.operators import (
     IonizingSpecies,
     NonlinearTerms,
     delayed_response,
     kerr_coefficient_spectrum,
     linear_terms,
 )
-from .result import PropagationResult, Recorder
-from .steppers import STEPPERS, StepState
-from .transforms import FFT_BACKENDS, default_backend, fftw_available
+from hcfplan.propagation.result import PropagationResult, Recorder
+from hcfplan.propagation.steppers import STEPPERS, StepState
 
 StepperName = Literal["erk43ip", "rk4ip"]
 FftBackendName = Literal["fftw", "scipy"]
@@ -72,7 +72,7 @@ def _check_number(name: str, value, low: float, high: float, unit: str = "") -> 
 
 def _check_inputs(field0, grid, waveguide, opts: dict) -> np.ndarray:
     if not isinstance(grid, Grid):
-        raise ConfigError(f"grid = {type(grid).__name__}: must be a hcfplan.grid.Grid")
+        raise ConfigError(f"grid = {type(grid).__name__}: must be a hcfplan.numerics.grid.Grid")
     field = np.asarray(field0)
     if field.shape != (grid.points,):
         raise ConfigError(f"field0 shape = {field.shape}: must be ({grid.points},) like the grid")
@@ -114,7 +114,7 @@ def _ionizing_species(grid: Grid, waveguide, gas, model) -> tuple[tuple, list[st
     """Rate tables of the ionising gas components (empty without gas or model)."""
     if gas is None or model is None:
         return (), []
-    from ..ionization import rate_function
+    from hcfplan.ionization.rates import rate_function
 
     rate_function(model)  # ConfigError listing the models if unknown
     area = float(getattr(waveguide, "peak_intensity_area", math.nan))
@@ -136,7 +136,7 @@ def _ionizing_species(grid: Grid, waveguide, gas, model) -> tuple[tuple, list[st
 def _rate_table(model, wavelength, potential, l, m, charge):  # noqa: E741 - PPT quantum numbers
     """Rate table (pure, scalar inputs: cached in memory and in hcfplan's cache folder, it
     costs 1-3 s per gas component to compute)."""
-    from ..io.cache import cached_rate_table
+    from hcfplan.numerics.cache import cached_rate_table
 
     return cached_rate_table(model, wavelength, potential, l, m, charge, *RATE_TABLE_RANGE)
 
@@ -188,7 +188,7 @@ def propagate(
     field0 : ndarray of complex
         Input envelope A(t) on ``grid.time``, |A|^2 in W. [sqrt(W)]
     grid : Grid
-        Time/frequency grid (e.g. from :func:`hcfplan.grid.choose_grid`).
+        Time/frequency grid (e.g. from :func:`hcfplan.numerics.grid.choose_grid`).
     waveguide : Waveguide
         Fiber model (:mod:`hcfplan.fibers.base`); its ``length`` is propagated. [m]
     gas : GasMedium, optional
@@ -203,7 +203,7 @@ def propagate(
     z_samples : int
         Number of evenly spaced record positions including 0 and the length.
     ionization_model : {"ppt", "adk"} or None
-        Rate model of :mod:`hcfplan.ionization`; None switches photoionisation off.
+        Rate model of :mod:`hcfplan.ionization.rates`; None switches photoionisation off.
     stop_ionization_fraction : float
         The run stops (``success=False``) once the ionisation fraction exceeds this. [1]
     stepper : {"erk43ip", "rk4ip"}

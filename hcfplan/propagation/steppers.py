@@ -42,7 +42,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .control import step_factor
+from hcfplan.propagation.control import step_factor
 
 #: RK4IP weights of k1..k4 (Hult [1], Eq. (11)); the propagated solution of both steppers.
 RK4_WEIGHTS = (1.0 / 6.0, 2.0 / 6.0, 2.0 / 6.0, 1.0 / 6.0)
@@ -73,7 +73,7 @@ class _InteractionPicture:
 
     def __init__(self, linear: np.ndarray, nonlinear, rtol: float, atol: float,
                  norm: str = "relative_l2") -> None:
-        from . import kernels
+        from hcfplan.propagation import kernels
 
         self.kernels = kernels
         self.linear = linear

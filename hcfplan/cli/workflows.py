@@ -1,0 +1,394 @@
+"""Command-line front of the planning workflows (scan, recommend, compare).
+
+``register(app)`` adds the commands to the typer app of :mod:`hcfplan.cli.app`. Heavy modules
+(numpy, scipy, matplotlib, the chain) are imported inside the commands only; the shared output
+helpers of :mod:`hcfplan.cli.app` are looked up when a command runs.
+"""
+
+from __future__ import annotations
+
+import contextlib
+from pathlib import Path
+from typing import Optional
+
+import typer
+
+from hcfplan.cli.output import JSON_HELP, SET_HELP, SPREAD_WORKERS_HELP
+
+VARY_HELP = ("Varied key: section.key=START:STOP:COUNT (COUNT linearly spaced values, both "
+             "ends included; numeric keys) or section.key=a,b,c (any key). Give one or two.")
+
+
+def _cli():
+    from hcfplan.cli import app as cli
+
+    return cli
+
+
+def _out():
+    from hcfplan.cli import output as cli_output
+
+    return cli_output
+
+
+def _gas_dirs():
+    import os
+
+    from hcfplan.materials.gases import gas_search_dirs
+
+    return tuple(gas_search_dirs(environ=os.environ))
+
+
+def _fmt(value, scale: float = 1.0, digits: int = 4) -> str:
+    return _out()._fmt(value, scale, digits)
+
+
+def _table(header: list[str], rows: list[list[str]]) -> None:
+    widths = [max(len(h), *(len(r[i]) for r in rows)) for i, h in enumerate(header)]
+    typer.echo("  " + "  ".join(h.ljust(w) for h, w in zip(header, widths, strict=True)))
+    for row in rows:
+        typer.echo("  " + "  ".join(v.ljust(w) for v, w in zip(row, widths, strict=True)))
+
+
+@contextlib.contextmanager
+def _sigterm_as_exit():
+    """Turn SIGTERM into SystemExit so a scan stops its worker processes on the way out."""
+    import signal
+
+    def handler(signum, frame):
+        raise SystemExit(128 + signum)
+
+    try:
+        previous = signal.signal(signal.SIGTERM, handler)
+    except ValueError:  # not the main thread (e.g. called from a test runner thread)
+        yield
+        return
+    try:
+        yield
+    finally:
+        signal.signal(signal.SIGTERM, previous)
+
+
+class _ScanProgress:
+    """Overall progress over the points on stderr, only when stderr is a terminal."""
+
+    def __init__(self, enabled: bool):
+        self.bar = _out().TerminalBar(enabled, "scan")
+
+    def __call__(self, done: int, total: int, record: dict) -> None:
+        self.bar.draw(done / max(total, 1), f"{done}/{total} points")
+
+    def close(self) -> None:
+        self.bar.close()
+
+
+# ---------------------------------------------------------------------------------------------
+# scan
+
+
+def _scan_figures(out_dir: Path, plan, records) -> list[str]:
+    from hcfplan.io.results import write_figures
+    from hcfplan.plotting import scan as plots
+
+    keys = tuple(v.key for v in plan.varies)
+    values = tuple(v.values for v in plan.varies)
+    if len(keys) == 1:
+        jobs = [(out_dir / "spectrum_map.png", plots.draw_spectrum_map,
+                 (keys[0], values[0], records)),
+                (out_dir / "results.png", plots.draw_results_1d, (keys[0], values[0], records))]
+    else:
+        jobs = [(out_dir / "results_map.png", plots.draw_results_2d, (keys, values, records))]
+    write_figures(jobs)
+    return [path.name for path, _, _ in jobs]
+
+
+def _scan_rows(plan, records) -> tuple[list[str], list[list[str]]]:
+    keys = [v.key for v in plan.varies]
+    header = keys + ["status", "FWHM (fs)", "peak (GW)", "THz cutoff", "SF margin",
+                     "ion. fraction", "beyond limits"]
+    rows = []
+    for r in records:
+        s, m = r["summary"], r["margins"]
+        comp, thz = s.get("compressed", {}), s.get("thz", {})
+        rows.append([str(r["values"][k]) for k in keys] + [
+            r["status"], _fmt(comp.get("fwhm_s"), 1e-15), _fmt(comp.get("peak_power_w"), 1e9),
+            _fmt(thz.get("cutoff_hz"), 1e12), _fmt(m.get("self_focusing"), 1, 3),
+            _fmt(m.get("ionization_fraction"), 1, 3),
+            m.get("binding") or ("-" if r["status"] == "ok" else r["message"][:60])])
+    return header, rows
+
+
+def scan_command(
+    config: Path = typer.Argument(..., help="Config TOML file."),
+    vary: list[str] = typer.Option(..., "--vary", help=VARY_HELP),
+    workers: Optional[int] = typer.Option(  # noqa: UP007, UP045 (typer needs Optional)
+        None, "--workers", help="Points computed at a time, by this process and local worker "
+        "processes (default: all cores); 1 runs the points in this process only."),
+    dask_scheduler: Optional[str] = typer.Option(  # noqa: UP007, UP045
+        None, "--dask-scheduler", help="Run the points on a running Dask scheduler at this "
+        "address (needs 'distributed'; the workers must have hcfplan installed)."),
+    out: Optional[Path] = typer.Option(  # noqa: UP007, UP045
+        None, "--out", help="Scan folder (default scans/<config stem>); rerunning the same "
+        "scan there resumes it."),
+    fresh: bool = typer.Option(False, "--fresh", help="Delete the saved points and start over."),
+    force: bool = typer.Option(False, "--force", help="Use --out even if it holds another "
+                               "scan or other files (matching points are reused)."),
+    set_: Optional[list[str]] = typer.Option(None, "--set", help=SET_HELP),  # noqa: UP007, UP045
+    no_figures: bool = typer.Option(False, "--no-figures", help="Skip the figures."),
+    as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
+) -> None:
+    """Run the full chain over one or two varied keys; saves every point as it finishes."""
+    from hcfplan.planning.scan import parse_vary, plan_scan, release_workers, run_scan
+
+    varies = [parse_vary(text) for text in vary]
+    if dask_scheduler is None:  # the fork server imports while the points are planned
+        _cli()._start_worker_server(workers)
+    plan = plan_scan(config, varies, overrides=tuple(set_ or ()), extra_gas_dirs=_gas_dirs())
+    out_dir = out if out is not None else Path("scans") / config.stem
+    bar = _ScanProgress(not as_json)
+    try:
+        with _sigterm_as_exit():
+            outcome = run_scan(plan, out_dir, workers=_cli()._worker_count(workers),
+                               address=dask_scheduler, fresh=fresh, force=force, on_point=bar)
+    finally:
+        bar.close()
+    release_workers()  # no more points to compute
+    figures = [] if no_figures else _scan_figures(outcome.out_dir, plan, outcome.records)
+    failed = [r for r in outcome.records if r["status"] != "ok"]
+    if as_json:
+        _out()._print_json(_scan_json(outcome, figures, failed))
+    else:
+        _print_scan(outcome, figures, failed)
+    if failed:
+        typer.echo(f"hcfplan: {len(failed)} of {len(outcome.records)} scan points failed "
+                   f"(see {outcome.out_dir / 'table.csv'})", err=True)
+        raise typer.Exit(1)
+
+
+def _scan_json(outcome, figures, failed) -> dict:
+    from hcfplan.planning.scan import point_row
+
+    return {
+        "out_dir": str(outcome.out_dir), "executor": outcome.executor,
+        "points": len(outcome.records), "computed": len(outcome.computed),
+        "reused": len(outcome.reused),
+        "recomputed_damaged": [{"key": k, "reason": why} for k, why in outcome.damaged],
+        "failed": [{"key": r["key"], "values": r["values"], "message": r["message"]}
+                   for r in failed],
+        "table": str(outcome.out_dir / "table.csv"), "figures": figures,
+        "rows": [point_row(outcome.plan, r) for r in outcome.records],
+        "cautions": _cautions(),
+    }
+
+
+def _cautions() -> list[str]:
+    from hcfplan.limits.cautions import caution_lines
+
+    return caution_lines()
+
+
+def _print_scan(outcome, figures, failed) -> None:
+    header, rows = _scan_rows(outcome.plan, outcome.records)
+    _table(header, rows)
+    damaged = f", {len(outcome.damaged)} damaged point files recomputed" if outcome.damaged \
+        else ""
+    typer.echo(f"\n{len(outcome.computed)} points computed ({outcome.executor}), "
+               f"{len(outcome.reused)} reused{damaged}; {len(failed)} failed.")
+    typer.echo(f"Written to {outcome.out_dir}/: table.csv, points/"
+               + (f", {', '.join(figures)}" if figures else ""))
+    _out()._print_cautions()
+
+
+# ---------------------------------------------------------------------------------------------
+# recommend
+
+
+def recommend_command(
+    config: Path = typer.Argument(..., help="Config TOML file."),
+    goal: str = typer.Option(..., "--goal", help="shortest (compressed FWHM), peak_power "
+                             "(compressed peak power) or thz_cutoff."),
+    target_thz: Optional[float] = typer.Option(  # noqa: UP007, UP045
+        None, "--target-thz", help="With --goal thz_cutoff: the smallest pressure (or energy) "
+        "whose THz cutoff reaches this value, or the closest."),
+    vary: Optional[str] = typer.Option(  # noqa: UP007, UP045
+        None, "--vary", help="Searched range: gas.pressure_bar=LO:HI or laser.energy_uj=LO:HI "
+        "(default: pressure from a tenth of the fill to the cell rating, or 3x the fill)."),
+    gases: Optional[str] = typer.Option(  # noqa: UP007, UP045
+        None, "--gases", help="Comma list of fill gases searched one after the other, e.g. "
+        "Ar,Kr,Ne."),
+    budget: int = typer.Option(12, "--budget", help="Full chain runs per gas, at most."),
+    set_: Optional[list[str]] = typer.Option(None, "--set", help=SET_HELP),  # noqa: UP007, UP045
+    as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
+) -> None:
+    """Search the allowed pressure (or energy) range for the point that best meets a goal."""
+    from hcfplan.planning.recommend import overall_best, recommend
+
+    gas_list = tuple(g.strip() for g in gases.split(",") if g.strip()) if gases else ()
+    recs = recommend(config, goal, search=vary, gases=gas_list, target_thz=target_thz,
+                     overrides=tuple(set_ or ()), extra_gas_dirs=_gas_dirs(), budget=budget)
+    chosen = overall_best(recs)
+    if as_json:
+        _out()._print_json({"chosen": _rec_json(chosen) if chosen else None,
+                         "searches": [_rec_json(r) for r in recs], "cautions": _cautions()})
+    else:
+        for rec in recs:
+            _print_recommendation(rec, rec is chosen and len(recs) > 1)
+        _out()._print_cautions()
+    if chosen is None:
+        typer.echo("hcfplan: no point meets the goal within the modelled limits: "
+                   + "; ".join(r.reason for r in recs), err=True)
+        raise typer.Exit(1)
+
+
+def _rec_json(rec) -> dict:
+    best = rec.best
+    return {
+        "goal": rec.goal, "key": rec.key, "gas": rec.gas, "requested": list(rec.requested),
+        "allowed": list(rec.allowed) if rec.allowed else None, "bound": rec.bound_reason,
+        "tolerance": rec.tolerance, "target_thz": rec.target_thz, "reason": rec.reason,
+        "best": None if best is None else {
+            "value": best.value, "objective": best.objective,
+            "margins": best.record["margins"], "summary": best.record["summary"]},
+        "evaluations": [{"value": e.value, "status": e.status, "objective": e.objective,
+                         "acceptable": e.acceptable, "binding": e.binding}
+                        for e in rec.evaluations],
+    }
+
+
+def _print_recommendation(rec, chosen: bool) -> None:
+    unit = "bar" if rec.key == "gas.pressure_bar" else "uJ"
+    head = f"{rec.gas}: " if rec.gas else ""
+    typer.echo(f"{head}goal {rec.goal}, {rec.key} in {rec.requested[0]:g}-{rec.requested[1]:g} "
+               f"{unit}" + (f" (allowed up to {rec.allowed[1]:.4g} {unit}: {rec.bound_reason})"
+                            if rec.allowed and rec.bound_reason else ""))
+    best = rec.best
+    if best is not None:
+        s, m = best.record["summary"], best.record["margins"]
+        comp, thz = s.get("compressed", {}), s.get("thz", {})
+        mark = "  <- best" if chosen else ""
+        typer.echo(f"  chosen {rec.key} = {best.value:.4g} {unit} (search tolerance "
+                   f"{rec.tolerance:.2g} {unit}){mark}")
+        typer.echo(f"  compressed {_fmt(comp.get('fwhm_s'), 1e-15)} fs, "
+                   f"{_fmt(comp.get('peak_power_w'), 1e9)} GW; THz cutoff "
+                   f"{_fmt(thz.get('cutoff_hz'), 1e12)} THz")
+        typer.echo(f"  margins: self-focusing {_fmt(m.get('self_focusing'), 1, 3)} (required "
+                   f"{m.get('self_focusing_required'):g}), ionisation fraction "
+                   f"{_fmt(m.get('ionization_fraction'), 1, 3)} (limit "
+                   f"{m.get('ionization_limit'):g})")
+    if rec.reason:
+        typer.echo(f"  note: {rec.reason}")
+    typer.echo(f"  {len(rec.evaluations)} full runs")
+    typer.echo()
+
+
+# ---------------------------------------------------------------------------------------------
+# compare
+
+
+def compare_command(
+    config_a: Path = typer.Argument(..., help="Config A (TOML)."),
+    config_b: Optional[Path] = typer.Argument(  # noqa: UP007, UP045
+        None, help="Config B (TOML); default: A with the --set-b overrides."),
+    set_: Optional[list[str]] = typer.Option(None, "--set", help="Override for A (and for B "  # noqa: UP007, UP045
+                                             "when B is A), repeatable."),
+    set_b: Optional[list[str]] = typer.Option(  # noqa: UP007, UP045
+        None, "--set-b", help="Override applied to B only, e.g. --set-b laser.energy_uj=500 "
+        "(repeatable)."),
+    out: Optional[Path] = typer.Option(  # noqa: UP007, UP045
+        None, "--out", help="Folder for the overlaid figures and comparison.json."),
+    force: bool = typer.Option(False, "--force", help="Allow writing into an existing --out."),
+    spread: Optional[str] = typer.Option(  # noqa: UP007, UP045
+        None, "--spread", help="Input uncertainty band for both setups, e.g. "
+        "energy=5%,pressure=2%,fwhm=5% ('default': the [spread] keys of each config)."),
+    workers: int = typer.Option(0, "--workers", help=SPREAD_WORKERS_HELP),
+    as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
+) -> None:
+    """Run two setups and show them side by side with B - A and B / A."""
+    from hcfplan.planning.compare import compare_configs
+
+    cli = _cli()
+    if config_b is None and not set_b:
+        raise cli._cli_error("compare: give config B or at least one --set-b override")
+    over_a = list(set_ or [])
+    over_b = over_a + list(set_b or []) if config_b is None else list(set_b or [])
+    cfg_a = cli._load(config_a, over_a)
+    cfg_b = cli._load(config_b if config_b is not None else config_a, over_b)
+    plans = [cli._spread_plan(cfg, spread, over) for cfg, over in ((cfg_a, over_a),
+                                                                     (cfg_b, over_b))]
+    labels = (str(config_a), str(config_b) if config_b is not None else
+              f"{config_a} with " + " ".join(set_b or []))
+    if plans[0] is not None:  # the fork server imports while the nominal chains run
+        cli._start_worker_server(workers)
+    comparison = compare_configs(cfg_a, cfg_b, labels)
+    spreads = _compare_spreads(comparison, plans, workers, as_json)
+    if plans[0] is not None:
+        from hcfplan.planning.scan import release_workers
+
+        release_workers()  # no more points to compute
+    figures = _compare_outputs(out, comparison, force, spreads) if out is not None else []
+    if as_json:
+        _out()._print_json({"labels": list(labels), "rows": list(comparison.rows),
+                         "margins": {"a": comparison.a.margins, "b": comparison.b.margins},
+                         "spread": spreads, "figures": figures, "cautions": _cautions()})
+    else:
+        _print_comparison(comparison, figures, out)
+        for name, side in zip(("A", "B"), (spreads or {}).values(), strict=False):
+            typer.echo(f"\n{name}:", nl=False)
+            _out()._print_spread({"spread": side})
+        _out()._print_cautions()
+
+
+def _compare_spreads(comparison, plans, workers: int, quiet: bool) -> dict | None:
+    """Corner runs of both sides (``--spread``): {"a": spread summary, "b": ...} or None."""
+    if plans[0] is None:
+        return None
+    from hcfplan.planning.spread import spread_summary
+
+    cli = _cli()
+    out = {}
+    for key, side, plan in zip(("a", "b"), (comparison.a, comparison.b), plans, strict=True):
+        if side.chain.propagation.success:
+            result = cli._run_spread(side.chain.config, side.chain, plan, workers, quiet)
+            out[key] = spread_summary(result)
+    return out
+
+
+def _compare_outputs(out: Path, comparison, force: bool, spreads=None) -> list[str]:
+    from hcfplan.io.results import prepare_output_dir, write_figures, write_json
+    from hcfplan.plotting.compare import FIGURES
+
+    out_dir = prepare_output_dir(out, force=force)
+    write_figures([(out_dir / f"{stem}.png", draw, (comparison.a, comparison.b))
+                   for stem, draw in FIGURES.items()])
+    names = [f"{stem}.png" for stem in FIGURES]
+    write_json(out_dir / "comparison.json", {
+        "labels": [comparison.a.label, comparison.b.label], "rows": list(comparison.rows),
+        "a": {"summary": comparison.a.summary, "margins": comparison.a.margins},
+        "b": {"summary": comparison.b.summary, "margins": comparison.b.margins},
+        "spread": spreads})
+    return names
+
+
+def _print_comparison(comparison, figures, out) -> None:
+    rows = []
+    for r in comparison.rows:
+        scale, unit = r["scale"], r["unit"]
+        rows.append([r["label"] + (f" ({unit})" if unit else ""), _fmt(r["a"], scale),
+                     _fmt(r["b"], scale), _fmt(r["difference"], scale),
+                     _fmt(r["ratio"], 1, 3)])
+    typer.echo(f"A = {comparison.a.label}\nB = {comparison.b.label}\n")
+    _table(["quantity", "A", "B", "B - A", "B / A"], rows)
+    for side in (comparison.a, comparison.b):
+        m = side.margins
+        state = ("within the modelled limits" if m["acceptable"]
+                 else f"BEYOND the modelled limits: {m['binding']}")
+        typer.echo(f"\n{side.label}: {state}")
+    if figures:
+        typer.echo(f"\nFigures written to {out}/: {', '.join(figures)}")
+
+
+def register(app) -> None:
+    """Add the workflow commands to ``app``."""
+    app.command("scan")(scan_command)
+    app.command("recommend")(recommend_command)
+    app.command("compare")(compare_command)

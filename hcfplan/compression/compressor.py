@@ -1,0 +1,607 @@
+"""Chirped-mirror compressor after the fiber: bounce optimisation, references and pulse metrics.
+
+The chain after the fiber is, in order: the cell exit window, an air path, the chirped mirrors
+(``n`` bounces) and an optional pair of wedges used as a fine trim. The window and the air are
+one *fixed* phase array (see :func:`hcfplan.compression.elements.stack_phase`); a bounce adds
+``mirror_phase_per_bounce`` (from :func:`~hcfplan.compression.elements.mirror_phase` or a measured
+GDD curve via :func:`~hcfplan.compression.elements.phase_from_gdd_curve`); the trim adds
+``insertion * phase_per_length``. All phases multiply the spectrum as :math:`e^{i\\phi}`
+(convention 4 of :mod:`hcfplan.numerics.grid`), so the elements conserve energy; the mirror band is
+the only loss.
+
+Definitions used throughout
+---------------------------
+* Band clipping (hard edges, :func:`~hcfplan.compression.elements.clip_to_band`) is applied to
+  every candidate, including zero bounces: the band stands for the compressor's acceptance.
+* "Transform limit" is the flat-phase pulse of the spectrum *after* band clipping.
+* The references (best pure-quadratic phase, best quadratic + cubic phase) replace the mirrors
+  and the trim by an ideal polynomial phase; the fixed phase and the band clipping stay. Their
+  reported GDD/TOD, like those of the chirped-mirror result, are the totals of the applied
+  phase (fixed + compressor) at ``omega0``.
+* Main lobe, pre- and post-pulse follow :func:`hcfplan.pulse.metrics.main_lobe`.
+"""
+
+from __future__ import annotations
+
+import copy
+from collections.abc import Callable
+from dataclasses import dataclass
+from typing import Literal
+
+import numpy as np
+from scipy.optimize import minimize, minimize_scalar
+
+from hcfplan.compression.elements import clip_to_band, material_phase, phase_derivatives_at
+from hcfplan.errors import ConfigError
+from hcfplan.numerics.fft import shared_transforms
+from hcfplan.numerics.grid import Grid
+from hcfplan.pulse import metrics
+from hcfplan.pulse.metrics import PulseMetrics, pulse_metrics
+
+Objective = Literal["peak_power", "fwhm"]
+
+#: Spectral power, relative to its peak, below which the residual phase is not defined (nan).
+RESIDUAL_PHASE_FLOOR = 1e-4
+#: Points of the coarse scans that precede each bounded scalar refinement.
+_SCAN_POINTS = 21
+
+
+def _negative_peak_power(grid: Grid, field_t: np.ndarray) -> float:
+    """Objective to minimise: minus the peak power. [W]"""
+    return -metrics.peak_power(field_t)
+
+
+def _duration(grid: Grid, field_t: np.ndarray) -> float:
+    """Objective to minimise: FWHM of the main peak, the time window if unresolved. [s]"""
+    width = metrics.fwhm(grid.time, np.abs(field_t) ** 2)
+    return width if np.isfinite(width) else grid.time_window
+
+
+#: Objective name -> function (grid, field_t) -> score to *minimise*.
+OBJECTIVES: dict[str, Callable[[Grid, np.ndarray], float]] = {
+    "peak_power": _negative_peak_power,
+    "fwhm": _duration,
+}
+
+
+@dataclass(frozen=True, eq=False)
+class TrimSpec:
+    """A continuously adjustable insertion of extra material (a wedge pair) for fine tuning.
+
+    Attributes
+    ----------
+    phase_per_length : ndarray
+        ``material_phase(omega, omega0, n, 1.0)`` on ``grid.omega`` (see :meth:`from_index`).
+        [rad/m]
+    insertion_min, insertion_max : float
+        Bounds of the total insertion (thickness traversed). [m]
+    """
+
+    phase_per_length: np.ndarray
+    insertion_min: float
+    insertion_max: float
+
+    def __post_init__(self) -> None:
+        if not 0 <= self.insertion_min < self.insertion_max:
+            raise ConfigError(
+                f"trim insertion range = ({self.insertion_min}, {self.insertion_max}) m: "
+                "need 0 <= insertion_min < insertion_max"
+            )
+
+    @classmethod
+    def from_index(
+        cls, grid: Grid, refractive_index: np.ndarray, insertion_min: float, insertion_max: float
+    ) -> TrimSpec:
+        """Build from n(omega) evaluated on ``grid.omega`` [1] and the insertion bounds [m]."""
+        unit = material_phase(grid.omega, grid.omega0, refractive_index, 1.0)
+        return cls(unit, insertion_min, insertion_max)
+
+
+@dataclass(frozen=True, eq=False)
+class ReferencePulse:
+    """A reference compression: ideal polynomial phase, or the transform limit.
+
+    Attributes
+    ----------
+    name : str
+        ``"quadratic"``, ``"quadratic_cubic"`` or ``"transform_limit"``.
+    total_gdd, total_tod : float
+        GDD and TOD of the applied phase (fixed + ideal) at omega0; nan for the transform
+        limit. [s^2], [s^3]
+    field_t : ndarray
+        Temporal envelope on ``grid.time``. [sqrt(W)]
+    metrics : PulseMetrics
+        Metrics of ``field_t``.
+    """
+
+    name: str
+    total_gdd: float
+    total_tod: float
+    field_t: np.ndarray
+    metrics: PulseMetrics
+
+
+@dataclass(frozen=True, eq=False)
+class CompressionResult:
+    """Outcome of :func:`optimize_bounces` (all SI; spectral arrays in FFT order).
+
+    Attributes
+    ----------
+    grid : Grid
+        The grid of every array below.
+    objective : str
+        Objective used (a key of :data:`OBJECTIVES`).
+    bounces : int
+        Chosen number of mirror bounces.
+    total_gdd, total_tod : float
+        GDD and TOD at omega0 of the whole applied phase (fixed + mirrors + trim). [s^2], [s^3]
+    trim_insertion : float
+        Chosen trim insertion (0 without a trim). [m]
+    field_t : ndarray
+        Compressed envelope. [sqrt(W)]
+    spectrum : ndarray
+        Complex spectrum after the compressor (band-clipped, phase applied). [sqrt(J/Hz)]
+    input_energy : float
+        Energy before the compressor. [J]
+    band_loss : float
+        Energy fraction lost outside the mirror band. [1]
+    metrics : PulseMetrics
+        Metrics of ``field_t``.
+    bounce_counts : ndarray of int
+        Candidate bounce counts.
+    peak_power_vs_bounces : ndarray
+        Peak power for each candidate without trim. [W]
+    peak_power_vs_bounces_trimmed : ndarray or None
+        Peak power for each candidate at its own optimal trim (None without trim). [W]
+    residual_phase : ndarray
+        Spectral phase after the compressor minus constant and delay (weighted fit); nan where
+        the spectral power is below :data:`RESIDUAL_PHASE_FLOOR` of its peak. [rad]
+    quadratic, quadratic_cubic, transform_limit : ReferencePulse
+        The references (see the module docstring).
+    cautions : tuple of str
+        Plain-text notes, e.g. that the best count is the largest one allowed (the optimum may
+        lie beyond ``max_bounces``) or that the trim ended at a bound of its range.
+    """
+
+    grid: Grid
+    objective: str
+    bounces: int
+    total_gdd: float
+    total_tod: float
+    trim_insertion: float
+    field_t: np.ndarray
+    spectrum: np.ndarray
+    input_energy: float
+    band_loss: float
+    metrics: PulseMetrics
+    bounce_counts: np.ndarray
+    peak_power_vs_bounces: np.ndarray
+    peak_power_vs_bounces_trimmed: np.ndarray | None
+    residual_phase: np.ndarray
+    quadratic: ReferencePulse
+    quadratic_cubic: ReferencePulse
+    transform_limit: ReferencePulse
+    cautions: tuple[str, ...] = ()
+
+
+def residual_spectral_phase(grid: Grid, spectrum: np.ndarray) -> np.ndarray:
+    """Spectral phase of a pulse minus its constant and group-delay parts.
+
+    Parameters
+    ----------
+    grid : Grid
+        The grid of ``spectrum``.
+    spectrum : ndarray
+        Spectral amplitude in FFT order. [sqrt(J/Hz)]
+
+    Returns
+    -------
+    ndarray
+        Residual phase in FFT order; nan where :math:`|\\tilde A|^2` is below
+        :data:`RESIDUAL_PHASE_FLOOR` times its peak. [rad]
+
+    Notes
+    -----
+    The factor :math:`(-1)^j` that the centred time axis puts on the FFT-ordered spectrum
+    (index N/2 is t = 0, see :mod:`hcfplan.numerics.grid`) and the delay of the intensity centroid
+    are removed first, so that the phase changes slowly between samples; then the phase is unwrapped
+    over the retained samples in ascending frequency and a straight line fitted with the spectral
+    power as weight is subtracted. Common practice, no source.
+    """
+    field_t = grid.to_time(spectrum)
+    power_t = np.abs(field_t) ** 2
+    centroid = float(np.sum(grid.time * power_t) / np.sum(power_t))
+    physical = grid.to_spectrum(np.fft.ifftshift(field_t)) * np.exp(-1j * grid.domega * centroid)
+    order = np.argsort(grid.domega)
+    weight = np.abs(physical[order]) ** 2
+    keep = weight >= RESIDUAL_PHASE_FLOOR * weight.max()
+    x = grid.domega[order][keep]
+    phase = np.unwrap(np.angle(physical[order][keep]))
+    slope, offset = np.polyfit(x, phase, 1, w=np.sqrt(weight[keep]))
+    residual = np.full(grid.points, np.nan)
+    residual[order[keep]] = phase - (slope * x + offset)
+    return residual
+
+
+def _scan_then_refine(fun: Callable[[float], float], lo: float, hi: float) -> tuple[float, float]:
+    """Minimise ``fun`` on [lo, hi]: coarse scan, then bounded Brent around the best point."""
+    xs = np.linspace(lo, hi, _SCAN_POINTS)
+    values = np.array([fun(x) for x in xs])
+    i = int(np.argmin(values))
+    a, b = xs[max(i - 1, 0)], xs[min(i + 1, xs.size - 1)]
+    res = minimize_scalar(fun, bounds=(a, b), method="bounded", options={"xatol": (hi - lo) * 1e-6})
+    if res.fun <= values[i]:
+        return float(res.x), float(res.fun)
+    return float(xs[i]), float(values[i])
+
+
+class _Scorer:
+    """Objective score of ``spectrum * exp(i phase)`` for the many phases of the search.
+
+    The searches call the objective 100-1000 times per compressor (each call a complex
+    exponential and an FFT over the grid), more than the rest of a scan point's chain after the
+    fiber. So the work per call is kept to that exponential and that FFT:
+
+    * Only the samples where ``spectrum`` is nonzero are computed (outside the mirror band the
+      clipped spectrum is exactly zero). The phases of the search are given on those samples
+      only, as :meth:`part` of the full arrays.
+    * A phase common to every call of one search (the fixed elements, the mirrors of one bounce
+      count) is folded into the spectrum once (:meth:`with_phase`).
+    * The polynomial phases of the references use the precomputed 0.5 dw^2 and dw^3 / 6
+      (:func:`_polynomial` with unit coefficients).
+    * The FFT is the solver's default back end with its buffers
+      (:func:`~hcfplan.numerics.fft.shared_transforms`, pyFFTW when it is installed).
+
+    The score is the same function of the phase as before; only rounding differs.
+    """
+
+    def __init__(self, grid: Grid, spectrum: np.ndarray,
+                 objective: Callable[[Grid, np.ndarray], float]) -> None:
+        self.grid, self.objective = grid, objective
+        keep = np.flatnonzero(spectrum)
+        self._keep = None if keep.size == grid.points else keep
+        self.spectrum = self.part(spectrum)
+        self.quadratic = self.part(_polynomial(grid, 1.0, 0.0))  # 0.5 dw^2
+        self.cubic = self.part(_polynomial(grid, 0.0, 1.0))  # dw^3 / 6
+        self._fft = shared_transforms(grid.points)
+        self._scale = 1.0 / (grid.points * grid.dt)  # unnormalised FFT -> envelope
+
+    def part(self, array: np.ndarray) -> np.ndarray:
+        """``array`` on the samples the search computes (all when the spectrum has no zeros)."""
+        return array if self._keep is None else array[self._keep]
+
+    def with_phase(self, phase: np.ndarray) -> _Scorer:
+        """A scorer of ``spectrum * exp(i phase)`` (``phase`` given as a :meth:`part`)."""
+        other = copy.copy(self)
+        other.spectrum = self.spectrum * np.exp(1j * phase)
+        return other
+
+    def polynomial(self, gdd: float, tod: float) -> np.ndarray:
+        """:func:`_polynomial` on the searched samples. [rad]"""
+        return gdd * self.quadratic + tod * self.cubic
+
+    def __call__(self, phase: np.ndarray) -> float:
+        """Objective of ``spectrum * exp(i phase)``, ``phase`` given as a :meth:`part`. [rad]"""
+        factor = np.exp(1j * phase)
+        target = self._fft.spectrum_in
+        if self._keep is None:
+            np.multiply(self.spectrum, factor, out=target)
+        else:  # the FFT may overwrite its input: every sample is written each call
+            target.fill(0.0)
+            target[self._keep] = self.spectrum * factor
+        field_t = self._fft.forward()
+        field_t *= self._scale
+        return self.objective(self.grid, field_t)
+
+
+def _bounce_counts(max_bounces: int, in_pairs: bool) -> np.ndarray:
+    """Candidate bounce counts 0..max_bounces (even only when ``in_pairs``)."""
+    if isinstance(max_bounces, bool) or not isinstance(max_bounces, (int, np.integer)):
+        raise ConfigError(f"max_bounces = {max_bounces!r}: must be an integer >= 0")
+    if max_bounces < 0:
+        raise ConfigError(f"max_bounces = {max_bounces}: must be >= 0")
+    return np.arange(0, max_bounces + 1, 2 if in_pairs else 1)
+
+
+def _finite_phase(name: str, phase: np.ndarray, spectrum: np.ndarray) -> np.ndarray:
+    """Check that ``phase`` is finite wherever ``spectrum`` carries light; zero it elsewhere."""
+    phase = np.asarray(phase, dtype=float)
+    bad = ~np.isfinite(phase)
+    if np.any(bad & (np.abs(spectrum) > 0)):
+        count = int(np.count_nonzero(bad & (np.abs(spectrum) > 0)))
+        raise ConfigError(
+            f"{name}: non-finite at {count} samples where the spectrum is nonzero "
+            "(evaluate the refractive index inside its validity range or narrow the band)"
+        )
+    return np.where(bad, 0.0, phase)
+
+
+def _check_inputs(grid: Grid, arrays: dict[str, np.ndarray], objective: str) -> None:
+    """Cheap shape and choice checks at the start of :func:`optimize_bounces`."""
+    if objective not in OBJECTIVES:
+        raise ConfigError(f"objective = {objective!r}: allowed are {sorted(OBJECTIVES)}")
+    for name, array in arrays.items():
+        if np.shape(array) != (grid.points,):
+            raise ConfigError(
+                f"{name}: shape {np.shape(array)} does not match the grid ({grid.points},)"
+            )
+
+
+def _scan_bounces(
+    score: _Scorer,
+    base: np.ndarray,
+    per_bounce: np.ndarray,
+    counts: np.ndarray,
+    trim: TrimSpec | None,
+) -> tuple[np.ndarray, np.ndarray]:
+    """Best score and trim insertion for each candidate bounce count."""
+    scores, trims = [], []
+    base, per_bounce = score.part(base), score.part(per_bounce)
+    trim_phase = None if trim is None else score.part(trim.phase_per_length)
+    for n in counts:
+        phase_n = base + n * per_bounce
+        if trim is None:
+            scores.append(score(phase_n))
+            trims.append(0.0)
+            continue
+        shaped = score.with_phase(phase_n)
+        best_l, best_s = _scan_then_refine(
+            lambda l, shaped=shaped: shaped(l * trim_phase),
+            trim.insertion_min,
+            trim.insertion_max,
+        )
+        scores.append(best_s)
+        trims.append(best_l)
+    return np.array(scores), np.array(trims)
+
+
+def _peak_powers(score: _Scorer, phases: list[np.ndarray]) -> np.ndarray:
+    """Peak power of ``score.spectrum * exp(i phase)`` for each phase (full arrays). [W]"""
+    if score.objective is not _negative_peak_power:
+        score = copy.copy(score)
+        score.objective = _negative_peak_power
+    return np.array([-score(score.part(p)) for p in phases])
+
+
+def _reference(
+    grid: Grid, name: str, phase: np.ndarray, spectrum: np.ndarray, peak_in: float | None
+) -> ReferencePulse:
+    """Build a :class:`ReferencePulse` from an applied total phase."""
+    field_t = grid.to_time(spectrum * np.exp(1j * phase))
+    _, _, gdd, tod = phase_derivatives_at(grid.omega, grid.omega0, phase)
+    reference_metrics = pulse_metrics(grid, field_t, input_peak_power=peak_in)
+    return ReferencePulse(name, gdd, tod, field_t, reference_metrics)
+
+
+def _polynomial(grid: Grid, gdd: float, tod: float) -> np.ndarray:
+    """Phase 0.5 gdd dw^2 + tod/6 dw^3 on the grid. [rad]"""
+    return 0.5 * gdd * grid.domega**2 + tod / 6.0 * grid.domega**3
+
+
+def _best_quadratic(shaped: _Scorer, center: float, span: float) -> float:
+    """GDD of the ideal quadratic compressor minimising ``shaped`` (the spectrum after the
+    fixed elements) on center +- span. [s^2]"""
+    gdd, _ = _scan_then_refine(
+        lambda g: shaped(shaped.polynomial(g, 0.0)), center - span, center + span
+    )
+    return gdd
+
+
+def _best_cubic(
+    shaped: _Scorer, gdd0: float, tod_center: float, scale: float
+) -> tuple[float, float]:
+    """(GDD, TOD) of the ideal quadratic + cubic compressor, starting from ``gdd0``."""
+    s_quadratic = shaped(shaped.polynomial(gdd0, 0.0))
+    span = max(20.0 * scale**3, 2.0 * abs(tod_center))
+    tod0, _ = _scan_then_refine(
+        lambda t: shaped(shaped.polynomial(gdd0, t)), tod_center - span, tod_center + span
+    )
+    norm = abs(s_quadratic) if s_quadratic != 0 else 1.0
+
+    def scaled(x: np.ndarray) -> float:
+        return shaped(shaped.polynomial(x[0] * scale**2, x[1] * scale**3)) / norm
+
+    res = minimize(
+        scaled,
+        np.array([gdd0 / scale**2, tod0 / scale**3]),
+        method="Nelder-Mead",
+        options={"xatol": 1e-4, "fatol": 1e-10, "maxiter": 600},
+    )
+    if res.fun * norm > s_quadratic:
+        return gdd0, 0.0
+    return float(res.x[0] * scale**2), float(res.x[1] * scale**3)
+
+
+def _references(
+    grid: Grid,
+    clipped: np.ndarray,
+    fixed: np.ndarray,
+    score: _Scorer,
+    compressor: tuple[float, float, float],
+    peak_in: float | None,
+) -> tuple[ReferencePulse, ReferencePulse, ReferencePulse]:
+    """Quadratic, quadratic + cubic and transform-limit references.
+
+    ``compressor`` is (GDD, TOD, GDD search half-span) of the mirrors + trim at omega0; the
+    ideal phases are searched around it.
+    """
+    tl_field = metrics.transform_limit(grid, clipped)
+    scale = metrics.fwhm(grid.time, np.abs(tl_field) ** 2)
+    scale = scale if np.isfinite(scale) else 10.0 * grid.dt
+    gdd_center, tod_center, gdd_span = compressor
+    shaped = score.with_phase(score.part(fixed))
+    gdd_q = _best_quadratic(shaped, gdd_center, max(gdd_span, 20.0 * scale**2))
+    gdd_c, tod_c = _best_cubic(shaped, gdd_q, tod_center, scale)
+    tl = ReferencePulse(
+        "transform_limit",
+        float("nan"),
+        float("nan"),
+        tl_field,
+        pulse_metrics(grid, tl_field, input_peak_power=peak_in),
+    )
+    return (
+        _reference(grid, "quadratic", fixed + _polynomial(grid, gdd_q, 0.0), clipped, peak_in),
+        _reference(
+            grid, "quadratic_cubic", fixed + _polynomial(grid, gdd_c, tod_c), clipped, peak_in
+        ),
+        tl,
+    )
+
+
+@dataclass(frozen=True, eq=False)
+class _Chain:
+    """Checked phase arrays of the compressor (private helper of :func:`optimize_bounces`)."""
+
+    grid: Grid
+    clipped: np.ndarray
+    band_loss: float
+    fixed: np.ndarray
+    mirror: np.ndarray
+    trim: TrimSpec | None
+
+    def phase(self, bounces: int, insertion: float) -> np.ndarray:
+        """Total applied phase for a bounce count and a trim insertion. [rad]"""
+        total = self.fixed + bounces * self.mirror
+        return total if self.trim is None else total + insertion * self.trim.phase_per_length
+
+    def gdd_tod(self, phase: np.ndarray) -> tuple[float, float]:
+        """GDD [s^2] and TOD [s^3] of ``phase`` at omega0."""
+        _, _, gdd, tod = phase_derivatives_at(self.grid.omega, self.grid.omega0, phase)
+        return gdd, tod
+
+    def search_span(self, counts: np.ndarray) -> float:
+        """GDD half-span for the reference searches: two bounce steps plus the trim range."""
+        step = int(counts[1] - counts[0]) if counts.size > 1 else 1
+        span = 2.0 * abs(self.gdd_tod(self.mirror)[0]) * step
+        if self.trim is not None:
+            span += abs(self.gdd_tod(self.trim.phase_per_length)[0]) * self.trim.insertion_max
+        return span
+
+
+def _chain(grid: Grid, spectrum, fixed_phase, mirror_phase_per_bounce, band, trim) -> _Chain:
+    """Clip to the band and check the phase arrays (finite where there is light)."""
+    clipped, loss = clip_to_band(grid, spectrum, band)
+    if trim is not None:
+        trim_phase = _finite_phase("trim.phase_per_length", trim.phase_per_length, clipped)
+        trim = TrimSpec(trim_phase, trim.insertion_min, trim.insertion_max)
+    return _Chain(
+        grid,
+        clipped,
+        loss,
+        _finite_phase("fixed_phase", fixed_phase, clipped),
+        _finite_phase("mirror_phase_per_bounce", mirror_phase_per_bounce, clipped),
+        trim,
+    )
+
+
+def _cautions(counts: np.ndarray, bounces: int, trim: TrimSpec | None, insertion: float):
+    """Notes on a choice at the edge of the search range."""
+    notes = []
+    if counts.size > 1 and bounces == counts[-1]:
+        notes.append(
+            f"best bounce count {bounces} is the largest allowed (max_bounces); "
+            "more bounces may compress better"
+        )
+    if trim is not None:
+        span = trim.insertion_max - trim.insertion_min
+        for label, bound in (("min", trim.insertion_min), ("max", trim.insertion_max)):
+            if abs(insertion - bound) <= 1e-3 * span:
+                notes.append(f"trim insertion {insertion:.3e} m is at insertion_{label}")
+    return tuple(notes)
+
+
+def optimize_bounces(
+    grid: Grid,
+    spectrum: np.ndarray,
+    fixed_phase: np.ndarray,
+    mirror_phase_per_bounce: np.ndarray,
+    *,
+    max_bounces: int,
+    in_pairs: bool = False,
+    objective: Objective = "peak_power",
+    band: tuple[float, float] | None = None,
+    trim: TrimSpec | None = None,
+    input_peak_power: float | None = None,
+) -> CompressionResult:
+    """Choose the number of chirped-mirror bounces (and a trim insertion) that compress best.
+
+    Parameters
+    ----------
+    grid : Grid
+        The grid of every array.
+    spectrum : ndarray
+        Complex spectrum leaving the fiber, FFT order. [sqrt(J/Hz)]
+    fixed_phase : ndarray
+        Phase of the fixed elements (exit window, air path) on ``grid.omega``. [rad]
+    mirror_phase_per_bounce : ndarray
+        Phase of one bounce on ``grid.omega``. [rad]
+    max_bounces : int
+        Largest bounce count considered (candidates 0..max_bounces).
+    in_pairs : bool
+        Consider even counts only (complementary mirror pairs).
+    objective : {"peak_power", "fwhm"}
+        Maximise the peak power or minimise the FWHM (:data:`OBJECTIVES`).
+    band : (float, float), optional
+        Mirror reflection band (omega_lo, omega_hi); light outside is lost. [rad/s]
+    trim : TrimSpec, optional
+        Fine trim by a continuous insertion of extra material, optimised for every count
+        (coarse scan, then bounded Brent minimisation).
+    input_peak_power : float, optional
+        Peak power to which the gain refers (e.g. the pulse entering the fiber). [W]
+
+    Returns
+    -------
+    CompressionResult
+        Ties between counts go to the smaller count. See the module docstring for definitions.
+    """
+    arrays = {"spectrum": spectrum, "fixed_phase": fixed_phase}
+    arrays["mirror_phase_per_bounce"] = mirror_phase_per_bounce
+    if trim is not None:
+        arrays["trim.phase_per_length"] = trim.phase_per_length
+    _check_inputs(grid, arrays, objective)
+    if input_peak_power is not None and not input_peak_power > 0:
+        raise ConfigError(f"input_peak_power = {input_peak_power} W: must be > 0")
+    counts = _bounce_counts(max_bounces, in_pairs)
+    chain = _chain(grid, spectrum, fixed_phase, mirror_phase_per_bounce, band, trim)
+    score = _Scorer(grid, chain.clipped, OBJECTIVES[objective])
+    scores, trims = _scan_bounces(score, chain.fixed, chain.mirror, counts, chain.trim)
+    best = int(np.argmin(scores))
+    n, insertion = int(counts[best]), float(trims[best])
+    phase = chain.phase(n, insertion)
+    out_spectrum = chain.clipped * np.exp(1j * phase)
+    field_t = grid.to_time(out_spectrum)
+    gdd, tod = chain.gdd_tod(phase)
+    fixed_gdd, fixed_tod = chain.gdd_tod(chain.fixed)
+    compressor = (gdd - fixed_gdd, tod - fixed_tod, chain.search_span(counts))
+    refs = _references(grid, chain.clipped, chain.fixed, score, compressor, input_peak_power)
+    # with the peak-power objective the bounce scan has computed the curves already
+    by_peak = objective == "peak_power"
+    if by_peak and chain.trim is None:
+        curve = -scores
+    else:
+        curve = _peak_powers(score, [chain.phase(k, 0.0) for k in counts])
+    curve_trim = None
+    if chain.trim is not None:
+        phases = [chain.phase(k, l) for k, l in zip(counts, trims, strict=True)]
+        curve_trim = -scores if by_peak else _peak_powers(score, phases)
+    return CompressionResult(
+        grid=grid,
+        objective=objective,
+        bounces=n,
+        total_gdd=gdd,
+        total_tod=tod,
+        trim_insertion=insertion,
+        field_t=field_t,
+        spectrum=out_spectrum,
+        input_energy=grid.energy_w(spectrum),
+        band_loss=chain.band_loss,
+        metrics=pulse_metrics(grid, field_t, input_peak_power=input_peak_power),
+        bounce_counts=counts,
+        peak_power_vs_bounces=curve,
+        peak_power_vs_bounces_trimmed=curve_trim,
+        residual_phase=residual_spectral_phase(grid, out_spectrum),
+        quadratic=refs[0],
+        quadratic_cubic=refs[1],
+        transform_limit=refs[2],
+        cautions=_cautions(counts, n, chain.trim, insertion),
+    )

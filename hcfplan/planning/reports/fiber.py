@@ -1,0 +1,156 @@
+"""First-look numbers for a configured fiber, gas and laser (the ``fiber`` command).
+
+Everything here is analytic: no GNLSE run. The report is a flat dict of SI values whose keys
+carry their SI unit (``gvd_s2_per_m``), ready for ``--json``.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from hcfplan.constants import c
+from hcfplan.planning.build import build_medium, build_waveguide, coupling, pump_omega
+from hcfplan.planning.validity import quiet_validity, range_notes
+
+#: Wavelength range searched for zero-dispersion points. [m]
+ZDW_SEARCH_RANGE = (200e-9, 3000e-9)
+
+
+def _zdw_range(waveguide, config):
+    """Search range for the ZDW, limited to where the fiber model is meaningful."""
+    lo, hi = ZDW_SEARCH_RANGE
+    wall = getattr(waveguide, "wall_thickness", None)
+    if wall is not None and hasattr(waveguide, "resonance_wavelengths"):
+        # keep the search inside the anti-resonant window that contains the pump
+        lam0 = config.laser.wavelength
+        res = sorted(waveguide.resonance_wavelengths(8))
+        below = [r for r in res if r < lam0]
+        above = [r for r in res if r > lam0]
+        lo = max(lo, below[-1] * 1.02) if below else lo
+        hi = min(hi, above[0] * 0.98) if above else hi
+    return lo, hi
+
+
+def _gas_part(medium, config) -> dict:
+    gas = config.gas
+    return {
+        "gas.components": [[name, frac] for name, frac in gas.components],
+        "gas.pressure_pa": gas.pressure,
+        "gas.temperature_k": gas.temperature,
+        "gas.equation_of_state": gas.equation_of_state,
+        "gas.number_density_per_m3": medium.number_density,
+        "gas.n2_m2_per_w": medium.n2,
+        "gas.refractive_index_at_pump": float(
+            medium.refractive_index(np.array([pump_omega(config.laser)]))[0]),
+    }
+
+
+def _antiresonant_part(waveguide, config) -> dict:
+    if not hasattr(waveguide, "resonance_wavelengths"):
+        return {}
+    res = sorted(float(r) for r in waveguide.resonance_wavelengths(6))
+    omega0 = np.array([pump_omega(config.laser)])
+    inside = bool(np.asarray(waveguide.in_resonance_band(omega0))[0])
+    return {"fiber.resonance_wavelengths_m": res, "fiber.pump_in_resonance_band": inside}
+
+
+def fiber_report(config) -> dict:
+    """Analytic summary of the configured fiber at the pump (see module docstring)."""
+
+    with quiet_validity():
+        return _fiber_report(config)
+
+
+def _fiber_report(config) -> dict:
+    from hcfplan.fibers import derived
+    from hcfplan.pulse import fields as pulse
+
+    laser = config.laser
+    omega0 = pump_omega(laser)
+    medium = build_medium(config.gas) if config.gas is not None else None
+    waveguide = build_waveguide(config.fiber, medium, omega0)
+    w0 = np.array([omega0])
+    betas = derived.dispersion_coefficients(waveguide, omega0, order=3)
+    beta2, beta3 = float(betas[2]), float(betas[3])
+    alpha = float(waveguide.attenuation(w0)[0])
+    gamma = float(waveguide.nonlinear_coefficient(w0)[0])
+    length = config.fiber.length
+    efficiency, waist, optimum = coupling(config)
+    energy = laser.energy * efficiency
+    peak_power = pulse.peak_power_from_energy(energy, laser.duration_fwhm, laser.shape)
+    t0 = derived.t0_from_fwhm(laser.duration_fwhm, laser.shape)
+    ld = derived.dispersion_length(t0, beta2)
+    lnl = derived.nonlinear_length(gamma, peak_power)
+    order = derived.soliton_order(t0, beta2, gamma, peak_power)
+    leff = derived.effective_length(length, alpha)
+    phi = derived.nonlinear_phase(gamma, peak_power, leff)
+    zdws = derived.zero_dispersion_wavelengths(waveguide, _zdw_range(waveguide, config))
+    report = {
+        "laser.wavelength_m": laser.wavelength,
+        "laser.energy_j": laser.energy,
+        "laser.fwhm_s": laser.duration_fwhm,
+        "fiber.kind": config.fiber.kind,
+        "fiber.length_m": length,
+        "fiber.field_attenuation_per_m": alpha,
+        "fiber.power_loss_db_per_m": 20 * alpha / math.log(10),
+        "fiber.transmission": float(math.exp(-2 * alpha * length)),
+        "fiber.loss_convention": "alpha is the field attenuation; power falls as exp(-2 alpha z)",
+        "fiber.beta2_s2_per_m": beta2,
+        "fiber.beta3_s3_per_m": beta3,
+        "fiber.regime": "anomalous" if beta2 < 0 else "normal",
+        "fiber.zdw_m": [float(z) for z in zdws],
+        "fiber.gamma_per_w_per_m": gamma,
+        "fiber.effective_area_m2": float(waveguide.effective_area(w0)[0]),
+        "coupling.efficiency": efficiency,
+        "coupling.beam_waist_m": waist,
+        "coupling.optimum_beam_waist_m": optimum,
+        "input.coupled_energy_j": energy,
+        "input.peak_power_w": peak_power,
+        "fiber.dispersion_length_m": ld,
+        "fiber.nonlinear_length_m": lnl,
+        "fiber.soliton_order": order,
+        "fiber.fission_length_m": (derived.fission_length(t0, beta2, gamma, peak_power)
+                                   if beta2 < 0 else None),
+        "estimate.nonlinear_phase_rad": phi,
+        "estimate.spm_broadening_factor": derived.spm_broadening_factor(phi),
+        "estimate.output_bandwidth_hz": _bandwidth_estimate(laser, phi),
+    }
+    report.update(_antiresonant_part(waveguide, config))
+    notes = range_notes(config, medium, (laser.wavelength, laser.wavelength), "the pump")
+    if medium is not None:
+        report.update(_gas_part(medium, config))
+        notes = list(medium.warnings) + notes
+    report["warnings"] = notes
+    return report
+
+
+def _bandwidth_estimate(laser, phi: float) -> float:
+    """Input transform-limited FWHM bandwidth times the Gaussian SPM rms broadening factor. [Hz]
+
+    The time-bandwidth products 0.441 (Gaussian) and 0.315 (sech^2) are the standard values
+    (J.-C. Diels and W. Rudolph, *Ultrashort Laser Pulse Phenomena*, 2nd ed., 2006, Table 1.1).
+    """
+    from hcfplan.fibers import derived
+
+    tbp = {"gaussian": 0.4413, "sech2": 0.3148}[laser.shape]
+    return tbp / laser.duration_fwhm * derived.spm_broadening_factor(phi)
+
+
+def dispersion_curves(config, wavelengths: np.ndarray) -> dict:
+    """beta2 and power loss of the configured fiber over ``wavelengths`` [m], for the figure."""
+    from hcfplan.fibers import derived
+
+    omega0 = pump_omega(config.laser)
+    with quiet_validity():
+        medium = build_medium(config.gas) if config.gas is not None else None
+        waveguide = build_waveguide(config.fiber, medium, omega0)
+        omega = 2 * math.pi * c / wavelengths
+        gvd = derived.group_velocity_dispersion(waveguide, omega)
+        alpha = waveguide.attenuation(omega)
+    resonances = (sorted(waveguide.resonance_wavelengths(6))
+                  if hasattr(waveguide, "resonance_wavelengths") else [])
+    return {"wavelength_m": wavelengths, "beta2_s2_per_m": gvd,
+            "power_loss_db_per_m": 20 * alpha / math.log(10),
+            "pump_wavelength_m": config.laser.wavelength, "resonance_wavelengths_m": resonances}

@@ -1,0 +1,228 @@
+"""Input pulses on a :class:`~hcfplan.numerics.grid.Grid`: analytic shapes and measured spectra.
+
+All fields follow the conventions of :mod:`hcfplan.numerics.grid`: ``|A|^2`` is power [W], the
+spectrum is ``grid.to_spectrum(A)`` with ``|A~|^2`` in J/Hz, and a spectral phase multiplies the
+spectrum as ``exp(i phi)``. A group-delay dispersion ``gdd`` is the phase ``phi = gdd * dw**2 / 2``,
+so a positive ``gdd`` is the chirp a normally dispersive material gives (red leading).
+
+Note on the spectral phase of the grid: ``grid.time`` is centred (``t_k = (k - N/2) dt``) while
+the discrete transform counts time from sample 0, so the grid spectrum of a pulse centred at
+``t = 0`` carries the linear phase ``exp(-i dw t_0)`` with ``t_0 = grid.time[0]`` (i.e. a
+factor ``(-1)^j``). |A~|^2 and every diagonal spectral operator are unaffected;
+:func:`field_from_measured_spectrum` applies the factor so that its pulse sits at ``t = 0``.
+
+References
+----------
+.. [1] G. P. Agrawal, *Nonlinear Fiber Optics*, 6th ed., Academic Press, 2019, ch. 3
+       (Gaussian and sech pulse shapes, T0 and the FWHM). [from memory]
+"""
+
+from __future__ import annotations
+
+import warnings
+from collections.abc import Callable
+from typing import Literal
+
+import numpy as np
+
+from hcfplan.constants import c
+from hcfplan.errors import ConfigError, ValidityWarning
+from hcfplan.numerics.grid import Grid
+
+PulseShape = Literal["sech2", "gaussian"]
+
+#: Fraction of the measured spectral energy allowed outside the grid before a warning.
+SPECTRUM_CUT_TOLERANCE = 1e-3
+
+
+def _sech_amplitude(x: np.ndarray) -> np.ndarray:
+    """Amplitude sech(x); intensity sech^2(x)."""
+    return 1.0 / np.cosh(np.clip(x, -700.0, 700.0))
+
+
+def _gaussian_amplitude(x: np.ndarray) -> np.ndarray:
+    """Amplitude exp(-x^2/2); intensity exp(-x^2) (Agrawal's T0 convention [1])."""
+    return np.exp(-0.5 * x**2)
+
+
+#: shape -> (amplitude of t/T0, FWHM/T0 of the intensity, energy / (P0 T0))
+_SHAPES: dict[str, tuple[Callable[[np.ndarray], np.ndarray], float, float]] = {
+    "sech2": (_sech_amplitude, 2.0 * np.log(1.0 + np.sqrt(2.0)), 2.0),
+    "gaussian": (_gaussian_amplitude, 2.0 * np.sqrt(np.log(2.0)), np.sqrt(np.pi)),
+}
+
+
+def _shape_entry(shape: str) -> tuple[Callable[[np.ndarray], np.ndarray], float, float]:
+    try:
+        return _SHAPES[shape]
+    except (KeyError, TypeError):
+        raise ConfigError(f"pulse shape = {shape!r}: allowed are {sorted(_SHAPES)}") from None
+
+
+def shape_t0_factor(shape: PulseShape) -> float:
+    """Ratio of the intensity FWHM to the shape parameter T0.
+
+    Parameters
+    ----------
+    shape : {"sech2", "gaussian"}
+        Intensity profile sech^2(t/T0) or exp(-t^2/T0^2).
+
+    Returns
+    -------
+    float
+        FWHM / T0: ``2 ln(1 + sqrt 2) = 1.7627`` (sech^2), ``2 sqrt(ln 2) = 1.6651`` (Gaussian). [1]
+    """
+    return _shape_entry(shape)[1]
+
+
+def peak_power_from_energy(energy: float, duration_fwhm: float, shape: PulseShape) -> float:
+    """Peak power of a transform-limited pulse of given energy and intensity FWHM.
+
+    Parameters
+    ----------
+    energy : float
+        Pulse energy. [J]
+    duration_fwhm : float
+        Intensity FWHM. [s]
+    shape : {"sech2", "gaussian"}
+        Intensity profile.
+
+    Returns
+    -------
+    float
+        Peak power. [W]
+
+    Notes
+    -----
+    sech^2: :math:`E = P_0\\int \\mathrm{sech}^2(t/T_0)dt = 2P_0T_0` and
+    :math:`T_0 = \\tau/[2\\ln(1+\\sqrt2)]`, so
+    :math:`P_0 = \\ln(1+\\sqrt2)\\,E/\\tau = 0.8814\\,E/\\tau`.
+    Gaussian: :math:`E = P_0\\int e^{-t^2/T_0^2}dt = \\sqrt\\pi P_0T_0` and
+    :math:`T_0 = \\tau/(2\\sqrt{\\ln 2})`, so
+    :math:`P_0 = 2\\sqrt{\\ln2/\\pi}\\,E/\\tau = 0.9394\\,E/\\tau`.
+    """
+    _, fwhm_per_t0, energy_per_p0t0 = _shape_entry(shape)
+    _check_positive("duration_fwhm", duration_fwhm, "s")
+    return energy * fwhm_per_t0 / (energy_per_p0t0 * duration_fwhm)
+
+
+def _check_positive(name: str, value: float, unit: str) -> None:
+    if not (np.isfinite(value) and value > 0):
+        raise ConfigError(f"{name} = {value} {unit}: must be > 0")
+
+
+def _apply_gdd(grid: Grid, spectrum: np.ndarray, gdd: float) -> np.ndarray:
+    """Multiply by exp(i gdd dw^2 / 2) (convention 4 of :mod:`hcfplan.numerics.grid`)."""
+    if not np.isfinite(gdd):
+        raise ConfigError(f"gdd = {gdd} s^2: must be finite")
+    if gdd == 0.0:
+        return spectrum
+    return spectrum * np.exp(0.5j * gdd * grid.domega**2)
+
+
+def pulse_field(
+    grid: Grid, shape: PulseShape, duration_fwhm: float, energy: float, gdd: float = 0.0
+) -> np.ndarray:
+    """Temporal envelope of a sech^2 or Gaussian pulse, centred at t = 0.
+
+    Parameters
+    ----------
+    grid : Grid
+        Time/frequency grid.
+    shape : {"sech2", "gaussian"}
+        Intensity profile (see :func:`shape_t0_factor`).
+    duration_fwhm : float
+        Intensity FWHM of the transform-limited pulse. [s]
+    energy : float
+        Pulse energy; the discrete energy on the grid is set to it exactly. [J]
+    gdd : float
+        Group-delay dispersion applied as the spectral phase exp(i gdd dw^2/2). [s^2]
+
+    Returns
+    -------
+    ndarray of complex
+        A(t) with |A|^2 in W, on ``grid.time``. [sqrt(W)]
+    """
+    amplitude, fwhm_per_t0, _ = _shape_entry(shape)
+    _check_positive("duration_fwhm", duration_fwhm, "s")
+    _check_positive("energy", energy, "J")
+    t0 = duration_fwhm / fwhm_per_t0
+    field = amplitude(grid.time / t0).astype(complex)
+    if gdd != 0.0:
+        field = grid.to_time(_apply_gdd(grid, grid.to_spectrum(field), gdd))
+    return field * np.sqrt(energy / grid.energy_t(field))
+
+
+def field_from_measured_spectrum(
+    grid: Grid,
+    wavelength: np.ndarray,
+    intensity: np.ndarray,
+    energy: float,
+    gdd: float = 0.0,
+) -> np.ndarray:
+    """Temporal envelope from a measured spectrum with a flat (or GDD) phase.
+
+    Parameters
+    ----------
+    grid : Grid
+        Time/frequency grid.
+    wavelength : ndarray
+        Measured vacuum wavelengths, strictly increasing. [m]
+    intensity : ndarray
+        Spectral intensity per unit wavelength, >= 0 (any scale). [arb./m]
+    energy : float
+        Pulse energy the field is scaled to. [J]
+    gdd : float
+        Group-delay dispersion added as a spectral phase. [s^2]
+
+    Returns
+    -------
+    ndarray of complex
+        A(t) on ``grid.time``, centred at t = 0 for ``gdd = 0``. [sqrt(W)]
+
+    Notes
+    -----
+    The density per unit frequency is :math:`S_\\nu = S_\\lambda\\,|d\\lambda/d\\nu| =
+    S_\\lambda\\,\\lambda^2/c`; it is interpolated linearly in frequency onto the grid
+    (zero outside the measured range). A ``ValidityWarning`` is issued if more than
+    ``SPECTRUM_CUT_TOLERANCE`` of the measured energy lies outside the grid's window.
+    """
+    wavelength = np.asarray(wavelength, dtype=float)
+    intensity = np.asarray(intensity, dtype=float)
+    _check_positive("energy", energy, "J")
+    if wavelength.shape != intensity.shape or wavelength.size < 2:
+        raise ConfigError(
+            f"measured spectrum: {wavelength.size} wavelengths and {intensity.size} "
+            "intensities: need two equal-length arrays of >= 2 samples"
+        )
+    if not np.all(np.diff(wavelength) > 0) or not wavelength[0] > 0:
+        raise ConfigError("measured spectrum: wavelengths must be > 0 and strictly increasing")
+    if np.any(intensity < 0) or not np.all(np.isfinite(intensity)):
+        raise ConfigError("measured spectrum: intensities must be finite and >= 0")
+    nu = (c / wavelength)[::-1]
+    density = (intensity * wavelength**2 / c)[::-1]  # S_nu = S_lambda lambda^2 / c
+    _warn_if_cut(grid, nu, density)
+    on_grid = np.interp(grid.frequency, nu, density, left=0.0, right=0.0)
+    if not np.any(on_grid > 0):
+        raise ConfigError(
+            f"measured spectrum ({wavelength[0]:.4g}-{wavelength[-1]:.4g} m) lies outside the "
+            "grid's frequency window"
+        )
+    spectrum = np.sqrt(on_grid) * np.exp(-1j * grid.domega * grid.time[0])  # centre at t = 0
+    field = grid.to_time(_apply_gdd(grid, spectrum.astype(complex), gdd))
+    return field * np.sqrt(energy / grid.energy_t(field))
+
+
+def _warn_if_cut(grid: Grid, nu: np.ndarray, density: np.ndarray) -> None:
+    """Warn when a noticeable part of the measured spectrum falls outside the grid."""
+    total = np.trapezoid(density, nu)
+    inside = (nu >= grid.frequency.min()) & (nu <= grid.frequency.max())
+    outside = total - np.trapezoid(np.where(inside, density, 0.0), nu)
+    if total > 0 and outside > SPECTRUM_CUT_TOLERANCE * total:
+        warnings.warn(
+            f"measured spectrum: {outside / total:.2%} of its energy lies outside the grid "
+            f"window {grid.frequency.min():.4g}-{grid.frequency.max():.4g} Hz and is cut; "
+            "use a finer time step (more points)",
+            ValidityWarning,
+            stacklevel=3,
+        )
