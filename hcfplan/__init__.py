@@ -6,6 +6,6 @@ The package is layered: physics modules (``materials``, ``fibers``, ``grid``, ``
 suffixes, files and the terminal. Importing the package has no side effects.
 """
 
-__version__ = "0.1.0"
+from hcfplan.version import __version__
 
 __all__ = ["__version__"]

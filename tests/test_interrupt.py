@@ -186,7 +186,7 @@ def test_signal_while_writing(tmp_path, signum):
 _HOLD_SCRIPT = """
 import os, signal, sys
 from pathlib import Path
-from hcfplan.io.results import write_text
+from hcfplan.numerics.storage import write_text
 
 out = Path(sys.argv[1])
 # the signal arrives while the temporary file exists; the write must still complete

@@ -16,7 +16,7 @@ PACKAGE = pathlib.Path(__file__).resolve().parents[1] / "hcfplan"
 #: Layer of each top-level name below ``hcfplan``: a module may import its own layer and the
 #: layers below it, never one above. The order is the one in DEVELOPERS.md ("Layout").
 LAYERS = {
-    "constants": 0, "units": 0, "errors": 0,
+    "constants": 0, "units": 0, "errors": 0, "version": 0,
     "numerics": 1,
     "materials": 2, "_gases": 2,
     "fibers": 3, "pulse": 3, "ionization": 3,

@@ -15,7 +15,6 @@ import math
 import os
 import signal
 import sys
-import tempfile
 import threading
 import time
 from collections.abc import Callable, Iterator
@@ -25,57 +24,7 @@ from typing import Any
 import numpy as np
 
 from hcfplan.errors import ConfigError
-
-#: Signals that end the process without clean-up by default; held back during a write.
-HELD_SIGNALS = tuple(getattr(signal, name) for name in ("SIGTERM", "SIGHUP")
-                     if hasattr(signal, name))
-
-
-@contextlib.contextmanager
-def _termination_held() -> Iterator[None]:
-    """Hold SIGTERM/SIGHUP inside the block; deliver them, to the previous handlers, after it.
-
-    Only the main thread can set signal handlers; elsewhere the block runs unprotected.
-    """
-    if threading.current_thread() is not threading.main_thread():
-        yield
-        return
-    caught: list[int] = []
-
-    def hold(signum, frame):
-        caught.append(signum)
-
-    previous = {sig: signal.signal(sig, hold) for sig in HELD_SIGNALS}
-    try:
-        yield
-    finally:
-        for sig, handler in previous.items():
-            signal.signal(sig, signal.SIG_DFL if handler is None else handler)
-        for signum in dict.fromkeys(caught):
-            signal.raise_signal(signum)
-
-
-@contextlib.contextmanager
-def _atomic_path(path: Path, suffix: str) -> Iterator[Path]:
-    path = Path(path)
-    path.parent.mkdir(parents=True, exist_ok=True)
-    with _termination_held():
-        fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=suffix, dir=path.parent)
-        os.close(fd)
-        tmp_path = Path(tmp)
-        try:
-            yield tmp_path
-            os.chmod(tmp_path, 0o666 & ~_umask())  # mkstemp makes 0600; give the usual mode
-            os.replace(tmp_path, path)
-        finally:
-            if tmp_path.exists():
-                tmp_path.unlink()
-
-
-def _umask() -> int:
-    mask = os.umask(0)
-    os.umask(mask)
-    return mask
+from hcfplan.numerics.storage import atomic_path, write_text
 
 
 def json_ready(value: Any) -> Any:
@@ -103,12 +52,6 @@ def json_ready(value: Any) -> Any:
     return value
 
 
-def write_text(path: Path, text: str) -> None:
-    """Write a text file atomically."""
-    with _atomic_path(Path(path), ".tmp") as tmp:
-        tmp.write_text(text, encoding="utf-8")
-
-
 def write_json(path: Path, data: dict, *, one_line_fields: bool = False) -> None:
     """Write ``data`` as JSON atomically (NaN/inf become null), indented by 2.
 
@@ -124,13 +67,6 @@ def write_json(path: Path, data: dict, *, one_line_fields: bool = False) -> None
         write_text(path, json.dumps(ready, indent=2) + "\n")
 
 
-def write_npz(path: Path, arrays: dict[str, np.ndarray]) -> None:
-    """Write arrays to a compressed ``.npz`` atomically."""
-    with _atomic_path(Path(path), ".npz") as tmp:
-        with open(tmp, "wb") as handle:
-            np.savez_compressed(handle, **arrays)
-
-
 def write_figure(path: Path, draw: Callable, *args, **kwargs) -> None:
     """Create a figure with the house style, let ``draw(fig, *args)`` fill it, save atomically."""
     import matplotlib
@@ -144,7 +80,7 @@ def write_figure(path: Path, draw: Callable, *args, **kwargs) -> None:
         try:
             draw(fig, *args, **kwargs)
             path = Path(path)
-            with _atomic_path(path, path.suffix or ".png") as tmp:
+            with atomic_path(path, path.suffix or ".png") as tmp:
                 fig.savefig(tmp, format=(path.suffix.lstrip(".") or "png"))
         finally:
             plt.close(fig)
@@ -174,7 +110,7 @@ def write_figures(jobs: list[FigureJob]) -> None:
     the next figure in turn. A figure the child does not finish (it failed or was stopped) is
     drawn here afterwards, so an error is raised here as it would be without the child. On the
     way out (an exception, Ctrl-C, SIGTERM) the child is sent SIGTERM, which ends it once the
-    file it writes is complete (:func:`_termination_held`), and waited for.
+    file it writes is complete (:func:`~hcfplan.numerics.storage.termination_held`), and waited for.
     """
     jobs = list(jobs)
     if figure_helpers(len(jobs)) == 0:

@@ -8,8 +8,9 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from hcfplan.io.results import write_figures, write_json, write_npz, write_text
+from hcfplan.io.results import write_figures, write_json
 from hcfplan.io.tomlio import dump_toml
+from hcfplan.numerics.storage import write_npz, write_text
 from hcfplan.planning.chain import ChainResult, field_arrays, summary_dict
 
 

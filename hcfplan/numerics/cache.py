@@ -39,7 +39,7 @@ def cache_dir() -> Path:
 def _fingerprint(kind: str, inputs: tuple, sources: tuple[Path, ...]) -> str:
     import scipy
 
-    from hcfplan import __version__
+    from hcfplan.version import __version__
 
     digest = hashlib.sha256()
     digest.update(json.dumps([kind, ARRAYS_VERSION, repr(inputs), __version__,
@@ -57,7 +57,7 @@ def cached_arrays(kind: str, inputs: tuple, sources: tuple[Path, ...],
     an earlier run stored them for the same ``inputs`` and ``sources`` (module docstring). A
     file that cannot be read, or whose arrays ``sound`` rejects, is computed again and
     replaced."""
-    from hcfplan.io.results import write_npz
+    from hcfplan.numerics.storage import write_npz
 
     path = cache_dir() / f"{kind}-{_fingerprint(kind, inputs, sources)}.npz"
     try:

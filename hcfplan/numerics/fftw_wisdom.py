@@ -97,7 +97,7 @@ def save_wisdom(pyfftw, problem=None) -> None:
     calls for it return at once. Exporting the wisdom to compare it took 2-3 ms a call, six
     calls per solver run with plasma (5 % of a 2^13-point run).
     """
-    from hcfplan.io.results import write_text
+    from hcfplan.numerics.storage import write_text
 
     if problem is not None and problem in _state["saved"]:
         return

@@ -916,7 +916,7 @@ def write_table(path: Path, plan: ScanPlan, records) -> None:
     import csv
     import io
 
-    from hcfplan.io.results import write_text
+    from hcfplan.numerics.storage import write_text
 
     header, rows = table_rows(plan, records)
     buffer = io.StringIO()
