@@ -17,6 +17,7 @@ import numpy as np
 from hcfplan.constants import c
 from hcfplan.fibers.taylor import TaylorFiber
 from hcfplan.numerics.grid import Grid
+from hcfplan.propagation.options import SolverOptions
 from hcfplan.propagation.solve import propagate
 from hcfplan.pulse.fields import pulse_field
 
@@ -28,10 +29,11 @@ def main() -> None:
     fiber = TaylorFiber(omega0=OMEGA0, betas=(-11.83e-27, 8.1e-41), gamma=0.11, length=0.02,
                         self_steepening=True, raman_fraction=0.18)
     field0 = pulse_field(grid, "sech2", 50e-15, 2 * 10e3 * 50e-15 / 1.7627)
-    propagate(field0, grid, TaylorFiber(omega0=OMEGA0, betas=(-11.83e-27,), gamma=0.11,
-                                        length=1e-4), z_samples=2)  # load kernels, plans
+    propagate(field0, grid,
+              TaylorFiber(omega0=OMEGA0, betas=(-11.83e-27,), gamma=0.11, length=1e-4),
+              options=SolverOptions(z_samples=2))  # load kernels, plans
     tracemalloc.start()
-    result = propagate(field0, grid, fiber, rtol=1e-6, z_samples=200)
+    result = propagate(field0, grid, fiber, options=SolverOptions(rtol=1e-6, z_samples=200))
     _, peak = tracemalloc.get_traced_memory()
     tracemalloc.stop()
     rss = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024  # kB on Linux

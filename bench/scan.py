@@ -12,7 +12,7 @@ beside a busy thread, at Python's default switch interval and at the scan's
    computation), as a fraction of a point's time. Both executors are warmed up first (imports
    and kernels in this process; the fork server, which a process starts once), so this is the
    steady state of a session that runs several scans: with 2 workers the second one is the
-   pool process kept from the previous run (``hcfplan.planning.scan._KeptPool``). A third
+   pool process kept from the previous run (``hcfplan.planning.scan.pool.KeptPool``). A third
    series, ``2 (new pool)``, drops the kept pool before each run, so its pool process is forked
    from the server and pays its own first-call set-up: a session's first scan. Beside it,
    this machine's own ceiling for the same points (:func:`chain_ceiling`: two warm
@@ -91,10 +91,10 @@ def handoff_latency(interval: float) -> tuple[float, float]:
     import threading
     from concurrent.futures import ProcessPoolExecutor
 
-    from hcfplan.planning.scan import _pool_context, start_worker_server
+    from hcfplan.planning.scan import pool_context, start_worker_server
 
     start_worker_server(2)
-    with ProcessPoolExecutor(1, mp_context=_pool_context()) as pool:  # the server is warm
+    with ProcessPoolExecutor(1, mp_context=pool_context()) as pool:  # the server is warm
         pool.submit(time.perf_counter).result()
     stop = threading.Event()
 
@@ -106,7 +106,7 @@ def handoff_latency(interval: float) -> tuple[float, float]:
     sys.setswitchinterval(interval)
     threading.Thread(target=busy, daemon=True).start()
     try:
-        with ProcessPoolExecutor(1, mp_context=_pool_context()) as pool:
+        with ProcessPoolExecutor(1, mp_context=pool_context()) as pool:
             start = time.perf_counter()
             first = pool.submit(time.perf_counter).result() - start  # one clock for all
             delays = []
@@ -138,15 +138,15 @@ def chain_ceiling(plan) -> float:
     contention between the two cores)."""
     from concurrent.futures import ProcessPoolExecutor
 
-    from hcfplan.planning.scan import _pool_context, _worker_environment, point_task
+    from hcfplan.planning.scan import point_task, pool_context, worker_environment
 
     tasks = [point_task(plan, p) for p in plan.points]
     start = time.perf_counter()
     for task in tasks:
         compute_point(task)
     serial = time.perf_counter() - start
-    with _worker_environment():
-        pool = ProcessPoolExecutor(2, mp_context=_pool_context())
+    with worker_environment():
+        pool = ProcessPoolExecutor(2, mp_context=pool_context())
         warm = {pool.submit(_warm_point, tasks[0]), pool.submit(_warm_point, tasks[1])}
     with pool:
         assert len({f.result() for f in warm}) == 2, "one pool process took both warm-ups"

@@ -41,6 +41,7 @@ from hcfplan.constants import c
 from hcfplan.fibers.taylor import TaylorFiber
 from hcfplan.numerics.fft import FFT_BACKENDS, fftw_available
 from hcfplan.numerics.grid import Grid
+from hcfplan.propagation.options import SolverOptions
 from hcfplan.propagation.solve import propagate
 from hcfplan.pulse.fields import pulse_field
 
@@ -132,10 +133,10 @@ def kernel_time(points: int, backend: str, norm: str) -> float:
 def overhead(points: int, backend: str, norm: str = "relative_l2") -> None:
     grid, field0, fiber, betas = _kerr_case(points)
     propagate(field0, grid, TaylorFiber(omega0=OMEGA0, betas=betas, gamma=0.11, length=1e-3),
-              z_samples=2, fft_backend=backend)  # warm-up (JIT load, FFT plans)
+              options=SolverOptions(z_samples=2, fft_backend=backend))  # warm-up (JIT, plans)
     start = time.perf_counter()
-    result = propagate(field0, grid, fiber, rtol=1e-5, z_samples=100, fft_backend=backend,
-                       error_norm=norm)
+    options = SolverOptions(rtol=1e-5, z_samples=100, fft_backend=backend, error_norm=norm)
+    result = propagate(field0, grid, fiber, options=options)
     wall = time.perf_counter() - start
     t = transform_times(backend, points)
     ffts = 2 * result.n_rhs_evals + result.z.size  # N evaluations + one per record
@@ -177,11 +178,12 @@ def overhead_gas(points: int, backend: str) -> None:
     grid, field0, fiber, gas = _ionising_gas_case(points)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")  # fits used beyond their range at the window edges
-        propagate(field0, grid, fiber, gas=gas, z_samples=2, fft_backend=backend,
-                  max_steps=20)  # warm-up (JIT load, FFT plans, rate table)
+        # warm-up (JIT load, FFT plans, rate table)
+        propagate(field0, grid, fiber, gas=gas,
+                  options=SolverOptions(z_samples=2, fft_backend=backend, max_steps=20))
         start = time.perf_counter()
-        result = propagate(field0, grid, fiber, gas=gas, rtol=1e-6, z_samples=100,
-                           fft_backend=backend)
+        result = propagate(field0, grid, fiber, gas=gas,
+                           options=SolverOptions(rtol=1e-6, z_samples=100, fft_backend=backend))
         wall = time.perf_counter() - start
     t = transform_times(backend, points)
     ffts = 3 * result.n_rhs_evals + result.z.size
@@ -249,13 +251,13 @@ def _error(result, reference) -> float:
 
 
 def _run_case(case, **options):
-    """propagate() on a case (grid, field0, fiber[, gas]); the gas cases ignore fit-range
-    warnings (window edges)."""
+    """propagate() on a case (grid, field0, fiber[, gas]) with two records and the given
+    :class:`SolverOptions` fields; the gas cases ignore fit-range warnings (window edges)."""
     grid, field0, fiber, *gas = case
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
-        return propagate(field0, grid, fiber, gas=gas[0] if gas else None, z_samples=2,
-                         **options)
+        return propagate(field0, grid, fiber, gas=gas[0] if gas else None,
+                         options=SolverOptions(z_samples=2, **options))
 
 
 def _fixed_error(case, n: int, reference) -> float:

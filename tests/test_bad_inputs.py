@@ -19,8 +19,9 @@ import pytest
 
 from hcfplan.cli.app import main
 from hcfplan.errors import ConfigError
-from hcfplan.io.tomlio import parse_toml
+from hcfplan.io.tomlio import parse_toml, parse_toml_value
 from hcfplan.materials.crystals import load_crystal
+from hcfplan.numerics.grid import Grid
 
 HERE = Path(__file__).resolve().parent / "bad_inputs"
 ROOT = HERE.parents[1]
@@ -121,7 +122,7 @@ def test_case_subprocess(case, tmp_path):
 # stated in the shipped tables: Borzsonyi et al., Appl. Opt. 47, 4856 (2008) fit 400-1000 nm
 # (gases/Ar.toml); Malitson, J. Opt. Soc. Am. 55, 1205 (1965) fused silica 0.21-3.71 um
 # (hcfplan/materials/data/solids.toml); the CoolProp equation-of-state limits (Neon T <= 725 K);
-# the near-critical and near-saturation bands are common practice, no source (gases.py).
+# the near-critical and near-saturation bands are common practice, no source (gas_phase.py).
 VALIDITY_CASES = {
     "pump-beyond-gas-fit": (["laser.wavelength_nm=1800"],
                             ["dispersion fit", "valid for 400-1000 nm", "1800-1800 nm"]),
@@ -177,3 +178,35 @@ def test_thz_spectrum_beyond_crystal_fit_is_a_warning(capsys, tmp_path):
     assert code == 0, captured.err
     warnings = json.loads(captured.out)["warnings"]
     assert any("outside the validity range 700-2000 nm" in w for w in warnings), warnings
+
+
+# ---------------------------------------------------------------------------------------------
+# Errors below the config boundary are the tool's own (ConfigError, a ValueError), so that a
+# command reports them as one line, never as a traceback
+
+INTERNAL = [
+    (Grid, (8, 1e-15, 2.4e15), "grid points = 8: must be >= 16"),
+    (Grid, (64, 1e-16, 2.4e15), "grid frequency window reaches zero frequency"),
+    (parse_toml_value, ("[1, 2",), "cannot parse '[1, 2' as a TOML value"),
+    (parse_toml_value, ("  ",), "empty value"),
+]
+
+
+@pytest.mark.parametrize("function,args,fragment", INTERNAL,
+                         ids=["grid-points", "grid-window", "toml-value", "toml-empty"])
+def test_internal_checks_raise_config_error(function, args, fragment):
+    with pytest.raises(ConfigError) as info:
+        function(*args)
+    assert fragment in str(info.value)
+
+
+def test_plot_envelope_contours_is_a_config_error():
+    import matplotlib
+
+    matplotlib.use("Agg")
+    from matplotlib.figure import Figure
+
+    from hcfplan.plotting.envelope import plot_envelope
+
+    with pytest.raises(ConfigError, match=r"contours = 'lines': use 'duration', 'cutoff'"):
+        plot_envelope(Figure().subplots(), None, contours="lines")

@@ -1,4 +1,5 @@
-"""hcfplan's cache folder (hcfplan.numerics.cache): a cached rate table is the computed one, is read
+"""hcfplan's cache folder (hcfplan.numerics.cache) as used by
+hcfplan.ionization.tables.cached_rate_table: a cached rate table is the computed one, is read
 back instead of computed again, and a damaged file or unwritable folder is never an error.
 
 Invariant checks: a cache returns exactly what the formula computes (common practice, no
@@ -11,7 +12,6 @@ import numpy as np
 import pytest
 
 from hcfplan.ionization import tables as ionization_tables
-from hcfplan.numerics import cache
 
 EV = 1.602176634e-19
 #: Argon at 800 nm: Ip 15.7596 eV (NIST Atomic Spectra Database, ionization energies), 3p
@@ -31,10 +31,10 @@ def _refuse(*args, **kwargs):
 
 def test_rate_table_is_stored_exactly_and_read_back(folder, monkeypatch):
     direct = ionization_tables.tabulate_rate(*ARGON)
-    first = cache.cached_rate_table(*ARGON)
+    first = ionization_tables.cached_rate_table(*ARGON)
     assert [p.name.split("-")[0] for p in folder.iterdir()] == ["rate"]
     monkeypatch.setattr(ionization_tables, "tabulate_rate", _refuse)
-    again = cache.cached_rate_table(*ARGON)
+    again = ionization_tables.cached_rate_table(*ARGON)
     for table in (first, again):
         np.testing.assert_array_equal(table.log_intensity, direct.log_intensity)
         np.testing.assert_array_equal(table.log_rate, direct.log_rate)
@@ -44,27 +44,27 @@ def test_rate_table_is_stored_exactly_and_read_back(folder, monkeypatch):
 
 
 def test_other_inputs_get_their_own_entry(folder):
-    cache.cached_rate_table(*ARGON)
-    cache.cached_rate_table("adk", *ARGON[1:])
+    ionization_tables.cached_rate_table(*ARGON)
+    ionization_tables.cached_rate_table("adk", *ARGON[1:])
     assert len(list(folder.glob("rate-table-*.npz"))) == 2
 
 
 @pytest.mark.parametrize("content", [b"", b"PK\x03\x04 not a zip", b"\x93NUMPY garbage"])
 def test_damaged_file_is_computed_again_and_replaced(folder, content):
-    cache.cached_rate_table(*ARGON)
+    ionization_tables.cached_rate_table(*ARGON)
     (path,) = folder.glob("rate-table-*.npz")
     path.write_bytes(content)
-    table = cache.cached_rate_table(*ARGON)
+    table = ionization_tables.cached_rate_table(*ARGON)
     np.testing.assert_array_equal(table.log_rate, ionization_tables.tabulate_rate(*ARGON).log_rate)
     with np.load(path) as stored:
         assert sorted(stored.files) == ["log_intensity", "log_rate"]
 
 
 def test_readable_file_with_wrong_content_is_not_used(folder):
-    cache.cached_rate_table(*ARGON)
+    ionization_tables.cached_rate_table(*ARGON)
     (path,) = folder.glob("rate-table-*.npz")
     np.savez(path, log_intensity=np.array([2.0, 1.0]), log_rate=np.array([0.0, 0.0]))
-    table = cache.cached_rate_table(*ARGON)
+    table = ionization_tables.cached_rate_table(*ARGON)
     np.testing.assert_array_equal(table.log_rate, ionization_tables.tabulate_rate(*ARGON).log_rate)
     with np.load(path) as stored:  # and the file is replaced by the computed table
         np.testing.assert_array_equal(stored["log_rate"], table.log_rate)
@@ -74,5 +74,18 @@ def test_unwritable_folder_is_not_an_error(tmp_path, monkeypatch):
     blocker = tmp_path / "a-file"
     blocker.write_text("")
     monkeypatch.setenv("HCFPLAN_CACHE_DIR", str(blocker / "cache"))
-    table = cache.cached_rate_table(*ARGON)
+    table = ionization_tables.cached_rate_table(*ARGON)
     assert table.log_rate.size >= 2
+
+
+@pytest.mark.parametrize(("arrays", "sound"), [
+    ({"log_intensity": np.array([1.0, 2.0]), "log_rate": np.array([-5.0, -4.0])}, True),
+    ({"log_intensity": np.array([1.0, 2.0])}, False),
+    ({"log_intensity": np.array([1.0, np.nan]), "log_rate": np.array([0.0, 0.0])}, False),
+    ({"log_intensity": np.array([1.0, 2.0, 3.0]), "log_rate": np.array([0.0, 0.0])}, False),
+    ({"log_intensity": np.array([1.0]), "log_rate": np.array([0.0])}, False),
+    ({"log_intensity": np.array([2.0, 1.0]), "log_rate": np.array([0.0, 0.0])}, False),
+])
+def test_rate_table_soundness(arrays, sound):
+    # common practice, no source: only arrays a RateTable can interpolate are accepted
+    assert ionization_tables.rate_table_is_sound(arrays) is sound

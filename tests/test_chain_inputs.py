@@ -88,3 +88,120 @@ def test_wedge_trim_is_used(tmp_path):
                         'wedge_material = "fused_silica"\nwedge_max_insertion_mm = 3.0')
     chain = run_chain(_config(tmp_path, text, ["grid.points=1024"]))
     assert 0.0 <= chain.compression.trim_insertion <= 3e-3
+
+
+# ---------------------------------------------------------------------------------------------
+# The run reads no file: measured curves travel in the config as arrays
+
+
+def test_run_needs_no_file_after_loading(tmp_path):
+    # contract: the measured spectrum and mirror GDD curve are read by load_config; deleting
+    # both files afterwards leaves the run unchanged (run_chain does no file I/O)
+    spectrum = tmp_path / "spectrum.csv"
+    spectrum.write_text((ROOT / "configs" / "demo_broadened_spectrum.csv").read_text())
+    curve = tmp_path / "mirror.csv"
+    wl = np.linspace(800.0, 1300.0, 101)
+    curve.write_text("wavelength_nm,gdd_fs2\n" + "\n".join(f"{w:.2f},-40.0" for w in wl))
+    text = (FAST.replace('shape = "gaussian"', 'spectrum_csv = "spectrum.csv"')
+            .replace("wavelength_nm = 800.0", "wavelength_nm = 1030.0")
+            .replace("mirror_gdd_fs2 = -40.0", 'mirror_gdd_csv = "mirror.csv"'))
+    cfg = _config(tmp_path, text, ["grid.points=1024", "fiber.length_m=0.05"])
+    spectrum.unlink()
+    curve.unlink()
+    chain = run_chain(cfg)
+    assert chain.propagation.success
+    assert chain.compression is not None
+    assert cfg.laser.spectrum.source == spectrum
+    assert cfg.laser.spectrum.wavelength[0] == pytest.approx(900e-9)  # first line of the file
+    assert cfg.compressor.mirror_gdd_curve.values[0] == pytest.approx(-40e-30)  # fs^2 -> s^2
+    assert not cfg.laser.spectrum.values.flags.writeable
+
+
+# ---------------------------------------------------------------------------------------------
+# Input errors found only when the physics is built: one ConfigError naming the user's keys
+
+RUN_ERRORS = [
+    # (overrides of FAST, fragment of the message: the keys and values as the user wrote them)
+    (["fiber.bend_radius_m=0.1"],
+     "fiber.length_m = 0.3 with fiber.core_diameter_um = 250.0, fiber.mode = EH11, "
+     "fiber.bend_radius_m = 0.1: the linear loss at the pump (laser.wavelength_nm = 800.0) is"),
+    (["fiber.core_diameter_um=2.0"],
+     "fiber.length_m = 0.3 with fiber.core_diameter_um = 2.0, fiber.mode = EH11: the linear "
+     "loss"),
+    (["fiber.length_m=100.0", "fiber.core_diameter_um=50.0"],
+     "fiber.length_m = 100.0 with fiber.core_diameter_um = 50.0"),
+    (["gas.temperature_k=50.0"], "gas.pressure_bar = 0.6, gas.temperature_k = 50: Ar at 0.6 bar"),
+]
+
+
+@pytest.mark.parametrize("overrides,fragment", RUN_ERRORS, ids=[r[0][0] for r in RUN_ERRORS])
+def test_run_input_error_names_the_keys(tmp_path, overrides, fragment):
+    from hcfplan.errors import ConfigError
+
+    cfg = _config(tmp_path, FAST, ["grid.points=512", *overrides])
+    with pytest.raises(ConfigError) as info:
+        run_chain(cfg)
+    message = str(info.value)
+    assert fragment in message
+    assert "\n" not in message and len(message) < 500
+    assert "core_radius" not in message  # no internal SI parameter
+
+
+def test_taylor_loss_that_leaves_no_light_names_the_loss_key(tmp_path):
+    # analytic: 1e4 dB/m over 0.1 m is 1000 dB, beyond MAX_FIBER_LOSS_DB (300 dB)
+    from hcfplan.errors import ConfigError
+
+    text = (ROOT / "configs" / "taylor_pcf_check.toml").read_text()
+    cfg = _config(tmp_path, text, ["grid.points=512", "grid.time_window_fs=3000.0",
+                                   "fiber.loss_db_per_m=10000.0", "fiber.length_m=0.1"])
+    with pytest.raises(ConfigError, match=r"^fiber\.length_m = 0\.1 with "
+                       r"fiber\.loss_db_per_m = 10000\.0: the linear loss at the pump "
+                       r"\(laser\.wavelength_nm = 835\.0\) is 1e\+04 dB/m, 1000 dB over the "
+                       r"fiber; above 300 dB"):
+        run_chain(cfg)
+
+
+# ---------------------------------------------------------------------------------------------
+# Warnings: hcfplan's own keep their text, any other says where it comes from
+
+
+def _module_function(module: str, source: str, name: str):
+    """A function defined in (a stand-in for) the module ``module``, as its frames report."""
+    namespace = {"__name__": module, "np": np}
+    exec(compile(source, f"<{module}>", "exec"), namespace)  # noqa: S102 (test helper)
+    return namespace[name]
+
+
+def test_numpy_warning_in_a_run_names_numpy_and_the_module(tmp_path, monkeypatch):
+    # contract: a numpy floating-point warning raised inside a run reaches the run's warning
+    # list as "numpy (in <hcfplan module>): <numpy's text>"
+    import hcfplan.planning.chain as chain_module
+
+    check = _module_function("hcfplan.fibers.stand_in", (
+        "def check(config, waveguide, omega0):\n"
+        "    return float(np.sqrt(np.array(-1.0)))\n"), "check")
+    monkeypatch.setattr(chain_module, "check_transmission", check)
+    chain = run_chain(_config(tmp_path, FAST, ["grid.points=512", "fiber.length_m=0.05"]))
+    assert "numpy (in hcfplan.fibers.stand_in): invalid value encountered in sqrt" in \
+        chain.warnings
+
+
+def test_warning_lines_by_origin():
+    import warnings
+
+    import scipy.integrate
+
+    from hcfplan.errors import ValidityWarning
+    from hcfplan.planning.validity import collect_warnings
+
+    divide = _module_function("hcfplan.thz.stand_in", (
+        "def divide(x):\n"
+        "    return np.array([1.0]) / x\n"), "divide")
+    with collect_warnings() as lines:
+        divide(np.array([0.0]))
+        warnings.warn("fit used outside 400-1000 nm", ValidityWarning, stacklevel=1)
+        scipy.integrate.quad(lambda x: abs(x - 0.3) ** -0.5, 0.0, 1.0, limit=1)
+    assert lines[0] == "numpy (in hcfplan.thz.stand_in): divide by zero encountered in divide"
+    assert lines[1] == "fit used outside 400-1000 nm"
+    assert lines[2].startswith("scipy (in scipy.integrate.")
+    assert len(lines) == 3

@@ -142,3 +142,45 @@ def test_envelope_json_and_plot(capsys, tmp_path):
 def test_envelope_refuses_taylor(capsys):
     code, _, err = run(capsys, "envelope", str(ROOT / "configs" / "taylor_pcf_check.toml"))
     assert code == 2 and "Traceback" not in err
+
+
+def test_interrupt_inside_a_command_exit_130_one_line(capsys, monkeypatch):
+    # contract: Ctrl-C (KeyboardInterrupt) inside any command ends it with exit 130 and one
+    # stderr line, no traceback. No external source is needed for this check.
+    from hcfplan.io import config as io_config
+
+    def interrupted(*args, **kwargs):
+        raise KeyboardInterrupt
+
+    monkeypatch.setattr(io_config, "load_config", interrupted)
+    code, out, err = run(capsys, "check", str(DEMOS[0]))
+    assert code == 130
+    assert err.strip() == "hcfplan: interrupted; nothing written", err
+    assert out == ""
+
+
+def test_interrupted_message_names_only_what_was_written(tmp_path):
+    # contract of hcfplan.cli.common.WrittenFiles: files present before the command started
+    # are not listed, temporary files (".name.xxx") are not listed, files in a subfolder are
+    # counted. No external source is needed for this check.
+    from hcfplan.cli.common import WRITTEN, interrupted_message
+
+    folder = tmp_path / "scan"
+    folder.mkdir()
+    (folder / "old.csv").write_text("old\n")
+    figure = tmp_path / "fig.png"
+    WRITTEN.clear()
+    try:
+        WRITTEN.watch(folder, "resumable")
+        WRITTEN.watch(figure)
+        assert interrupted_message() == "interrupted; nothing written"
+        (folder / "points").mkdir()
+        for name in ("a.json", "b.json"):
+            (folder / "points" / name).write_text("{}\n")
+        (folder / "table.csv").write_text("x\n")
+        (folder / ".table.csv.tmp123").write_text("half")
+        message = interrupted_message()
+    finally:
+        WRITTEN.clear()
+    assert message == (f"interrupted; kept {folder}/: table.csv, points/ with 2 files "
+                       "(complete files only); resumable")

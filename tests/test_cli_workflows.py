@@ -44,13 +44,13 @@ def test_scan_releases_its_workers_before_the_figures(capsys, tmp_path, monkeypa
     from hcfplan.planning import scan
 
     kept_at_figures = []
-    real = cli_workflows._scan_figures
+    real = cli_workflows.scan_figures
 
     def figures(*args):
-        kept_at_figures.append(scan._KEPT._pool)
+        kept_at_figures.append(scan.KEPT_POOL.pool)
         return real(*args)
 
-    monkeypatch.setattr(cli_workflows, "_scan_figures", figures)
+    monkeypatch.setattr(cli_workflows, "scan_figures", figures)
     config = write_fast_config(tmp_path)
     code, _, err = run(capsys, "scan", config, "--vary", "gas.pressure_bar=1:2:3", "--out",
                        tmp_path / "scan", "--workers", "2", "--json")

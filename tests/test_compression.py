@@ -1,5 +1,5 @@
-"""Tests of the compressor elements (hcfplan.compression.elements) and the bounce optimisation
-(hcfplan.compression.compressor)."""
+"""Tests of the compressor elements (hcfplan.compression.elements), the bounce optimisation
+(hcfplan.compression.compressor) and its evaluation machinery (hcfplan.compression.scoring)."""
 
 from __future__ import annotations
 
@@ -324,7 +324,7 @@ def test_scorer_scores_the_plain_formula(grid: Grid, objective: str, clipped: bo
     # consistency: the search's scorer (only the nonzero samples, a folded common phase, the
     # solver's FFT back end) gives objective(to_time(spectrum exp(i phase))) to 1e-12, for a
     # band-clipped spectrum (exact zeros outside the band) and an unclipped one
-    from hcfplan.compression.compressor import OBJECTIVES, _peak_powers, _Scorer
+    from hcfplan.compression.scoring import OBJECTIVES, Scorer, peak_powers
 
     rng = np.random.default_rng(3)
     spectrum = _chirped(grid, 900e-30) * np.exp(1j * rng.normal(0, 0.3, grid.points))
@@ -338,13 +338,13 @@ def test_scorer_scores_the_plain_formula(grid: Grid, objective: str, clipped: bo
     def plain(phase: np.ndarray) -> float:
         return fun(grid, grid.to_time(spectrum * np.exp(1j * phase)))
 
-    score = _Scorer(grid, spectrum, fun)
+    score = Scorer(grid, spectrum, fun)
     assert score(score.part(common)) == pytest.approx(plain(common), rel=1e-12)
     shaped = score.with_phase(score.part(common))
     assert shaped(shaped.polynomial(-700e-30, 5e-42)) == pytest.approx(
         plain(common + polynomial), rel=1e-12)
     assert score(score.part(common)) == pytest.approx(plain(common), rel=1e-12)  # unchanged
-    peaks = _peak_powers(score, [common, common + polynomial])
+    peaks = peak_powers(score, [common, common + polynomial])
     expected = [metrics.peak_power(grid.to_time(spectrum * np.exp(1j * p)))
                 for p in (common, common + polynomial)]
     np.testing.assert_allclose(peaks, expected, rtol=1e-12)
@@ -422,3 +422,21 @@ def test_plots_draw(grid: Grid) -> None:
         assert plots.plot_peak_power_vs_bounces(axes[3], result) is axes[3]
     finally:
         plt.close(fig)
+
+
+# --- docstrings ----------------------------------------------------------------------------
+
+
+@pytest.mark.parametrize("module", ["compressor", "elements", "references", "scoring"])
+def test_public_functions_name_their_source(module: str) -> None:
+    # house rule: every public function of hcfplan.compression has a References section in its
+    # own docstring (a published source, or "None: ..." for a numerical helper)
+    import importlib
+    import inspect
+
+    mod = importlib.import_module(f"hcfplan.compression.{module}")
+    missing = [name for name, obj in vars(mod).items()
+               if not name.startswith("_") and inspect.isfunction(obj)
+               and obj.__module__ == mod.__name__
+               and "\nReferences\n----------\n" not in (inspect.getdoc(obj) or "")]
+    assert not missing, f"hcfplan.compression.{module}: no References section in {missing}"

@@ -248,3 +248,68 @@ def test_mapping_fractions_must_sum_to_one():
            "gas": {"mixture": {"He": 0.5, "Ar": 0.3}, "pressure_bar": 1.0}}
     with pytest.raises(ConfigError, match=r"gas\.mixture: mole fractions sum to 0\.8"):
         config_from_mapping(raw)
+
+
+# Values that pass a plain range check but that no model can use, and keys that depend on each
+# other: one ConfigError naming the keys as written (error tests; the bounds are common
+# practice, no source, see hcfplan.io.schema.Key).
+CROSS = [
+    ("laser.energy_uj=0.0", "laser.energy_uj = 0.0: must be >= 1e-06"),
+    ("laser.beam_waist_um=0.001", "laser.beam_waist_um = 0.001: must be >= 1"),
+    ("fiber.bend_radius_m=1e-300", "fiber.bend_radius_m = 1e-300: must be >= 0.001"),
+    ("fiber.raman_fraction=1.0", "fiber.raman_fraction = 1.0: must be < 1"),
+    ("fiber.raman_tau1_fs=1e-300", "fiber.raman_tau1_fs = 1e-300: must be >= 0.1"),
+    ("fiber.raman_tau2_fs=0.0", "fiber.raman_tau2_fs = 0.0: must be >= 0.1"),
+    ("thz.cutoff_db=0.0", "thz.cutoff_db = 0.0: must be < 0"),
+    ("thz.thickness_mm=1e-300", "thz.thickness_mm = 1e-300: must be >= 0.001"),
+    ("thz.beam_waist_um=1e-300", "thz.beam_waist_um = 1e-300: must be >= 1"),
+    ("thz.probe_fwhm_fs=0.5", "thz.probe_fwhm_fs = 0.5: must be > 1"),
+    ("limits.ionization_fraction_limit=1.0",
+     "limits.ionization_fraction_limit = 1.0: must be < 1"),
+    ("grid.points=4097", "grid.points = 4097: must be an even number"),
+    ("grid.time_window_fs=20.0", "grid.time_window_fs = 20.0: the frequency window reaches "
+     "zero frequency at laser.wavelength_nm = 1030.0; 16 points need a time window > 27.49 fs"),
+    (["grid.points=65536", "grid.time_window_fs=1000.0"], "grid.points = 65536, "
+     "grid.time_window_fs = 1000.0: the frequency window reaches zero frequency at "
+     "laser.wavelength_nm = 1030.0"),
+    ("compressor.mirror_band_nm=[600.0, 1000.0]", "compressor.mirror_band_nm = [600.0, 1000.0]: "
+     "must contain the pump, laser.wavelength_nm = 1030.0"),
+    (["fiber.kind=antiresonant", "fiber.wall_thickness_um=50.0"], "fiber.wall_thickness_um = "
+     "50.0: must be smaller than the core radius, half of fiber.core_diameter_um = 100.0"),
+]
+
+
+@pytest.mark.parametrize("overrides,fragment", CROSS, ids=[c[1][:36] for c in CROSS])
+def test_unusable_value_names_the_key(tmp_path, overrides, fragment):
+    overrides = [overrides] if isinstance(overrides, str) else overrides
+    with pytest.raises(ConfigError) as info:
+        load_config(write(tmp_path, BASE), overrides=overrides)
+    assert fragment in str(info.value)
+    assert "\n" not in str(info.value)
+
+
+def test_grid_limits_at_the_edge_are_accepted(tmp_path):
+    # analytic: 16 points over T need T > 16 lambda / (2 c) = 27.487 fs at 1030 nm, and
+    # 65536 points need 112.6 ps; just above both the config loads
+    cfg = load_config(write(tmp_path, BASE), overrides=["grid.time_window_fs=27.5"])
+    assert cfg.grid.time_window == pytest.approx(27.5e-15)
+    cfg = load_config(write(tmp_path, BASE), overrides=["grid.points=65536",
+                                                        "grid.time_window_fs=112600.0"])
+    assert cfg.grid.points == 65536
+
+
+def test_taylor_gamma_zero_is_refused(tmp_path):
+    text = (ROOT / "configs" / "taylor_pcf_check.toml").read_text()
+    with pytest.raises(ConfigError, match=r"^fiber\.gamma_per_w_per_m = 0\.0: must be > 0$"):
+        load_config(write(tmp_path, text), overrides=["fiber.gamma_per_w_per_m=0.0"])
+
+
+def test_measured_spectrum_must_hold_the_pump(tmp_path):
+    spectrum = tmp_path / "s.csv"
+    spectrum.write_text("wavelength_nm,intensity\n1000,0.2\n1030,1.0\n1060,0.2\n")
+    text = BASE.replace("energy_uj = 20.0", 'energy_uj = 20.0\nspectrum_csv = "s.csv"')
+    cfg = load_config(write(tmp_path, text))  # 1030 nm lies inside 1000-1060 nm
+    assert cfg.laser.spectrum.wavelength == pytest.approx([1000e-9, 1030e-9, 1060e-9])
+    with pytest.raises(ConfigError, match=r"^laser\.wavelength_nm = 800\.0: outside the "
+                       r"measured spectrum of laser\.spectrum_csv \(1000-1060 nm\)"):
+        load_config(write(tmp_path, text), overrides=["laser.wavelength_nm=800.0"])

@@ -14,6 +14,7 @@ from scipy.signal import argrelmax
 
 from hcfplan.constants import c
 from hcfplan.errors import ConfigError, ValidityWarning
+from hcfplan.materials import crystal_tables, crystals
 from hcfplan.materials.crystals import (
     coherence_length,
     crystal_names,
@@ -275,3 +276,9 @@ def test_velocity_matching_wavelength(name, lo, hi):
         l_c = coherence_length(table, _omega(wavelength), TWO_PI * 1e12)
     best = wavelength[np.argmax(l_c)]
     assert lo <= best <= hi
+
+
+def test_every_model_name_of_the_tables_has_an_evaluator():
+    """Contract between the loader and the evaluators: the same model names, in order."""
+    assert tuple(crystals.OPTICAL_MODELS) == crystal_tables.OPTICAL_MODEL_NAMES
+    assert tuple(crystals.THZ_MODELS) == crystal_tables.THZ_MODEL_NAMES

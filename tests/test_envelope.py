@@ -14,6 +14,7 @@ from scipy.special import lambertw
 from hcfplan.errors import ConfigError
 from hcfplan.fibers import derived
 from hcfplan.io.config import load_config
+from hcfplan.ionization.fraction import pulse_ionization_fraction
 from hcfplan.limits import beam as limits
 from hcfplan.materials.gases import GasFill, gas_medium
 from hcfplan.planning.build import build_medium, build_waveguide, coupling, pump_omega
@@ -97,8 +98,7 @@ def test_ionization_line_flat_and_at_limit(mapped):
     power = pulse.peak_power_from_energy(result.ionization_max_energy[0] * coupling(config)[0],
                                          laser.duration_fwhm, laser.shape)
     rates = weighted_rates(medium, laser.wavelength, config.gas.ionization_model)
-    fraction = limits.pulse_ionization_fraction(power / area, laser.duration_fwhm, laser.shape,
-                                                rates)
+    fraction = pulse_ionization_fraction(power / area, laser.duration_fwhm, laser.shape, rates)
     assert fraction == pytest.approx(config.limits.ionization_fraction_limit, rel=1e-8)
 
 

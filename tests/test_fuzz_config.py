@@ -5,8 +5,10 @@ Error-contract tests (STYLE.md section 6): for any TOML-like mapping and any ``-
 :class:`~hcfplan.errors.ConfigError` with a one-line message; never any other exception.
 Inputs mix schema sections and keys with unknown ones, and values of every TOML type
 (NaN, infinities, huge and negative numbers, integers beyond the float range, strings,
-lists, nested tables, dates). Bounded by ``max_examples``; the whole module runs in seconds. No
-external source is needed for these checks.
+lists, nested tables, dates). Past the loader, configs with values at the edges of the schema
+ranges build their physics (gas, fiber, loss, coupling, grid) or stop with a ConfigError that
+names a config key. Bounded by ``max_examples``; the whole module runs in seconds. No external
+source is needed for these checks.
 """
 
 from __future__ import annotations
@@ -14,6 +16,7 @@ from __future__ import annotations
 import copy
 import datetime
 import math
+import re
 from pathlib import Path
 
 from hypothesis import HealthCheck, given, settings
@@ -169,3 +172,67 @@ def test_apply_overrides_then_load(overrides):
     assert isinstance(data, dict)
     assert BASE == _base()  # the input mapping is not changed
     _load(BASE, overrides)
+
+
+# ---------------------------------------------------------------------------------------------
+# Past the loader: any config that loads either builds its physics (gas, fiber, coupling, grid)
+# or stops with a ConfigError that names a config key; never another exception
+
+NUMERIC = sorted((section, key) for section, table in SCHEMA.items()
+                 for key, spec in table.items() if spec.kind in ("float", "int")
+                 and section in ("laser", "fiber", "gas", "grid"))
+KEY_IN_MESSAGE = re.compile(rf"\b({'|'.join(SCHEMA)})\.[a-z0-9_]+\b")
+
+
+def _edge_values(section: str, key: str) -> list:
+    """The bounds of a key, just inside them, and a value in between (the key's unit)."""
+    spec = SCHEMA[section][key]
+    low = spec.low if spec.low is not None else -1e6
+    high = spec.high if spec.high is not None else 1e6
+    inside = [low * (1 + 1e-9) + 1e-300, high * (1 - 1e-9), math.sqrt(max(low, 1e-300) * high)]
+    values = ([] if spec.low_open else [low]) + ([] if spec.high_open else [high]) + inside
+    if spec.kind == "int":
+        values = sorted({int(math.ceil(low)), int(high), int(math.ceil(low)) + 1})
+    return values
+
+
+@st.composite
+def edge_configs(draw):
+    data = copy.deepcopy(BASE)
+    data["grid"] = {"points": 256}
+    for section, key in draw(st.lists(st.sampled_from(NUMERIC), min_size=1, max_size=3)):
+        data.setdefault(section, {})[key] = draw(st.sampled_from(_edge_values(section, key)))
+    return data
+
+
+@settings(max_examples=60, deadline=None, derandomize=True,
+          suppress_health_check=[HealthCheck.too_slow])
+@given(edge_configs())
+def test_edge_values_build_or_name_a_key(mapping):
+    from hcfplan.numerics.grid import choose_grid
+    from hcfplan.planning.build import (
+        build_medium,
+        build_waveguide,
+        check_transmission,
+        coupling,
+        pump_omega,
+    )
+    from hcfplan.planning.validity import quiet_validity
+
+    cfg = _load(mapping)
+    if cfg is None:
+        return
+    try:
+        with quiet_validity():  # range notes are not errors
+            omega0 = pump_omega(cfg.laser)
+            medium = build_medium(cfg.gas)
+            waveguide = build_waveguide(cfg.fiber, medium, omega0)
+            check_transmission(cfg, waveguide, omega0)
+            efficiency = coupling(cfg)[0]
+            choose_grid(omega0, cfg.laser.duration_fwhm, points=cfg.grid.points,
+                        time_window=cfg.grid.time_window)
+    except ConfigError as exc:
+        _one_line(exc)
+        assert KEY_IN_MESSAGE.search(str(exc)), str(exc)
+        return
+    assert 0.0 < efficiency <= 1.0

@@ -17,12 +17,12 @@ import pytest
 
 from hcfplan.constants import P_1ATM, c, eV
 from hcfplan.errors import ConfigError, ValidityWarning
-from hcfplan.materials import gas_tables
+from hcfplan.materials import gas_table_schema, gas_tables
+from hcfplan.materials.gas_density import number_density
 from hcfplan.materials.gases import (
     available_gases,
     gas_search_dirs,
     load_gas_table,
-    number_density,
     refractive_index,
     refractive_index_reference,
 )
@@ -386,3 +386,20 @@ def test_two_dispersion_defaults_are_an_error(tmp_path):
     (tmp_path / "air.toml").write_text(text)
     with pytest.raises(ConfigError, match=r"air\.toml: dispersion\.default: exactly one.*found 2"):
         load_gas_table("air", [tmp_path])
+
+
+def test_every_dispersion_form_has_an_evaluator_and_coefficient_keys():
+    """Contract between the schema and the evaluators: the same set of form names."""
+    assert set(gas_tables.DISPERSION_FORMS) == set(gas_table_schema.DISPERSION_FORM_KEYS)
+
+
+@pytest.mark.parametrize(("gas", "label"), [("Ar", "Ar"), ("air", "air"), ("N2", "N2")])
+def test_table_label_is_the_symbol(gas, label):
+    assert load_gas_table(gas).label == label
+
+
+def test_schema_version_other_than_the_one_read_is_an_error(tmp_path):
+    """Error: a table written for another layout version names the version this one reads."""
+    _broken_copy(tmp_path, "schema_version = 1", "schema_version = 2")
+    with pytest.raises(ConfigError, match=r"Ar\.toml: schema_version = 2: .*schema_version = 1"):
+        load_gas_table("Ar", [tmp_path])

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import ast
+import pathlib
 import warnings
 
 import numpy as np
@@ -10,15 +12,13 @@ import pytest
 from hcfplan.constants import P_1ATM, c, k_B
 from hcfplan.errors import ConfigError, GasPhaseError, ValidityWarning
 from hcfplan.fibers.base import GasLike
-from hcfplan.materials import gases
+from hcfplan.materials.gas_density import amagat_density, dalton_density, number_density
+from hcfplan.materials.gas_phase import check_fill, coolprop_phase, fill_phase
 from hcfplan.materials.gases import (
     GasFill,
-    check_fill,
-    fill_phase,
     gas_medium,
     kerr_coefficient,
     load_gas_table,
-    number_density,
     refractive_index,
 )
 
@@ -106,7 +106,7 @@ def test_number_density_rejects_bad_input(kwargs, message):
 def test_coolprop_phase_strings(gas, temperature, pressure, raw, phase):
     """Contract with CoolProp: raw PhaseSI strings and their mapping."""
     table = load_gas_table(gas)
-    assert gases._coolprop_phase(table.coolprop_name, pressure, temperature) == raw
+    assert coolprop_phase(table.coolprop_name, pressure, temperature) == raw
     assert fill_phase(table, pressure, temperature) == phase
 
 
@@ -305,3 +305,53 @@ def test_bad_fills_are_rejected(components, pressure, message):
 def test_unknown_component_lists_gases():
     with pytest.raises(ConfigError, match=r"'H2'.*available gases"):
         gas_medium(GasFill((("H2", 1.0),), 1e5, 293.15))
+
+
+@pytest.mark.parametrize("gas", ["Ar", "Xe"])
+def test_mixing_rules_of_one_component_give_the_pure_density(gas):
+    """Analytic identity: with a single component (x = 1) Amagat's and Dalton's laws both
+    reduce to the pure-fluid EOS density (Dalton to the root tolerance 1e-12)."""
+    table = load_gas_table(gas)
+    pure = number_density(table, 20e5, 293.15)
+    assert amagat_density([table], [1.0], 20e5, 293.15) == pytest.approx(pure, rel=1e-14)
+    assert dalton_density([table], [1.0], 20e5, 293.15) == pytest.approx(pure, rel=1e-10)
+
+
+def test_mixing_rules_agree_near_the_ideal_limit():
+    """Analytic limit: at 0.1 bar, 293 K both rules give p/(k_B T) to 1e-3 for Ar/Xe."""
+    tables = [load_gas_table("Ar"), load_gas_table("Xe")]
+    ideal = 1e4 / (k_B * 293.15)
+    assert amagat_density(tables, [0.5, 0.5], 1e4, 293.15) == pytest.approx(ideal, rel=1e-3)
+    assert dalton_density(tables, [0.5, 0.5], 1e4, 293.15) == pytest.approx(ideal, rel=1e-3)
+
+
+# --- docstrings of the materials layer ---------------------------------------------------------
+
+MATERIALS = pathlib.Path(__file__).resolve().parents[1] / "hcfplan" / "materials"
+
+
+def _public_functions() -> list[tuple[str, str, str]]:
+    """(module file, name, docstring) of every public module function and public method
+    (properties excluded)."""
+    found = []
+    for path in sorted(MATERIALS.glob("*.py")):
+        tree = ast.parse(path.read_text())
+        classes = [node for node in tree.body if isinstance(node, ast.ClassDef)]
+        members = [("", n) for n in tree.body]
+        members += [(f"{k.name}.", n) for k in classes for n in k.body]
+        for owner, node in members:
+            public = isinstance(node, ast.FunctionDef) and not node.name.startswith("_")
+            if public and not any(getattr(d, "id", "") == "property" for d in node.decorator_list):
+                found.append((path.name, owner + node.name, ast.get_docstring(node) or ""))
+    return found
+
+
+@pytest.mark.parametrize(
+    ("module", "name", "doc"), _public_functions(), ids=lambda v: v if len(v) < 40 else "doc"
+)
+def test_public_materials_function_has_references(module, name, doc):
+    """House rule (common practice, no source): a References section with content."""
+    lines = doc.splitlines()
+    assert "References" in lines, f"{module}: {name} has no References section"
+    start = lines.index("References") + 2  # after the underline
+    assert lines[start - 1].startswith("---") and any(x.strip() for x in lines[start:])

@@ -1,4 +1,5 @@
-"""Tests of hcfplan.ionization.rates: PPT/ADK rates, barrier suppression, tables, ionised fractions.
+"""Tests of hcfplan.ionization: PPT/ADK rates, barrier suppression, tables (rates, tables) and
+the ionised fraction of a pulse and the peak intensity for a fraction (fraction).
 
 Every numerical test names its kind (published value / analytic / convergence / physics).
 Ionisation energies: NIST Atomic Spectra Database (A. Kramida, Yu. Ralchenko, J. Reader and
@@ -16,8 +17,8 @@ from scipy import integrate
 
 from hcfplan.constants import au_energy, au_field, au_time, c, e, epsilon_0, eV, hbar, m_e
 from hcfplan.errors import ConfigError
+from hcfplan.ionization import fraction, tables
 from hcfplan.ionization import rates as ion
-from hcfplan.ionization import tables
 
 W_CM2 = 1e4  # one W/cm^2 in W/m^2
 IP_EV = {"He": 24.587389011, "Ne": 21.564541, "Ar": 15.7596119, "Kr": 13.9996055, "Xe": 12.1298437}
@@ -332,7 +333,7 @@ def test_fraction_exact_for_constant_rate(neutral_start):
     # analytic: dρ/dt = W (1 - ρ) with constant W gives ρ(t) = 1 - n0 exp(-W t)
     w, dt = 3e12, 1e-15
     t = dt * np.arange(2000)
-    rho = tables.ionization_fraction(
+    rho = fraction.ionization_fraction(
         np.full(t.size, 1e17), dt, lambda i: np.full_like(i, w), neutral_start
     )
     np.testing.assert_allclose(rho, 1 - neutral_start * np.exp(-w * t), rtol=1e-12, atol=1e-15)
@@ -341,21 +342,57 @@ def test_fraction_exact_for_constant_rate(neutral_start):
 def test_fraction_tiny_rate_and_batches():
     # analytic: a rate far below 1/dt is not lost to rounding (rho = W t to first order), and a
     # 2-D history is integrated along its last axis
-    rho = tables.ionization_fraction(np.ones((3, 5)), 1e-15, lambda i: 1e-5 * i)
+    rho = fraction.ionization_fraction(np.ones((3, 5)), 1e-15, lambda i: 1e-5 * i)
     np.testing.assert_allclose(rho, np.broadcast_to(1e-20 * np.arange(5), (3, 5)), rtol=1e-12)
+
+
+@pytest.mark.parametrize("shape", ["gaussian", "sech2"])
+def test_pulse_fraction_of_a_linear_rate(shape):
+    # analytic: W = k I gives ρ = 1 - exp(-k I0 ∫ s(t) dt) over the ±3 FWHM window, with
+    # ∫ s dt = T0 sqrt(pi) erf(3 FWHM/T0) (Gaussian, FWHM/T0 = 2 sqrt(ln 2)) and
+    # 2 T0 tanh(3 FWHM/T0) (sech^2, FWHM/T0 = 2 ln(1 + sqrt 2)); the sum of the integrator is
+    # the trapezoid rule there (equal end values), exact to ~1e-9 for these smooth envelopes
+    k, fwhm, peak = 2e-5, 40e-15, 1e17
+    ratio = {"gaussian": 2 * math.sqrt(math.log(2)), "sech2": 2 * math.log1p(math.sqrt(2))}
+    t0, x_end = fwhm / ratio[shape], 3 * ratio[shape]
+    area = {"gaussian": t0 * math.sqrt(math.pi) * math.erf(x_end),
+            "sech2": 2 * t0 * math.tanh(x_end)}[shape]
+    rho = fraction.pulse_ionization_fraction(peak, fwhm, shape, [(1.0, lambda i: k * i)])
+    assert rho == pytest.approx(-math.expm1(-k * peak * area), rel=1e-7)
+    assert fraction.pulse_ionization_fraction(0.0, fwhm, shape, [(1.0, lambda i: k * i)]) == 0.0
+
+
+def test_pulse_fraction_weights_and_arrays(ar_table_800):
+    # analytic: each species adds its weight times its own fraction; an array of peaks gives
+    # the array of scalar results
+    peaks = np.array([5e13, 8e13, 1.2e14]) * W_CM2
+    alone = fraction.pulse_ionization_fraction(peaks, 50e-15, "gaussian", [(1.0, ar_table_800)])
+    mixed = fraction.pulse_ionization_fraction(
+        peaks, 50e-15, "gaussian", [(0.2, ar_table_800), (0.8, lambda i: np.zeros_like(i))])
+    np.testing.assert_allclose(mixed, 0.2 * alone, rtol=1e-14)
+    single = [fraction.pulse_ionization_fraction(p, 50e-15, "gaussian", [(1.0, ar_table_800)])
+              for p in peaks]
+    np.testing.assert_allclose(alone, single, rtol=1e-14)
 
 
 def _gaussian_fraction(peak, fwhm, rate):
     x = np.linspace(-3, 3, 2401)
-    return tables.ionization_fraction(
+    return fraction.ionization_fraction(
         peak * np.exp(-4 * math.log(2) * x**2), (x[1] - x[0]) * fwhm, rate
     )[-1]
 
 
 @pytest.fixture(scope="module")
-def ar_onset_800():
+def ar_rates_fine():
+    """Pure argon, PPT to 1e-3 over 1e12-1e16 W/cm^2: the rate input of the onset tests."""
+    table = tables.tabulate_rate("ppt", 800e-9, _ip("Ar"), 1, 0, 1, 1e16, 1e20, rtol=1e-3)
+    return [(1.0, table)]
+
+
+@pytest.fixture(scope="module")
+def ar_onset_800(ar_rates_fine):
     return {
-        fwhm: tables.intensity_for_fraction(1e-4, fwhm, "gaussian", 800e-9, _ip("Ar"), 1)
+        fwhm: fraction.peak_intensity_for_fraction(1e-4, fwhm, "gaussian", ar_rates_fine)
         for fwhm in (30e-15, 100e-15, 300e-15)
     }
 
@@ -374,17 +411,24 @@ def test_onset_falls_with_duration(ar_onset_800):
     assert ar_onset_800[30e-15] > ar_onset_800[100e-15] > ar_onset_800[300e-15]
 
 
+def test_fraction_at_onset_is_the_target(ar_onset_800, ar_rates_fine):
+    # invariant: the fraction at the returned intensity is the requested one (root tolerance)
+    rho = fraction.pulse_ionization_fraction(ar_onset_800[100e-15], 100e-15, "gaussian",
+                                             ar_rates_fine)
+    assert rho == pytest.approx(1e-4, rel=1e-8)
+
+
 @pytest.mark.parametrize("fwhm", [30e-15, 300e-15])
-def test_intensity_for_fraction_reproduces_target(fwhm, ar_onset_800):
+def test_onset_reproduces_target_with_the_formula(fwhm, ar_onset_800):
     # analytic: at the returned peak intensity the direct PPT formula (no table) on a finer
     # time grid gives the requested fraction (table error 1e-3 -> < 1 % in the fraction)
     rate = functools.partial(ion.ppt_rate, wavelength=800e-9, ip=_ip("Ar"), l=1)
     assert _gaussian_fraction(ar_onset_800[fwhm], fwhm, rate) == pytest.approx(1e-4, rel=1e-2)
 
 
-def test_sech2_onset_close_to_gaussian(ar_onset_800):
+def test_sech2_onset_close_to_gaussian(ar_onset_800, ar_rates_fine):
     # physics: same FWHM, similar core -> the onset intensity differs by only a few per cent
-    sech2 = tables.intensity_for_fraction(1e-4, 100e-15, "sech2", 800e-9, _ip("Ar"), 1)
+    sech2 = fraction.peak_intensity_for_fraction(1e-4, 100e-15, "sech2", ar_rates_fine)
     assert sech2 == pytest.approx(ar_onset_800[100e-15], rel=0.05)
 
 
@@ -395,6 +439,14 @@ def test_argon_steep_threshold(ar_onset_800, ar_table_800):
     centre = ar_onset_800[30e-15]
     low, high = (_gaussian_fraction(centre * f, 30e-15, ar_table_800) for f in (2**-0.5, 2**0.5))
     assert high / low > 100
+
+
+def test_onset_outside_the_range_is_inf_or_nan(ar_rates_fine):
+    # the fraction never reaches 1e-4 below 1e11 W/cm^2 (inf); it is above 1e-9 at 1e15 W/cm^2
+    assert math.isinf(fraction.peak_intensity_for_fraction(1e-4, 30e-15, "gaussian",
+                                                           ar_rates_fine, (1e15, 1e16)))
+    assert math.isnan(fraction.peak_intensity_for_fraction(1e-9, 30e-15, "gaussian",
+                                                           ar_rates_fine, (1e19, 1e20)))
 
 
 # ----------------------------------------------------------------------------- bad input
@@ -424,14 +476,19 @@ def test_other_functions_reject_bad_input():
     with pytest.raises(ConfigError, match=r"ip = -1\.0 J"):
         ion.barrier_suppression_intensity(-1.0)
     with pytest.raises(ConfigError, match=r"dt = 0\.0 s"):
-        tables.ionization_fraction(np.ones(3), 0.0, lambda i: i)
+        fraction.ionization_fraction(np.ones(3), 0.0, lambda i: i)
     with pytest.raises(ConfigError, match=r"intensity = -1\.0"):
-        tables.ionization_fraction(np.array([1.0, -1.0]), 1e-15, lambda i: i)
-    with pytest.raises(ConfigError, match=r"target_fraction = 1\.5"):
-        tables.intensity_for_fraction(1.5, 30e-15, "gaussian", 800e-9, ip, 1)
+        fraction.ionization_fraction(np.array([1.0, -1.0]), 1e-15, lambda i: i)
+    linear = [(1.0, lambda i: 1e-5 * i)]
+    with pytest.raises(ConfigError, match=r"limit = 1\.5: must be in \(0, 1\)"):
+        fraction.peak_intensity_for_fraction(1.5, 30e-15, "gaussian", linear)
+    with pytest.raises(ConfigError, match=r"limit = 0\.3: must be in \(0, 0\.2\)"):
+        fraction.peak_intensity_for_fraction(0.3, 30e-15, "gaussian", [(0.2, linear[0][1])])
     with pytest.raises(ConfigError, match=r"'square'.*\['gaussian', 'sech2'\]"):
-        tables.intensity_for_fraction(1e-4, 30e-15, "square", 800e-9, ip, 1)
-    with pytest.raises(ConfigError, match=r"target_fraction = 0\.0001: not reached"):
-        tables.intensity_for_fraction(
-            1e-4, 30e-15, "gaussian", 800e-9, ip, 1, intensity_bounds=(1e15, 1e16)
-        )
+        fraction.peak_intensity_for_fraction(1e-4, 30e-15, "square", linear)
+    with pytest.raises(ConfigError, match=r"intensity_range = \(2e\+16, 1e\+16\)"):
+        fraction.peak_intensity_for_fraction(1e-4, 30e-15, "gaussian", linear, (2e16, 1e16))
+    with pytest.raises(ConfigError, match=r"duration_fwhm = 0\.0 s"):
+        fraction.pulse_ionization_fraction(1e17, 0.0, "gaussian", linear)
+    with pytest.raises(ConfigError, match=r"peak_intensity = nan W/m\^2"):
+        fraction.pulse_ionization_fraction(np.nan, 30e-15, "gaussian", linear)

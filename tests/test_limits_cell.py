@@ -11,7 +11,8 @@ from numpy.polynomial import Polynomial
 from hcfplan.constants import N_A, P_1ATM
 from hcfplan.errors import ConfigError
 from hcfplan.limits import cell as lc
-from hcfplan.materials.gases import load_gas_table, number_density
+from hcfplan.materials.gas_density import number_density
+from hcfplan.materials.gases import load_gas_table
 
 
 # ----------------------------------------------------------------------------- window formula
@@ -153,3 +154,16 @@ def test_released_volume_real_gas():
     assert inside == pytest.approx(PropsSI("Dmolar", "T", 293.15, "P", 200e5, "Argon") * N_A,
                                    rel=1e-12)
     assert 1.03 < volume / (0.05 * 200e5 / P_1ATM) < 1.10
+
+
+# ----------------------------------------------------------------------------- docstrings
+def test_public_functions_name_their_source():
+    # house rule: every public function of hcfplan.limits.cell has a References section in its
+    # own docstring (a published source, or "None: ..." where there is no published model)
+    import inspect
+
+    missing = [name for name, obj in vars(lc).items()
+               if not name.startswith("_") and inspect.isfunction(obj)
+               and obj.__module__ == lc.__name__
+               and "\nReferences\n----------\n" not in (inspect.getdoc(obj) or "")]
+    assert not missing, f"no References section in {missing}"

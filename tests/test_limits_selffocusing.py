@@ -17,12 +17,12 @@ from hcfplan.limits.beam import (
     self_focusing_margin,
     self_focusing_power,
 )
+from hcfplan.materials.gas_density import number_density
 from hcfplan.materials.gases import (
     GasFill,
     gas_medium,
     kerr_coefficient,
     load_gas_table,
-    number_density,
     refractive_index,
 )
 from hcfplan.pulse.fields import peak_power_from_energy

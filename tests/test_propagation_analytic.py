@@ -22,6 +22,7 @@ from propagation_cases import (
     textbook_grid,
 )
 
+from hcfplan.propagation.options import SolverOptions
 from hcfplan.propagation.solve import propagate
 from hcfplan.pulse.fields import pulse_field, shape_t0_factor
 from hcfplan.pulse.metrics import rms_width
@@ -32,7 +33,7 @@ def test_fundamental_soliton_keeps_its_shape_over_five_periods():
     # Required by the task: max abs normalised intensity difference < 1e-5 after 5 z0.
     grid = textbook_grid()
     field0 = soliton(grid, 1.0)
-    result = propagate(field0, grid, taylor(5 * Z0), rtol=1e-7, z_samples=6)
+    result = propagate(field0, grid, taylor(5 * Z0), options=SolverOptions(rtol=1e-7, z_samples=6))
     assert result.success, result.message
     assert max_intensity_error(result.field_out_t, field0) < 1e-5
 
@@ -44,7 +45,7 @@ def test_third_order_soliton_returns_at_one_period():
     # sqrt(n) rtol ~ 5e-7 as a random walk, 2.5e-5 if all added coherently.
     grid = textbook_grid()
     field0 = soliton(grid, 3.0)
-    result = propagate(field0, grid, taylor(Z0), rtol=1e-8, z_samples=3)
+    result = propagate(field0, grid, taylor(Z0), options=SolverOptions(rtol=1e-8, z_samples=3))
     assert result.success, result.message
     assert max_intensity_error(result.field_out_t, field0) < 1e-5
     # and the check is not trivial: at z0/2 the peak power differs strongly from the input
@@ -65,7 +66,8 @@ def test_pure_spm_spectrum_matches_analytic_phase():
     # (Agrawal eq. 4.1.x, phi_NL = gamma P0 L |U|^2). Tolerance 1e-5 of the spectral peak
     # for rtol = 1e-8 (the run makes ~10^2 steps).
     grid, field0, length = _spm_case(4.5 * np.pi)
-    result = propagate(field0, grid, taylor(length, betas=(0.0,)), rtol=1e-8, z_samples=2)
+    result = propagate(field0, grid, taylor(length, betas=(0.0,)),
+                       options=SolverOptions(rtol=1e-8, z_samples=2))
     exact = field0 * np.exp(1j * GAMMA * length * np.abs(field0) ** 2)
     s_exact = np.abs(grid.to_spectrum(exact)) ** 2
     s_run = np.abs(result.field_out_spectrum) ** 2
@@ -83,7 +85,8 @@ def test_spm_peak_count(phi_over_pi, peaks):
     # analytic rule of thumb: M ~ phi_max/pi + 1/2 peaks (Agrawal ch. 4.1, Fig. 4.2 shows
     # 4.5 pi -> 5 peaks [from memory]); peaks counted above 1 % of the maximum
     grid, field0, length = _spm_case(phi_over_pi * np.pi)
-    result = propagate(field0, grid, taylor(length, betas=(0.0,)), rtol=1e-7, z_samples=2)
+    result = propagate(field0, grid, taylor(length, betas=(0.0,)),
+                       options=SolverOptions(rtol=1e-7, z_samples=2))
     assert _count_peaks(grid.shifted(result.spectrum_z[-1].astype(float))) == peaks
 
 
@@ -93,7 +96,8 @@ def test_pure_dispersion_broadening_of_gaussian():
     # Gaussian that is > 10 samples wide and far from the window edges).
     grid = textbook_grid(2**11, window_t0=60.0)
     field0 = pulse_field(grid, "gaussian", T0 * shape_t0_factor("gaussian"), 1e-12)
-    result = propagate(field0, grid, taylor(3 * L_D, gamma=0.0), rtol=1e-8, z_samples=7)
+    result = propagate(field0, grid, taylor(3 * L_D, gamma=0.0),
+                       options=SolverOptions(rtol=1e-8, z_samples=7))
     assert result.success
     sigma0 = rms_width(grid.time, np.abs(field0) ** 2)
     # dispersion leaves |A~|^2 unchanged at every record (float32 storage: rtol 1e-6)

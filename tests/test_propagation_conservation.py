@@ -21,6 +21,7 @@ from hcfplan.fibers.capillary import CapillaryFiber
 from hcfplan.fibers.taylor import TaylorFiber
 from hcfplan.materials.gases import GasFill, gas_medium
 from hcfplan.numerics.grid import Grid
+from hcfplan.propagation.options import SolverOptions
 from hcfplan.propagation.solve import propagate
 from hcfplan.pulse.fields import pulse_field
 
@@ -39,7 +40,7 @@ def test_photon_number_conserved_with_shock_and_raman(raman_fraction):
     fiber = TaylorFiber(omega0=OMEGA_835, betas=(-11.83e-27, 8.1e-41), gamma=0.11, length=0.04,
                         self_steepening=True, raman_fraction=raman_fraction)
     field0 = pulse_field(grid, "sech2", 50e-15, 2 * 1.2e3 * 28.4e-15)
-    result = propagate(field0, grid, fiber, rtol=1e-7, z_samples=5)
+    result = propagate(field0, grid, fiber, options=SolverOptions(rtol=1e-7, z_samples=5))
     assert result.success and not result.warnings, result.warnings
     photons = _photon_number(result)
     assert abs(photons[-1] / photons[0] - 1) < 1e-6
@@ -59,7 +60,8 @@ def test_ionisation_energy_balance(argon):
                         length=0.02, self_steepening=False, mode_area=area)
     grid = Grid(points=2**11, dt=1.5e-15, omega0=OMEGA_800)
     field0 = pulse_field(grid, "sech2", 30e-15, 60e-6)
-    result = propagate(field0, grid, fiber, gas=argon, rtol=1e-7, z_samples=101)
+    result = propagate(field0, grid, fiber, gas=argon,
+                       options=SolverOptions(rtol=1e-7, z_samples=101))
     assert result.success, result.message
     assert result.ionization_fraction_z.max() > 1e-3  # ionisation matters here
     lost = result.energy_z[0] - result.energy_z[-1]
@@ -74,7 +76,7 @@ def _peak_fraction(argon, energy: float) -> float:
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", ValidityWarning)  # fits extrapolated at window edges
         result = propagate(pulse_field(grid, "sech2", 30e-15, energy), grid, fiber, gas=argon,
-                           rtol=1e-6, z_samples=5)
+                           options=SolverOptions(rtol=1e-6, z_samples=5))
     assert result.success, result.message
     return float(result.ionization_fraction_z.max())
 
@@ -95,7 +97,7 @@ def test_ionisation_stop_level(argon):
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", ValidityWarning)
         result = propagate(pulse_field(grid, "sech2", 30e-15, 60e-6), grid, fiber, gas=argon,
-                           stop_ionization_fraction=1e-3, z_samples=5)
+                           options=SolverOptions(stop_ionization_fraction=1e-3, z_samples=5))
     assert not result.success and result.status == "ionization_stop"
     assert "exceeded the stop level 0.001 at z = " in result.message
     assert result.z[-1] < 0.01 and result.spectrum_z.shape[0] == result.z.size
@@ -105,15 +107,15 @@ def test_ionisation_stop_level(argon):
 def test_fused_plasma_kernel_matches_numpy_reference(fill):
     # contract: NonlinearTerms.evaluate (fused kernel) gives the same N(u), ionisation fraction
     # and electron line density as the numpy reference NonlinearTerms._plasma_time
+    from hcfplan.propagation.ionizing import ionizing_gas
     from hcfplan.propagation.operators import NonlinearTerms
-    from hcfplan.propagation.solve import _ionizing_species
 
     gas = gas_medium(GasFill(fill, 2e5, 293.15))
     area = CapillaryFiber(core_radius=50e-6, length=0.02, gas=gas).peak_intensity_area
     fiber = TaylorFiber(omega0=OMEGA_800, betas=(-5e-30,), gamma=gas.n2 * OMEGA_800 / (c * area),
                         length=0.02, self_steepening=False, mode_area=area)
     grid = Grid(points=2**11, dt=1.5e-15, omega0=OMEGA_800)
-    species, _ = _ionizing_species(grid, fiber, gas, "ppt")
+    species = ionizing_gas(grid, fiber, gas, "ppt").species
     assert len(species) == len(fill)
     rng = np.random.default_rng(5)
     gamma = np.full(grid.points, fiber.gamma)
@@ -146,15 +148,15 @@ def test_fused_plasma_kernel_blocks_match_numpy_reference(where):
     # branch-free loop) give the numpy reference's terms and end density, also when the
     # ionising samples lie in the first or the last block of the window or NaN samples occur
     from hcfplan.propagation import kernels
+    from hcfplan.propagation.ionizing import ionizing_gas
     from hcfplan.propagation.operators import NonlinearTerms
-    from hcfplan.propagation.solve import _ionizing_species
 
     gas = gas_medium(GasFill((("Ar", 1.0),), 2e5, 293.15))
     area = CapillaryFiber(core_radius=50e-6, length=0.02, gas=gas).peak_intensity_area
     fiber = TaylorFiber(omega0=OMEGA_800, betas=(-5e-30,), gamma=1e-6, length=0.02,
                         mode_area=area)
     grid = Grid(points=3 * kernels.PLASMA_BLOCK + 17, dt=1.5e-15, omega0=OMEGA_800)
-    species, _ = _ionizing_species(grid, fiber, gas, "ppt")
+    species = ionizing_gas(grid, fiber, gas, "ppt").species
     terms = NonlinearTerms(grid, np.full(grid.points, 1e-6), 1.0, None, species, area)
     pulse = np.abs(pulse_field(grid, "sech2", 30e-15, 80e-6)) ** 2  # centred, ionising
     shift = {"start": -grid.points // 2 + 3, "end": grid.points // 2 - 2, "nan": 0}[where]

@@ -20,6 +20,7 @@ import pytest
 from hcfplan.constants import c
 from hcfplan.fibers.taylor import TaylorFiber
 from hcfplan.numerics.grid import Grid
+from hcfplan.propagation.options import SolverOptions
 from hcfplan.propagation.solve import propagate
 from hcfplan.pulse.fields import pulse_field
 
@@ -37,7 +38,7 @@ def run():
                         self_steepening=True, raman_fraction=0.18)
     t0 = 50e-15 / 1.7627
     field0 = pulse_field(grid, "sech2", 50e-15, 2 * 10e3 * t0)  # E = 2 P0 T0
-    return grid, propagate(field0, grid, fiber, rtol=1e-6, z_samples=16)
+    return grid, propagate(field0, grid, fiber, options=SolverOptions(rtol=1e-6, z_samples=16))
 
 
 def test_benchmark_completes_without_window_warnings(run):

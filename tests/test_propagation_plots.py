@@ -6,6 +6,7 @@ from __future__ import annotations
 import pytest
 from propagation_cases import Z0, soliton, taylor, textbook_grid
 
+from hcfplan.propagation.options import SolverOptions
 from hcfplan.propagation.solve import propagate
 
 matplotlib = pytest.importorskip("matplotlib")
@@ -23,7 +24,8 @@ def test_plot_returns_axes(name):
     from hcfplan.plotting import propagation as plots
 
     grid = textbook_grid()
-    result = propagate(soliton(grid, 2.0), grid, taylor(Z0 / 4), rtol=1e-5, z_samples=5)
+    result = propagate(soliton(grid, 2.0), grid, taylor(Z0 / 4),
+                       options=SolverOptions(rtol=1e-5, z_samples=5))
     fig, ax = plt.subplots()
     try:
         assert getattr(plots, name)(ax, result) is ax

@@ -12,6 +12,7 @@ import pytest
 from propagation_cases import Z0, max_intensity_error, soliton, taylor, textbook_grid
 
 from hcfplan.errors import ConfigError
+from hcfplan.propagation.options import SolverOptions
 from hcfplan.propagation.solve import propagate
 from hcfplan.propagation.steppers import STEPPERS
 
@@ -24,8 +25,8 @@ def case():
 
 def _fixed(case, n_steps: int) -> np.ndarray:
     grid, field0, fiber = case
-    result = propagate(field0, grid, fiber, stepper="rk4ip", step=fiber.length / n_steps,
-                       z_samples=2)
+    options = SolverOptions(stepper="rk4ip", step=fiber.length / n_steps, z_samples=2)
+    result = propagate(field0, grid, fiber, options=options)
     assert result.n_steps == n_steps
     return result.field_out_spectrum
 
@@ -50,10 +51,11 @@ def test_adaptive_error_follows_tolerance(case, reference, rtol):
     # the final error is at most n_steps * rtol (local errors adding up, no growth); the
     # scaled-RMS norm with its default atol keeps the error within 10 rtol here
     grid, field0, fiber = case
-    result = propagate(field0, grid, fiber, rtol=rtol, z_samples=2)
+    result = propagate(field0, grid, fiber, options=SolverOptions(rtol=rtol, z_samples=2))
     error = np.max(np.abs(result.field_out_spectrum - reference)) / np.max(np.abs(reference))
     assert error < result.n_steps * rtol
-    rms = propagate(field0, grid, fiber, rtol=rtol, z_samples=2, error_norm="scaled_rms")
+    rms = propagate(field0, grid, fiber,
+                    options=SolverOptions(rtol=rtol, z_samples=2, error_norm="scaled_rms"))
     error = np.max(np.abs(rms.field_out_spectrum - reference)) / np.max(np.abs(reference))
     assert error < 10 * rtol
     assert result.n_rhs_evals <= 4 * (result.n_steps + result.n_rejected) + 2
@@ -64,8 +66,8 @@ def test_every_stepper_keeps_the_soliton(name):
     # contract: each registered stepper propagates an N = 1 soliton (analytic, Agrawal ch. 5)
     grid = textbook_grid()
     field0 = soliton(grid, 1.0)
-    result = propagate(field0, grid, taylor(Z0), stepper=name, step=Z0 / 200, rtol=1e-7,
-                       z_samples=3)
+    result = propagate(field0, grid, taylor(Z0),
+                       options=SolverOptions(stepper=name, step=Z0 / 200, rtol=1e-7, z_samples=3))
     assert result.success and result.status == "completed" and result.message == ""
     assert max_intensity_error(result.field_out_t, field0) < 1e-5
     assert result.z.tolist() == pytest.approx([0.0, Z0 / 2, Z0])
@@ -73,7 +75,8 @@ def test_every_stepper_keeps_the_soliton(name):
 
 def test_impossible_tolerance_fails_cleanly(case):
     grid, field0, fiber = case
-    result = propagate(field0, grid, fiber, rtol=1e-15, z_samples=3, max_steps=300)
+    result = propagate(field0, grid, fiber,
+                       options=SolverOptions(rtol=1e-15, z_samples=3, max_steps=300))
     assert not result.success and result.status in {"step_collapse", "step_budget"}
     assert "z = " in result.message and "rtol" in result.message
 
@@ -81,23 +84,58 @@ def test_impossible_tolerance_fails_cleanly(case):
 @pytest.mark.parametrize(
     ("kwargs", "pattern"),
     [
-        ({"rtol": 0.0}, r"rtol = 0\.0"),
-        ({"rtol": 2.0}, r"rtol = 2\.0"),
-        ({"atol": -1.0}, r"atol = -1\.0"),
-        ({"z_samples": 1}, "z_samples = 1"),
-        ({"stepper": "euler"}, r"'euler'.*erk43ip"),
-        ({"stepper": "rk4ip"}, "give step"),
-        ({"stop_ionization_fraction": 0.0}, "stop_ionization_fraction = 0.0"),
-        ({"step": -1e-3}, r"step = -0\.001"),
-        ({"progress": 3}, "progress"),
-        ({"error_norm": "max"}, r"'max'.*relative_l2"),
-        ({"fft_backend": "mkl"}, r"'mkl'.*fftw"),
+        ({"rtol": 0.0}, r"^rtol = 0\.0"),
+        ({"rtol": 2.0}, r"^rtol = 2\.0"),
+        ({"rtol": True}, r"^rtol = True"),
+        ({"atol": -1.0}, r"^atol = -1\.0"),
+        ({"z_samples": 1}, "^z_samples = 1"),
+        ({"z_samples": 5.0}, r"^z_samples = 5\.0: must be an integer"),
+        ({"ionization_model": "keldysh"}, r"^ionization_model = 'keldysh'.*adk.*ppt"),
+        ({"stepper": "euler"}, r"^stepper = 'euler'.*erk43ip"),
+        ({"stepper": "rk4ip"}, "^stepper = 'rk4ip' is fixed-step: give step"),
+        ({"stop_ionization_fraction": 0.0}, "^stop_ionization_fraction = 0.0"),
+        ({"step": -1e-3}, r"^step = -0\.001"),
+        ({"max_steps": 0}, "^max_steps = 0: must be an integer >= 1"),
+        ({"workers": 0}, "^workers = 0: must be an integer >= 1"),
+        ({"error_norm": "max"}, r"^error_norm = 'max'.*relative_l2"),
+        ({"fft_backend": "mkl"}, r"^fft_backend = 'mkl'.*fftw"),
     ],
 )
-def test_input_errors(case, kwargs, pattern):
-    grid, field0, fiber = case
+def test_option_errors_name_the_option(kwargs, pattern):
+    # error: each bad option is refused when the options are made, the message naming it
     with pytest.raises(ConfigError, match=pattern):
-        propagate(field0, grid, fiber, **kwargs)
+        SolverOptions(**kwargs)
+
+
+def test_options_are_frozen_with_the_documented_defaults():
+    # contract: the defaults of SolverOptions (its docstring) and the absolute tolerance each
+    # error norm uses by default
+    import dataclasses
+
+    from hcfplan.propagation.control import MAX_STEPS
+    from hcfplan.propagation.options import ATOL_FRACTION
+
+    options = SolverOptions()
+    assert dataclasses.asdict(options) == {
+        "rtol": 1e-6, "atol": None, "z_samples": 100, "ionization_model": "ppt",
+        "stop_ionization_fraction": 0.1, "stepper": "erk43ip", "step": None,
+        "max_steps": MAX_STEPS, "workers": 1, "error_norm": "relative_l2", "fft_backend": None}
+    with pytest.raises(dataclasses.FrozenInstanceError):
+        options.rtol = 1e-3
+    assert options.absolute_tolerance(2.0) == 0.0
+    rms = SolverOptions(rtol=1e-5, error_norm="scaled_rms")
+    assert rms.absolute_tolerance(2.0) == pytest.approx(ATOL_FRACTION * 1e-5 * 2.0)
+    assert SolverOptions(atol=3e-9, error_norm="scaled_rms").absolute_tolerance(2.0) == 3e-9
+
+
+def test_call_errors(case):
+    grid, field0, fiber = case
+    with pytest.raises(ConfigError, match="^progress: must be a callable"):
+        propagate(field0, grid, fiber, progress=3)
+    with pytest.raises(ConfigError, match="^options = dict: must be a "):
+        propagate(field0, grid, fiber, options={"rtol": 1e-6})
+    with pytest.raises(TypeError):  # an option is not a keyword of propagate
+        propagate(field0, grid, fiber, rtol=1e-6)
 
 
 def test_field_errors(case):
@@ -113,7 +151,8 @@ def test_field_errors(case):
 def test_progress_is_called(case):
     grid, field0, fiber = case
     seen = []
-    result = propagate(field0, grid, fiber, z_samples=3, progress=lambda *a: seen.append(a))
+    result = propagate(field0, grid, fiber, options=SolverOptions(z_samples=3),
+                       progress=lambda *a: seen.append(a))
     assert len(seen) == result.n_steps
     assert seen[-1] == (pytest.approx(fiber.length), fiber.length, result.n_steps)
 
@@ -150,8 +189,10 @@ def test_fft_backends_agree(case, backend):
     if backend == "fftw" and not fftw_available():
         pytest.skip("pyFFTW not installed (optional)")
     grid, field0, fiber = case
-    a = propagate(field0, grid, fiber, rtol=1e-6, z_samples=3, fft_backend=backend)
-    b = propagate(field0, grid, fiber, rtol=1e-6, z_samples=3, fft_backend="scipy")
+    a = propagate(field0, grid, fiber,
+                  options=SolverOptions(rtol=1e-6, z_samples=3, fft_backend=backend))
+    b = propagate(field0, grid, fiber,
+                  options=SolverOptions(rtol=1e-6, z_samples=3, fft_backend="scipy"))
     assert a.n_steps == b.n_steps
     assert np.max(np.abs(a.field_out_spectrum - b.field_out_spectrum)) < 1e-9 * np.max(
         np.abs(b.field_out_spectrum))

@@ -1,4 +1,5 @@
-"""Input pulses (hcfplan.pulse.fields) and grid selection (hcfplan.numerics.grid.choose_grid).
+"""Pulse shapes (hcfplan.pulse.shapes), input pulses (hcfplan.pulse.fields) and grid selection
+(hcfplan.numerics.grid.choose_grid).
 
 Kinds: analytic (closed-form integrals of sech^2 and Gaussian pulses, linear chirp of a
 Gaussian, Agrawal, Nonlinear Fiber Optics, 6th ed., 2019, ch. 3 [from memory]) and error tests.
@@ -21,6 +22,7 @@ from hcfplan.pulse.fields import (
     shape_t0_factor,
 )
 from hcfplan.pulse.metrics import fwhm, rms_width
+from hcfplan.pulse.shapes import PULSE_SHAPES, intensity_envelope, pulse_shape
 
 OMEGA0 = 2 * np.pi * c / 800e-9
 
@@ -93,6 +95,35 @@ def test_measured_spectrum_cut_warns(grid):
 def test_unknown_shape_lists_choices(grid):
     with pytest.raises(ConfigError, match="'triangle'.*gaussian"):
         pulse_field(grid, "triangle", 30e-15, 1e-6)
+    with pytest.raises(ConfigError, match=r"'square'.*\['gaussian', 'sech2'\]"):
+        intensity_envelope("square", 0.0)
+
+
+# ----------------------------------------------------------------------------- shape registry
+@pytest.mark.parametrize("shape", sorted(PULSE_SHAPES))
+def test_registry_constants_follow_from_the_amplitude(shape):
+    # analytic: the registry's FWHM/T0 is where its own a(x)^2 is 1/2, and energy/(P0 T0) is
+    # the integral of a(x)^2 (fine trapezoid on +-40 T0; wings below 1e-34)
+    entry = pulse_shape(shape)
+    x = np.linspace(-40.0, 40.0, 400_001)
+    intensity = entry.amplitude(x) ** 2
+    assert entry.amplitude(0.0) == 1.0 and entry.name == shape
+    half = entry.amplitude(np.array([-0.5, 0.5]) * entry.fwhm_per_t0) ** 2
+    np.testing.assert_allclose(half, 0.5, rtol=1e-14)
+    assert np.trapezoid(intensity, x) == pytest.approx(entry.energy_per_p0t0, rel=1e-12)
+
+
+@pytest.mark.parametrize("shape", sorted(PULSE_SHAPES))
+def test_intensity_envelope_in_fwhm_units(shape):
+    # analytic: 1 at the centre, 1/2 at +-FWHM/2, and the closed forms
+    # sech^2(2 ln(1+sqrt2) u) and exp(-4 ln2 u^2) (Agrawal, Nonlinear Fiber Optics, 6th ed.,
+    # 2019, ch. 3 [from memory])
+    u = np.array([-1.3, -0.5, 0.0, 0.5, 2.1])
+    closed = {"sech2": 1 / np.cosh(2 * np.log1p(np.sqrt(2)) * u) ** 2,
+              "gaussian": np.exp(-4 * np.log(2) * u**2)}[shape]
+    envelope = intensity_envelope(shape, u)
+    np.testing.assert_allclose(envelope, closed, rtol=1e-14)
+    np.testing.assert_allclose(envelope[1:4], [0.5, 1.0, 0.5], rtol=1e-14)
 
 
 @pytest.mark.parametrize("factor", [1.0, 5.0, 40.0])

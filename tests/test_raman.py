@@ -1,6 +1,6 @@
 """Delayed responses of hcfplan.propagation.raman.
 
-Kinds:
+Kinds (plus error tests: bad times and temperatures are ConfigErrors naming the parameter):
 * analytic: unit area of the Blow & Wood response (IEEE J. Quantum Electron. 25, 2665, 1989);
   the cos^2 matrix-element sum S_J checked against direct quadrature of spherical harmonics;
   the classical (k_B T >> hcB) collision-free limit int chi dt = 1/(15 k_B T) derived in the
@@ -20,6 +20,7 @@ from scipy.integrate import quad
 from scipy.special import sph_harm_y
 
 from hcfplan.constants import c, h, k_B
+from hcfplan.errors import ConfigError
 from hcfplan.propagation.raman import (
     raman_response_blowwood1989,
     rotational_kerr_n2,
@@ -94,3 +95,22 @@ def test_static_n2_equals_response_integral():
     t = np.linspace(0, 100e-12, 100_001)
     numeric = np.trapezoid(rotational_raman_response(t, species, 2.5e25, 293.15), t)
     assert rotational_kerr_n2(species, 2.5e25, 293.15) == pytest.approx(numeric, rel=1e-4)
+
+
+@pytest.mark.parametrize(("tau1", "tau2", "pattern"), [
+    (0.0, 32e-15, r"^raman_tau1 = 0\.0 s: must be finite and > 0"),
+    (12.2e-15, -1e-15, r"^raman_tau2 = -1e-15 s: must be finite and > 0"),
+    (float("nan"), 32e-15, r"^raman_tau1 = nan s"),
+    (12.2e-15, float("inf"), r"^raman_tau2 = inf s"),
+])
+def test_blowwood_rejects_bad_times(tau1, tau2, pattern):
+    with pytest.raises(ConfigError, match=pattern):
+        raman_response_blowwood1989(np.zeros(3), tau1, tau2)
+
+
+@pytest.mark.parametrize("temperature", [0.0, -10.0, float("nan"), None])
+def test_rotational_response_rejects_bad_temperature(temperature):
+    with pytest.raises(ConfigError, match=r"^temperature = .* K: must be finite and > 0"):
+        rotational_raman_response(np.zeros(3), Species(), 2.5e25, temperature)
+    with pytest.raises(ConfigError, match="^temperature = "):
+        rotational_kerr_n2(Species(), 2.5e25, temperature)

@@ -55,6 +55,7 @@ def test_rotational_raman_red_shifts_a_long_pulse():
     from hcfplan.fibers import CapillaryFiber
     from hcfplan.materials.gases import GasFill, gas_medium
     from hcfplan.numerics.grid import choose_grid
+    from hcfplan.propagation.options import SolverOptions
     from hcfplan.propagation.solve import propagate
     from hcfplan.pulse.fields import pulse_field
 
@@ -65,8 +66,8 @@ def test_rotational_raman_red_shifts_a_long_pulse():
     field = pulse_field(grid, "gaussian", 150e-15, 400e-6)
 
     def centroid(gas):
-        result = propagate(field, grid, fiber, gas=gas, rtol=1e-6, z_samples=5,
-                           ionization_model=None)
+        result = propagate(field, grid, fiber, gas=gas,
+                           options=SolverOptions(rtol=1e-6, z_samples=5, ionization_model=None))
         power = np.abs(result.field_out_spectrum) ** 2
         return float(np.sum(grid.omega * power) / np.sum(power)), result
 

@@ -1,5 +1,6 @@
 """The README is the user's manual: it must document every config key and the two set-up
-commands that CI runs (contract tests; no physics here)."""
+commands that CI runs, and keep its generated blocks current (contract tests; no physics
+here)."""
 
 from pathlib import Path
 
@@ -34,14 +35,38 @@ def test_cautions_in_readme():
         assert phrase in CAUTIONS[tag] and phrase in section, tag
 
 
+def _script(name: str):
+    import importlib.util
+
+    spec = importlib.util.spec_from_file_location(name, ROOT / "scripts" / f"{name}.py")
+    module = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(module)
+    return module
+
+
 def test_config_reference_is_current():
     # the README block is generated from the schema; regenerate with
     # `python scripts/config_reference.py --update README.md`
-    import importlib.util
-
-    spec = importlib.util.spec_from_file_location("config_reference",
-                                                  ROOT / "scripts" / "config_reference.py")
-    module = importlib.util.module_from_spec(spec)
-    spec.loader.exec_module(module)
+    module = _script("config_reference")
     block = README.split(module.START, 1)[1].split(module.END, 1)[0]
     assert block == "\n" + module.reference()
+
+
+def test_from_memory_table_is_current(monkeypatch, capsys):
+    # the README block between these markers is the output of
+    # `python scripts/from_memory_table.py` (run from the repository root)
+    start, end = "<!-- from-memory-table:start -->", "<!-- from-memory-table:end -->"
+    monkeypatch.chdir(ROOT)
+    _script("from_memory_table").main()
+    block = README.split(start, 1)[1].split(end, 1)[0]
+    assert block == "\n" + capsys.readouterr().out
+
+
+def test_manual_describes_the_code_not_its_history():
+    # README and DEVELOPERS describe the current state; history goes into CHANGELOG.md
+    import re
+
+    for name in ("README.md", "DEVELOPERS.md"):
+        text = (ROOT / name).read_text(encoding="utf-8")
+        assert not re.search(r"\bsessions?\b", text, re.IGNORECASE), name
+    assert (ROOT / "CHANGELOG.md").is_file()

@@ -239,10 +239,11 @@ def test_parent_computes_points_beside_the_pool(fast, tmp_path, monkeypatch):
     # the fork server) and the pool process gets one at the start; together they compute
     # every point once, and the table equals the serial one
     from hcfplan.planning import scan
+    from hcfplan.planning.scan import executors
 
     taken, intervals = [], []
 
-    class Counting(scan._ParentWorker):
+    class Counting(executors.ParentWorker):
         def __init__(self, take, results, finished=None):
             def counted():
                 task = take()
@@ -252,7 +253,7 @@ def test_parent_computes_points_beside_the_pool(fast, tmp_path, monkeypatch):
                 return task
             super().__init__(counted, results, finished)
 
-    monkeypatch.setattr(scan, "_ParentWorker", Counting)
+    monkeypatch.setattr(executors, "ParentWorker", Counting)  # where run_processes finds it
     plan = plan_scan(fast, [parse_vary("gas.pressure_bar=1:2:4")])
     before = sys.getswitchinterval()
     both = run_scan(plan, tmp_path / "both", workers=2)
@@ -278,7 +279,7 @@ def test_local_pool_is_kept_between_runs(fast, tmp_path, monkeypatch):
 
     run_scan(plan_scan(fast, [parse_vary("gas.pressure_bar=1:2:3")]), tmp_path / "first",
              workers=2)
-    pool = scan._KEPT._pool
+    pool = scan.KEPT_POOL.pool
     processes = set(pool._processes)
     assert processes
     folder = tmp_path / "elsewhere"
@@ -290,7 +291,7 @@ def test_local_pool_is_kept_between_runs(fast, tmp_path, monkeypatch):
     monkeypatch.chdir(folder)
     plan = plan_scan(Path("fast.toml"), [parse_vary("gas.pressure_bar=1.5:2.5:4")])
     kept = run_scan(plan, Path("kept"), workers=2)
-    assert scan._KEPT._pool is pool and set(pool._processes) == processes
+    assert scan.KEPT_POOL.pool is pool and set(pool._processes) == processes
     assert [r["status"] for r in kept.records] == ["ok"] * 4
     run_scan(plan, Path("serial"), workers=1)
     assert Path("kept/table.csv").read_text() == Path("serial/table.csv").read_text()
@@ -307,7 +308,7 @@ def test_runs_from_two_threads_do_not_share_the_kept_pool(fast, tmp_path):
     plan = plan_scan(fast, [parse_vary("gas.pressure_bar=1:2:4")])
     run_scan(plan, tmp_path / "serial", workers=1)
     run_scan(plan, tmp_path / "warm", workers=2)
-    kept = scan._KEPT._pool
+    kept = scan.KEPT_POOL.pool
     started, errors = threading.Event(), []
 
     def other() -> None:
@@ -327,7 +328,7 @@ def test_runs_from_two_threads_do_not_share_the_kept_pool(fast, tmp_path):
 
     run_scan(plan, tmp_path / "two", workers=2, on_point=on_point)
     assert not thread.is_alive() and errors == []
-    assert scan._KEPT._pool is kept
+    assert scan.KEPT_POOL.pool is kept
     serial = (tmp_path / "serial" / "table.csv").read_text()
     for name in ("two", "three"):
         assert (tmp_path / name / "table.csv").read_text() == serial
@@ -340,7 +341,7 @@ def test_interrupted_run_stops_the_kept_pool(fast, tmp_path):
 
     plan = plan_scan(fast, [parse_vary("gas.pressure_bar=1:2:3")])
     run_scan(plan, tmp_path / "warm", workers=2)
-    old = scan._KEPT._pool
+    old = scan.KEPT_POOL.pool
     processes = list(old._processes.values())
 
     def interrupt(*_args):
@@ -348,12 +349,12 @@ def test_interrupted_run_stops_the_kept_pool(fast, tmp_path):
 
     with pytest.raises(KeyboardInterrupt):
         run_scan(plan, tmp_path / "stopped", workers=2, on_point=interrupt)
-    assert scan._KEPT._pool is None
+    assert scan.KEPT_POOL.pool is None
     for process in processes:
         process.join(timeout=10)
         assert not process.is_alive()
     again = run_scan(plan, tmp_path / "again", workers=2)
-    assert scan._KEPT._pool is not old and len(again.computed) == 3
+    assert scan.KEPT_POOL.pool is not old and len(again.computed) == 3
 
 
 def _work_record(key: str, evaluations: int, points: int = 1024) -> dict:
@@ -370,7 +371,7 @@ def _simulated_run(costs: list[float], starts: tuple[float, ...] = (0.0, 0.0)):
     from hcfplan.planning import scan
 
     tasks = [{"key": f"p{i}", "index": i} for i in range(len(costs))]
-    order, taken = scan._CostlierEndFirst(tasks), []
+    order, taken = scan.CostlierEndFirst(tasks), []
     running = []  # (finish time, worker, task)
     for worker, start in sorted(enumerate(starts), key=lambda item: item[1]):
         task = order.take()
@@ -470,17 +471,21 @@ def test_parent_worker_hands_a_bug_to_the_main_thread():
     from hcfplan.planning import scan
 
     tasks, results = [{"raw": {}}], queue.Queue()
-    worker = scan._ParentWorker(lambda: tasks.pop() if tasks else None, results)
+    worker = scan.ParentWorker(lambda: tasks.pop() if tasks else None, results)
     source, record, error = results.get(timeout=30)
     assert source is worker and record is None and isinstance(error, KeyError)
 
 
 def test_missing_scheduler_is_one_line_error(fast, tmp_path, monkeypatch):
     pytest.importorskip("distributed")
-    monkeypatch.setattr("hcfplan.planning.scan.DASK_CONNECT_TIMEOUT", 0.5)
+    monkeypatch.setattr("hcfplan.planning.scan.executors.DASK_CONNECT_TIMEOUT", 0.5)
     plan = plan_scan(fast, [parse_vary("gas.pressure_bar=1,2")])
+    start = time.perf_counter()
     with pytest.raises(ConfigError, match="--dask-scheduler tcp://127.0.0.1:1: cannot connect"):
         run_scan(plan, tmp_path / "s", address="tcp://127.0.0.1:1")
+    # the shortened timeout is the one run_dask reads (a patch of the package's re-exported
+    # name would leave it at 10 s)
+    assert time.perf_counter() - start < 5.0
 
 
 def test_worker_environment_is_set_for_the_workers_and_restored(monkeypatch):
@@ -492,7 +497,7 @@ def test_worker_environment_is_set_for_the_workers_and_restored(monkeypatch):
 
     monkeypatch.setenv("OMP_NUM_THREADS", "7")
     monkeypatch.delenv("OPENBLAS_NUM_THREADS", raising=False)
-    with scan._worker_environment():
+    with scan.worker_environment():
         assert all(os.environ[key] == "1" for key in scan.WORKER_THREADS)
     assert os.environ["OMP_NUM_THREADS"] == "7"
     assert "OPENBLAS_NUM_THREADS" not in os.environ

@@ -136,6 +136,70 @@ def test_existing_out_refused(run_dir, capsys):
     assert "--force" in err
 
 
+#: Invented scenario that runs in well under a second (interrupt tests).
+TINY = """
+[laser]
+wavelength_nm = 800.0
+fwhm_fs = 60.0
+shape = "gaussian"
+energy_uj = 50.0
+
+[fiber]
+kind = "capillary"
+core_diameter_um = 250.0
+length_m = 0.1
+
+[gas]
+species = "Ar"
+pressure_bar = 0.5
+
+[grid]
+points = 1024
+z_samples = 5
+"""
+
+
+def _interrupt(*args, **kwargs):
+    raise KeyboardInterrupt
+
+
+def test_interrupt_during_the_run_writes_nothing(tmp_path, capsys, monkeypatch):
+    # contract: Ctrl-C during the propagation: exit 130, one stderr line, no output folder.
+    # No external source is needed for this check.
+    from hcfplan.planning import chain
+
+    config = tmp_path / "tiny.toml"
+    config.write_text(TINY)
+    monkeypatch.setattr(chain, "run_chain", _interrupt)
+    out = tmp_path / "run"
+    code = main(["simulate", str(config), "--out", str(out)])
+    err = capsys.readouterr().err
+    assert code == 130
+    assert err.strip() == "hcfplan: interrupted; nothing written", err
+    assert not out.exists()
+
+
+def test_interrupt_during_the_figures_names_the_kept_files(tmp_path, capsys, monkeypatch):
+    # contract: Ctrl-C while the figures are drawn, in a folder reused with --force: the line
+    # names the files this run wrote (complete, written atomically), not the older ones.
+    # No external source is needed for this check.
+    from hcfplan.planning import run_folder
+
+    config = tmp_path / "tiny.toml"
+    config.write_text(TINY)
+    out = tmp_path / "run"
+    assert main(["simulate", str(config), "--out", str(out), "--quiet", "--no-figures"]) == 0
+    (out / "notes.txt").write_text("kept from before\n")
+    capsys.readouterr()
+    monkeypatch.setattr(run_folder, "write_figures", _interrupt)
+    code = main(["simulate", str(config), "--out", str(out), "--quiet", "--force"])
+    err = capsys.readouterr().err
+    assert code == 130
+    assert err.strip() == (f"hcfplan: interrupted; kept {out}/: config.resolved.toml, "
+                           "fields.npz (complete files only)"), err
+    assert "Traceback" not in err
+
+
 def test_thz_command_json(capsys):
     code = main(["thz", str(ROOT / "configs" / "demo_broadened_spectrum.csv"), "--crystal",
                  "GaP", "--thickness-mm", "0.3", "--energy-uj", "5", "--json"])

@@ -21,6 +21,7 @@ from hcfplan.fibers.taylor import TaylorFiber
 from hcfplan.materials.gases import GasFill, gas_medium
 from hcfplan.numerics.grid import MAX_HALF_WINDOW_FRACTION, Grid
 from hcfplan.propagation import control, operators
+from hcfplan.propagation.options import SolverOptions
 from hcfplan.propagation.solve import propagate
 from hcfplan.pulse.fields import pulse_field
 
@@ -64,8 +65,8 @@ def _inject_nan_after(monkeypatch, calls: int) -> None:
 def test_nonfinite(monkeypatch, case, stepper, remedy):
     grid, field0, fiber = case
     _inject_nan_after(monkeypatch, 40)
-    result = propagate(field0, grid, fiber, stepper=stepper, step=fiber.length / 100,
-                       z_samples=5)
+    result = propagate(field0, grid, fiber,
+                       options=SolverOptions(stepper=stepper, step=fiber.length / 100, z_samples=5))
     assert result.status == "nonfinite"
     assert "non-finite (NaN/Inf)" in result.message and remedy in result.message
     assert f"z = {result.z[-1]:.6g} m" in result.message and "step" in result.message
@@ -85,7 +86,8 @@ def test_step_collapse(monkeypatch, case):
 
     monkeypatch.setattr(operators.NonlinearTerms, "evaluate", noisy)
     monkeypatch.setattr(control, "MIN_STEP_FRACTION", 1e-4)  # reach the floor in few attempts
-    result = propagate(field0, grid, fiber, rtol=1e-9, z_samples=5, max_steps=5000)
+    result = propagate(field0, grid, fiber,
+                       options=SolverOptions(rtol=1e-9, z_samples=5, max_steps=5000))
     assert result.status == "step_collapse"
     assert "step size collapsed at z = " in result.message and "floor" in result.message
     assert "local error stays above rtol = 1e-09" in result.message
@@ -95,7 +97,8 @@ def test_step_collapse(monkeypatch, case):
 
 def test_step_budget(case):
     grid, field0, fiber = case
-    result = propagate(field0, grid, fiber, rtol=1e-8, z_samples=5, max_steps=25)
+    result = propagate(field0, grid, fiber,
+                       options=SolverOptions(rtol=1e-8, z_samples=5, max_steps=25))
     assert result.status == "step_budget"
     assert result.n_steps + result.n_rejected == 25 and result.n_steps > 0
     for fragment in ("max_steps = 25 used up at z = ", "(step ", "rtol = 1e-08 may be too tight",
@@ -107,7 +110,8 @@ def test_step_budget(case):
 def test_time_window_edge_warning():
     # a pulse spreading by dispersion (no nonlinearity) over a window of only 12 T0
     grid = textbook_grid(2**8, window_t0=12.0)
-    result = propagate(soliton(grid, 1.0), grid, taylor(3 * Z0, gamma=0.0), z_samples=5)
+    result = propagate(soliton(grid, 1.0), grid, taylor(3 * Z0, gamma=0.0),
+                       options=SolverOptions(z_samples=5))
     assert result.success
     (note,) = [w for w in result.warnings if "time window" in w]
     assert "first at z = " in note and "increase grid.time_window_fs" in note
@@ -128,7 +132,7 @@ def _spm_case(dt: float, points: int):
 def test_frequency_window_edge_warning(widest, remedy):
     half = MAX_HALF_WINDOW_FRACTION * OMEGA_1030 if widest else 0.35 * OMEGA_1030
     grid, field0, fiber = _spm_case(np.pi / half, 256)
-    result = propagate(field0, grid, fiber, rtol=1e-5, z_samples=5)
+    result = propagate(field0, grid, fiber, options=SolverOptions(rtol=1e-5, z_samples=5))
     (note,) = [w for w in result.warnings if "frequency window" in w]
     assert "first at z = " in note and remedy in note
     assert ("lower the energy or pressure" in note) == widest
@@ -140,7 +144,7 @@ def test_ionisation_runaway(argon):
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", ValidityWarning)
         result = propagate(pulse_field(grid, "sech2", 30e-15, 60e-6), grid, fiber, gas=argon,
-                           stop_ionization_fraction=1e-3, z_samples=5)
+                           options=SolverOptions(stop_ionization_fraction=1e-3, z_samples=5))
     assert result.status == "ionization_stop"
     for fragment in ("exceeded the stop level 0.001 at z = ", "(step ", "ionisation runaway",
                      "remedy: lower the energy or the pressure"):
@@ -154,8 +158,9 @@ def _arf_run(argon, wall: float, energy: float):
     fiber = AntiresonantFiber(core_radius=25e-6, wall_thickness=wall, length=0.1, gas=argon)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", ValidityWarning)
+        options = SolverOptions(rtol=1e-5, z_samples=11, ionization_model=None)
         return propagate(pulse_field(grid, "sech2", 30e-15, energy), grid, fiber, gas=argon,
-                         rtol=1e-5, z_samples=11, ionization_model=None), fiber
+                         options=options), fiber
 
 
 def test_recorder_values_are_the_plain_numpy_ones(argon):

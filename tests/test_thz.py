@@ -13,14 +13,11 @@ from hcfplan.errors import ConfigError
 from hcfplan.materials.crystals import load_crystal
 from hcfplan.numerics.grid import Grid
 from hcfplan.thz.detection import EoDetector, phase_matching_integral, phase_matching_map
-from hcfplan.thz.generation import (
-    PHASE_MATCHING,
-    REFERENCE_AREA,
-    REFERENCE_D_EFF,
-    thz_cutoff,
-    thz_estimate,
-    thz_from_measured_spectrum,
-)
+from hcfplan.thz.generation import REFERENCE_AREA, REFERENCE_D_EFF, thz_estimate
+from hcfplan.thz.measured import thz_from_measured_spectrum
+from hcfplan.thz.measures import thz_cutoff
+from hcfplan.thz.mixing import PHASE_MATCHING
+from hcfplan.thz.setup import ThzSetup
 
 TWO_PI = 2 * np.pi
 LN2 = np.log(2.0)
@@ -76,7 +73,7 @@ def test_thin_crystal_gaussian_peak(thin, method, duration):
     Omega^2 = 8 ln2 / tau^2, i.e. nu_peak = sqrt(8 ln2) / (2 pi tau) = 0.3748 / tau.
     Tolerance 1 %."""
     grid, spectrum = gaussian_pulse(duration)
-    result = thz_estimate(grid, spectrum, thin, 100e-6, phase_matching=method)
+    result = thz_estimate(grid, spectrum, ThzSetup(thin, 100e-6, phase_matching=method))
     assert result.peak_frequency == pytest.approx(np.sqrt(8 * LN2) / (TWO_PI * duration),
                                                   rel=0.01)
 
@@ -88,7 +85,7 @@ def test_thin_crystal_absolute_scale(thin):
     T = 4n/(1+n)^2. Checks the Parseval factor and the correlation scaling to 1e-3."""
     duration, energy, length, n = 50e-15, 2e-6, 200e-6, 3.0
     grid, spectrum = gaussian_pulse(duration, energy=energy)
-    result = thz_estimate(grid, spectrum, thin, length, band_floor_db=-120.0)
+    result = thz_estimate(grid, spectrum, ThzSetup(thin, length, band_floor_db=-120.0))
     a = duration**2 / (8 * LN2)
     t_in = 4 * n / (1 + n) ** 2
     expected = (REFERENCE_D_EFF**2 * t_in**2 * length**2 * energy**2 * a**-1.5
@@ -100,10 +97,10 @@ def test_efficiency_scalings(thin):
     """Invariant: THz energy ~ E_p^2 (so efficiency ~ E_p), ~ L^2 without mismatch, and the
     absolute estimate ~ 1 / w^2."""
     grid, spectrum = gaussian_pulse(50e-15)
-    base = thz_estimate(grid, spectrum, thin, 100e-6, beam_radius=1e-3)
-    double_e = thz_estimate(grid, np.sqrt(2) * spectrum, thin, 100e-6)
-    double_l = thz_estimate(grid, spectrum, thin, 200e-6)
-    half_w = thz_estimate(grid, spectrum, thin, 100e-6, beam_radius=0.5e-3)
+    base = thz_estimate(grid, spectrum, ThzSetup(thin, 100e-6, beam_radius=1e-3))
+    double_e = thz_estimate(grid, np.sqrt(2) * spectrum, ThzSetup(thin, 100e-6))
+    double_l = thz_estimate(grid, spectrum, ThzSetup(thin, 200e-6))
+    half_w = thz_estimate(grid, spectrum, ThzSetup(thin, 100e-6, beam_radius=0.5e-3))
     assert double_e.relative_efficiency == pytest.approx(2 * base.relative_efficiency, rel=1e-9)
     assert double_l.relative_efficiency == pytest.approx(4 * base.relative_efficiency, rel=1e-9)
     assert half_w.thz_energy == pytest.approx(4 * base.thz_energy, rel=1e-9)
@@ -116,8 +113,8 @@ def test_dispersion_free_mismatch_sinc(slow):
     duration, length = 30e-15, 300e-6
     grid, spectrum = gaussian_pulse(duration)
     for method in PHASE_MATCHING:
-        result = thz_estimate(grid, spectrum, slow, length, phase_matching=method,
-                              band_floor_db=-120.0)
+        result = thz_estimate(grid, spectrum, ThzSetup(slow, length, phase_matching=method,
+                                                       band_floor_db=-120.0))
         Omega = TWO_PI * result.frequency
         dk = 0.3 * Omega / c
         pm = np.where(dk > 0, np.sin(dk * length / 2) / np.where(dk > 0, dk / 2, 1), length)
@@ -208,8 +205,8 @@ def test_group_velocity_approximation_agrees_for_small_dispersion():
     grid, spectrum = gaussian_pulse(100e-15)
     diffs = []
     for length in (0.1e-3, 1e-3):
-        full = thz_estimate(grid, spectrum, gap, length, phase_matching="full")
-        fast = thz_estimate(grid, spectrum, gap, length, phase_matching="group_velocity")
+        full = thz_estimate(grid, spectrum, ThzSetup(gap, length, phase_matching="full"))
+        fast = thz_estimate(grid, spectrum, ThzSetup(gap, length, phase_matching="group_velocity"))
         keep = full.generated_power > 1e-2
         diffs.append(np.max(np.abs(fast.generated_power[keep] / full.generated_power[keep] - 1)))
     assert diffs[0] < 0.01
@@ -232,8 +229,8 @@ def test_thz_spectrum_within_optical_bandwidth(method):
     amplitude[amplitude**2 < 1e-8 * np.max(amplitude**2)] = 0.0
     support = np.nonzero(grid.shifted(amplitude))[0]
     width = (support[-1] - support[0]) * grid.dnu
-    result = thz_estimate(grid, amplitude, gap, 0.3e-3, phase_matching=method,
-                          max_frequency=1.5 * width)
+    result = thz_estimate(grid, amplitude, ThzSetup(gap, 0.3e-3, phase_matching=method,
+                                                    max_frequency=1.5 * width))
     beyond = result.frequency > width + 0.5 * grid.dnu
     assert beyond.any()
     assert np.max(result.generated_power[beyond]) <= 1e-20
@@ -244,8 +241,8 @@ def test_spectral_delay_does_not_change_thz_power(thin):
     """Invariant: a linear spectral phase (pure delay) leaves |I~(Omega)| unchanged."""
     grid, spectrum = gaussian_pulse(40e-15)
     delayed = spectrum * np.exp(1j * grid.domega * 200e-15)
-    a = thz_estimate(grid, spectrum, thin, 100e-6)
-    b = thz_estimate(grid, delayed, thin, 100e-6)
+    a = thz_estimate(grid, spectrum, ThzSetup(thin, 100e-6))
+    b = thz_estimate(grid, delayed, ThzSetup(thin, 100e-6))
     assert np.allclose(a.generated_power, b.generated_power, atol=1e-10)
 
 
@@ -254,8 +251,9 @@ def test_chirp_lowers_bandwidth(thin):
     intensity envelope) gives a narrower THz spectrum than the transform limit."""
     grid, tl = gaussian_pulse(30e-15)
     chirped = tl * np.exp(0.5j * 300e-30 * grid.domega**2)  # grid.py convention 4
-    assert thz_estimate(grid, chirped, thin, 1e-4).cutoff_frequency < 0.8 * thz_estimate(
-        grid, tl, thin, 1e-4).cutoff_frequency
+    setup = ThzSetup(thin, 1e-4)
+    assert (thz_estimate(grid, chirped, setup).cutoff_frequency
+            < 0.8 * thz_estimate(grid, tl, setup).cutoff_frequency)
 
 
 # ----------------------------------------------------------------------------------- cutoff
@@ -278,10 +276,10 @@ def test_cutoff_of_synthetic_spectrum(cutoff_db, level, expected):
 
 def test_cutoff_definition_is_reported(thin):
     grid, spectrum = gaussian_pulse(50e-15)
-    result = thz_estimate(grid, spectrum, thin, 1e-4, cutoff_db=-10.0)
+    result = thz_estimate(grid, spectrum, ThzSetup(thin, 1e-4, cutoff_db=-10.0))
     assert "power spectrum >= -10 dB of peak" in result.cutoff_definition
     assert "generated" in result.cutoff_definition
-    lower = thz_estimate(grid, spectrum, thin, 1e-4, cutoff_db=-20.0)
+    lower = thz_estimate(grid, spectrum, ThzSetup(thin, 1e-4, cutoff_db=-20.0))
     assert lower.cutoff_frequency > result.cutoff_frequency
 
 
@@ -295,8 +293,8 @@ def test_thick_mismatched_crystal_lowers_cutoff():
     a 1 mm crystal cuts the spectrum lower than a 50 um one."""
     znte = load_crystal("znte")
     grid, spectrum = gaussian_pulse(30e-15)
-    thin_cut = thz_estimate(grid, spectrum, znte, 50e-6).cutoff_frequency
-    thick_cut = thz_estimate(grid, spectrum, znte, 1e-3).cutoff_frequency
+    thin_cut = thz_estimate(grid, spectrum, ThzSetup(znte, 50e-6)).cutoff_frequency
+    thick_cut = thz_estimate(grid, spectrum, ThzSetup(znte, 1e-3)).cutoff_frequency
     assert thick_cut < 0.7 * thin_cut
 
 
@@ -309,7 +307,7 @@ def test_detection_with_ideal_detector_applies_probe_gate(thin):
     P_det ~ Omega^2 exp(-Omega^2 tau^2/(4 ln2)), peak at sqrt(4 ln2)/(2 pi tau) = 0.265/tau."""
     duration = 50e-15
     grid, spectrum = gaussian_pulse(duration)
-    result = thz_estimate(grid, spectrum, thin, 100e-6, detector=EoDetector(thin, 10e-6))
+    result = thz_estimate(grid, spectrum, ThzSetup(thin, 100e-6, detector=EoDetector(thin, 10e-6)))
     assert result.detected_peak_frequency == pytest.approx(
         np.sqrt(4 * LN2) / (TWO_PI * duration), rel=0.01)
     assert result.detected_cutoff_frequency < result.cutoff_frequency
@@ -320,8 +318,8 @@ def test_znte_detector_suppresses_its_to_band():
     is nearly blind at its 5.3 THz TO resonance."""
     gap, znte = load_crystal("gap"), load_crystal("znte")
     grid, spectrum = gaussian_pulse(15e-15, wavelength=0.8e-6, points=8192, dt=1.5e-15)
-    result = thz_estimate(grid, spectrum, gap, 20e-6, detector=EoDetector(znte, 10e-6),
-                          phase_matching="group_velocity")
+    result = thz_estimate(grid, spectrum, ThzSetup(gap, 20e-6, detector=EoDetector(znte, 10e-6),
+                                                   phase_matching="group_velocity"))
     at_to = np.argmin(np.abs(result.frequency - 5.3e12))
     ratio = result.detected_power[at_to] / result.generated_power[at_to]
     assert ratio < 1e-2
@@ -333,23 +331,23 @@ def test_znte_detector_suppresses_its_to_band():
 def test_pump_side_warnings():
     znte = load_crystal("znte")
     grid, spectrum = gaussian_pulse(40e-15, wavelength=0.8e-6, energy=50e-6, dt=1.5e-15)
-    result = thz_estimate(grid, spectrum, znte, 2e-3, beam_radius=0.3e-3)
+    result = thz_estimate(grid, spectrum, ThzSetup(znte, 2e-3, beam_radius=0.3e-3))
     text = " | ".join(result.warnings)
     assert "exceed the direct gap 2.26 eV" in text
     assert "exceeds the damage fluence" in text
     gap = load_crystal("gap")
     grid, spectrum = gaussian_pulse(300e-15, energy=1e-6)  # pump-limited peak 1.25 THz
-    text = " | ".join(thz_estimate(grid, spectrum, gap, 1e-3, beam_radius=2e-3).warnings)
+    text = " | ".join(thz_estimate(grid, spectrum, ThzSetup(gap, 1e-3, beam_radius=2e-3)).warnings)
     assert "indirect gap only" in text
     assert "damage" not in text and "coherence length" not in text
     grid, spectrum = gaussian_pulse(40e-15, wavelength=1.55e-6, energy=1e-6, dt=3e-15)
-    text = " | ".join(thz_estimate(grid, spectrum, gap, 3e-3, beam_radius=2e-3).warnings)
+    text = " | ".join(thz_estimate(grid, spectrum, ThzSetup(gap, 3e-3, beam_radius=2e-3)).warnings)
     assert "exceeds the coherence length" in text and "gap" not in text
 
 
 def test_absolute_energy_needs_beam_radius(thin):
     grid, spectrum = gaussian_pulse(50e-15)
-    result = thz_estimate(grid, spectrum, thin, 1e-4)
+    result = thz_estimate(grid, spectrum, ThzSetup(thin, 1e-4))
     assert result.thz_energy is None
     assert any("needs beam_radius" in w for w in result.warnings)
     assert "1e-5..1e-4" in result.thz_energy_caution
@@ -361,7 +359,7 @@ def test_gap_energy_estimate_order_of_magnitude():
     for a moderate fluence must land within a factor 10 of that range."""
     gap = load_crystal("gap")
     grid, spectrum = gaussian_pulse(30e-15, energy=5e-6)
-    result = thz_estimate(grid, spectrum, gap, 1e-3, beam_radius=1e-3)
+    result = thz_estimate(grid, spectrum, ThzSetup(gap, 1e-3, beam_radius=1e-3))
     assert 1e-6 < result.thz_energy / result.pump_energy < 1e-3
 
 
@@ -369,20 +367,67 @@ def test_gap_energy_estimate_order_of_magnitude():
     ("kwargs", "pattern"),
     [({"phase_matching": "exact"}, r"'exact'.*full, group_velocity"),
      ({"beam_radius": -1.0}, r"beam_radius = -1"),
-     ({"cutoff_db": 3.0}, r"cutoff_db = 3")],
+     ({"cutoff_db": 3.0}, r"cutoff_db = 3"),
+     ({"cutoff_level": "amplitude"}, r"'amplitude'.*power, field"),
+     ({"band_floor_db": 0.0}, r"band_floor_db = 0"),
+     ({"d_eff": 0.0}, r"d_eff = 0"),
+     ({"damage_fluence": float("nan")}, r"damage_fluence = nan"),
+     ({"max_frequency": -1e12}, r"max_frequency = -1")],
 )
-def test_input_errors(thin, kwargs, pattern):
-    grid, spectrum = gaussian_pulse(50e-15)
+def test_setup_rejects_bad_values(thin, kwargs, pattern):
+    # the set-up checks its values once, when it is made
     with pytest.raises(ConfigError, match=pattern):
-        thz_estimate(grid, spectrum, thin, 1e-4, **kwargs)
+        ThzSetup(thin, 1e-4, **kwargs)
 
 
 def test_bad_thickness_and_shape(thin):
     grid, spectrum = gaussian_pulse(50e-15)
     with pytest.raises(ConfigError, match=r"thickness = -0.001 m"):
-        thz_estimate(grid, spectrum, thin, -1e-3)
+        ThzSetup(thin, -1e-3)
     with pytest.raises(ConfigError, match=r"shape \(100,\)"):
-        thz_estimate(grid, spectrum[:100], thin, 1e-3)
+        thz_estimate(grid, spectrum[:100], ThzSetup(thin, 1e-3))
+
+
+def _spec(**changes):
+    from hcfplan.io.config import ThzSpec
+
+    values = dict(crystal="GaP", thickness=0.3e-3, cutoff_db=-20.0, cutoff_quantity="field",
+                  detector_crystal=None, detector_thickness=None, probe_fwhm=None,
+                  beam_waist=None, d_eff=None, damage_fluence=None)
+    return ThzSpec(**(values | changes))
+
+
+def test_setup_from_config_section():
+    """The [thz] section becomes one set-up: crystals loaded, SI values passed through, and a
+    given probe FWHM becomes a Gaussian probe spectrum on the simulation grid."""
+    from hcfplan.planning.reports.thz import thz_setup
+
+    grid, _ = gaussian_pulse(50e-15, points=512)
+    setup = thz_setup(_spec(beam_waist=1e-3, d_eff=2e-12, damage_fluence=1e4), grid)
+    assert (setup.crystal.name.lower(), setup.thickness) == ("gap", 0.3e-3)
+    assert (setup.cutoff_db, setup.cutoff_level, setup.detector) == (-20.0, "field", None)
+    assert (setup.beam_radius, setup.d_eff, setup.damage_fluence) == (1e-3, 2e-12, 1e4)
+    probed = thz_setup(_spec(detector_crystal="ZnTe", detector_thickness=1e-4,
+                             probe_fwhm=30e-15), grid)
+    assert probed.detector.crystal.name.lower() == "znte"
+    assert probed.detector.probe_spectrum.shape == (grid.points,)
+    assert grid.energy_w(probed.detector.probe_spectrum) == pytest.approx(1e-9, rel=1e-9)
+    with pytest.raises(ConfigError, match="probe_fwhm_fs"):
+        thz_setup(_spec(detector_crystal="ZnTe", detector_thickness=1e-4, probe_fwhm=30e-15))
+
+
+def test_setup_from_command_options():
+    from hcfplan.planning.reports.thz import thz_setup_from_options
+
+    setup = thz_setup_from_options(crystal="ZnTe", thickness=0.5e-3, cutoff_db=-10.0,
+                                   cutoff_quantity="power", detector_crystal=None,
+                                   detector_thickness=0.3e-3)
+    assert (setup.crystal.name.lower(), setup.thickness, setup.detector) == ("znte", 0.5e-3, None)
+    assert (setup.cutoff_db, setup.cutoff_level) == (-10.0, "power")
+    with_detector = thz_setup_from_options(crystal="GaP", thickness=0.3e-3, cutoff_db=-20.0,
+                                           cutoff_quantity="power", detector_crystal="GaP",
+                                           detector_thickness=0.1e-3)
+    assert with_detector.detector.thickness == 0.1e-3
 
 
 # ------------------------------------------------------------------------ measured spectrum
@@ -396,8 +441,8 @@ def test_measured_spectrum_transform_limit(thin):
     nu = c / wavelength
     per_nu = np.exp(-(np.pi**2) * duration**2 * (nu - nu0) ** 2 / LN2)  # |A~|^2 of the TL pulse
     per_wavelength = per_nu * c / wavelength**2
-    result = thz_from_measured_spectrum(wavelength, per_wavelength, 1e-6, thin, 1e-4,
-                                        phase_matching="group_velocity")
+    result = thz_from_measured_spectrum(wavelength, per_wavelength, 1e-6,
+                                        ThzSetup(thin, 1e-4, phase_matching="group_velocity"))
     assert result.peak_frequency == pytest.approx(np.sqrt(8 * LN2) / (TWO_PI * duration),
                                                   rel=0.01)
     assert result.pump_energy == pytest.approx(1e-6, rel=1e-9)
@@ -412,8 +457,8 @@ def test_measured_spectrum_phase(thin):
     per_nu = np.exp(-(np.pi**2) * duration**2 * (c / wavelength - nu0) ** 2 / LN2)
     per_wavelength = per_nu * c / wavelength**2
     d_omega = omega - TWO_PI * nu0
-    runs = [thz_from_measured_spectrum(wavelength, per_wavelength, 1e-6, thin, 1e-4,
-                                       phase=phase, phase_matching="group_velocity")
+    setup = ThzSetup(thin, 1e-4, phase_matching="group_velocity")
+    runs = [thz_from_measured_spectrum(wavelength, per_wavelength, 1e-6, setup, phase=phase)
             for phase in (None, 300e-15 * d_omega, 0.5 * 500e-30 * d_omega**2)]
     assert np.allclose(runs[1].generated_power, runs[0].generated_power, atol=1e-6)
     assert runs[2].cutoff_frequency < 0.8 * runs[0].cutoff_frequency
@@ -421,11 +466,11 @@ def test_measured_spectrum_phase(thin):
 
 def test_measured_spectrum_errors(thin):
     with pytest.raises(ConfigError, match=r"wavelength \(3\) and intensity \(2\)"):
-        thz_from_measured_spectrum(np.array([1e-6, 1.1e-6, 1.2e-6]), np.ones(2), 1e-6, thin,
-                                   1e-4)
+        thz_from_measured_spectrum(np.array([1e-6, 1.1e-6, 1.2e-6]), np.ones(2), 1e-6,
+                                   ThzSetup(thin, 1e-4))
     with pytest.raises(ConfigError, match=r"density = 'per_nm'"):
-        thz_from_measured_spectrum(np.linspace(1e-6, 1.1e-6, 5), np.ones(5), 1e-6, thin, 1e-4,
-                                   density="per_nm")
+        thz_from_measured_spectrum(np.linspace(1e-6, 1.1e-6, 5), np.ones(5), 1e-6,
+                                   ThzSetup(thin, 1e-4), density="per_nm")
 
 
 # ---------------------------------------------------------------------------------- plotting
@@ -446,7 +491,7 @@ def test_plots_draw_and_return_axes():
 
     gap = load_crystal("gap")
     grid, spectrum = gaussian_pulse(40e-15)
-    result = thz_estimate(grid, spectrum, gap, 0.5e-3, detector=EoDetector(gap, 0.1e-3))
+    result = thz_estimate(grid, spectrum, ThzSetup(gap, 0.5e-3, detector=EoDetector(gap, 0.1e-3)))
     pm_map = phase_matching_map(gap, np.linspace(0.8e-6, 1.6e-6, 9), np.linspace(0.1e12, 5e12, 20))
     fig, axes = plt.subplots(2, 2)
     assert plot_thz_spectrum(axes[0, 0], result) is axes[0, 0]
@@ -458,3 +503,26 @@ def test_plots_draw_and_return_axes():
     assert plot_coherence_length(axes[1, 0], result) is axes[1, 0]
     assert plot_optical_spectrum(axes[1, 1], result) is axes[1, 1]
     plt.close(fig)
+
+
+# ------------------------------------------------------------------------------ docstrings
+
+
+@pytest.mark.parametrize("module", ["detection", "generation", "kernels", "measured",
+                                    "measures", "mixing", "setup"])
+def test_public_functions_name_their_source(module):
+    """House rule: every public function of hcfplan.thz has a References section in its own
+    docstring (a published source, or "None: ..." for a numerical helper)."""
+    import importlib
+    import inspect
+
+    mod = importlib.import_module(f"hcfplan.thz.{module}")
+    missing = []
+    for name, obj in vars(mod).items():
+        func = getattr(obj, "py_func", obj)  # numba dispatchers keep the Python function
+        if name.startswith("_") or not inspect.isfunction(func) or func.__module__ != mod.__name__:
+            continue
+        doc = inspect.getdoc(func) or ""
+        if "\nReferences\n----------\n" not in doc:
+            missing.append(name)
+    assert not missing, f"hcfplan.thz.{module}: no References section in {missing}"

@@ -1,9 +1,11 @@
 """The ``hcfplan`` command line: parse, call ``planning``, print, set the exit code.
 
 Exit codes: 0 success; 1 a run that did not succeed (solver fault; partial result saved);
-2 bad input (one line on stderr naming the key, no traceback).
+2 bad input (one line on stderr naming the key, no traceback); 130 interrupted (Ctrl-C: one
+line on stderr saying what was kept, no traceback).
 Heavy modules (scipy, CoolProp, numba, matplotlib) are imported inside the commands so that
-``hcfplan --help`` starts quickly.
+``hcfplan --help`` starts quickly. Imports of the command line flow one way:
+app -> workflows -> common, output.
 """
 
 from __future__ import annotations
@@ -14,24 +16,35 @@ from pathlib import Path
 
 import typer
 
-from hcfplan.cli.output import (
+from hcfplan.cli.common import (
     JSON_HELP,
     SET_HELP,
     SPREAD_WORKERS_HELP,
-    TerminalBar,
-    _echo,
-    _fmt,
-    _print_cautions,
-    _print_envelope,
-    _print_fiber,
-    _print_gas,
-    _print_json,
-    _print_limits,
-    _print_rows,
-    _print_simulation,
-    _print_warnings,
+    WRITTEN,
+    gas_dirs,
+    interrupted_message,
+    load_cli_config,
+    run_spread_corners,
+    spread_plan,
+    start_workers,
+    stop_workers,
 )
-from hcfplan.errors import HcfplanError
+from hcfplan.cli.output import (
+    TerminalBar,
+    echo,
+    fmt,
+    print_cautions,
+    print_envelope,
+    print_fiber,
+    print_gas,
+    print_json,
+    print_limits,
+    print_rows,
+    print_simulation,
+    print_warnings,
+)
+from hcfplan.cli.workflows import register as register_workflows
+from hcfplan.errors import ConfigError, HcfplanError
 
 app = typer.Typer(
     add_completion=False,
@@ -40,20 +53,6 @@ app = typer.Typer(
     rich_markup_mode=None,
     help="Plan pulse compression in gas-filled hollow-core fibers and the THz it drives.",
 )
-
-
-# ---------------------------------------------------------------------------------------------
-# config loading (output helpers: hcfplan.cli.output)
-
-
-def _load(config: Path, overrides: list[str]):
-    import os
-
-    from hcfplan.io.config import load_config
-    from hcfplan.materials.gases import gas_search_dirs
-
-    dirs = gas_search_dirs(environ=os.environ)
-    return load_config(config, overrides=overrides or (), extra_gas_dirs=dirs)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -72,35 +71,26 @@ def gas_command(
     as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
 ) -> None:
     """Refractive index, group index, GVD, n2, density, Ip and self-focusing power of a gas."""
-    import os
-
-    from hcfplan.materials.gases import gas_search_dirs
     from hcfplan.planning.reports.gas import gas_report
 
     _check_cli_number("--pressure-bar", pressure_bar, 0.0, 1000.0)
     _check_cli_number("--temperature-k", temperature_k, 1.0, 2000.0)
     if eos not in ("coolprop", "ideal"):
-        raise _cli_error(f"--eos = {eos!r}: must be one of coolprop, ideal")
+        raise ConfigError(f"--eos = {eos!r}: must be one of coolprop, ideal")
     wavelengths = wavelength_nm or [800.0, 1030.0]
     for wl in wavelengths:
         _check_cli_number("--wavelength-nm", wl, 150.0, 20000.0)
     report = gas_report(name, pressure_bar * 1e5, temperature_k, [w * 1e-9 for w in wavelengths],
-                        eos=eos, search_dirs=gas_search_dirs(environ=os.environ))
+                        eos=eos, search_dirs=gas_dirs())
     if as_json:
-        _print_json(report)
+        print_json(report)
         return
-    _print_gas(report)
+    print_gas(report)
 
 
 def _check_cli_number(option: str, value: float, low: float, high: float) -> None:
     if not math.isfinite(value) or not low < value <= high:
-        raise _cli_error(f"{option} = {value}: must be > {low:g} and <= {high:g}")
-
-
-def _cli_error(message: str) -> HcfplanError:
-    from hcfplan.errors import ConfigError
-
-    return ConfigError(message)
+        raise ConfigError(f"{option} = {value}: must be > {low:g} and <= {high:g}")
 
 
 # ---------------------------------------------------------------------------------------------
@@ -116,13 +106,13 @@ def check_command(
     """Validate a config and print what it resolves to, all defaults filled in."""
     from hcfplan.io.tomlio import dump_toml
 
-    cfg = _load(config, set_ or [])
+    cfg = load_cli_config(config, set_ or [])
     if as_json:
-        _print_json(cfg.resolved)
+        print_json(cfg.resolved)
         return
-    _echo(f"# {config}: valid. Resolved values (defaults filled in; units in the key names):")
-    _echo(dump_toml(cfg.resolved).rstrip())
-    _print_cautions()
+    echo(f"# {config}: valid. Resolved values (defaults filled in; units in the key names):")
+    echo(dump_toml(cfg.resolved).rstrip())
+    print_cautions()
 
 
 # ---------------------------------------------------------------------------------------------
@@ -139,15 +129,15 @@ def fiber_command(
     """Linear and first nonlinear numbers of the configured fiber at the pump (no GNLSE run)."""
     from hcfplan.planning.reports.fiber import fiber_report
 
-    cfg = _load(config, set_ or [])
+    cfg = load_cli_config(config, set_ or [])
     report = fiber_report(cfg)
     if plot is not None:
         _fiber_plot(cfg, plot)
         report["figure"] = str(plot)
     if as_json:
-        _print_json(report)
+        print_json(report)
         return
-    _print_fiber(report)
+    print_fiber(report)
 
 
 def _fiber_plot(cfg, path: Path) -> None:
@@ -160,6 +150,7 @@ def _fiber_plot(cfg, path: Path) -> None:
     lam0 = cfg.laser.wavelength
     wavelengths = np.linspace(0.4 * lam0, 2.2 * lam0, 800)
     curves = dispersion_curves(cfg, wavelengths)
+    WRITTEN.watch(path)
     write_figure(path, plot_dispersion_and_loss, curves)
 
 
@@ -205,82 +196,40 @@ def simulate_command(
 ) -> None:
     """Run fiber (GNLSE) -> compressor -> THz and write summary.json, fields.npz and figures."""
     from hcfplan.io.results import prepare_output_dir
-    from hcfplan.io.run_output import write_run
     from hcfplan.planning.chain import run_chain
+    from hcfplan.planning.run_folder import write_run
 
-    cfg = _load(config, set_ or [])
-    spread_plan = _spread_plan(cfg, spread, set_ or [])
+    cfg = load_cli_config(config, set_ or [])
+    plan = spread_plan(cfg, spread, set_ or [])
     out_dir = prepare_output_dir(out if out is not None else _default_out_dir(config),
                                  force=force)
-    if spread_plan is not None:
-        _start_worker_server(workers)  # imports on another core while the nominal chain runs
+    WRITTEN.watch(out_dir)
+    if plan is not None:
+        start_workers(workers)  # imports on another core while the nominal chain runs
     bar = _Progress(not quiet and not as_json)
     try:
         chain = run_chain(cfg, progress=bar)
     finally:
         bar.close()
     spread_result = None
-    if spread_plan is not None and chain.propagation.success:
-        spread_result = _run_spread(cfg, chain, spread_plan, workers, quiet or as_json)
-    if spread_plan is not None:
-        from hcfplan.planning.scan import release_workers
+    if plan is not None and chain.propagation.success:
+        spread_result = run_spread_corners(cfg, chain, plan, workers, quiet or as_json)
+    if plan is not None:
+        stop_workers()  # no more points to compute
+    jobs = None
+    if not no_figures:
+        from hcfplan.plotting.report import figure_jobs
 
-        release_workers()  # no more points to compute
-    summary = write_run(out_dir, chain, figures=not no_figures, spread=spread_result)
+        jobs = figure_jobs(out_dir, chain, spread_result)
+    summary = write_run(out_dir, chain, figures=jobs, spread=spread_result)
     if as_json:
-        _print_json(summary)
+        print_json(summary)
     elif not quiet:
-        _print_simulation(summary, out_dir)
+        print_simulation(summary, out_dir)
     if not chain.propagation.success:
         typer.echo(f"hcfplan: run stopped: {chain.propagation.message} "
                    f"(partial result saved in {out_dir})", err=True)
         raise typer.Exit(1)
-
-
-def _spread_plan(cfg, text: str | None, overrides: list[str]):
-    """(spec, corner tasks) for ``--spread``, validated before any run; None without it."""
-    if text is None:
-        return None
-    import os
-
-    from hcfplan.materials.gases import gas_search_dirs
-    from hcfplan.planning.spread import corner_tasks, parse_spread
-
-    if text.strip() == "default":
-        s = cfg.spread
-        items = [f"energy={s.energy_percent}%", f"fwhm={s.fwhm_percent}%"]
-        if cfg.gas is not None:
-            items.append(f"pressure={s.pressure_percent}%")
-        text = ",".join(items)
-    spec = parse_spread(text)
-    dirs = tuple(gas_search_dirs(environ=os.environ))
-    return spec, corner_tasks(cfg, spec, overrides, dirs)
-
-
-def _worker_count(workers: int | None) -> int:
-    """Points or corners computed at a time for ``--workers`` (0 or not given: all cores)."""
-    import os
-
-    return workers or os.cpu_count() or 1
-
-
-def _start_worker_server(workers: int | None) -> None:
-    """Start the local worker processes' fork server now (see start_worker_server)."""
-    from hcfplan.planning.scan import start_worker_server
-
-    start_worker_server(_worker_count(workers))
-
-
-def _run_spread(cfg, chain, plan, workers: int, quiet: bool):
-    from hcfplan.planning.scan import run_summary
-    from hcfplan.planning.spread import run_spread
-
-    spec, tasks = plan
-    summary, margins = run_summary(cfg, chain)
-    if not quiet:
-        typer.echo(f"  spread: {len(tasks)} corner runs ...", err=True)
-    return run_spread(tasks, spec, {"summary": summary, "margins": margins},
-                      workers=_worker_count(workers))
 
 
 # ---------------------------------------------------------------------------------------------
@@ -296,13 +245,13 @@ def limits_command(
     """Self-focusing, ionisation, cell/window, static-fill and gas-handling checks (analytic)."""
     from hcfplan.planning.reports.limits import limits_report
 
-    cfg = _load(config, set_ or [])
+    cfg = load_cli_config(config, set_ or [])
     report = limits_report(cfg)
     if as_json:
-        _print_json(report)
+        print_json(report)
         return
-    _print_limits(report)
-    _print_cautions()
+    print_limits(report)
+    print_cautions()
 
 
 @app.command("envelope")
@@ -318,19 +267,20 @@ def envelope_command(
     from hcfplan.planning.envelope import envelope_json, envelope_map
 
     if contours not in ("duration", "cutoff", "both"):
-        raise _cli_error(f"--contours = {contours!r}: must be one of duration, cutoff, both")
-    cfg = _load(config, set_ or [])
+        raise ConfigError(f"--contours = {contours!r}: must be one of duration, cutoff, both")
+    cfg = load_cli_config(config, set_ or [])
     result = envelope_map(cfg)
     if plot is not None:
         from hcfplan.io.results import write_figure
         from hcfplan.plotting.envelope import plot_envelope
 
+        WRITTEN.watch(plot)
         write_figure(plot, lambda fig, r: plot_envelope(fig.subplots(), r, contours=contours),
                      result)
     if as_json:
-        _print_json(envelope_json(result))
+        print_json(envelope_json(result))
         return
-    _print_envelope(result, plot)
+    print_envelope(result, plot)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -358,70 +308,82 @@ def thz_command(
     as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
 ) -> None:
     """THz estimate from a measured broadened spectrum (no fiber model needed)."""
-    from hcfplan.planning.reports.thz import thz_report
+    from hcfplan.planning.reports.thz import thz_report, thz_setup_from_options
 
     _check_cli_number("--thickness-mm", thickness_mm, 0.0, 50.0)
     _check_cli_number("--energy-uj", energy_uj, 0.0, 1e6)
     _check_cli_number("--detector-thickness-mm", detector_thickness_mm, 0.0, 50.0)
     if not (math.isfinite(cutoff_db) and -200.0 <= cutoff_db < 0.0):
-        raise _cli_error(f"--cutoff-db = {cutoff_db}: must be < 0 and >= -200")
+        raise ConfigError(f"--cutoff-db = {cutoff_db}: must be < 0 and >= -200")
     if cutoff_quantity not in ("power", "field"):
-        raise _cli_error(f"--cutoff-quantity = {cutoff_quantity!r}: must be one of power, field")
-    result, report = thz_report(spectrum_csv, phase_csv=phase_csv, crystal=crystal,
-                                thickness=thickness_mm * 1e-3, energy=energy_uj * 1e-6,
-                                cutoff_db=cutoff_db, cutoff_quantity=cutoff_quantity,
-                                detector_crystal=detector_crystal,
-                                detector_thickness=detector_thickness_mm * 1e-3)
+        raise ConfigError(f"--cutoff-quantity = {cutoff_quantity!r}: must be one of power, field")
+    setup = thz_setup_from_options(crystal=crystal, thickness=thickness_mm * 1e-3,
+                                   cutoff_db=cutoff_db, cutoff_quantity=cutoff_quantity,
+                                   detector_crystal=detector_crystal,
+                                   detector_thickness=detector_thickness_mm * 1e-3)
+    result, report = thz_report(spectrum_csv, setup, phase_csv=phase_csv,
+                                energy=energy_uj * 1e-6)
     if plot is not None:
         from hcfplan.io.results import write_figure
         from hcfplan.plotting.report import draw_thz_result
 
+        WRITTEN.watch(plot)
         write_figure(plot, draw_thz_result, result)
         report["figure"] = str(plot)
     if as_json:
-        _print_json(report)
+        print_json(report)
         return
     rows = [
         ("crystal", f"{report['crystal']} {report['thickness_m'] * 1e3:g} mm", ""),
-        ("THz peak", f"{_fmt(report['peak_hz'], 1e12)} THz", ""),
-        ("THz cutoff", f"{_fmt(report['cutoff_hz'], 1e12)} THz", report["cutoff_definition"]),
-        ("-3 dB / -10 dB width", f"{_fmt(report['bandwidth_3db_hz'], 1e12)} / "
-         f"{_fmt(report['bandwidth_10db_hz'], 1e12)} THz", ""),
+        ("THz peak", f"{fmt(report['peak_hz'], 1e12)} THz", ""),
+        ("THz cutoff", f"{fmt(report['cutoff_hz'], 1e12)} THz", report["cutoff_definition"]),
+        ("-3 dB / -10 dB width", f"{fmt(report['bandwidth_3db_hz'], 1e12)} / "
+         f"{fmt(report['bandwidth_10db_hz'], 1e12)} THz", ""),
         ("relative efficiency", f"{report['relative_efficiency']:.3g}",
          "for d_eff = 1 pm/V and 1 mm^2: compares spectra, not an absolute yield"),
     ]
     if report.get("detected_cutoff_hz") is not None:
-        rows.append(("detected cutoff", f"{_fmt(report['detected_cutoff_hz'], 1e12)} THz",
+        rows.append(("detected cutoff", f"{fmt(report['detected_cutoff_hz'], 1e12)} THz",
                      f"EO detection in {detector_crystal}"))
-    _print_rows(rows)
+    print_rows(rows)
     if "figure" in report:
-        _echo(f"\nFigure written: {report['figure']}")
-    _print_warnings(report["warnings"])
-    _print_cautions(("estimates", "laser"))
+        echo(f"\nFigure written: {report['figure']}")
+    print_warnings(report["warnings"])
+    print_cautions(("estimates", "laser"))
 
 
 # ---------------------------------------------------------------------------------------------
-# planning workflows (scan, recommend, compare) live in their own module
+# planning workflows (scan, recommend, compare) live in their own module, listed after these
 
-from hcfplan.cli.workflows import register as _register_workflows  # noqa: E402  (light import)
-
-_register_workflows(app)
+register_workflows(app)
 
 
 # ---------------------------------------------------------------------------------------------
 # entry point
 
 
+#: Exit code of an interrupted command: 128 + SIGINT, as a shell reports a job ended by Ctrl-C.
+#: Common practice, no source. Typer returns it for a KeyboardInterrupt inside a command.
+INTERRUPTED = 130
+
+
 def main(argv: list[str] | None = None) -> int:
-    """Console entry point: run the app; a HcfplanError becomes one stderr line and exit 2."""
+    """Console entry point: run the app and return the exit code.
+
+    A HcfplanError becomes one stderr line and exit 2; Ctrl-C becomes one stderr line saying
+    what the command kept (:func:`hcfplan.cli.common.interrupted_message`) and exit 130.
+    """
+    WRITTEN.clear()
     try:
         result = app(args=argv, prog_name="hcfplan", standalone_mode=False)
+    except KeyboardInterrupt:  # outside a command (typer turns one inside into 130)
+        result = INTERRUPTED
     except HcfplanError as exc:
         message = " ".join(str(exc).split())
         typer.echo(f"hcfplan: error: {message}", err=True)
         return 2
-    except typer.Exit as exc:  # also Ctrl-C, which typer turns into Exit(130)
-        return exc.exit_code
+    except typer.Exit as exc:
+        result = exc.exit_code
     except typer.TyperException as exc:  # usage: unknown option, missing or unparsable value
         if not (sys.argv[1:] if argv is None else argv):  # bare `hcfplan`: show the help
             exc.show()
@@ -434,6 +396,8 @@ def main(argv: list[str] | None = None) -> int:
     except SystemExit as exc:
         code = exc.code
         return code if isinstance(code, int) else (0 if code is None else 1)
+    if result == INTERRUPTED:
+        typer.echo(f"hcfplan: {interrupted_message()}", err=True)
     return result if isinstance(result, int) else 0
 
 

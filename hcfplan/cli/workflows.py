@@ -1,8 +1,8 @@
 """Command-line front of the planning workflows (scan, recommend, compare).
 
 ``register(app)`` adds the commands to the typer app of :mod:`hcfplan.cli.app`. Heavy modules
-(numpy, scipy, matplotlib, the chain) are imported inside the commands only; the shared output
-helpers of :mod:`hcfplan.cli.app` are looked up when a command runs.
+(numpy, scipy, matplotlib, the chain) are imported inside the commands only. Imports of the
+command line flow one way: app -> workflows -> common, output.
 """
 
 from __future__ import annotations
@@ -13,41 +13,31 @@ from typing import Optional
 
 import typer
 
-from hcfplan.cli.output import JSON_HELP, SET_HELP, SPREAD_WORKERS_HELP
+from hcfplan.cli.common import (
+    JSON_HELP,
+    SET_HELP,
+    SPREAD_WORKERS_HELP,
+    WRITTEN,
+    gas_dirs,
+    load_cli_config,
+    run_spread_corners,
+    spread_plan,
+    start_workers,
+    stop_workers,
+    worker_count,
+)
+from hcfplan.cli.output import (
+    TerminalBar,
+    fmt,
+    print_cautions,
+    print_json,
+    print_spread,
+    print_table,
+)
+from hcfplan.errors import ConfigError
 
 VARY_HELP = ("Varied key: section.key=START:STOP:COUNT (COUNT linearly spaced values, both "
              "ends included; numeric keys) or section.key=a,b,c (any key). Give one or two.")
-
-
-def _cli():
-    from hcfplan.cli import app as cli
-
-    return cli
-
-
-def _out():
-    from hcfplan.cli import output as cli_output
-
-    return cli_output
-
-
-def _gas_dirs():
-    import os
-
-    from hcfplan.materials.gases import gas_search_dirs
-
-    return tuple(gas_search_dirs(environ=os.environ))
-
-
-def _fmt(value, scale: float = 1.0, digits: int = 4) -> str:
-    return _out()._fmt(value, scale, digits)
-
-
-def _table(header: list[str], rows: list[list[str]]) -> None:
-    widths = [max(len(h), *(len(r[i]) for r in rows)) for i, h in enumerate(header)]
-    typer.echo("  " + "  ".join(h.ljust(w) for h, w in zip(header, widths, strict=True)))
-    for row in rows:
-        typer.echo("  " + "  ".join(v.ljust(w) for v, w in zip(row, widths, strict=True)))
 
 
 @contextlib.contextmanager
@@ -73,7 +63,7 @@ class _ScanProgress:
     """Overall progress over the points on stderr, only when stderr is a terminal."""
 
     def __init__(self, enabled: bool):
-        self.bar = _out().TerminalBar(enabled, "scan")
+        self.bar = TerminalBar(enabled, "scan")
 
     def __call__(self, done: int, total: int, record: dict) -> None:
         self.bar.draw(done / max(total, 1), f"{done}/{total} points")
@@ -86,7 +76,8 @@ class _ScanProgress:
 # scan
 
 
-def _scan_figures(out_dir: Path, plan, records) -> list[str]:
+def scan_figures(out_dir: Path, plan, records) -> list[str]:
+    """Draw the figures of a finished scan into ``out_dir``; returns their file names."""
     from hcfplan.io.results import write_figures
     from hcfplan.plotting import scan as plots
 
@@ -111,9 +102,9 @@ def _scan_rows(plan, records) -> tuple[list[str], list[list[str]]]:
         s, m = r["summary"], r["margins"]
         comp, thz = s.get("compressed", {}), s.get("thz", {})
         rows.append([str(r["values"][k]) for k in keys] + [
-            r["status"], _fmt(comp.get("fwhm_s"), 1e-15), _fmt(comp.get("peak_power_w"), 1e9),
-            _fmt(thz.get("cutoff_hz"), 1e12), _fmt(m.get("self_focusing"), 1, 3),
-            _fmt(m.get("ionization_fraction"), 1, 3),
+            r["status"], fmt(comp.get("fwhm_s"), 1e-15), fmt(comp.get("peak_power_w"), 1e9),
+            fmt(thz.get("cutoff_hz"), 1e12), fmt(m.get("self_focusing"), 1, 3),
+            fmt(m.get("ionization_fraction"), 1, 3),
             m.get("binding") or ("-" if r["status"] == "ok" else r["message"][:60])])
     return header, rows
 
@@ -138,25 +129,26 @@ def scan_command(
     as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
 ) -> None:
     """Run the full chain over one or two varied keys; saves every point as it finishes."""
-    from hcfplan.planning.scan import parse_vary, plan_scan, release_workers, run_scan
+    from hcfplan.planning.scan import parse_vary, plan_scan, run_scan
 
     varies = [parse_vary(text) for text in vary]
     if dask_scheduler is None:  # the fork server imports while the points are planned
-        _cli()._start_worker_server(workers)
-    plan = plan_scan(config, varies, overrides=tuple(set_ or ()), extra_gas_dirs=_gas_dirs())
+        start_workers(workers)
+    plan = plan_scan(config, varies, overrides=tuple(set_ or ()), extra_gas_dirs=gas_dirs())
     out_dir = out if out is not None else Path("scans") / config.stem
+    WRITTEN.watch(out_dir, "the same scan command resumes from them")
     bar = _ScanProgress(not as_json)
     try:
         with _sigterm_as_exit():
-            outcome = run_scan(plan, out_dir, workers=_cli()._worker_count(workers),
+            outcome = run_scan(plan, out_dir, workers=worker_count(workers),
                                address=dask_scheduler, fresh=fresh, force=force, on_point=bar)
     finally:
         bar.close()
-    release_workers()  # no more points to compute
-    figures = [] if no_figures else _scan_figures(outcome.out_dir, plan, outcome.records)
+    stop_workers()  # no more points to compute
+    figures = [] if no_figures else scan_figures(outcome.out_dir, plan, outcome.records)
     failed = [r for r in outcome.records if r["status"] != "ok"]
     if as_json:
-        _out()._print_json(_scan_json(outcome, figures, failed))
+        print_json(_scan_json(outcome, figures, failed))
     else:
         _print_scan(outcome, figures, failed)
     if failed:
@@ -189,14 +181,14 @@ def _cautions() -> list[str]:
 
 def _print_scan(outcome, figures, failed) -> None:
     header, rows = _scan_rows(outcome.plan, outcome.records)
-    _table(header, rows)
+    print_table(header, rows)
     damaged = f", {len(outcome.damaged)} damaged point files recomputed" if outcome.damaged \
         else ""
     typer.echo(f"\n{len(outcome.computed)} points computed ({outcome.executor}), "
                f"{len(outcome.reused)} reused{damaged}; {len(failed)} failed.")
     typer.echo(f"Written to {outcome.out_dir}/: table.csv, points/"
                + (f", {', '.join(figures)}" if figures else ""))
-    _out()._print_cautions()
+    print_cautions()
 
 
 # ---------------------------------------------------------------------------------------------
@@ -225,15 +217,15 @@ def recommend_command(
 
     gas_list = tuple(g.strip() for g in gases.split(",") if g.strip()) if gases else ()
     recs = recommend(config, goal, search=vary, gases=gas_list, target_thz=target_thz,
-                     overrides=tuple(set_ or ()), extra_gas_dirs=_gas_dirs(), budget=budget)
+                     overrides=tuple(set_ or ()), extra_gas_dirs=gas_dirs(), budget=budget)
     chosen = overall_best(recs)
     if as_json:
-        _out()._print_json({"chosen": _rec_json(chosen) if chosen else None,
-                         "searches": [_rec_json(r) for r in recs], "cautions": _cautions()})
+        print_json({"chosen": _rec_json(chosen) if chosen else None,
+                    "searches": [_rec_json(r) for r in recs], "cautions": _cautions()})
     else:
         for rec in recs:
             _print_recommendation(rec, rec is chosen and len(recs) > 1)
-        _out()._print_cautions()
+        print_cautions()
     if chosen is None:
         typer.echo("hcfplan: no point meets the goal within the modelled limits: "
                    + "; ".join(r.reason for r in recs), err=True)
@@ -268,12 +260,12 @@ def _print_recommendation(rec, chosen: bool) -> None:
         mark = "  <- best" if chosen else ""
         typer.echo(f"  chosen {rec.key} = {best.value:.4g} {unit} (search tolerance "
                    f"{rec.tolerance:.2g} {unit}){mark}")
-        typer.echo(f"  compressed {_fmt(comp.get('fwhm_s'), 1e-15)} fs, "
-                   f"{_fmt(comp.get('peak_power_w'), 1e9)} GW; THz cutoff "
-                   f"{_fmt(thz.get('cutoff_hz'), 1e12)} THz")
-        typer.echo(f"  margins: self-focusing {_fmt(m.get('self_focusing'), 1, 3)} (required "
+        typer.echo(f"  compressed {fmt(comp.get('fwhm_s'), 1e-15)} fs, "
+                   f"{fmt(comp.get('peak_power_w'), 1e9)} GW; THz cutoff "
+                   f"{fmt(thz.get('cutoff_hz'), 1e12)} THz")
+        typer.echo(f"  margins: self-focusing {fmt(m.get('self_focusing'), 1, 3)} (required "
                    f"{m.get('self_focusing_required'):g}), ionisation fraction "
-                   f"{_fmt(m.get('ionization_fraction'), 1, 3)} (limit "
+                   f"{fmt(m.get('ionization_fraction'), 1, 3)} (limit "
                    f"{m.get('ionization_limit'):g})")
     if rec.reason:
         typer.echo(f"  note: {rec.reason}")
@@ -306,36 +298,32 @@ def compare_command(
     """Run two setups and show them side by side with B - A and B / A."""
     from hcfplan.planning.compare import compare_configs
 
-    cli = _cli()
     if config_b is None and not set_b:
-        raise cli._cli_error("compare: give config B or at least one --set-b override")
+        raise ConfigError("compare: give config B or at least one --set-b override")
     over_a = list(set_ or [])
     over_b = over_a + list(set_b or []) if config_b is None else list(set_b or [])
-    cfg_a = cli._load(config_a, over_a)
-    cfg_b = cli._load(config_b if config_b is not None else config_a, over_b)
-    plans = [cli._spread_plan(cfg, spread, over) for cfg, over in ((cfg_a, over_a),
-                                                                     (cfg_b, over_b))]
+    cfg_a = load_cli_config(config_a, over_a)
+    cfg_b = load_cli_config(config_b if config_b is not None else config_a, over_b)
+    plans = [spread_plan(cfg, spread, over) for cfg, over in ((cfg_a, over_a), (cfg_b, over_b))]
     labels = (str(config_a), str(config_b) if config_b is not None else
               f"{config_a} with " + " ".join(set_b or []))
     if plans[0] is not None:  # the fork server imports while the nominal chains run
-        cli._start_worker_server(workers)
+        start_workers(workers)
     comparison = compare_configs(cfg_a, cfg_b, labels)
     spreads = _compare_spreads(comparison, plans, workers, as_json)
     if plans[0] is not None:
-        from hcfplan.planning.scan import release_workers
-
-        release_workers()  # no more points to compute
+        stop_workers()  # no more points to compute
     figures = _compare_outputs(out, comparison, force, spreads) if out is not None else []
     if as_json:
-        _out()._print_json({"labels": list(labels), "rows": list(comparison.rows),
-                         "margins": {"a": comparison.a.margins, "b": comparison.b.margins},
-                         "spread": spreads, "figures": figures, "cautions": _cautions()})
+        print_json({"labels": list(labels), "rows": list(comparison.rows),
+                    "margins": {"a": comparison.a.margins, "b": comparison.b.margins},
+                    "spread": spreads, "figures": figures, "cautions": _cautions()})
     else:
         _print_comparison(comparison, figures, out)
         for name, side in zip(("A", "B"), (spreads or {}).values(), strict=False):
             typer.echo(f"\n{name}:", nl=False)
-            _out()._print_spread({"spread": side})
-        _out()._print_cautions()
+            print_spread({"spread": side})
+        print_cautions()
 
 
 def _compare_spreads(comparison, plans, workers: int, quiet: bool) -> dict | None:
@@ -344,11 +332,10 @@ def _compare_spreads(comparison, plans, workers: int, quiet: bool) -> dict | Non
         return None
     from hcfplan.planning.spread import spread_summary
 
-    cli = _cli()
     out = {}
     for key, side, plan in zip(("a", "b"), (comparison.a, comparison.b), plans, strict=True):
         if side.chain.propagation.success:
-            result = cli._run_spread(side.chain.config, side.chain, plan, workers, quiet)
+            result = run_spread_corners(side.chain.config, side.chain, plan, workers, quiet)
             out[key] = spread_summary(result)
     return out
 
@@ -358,6 +345,7 @@ def _compare_outputs(out: Path, comparison, force: bool, spreads=None) -> list[s
     from hcfplan.plotting.compare import FIGURES
 
     out_dir = prepare_output_dir(out, force=force)
+    WRITTEN.watch(out_dir)
     write_figures([(out_dir / f"{stem}.png", draw, (comparison.a, comparison.b))
                    for stem, draw in FIGURES.items()])
     names = [f"{stem}.png" for stem in FIGURES]
@@ -373,11 +361,11 @@ def _print_comparison(comparison, figures, out) -> None:
     rows = []
     for r in comparison.rows:
         scale, unit = r["scale"], r["unit"]
-        rows.append([r["label"] + (f" ({unit})" if unit else ""), _fmt(r["a"], scale),
-                     _fmt(r["b"], scale), _fmt(r["difference"], scale),
-                     _fmt(r["ratio"], 1, 3)])
+        rows.append([r["label"] + (f" ({unit})" if unit else ""), fmt(r["a"], scale),
+                     fmt(r["b"], scale), fmt(r["difference"], scale),
+                     fmt(r["ratio"], 1, 3)])
     typer.echo(f"A = {comparison.a.label}\nB = {comparison.b.label}\n")
-    _table(["quantity", "A", "B", "B - A", "B / A"], rows)
+    print_table(["quantity", "A", "B", "B - A", "B / A"], rows)
     for side in (comparison.a, comparison.b):
         m = side.margins
         state = ("within the modelled limits" if m["acceptable"]

@@ -19,49 +19,38 @@ Definitions used throughout
   reported GDD/TOD, like those of the chirped-mirror result, are the totals of the applied
   phase (fixed + compressor) at ``omega0``.
 * Main lobe, pre- and post-pulse follow :func:`hcfplan.pulse.metrics.main_lobe`.
+
+The evaluation machinery of the searches (objectives, the scorer, the 1-D search) is in
+:mod:`hcfplan.compression.scoring`, the reference searches in
+:mod:`hcfplan.compression.references`.
+
+References
+----------
+.. [1] J.-C. Diels and W. Rudolph, *Ultrashort Laser Pulse Phenomena*, 2nd ed., Academic
+       Press, 2006, ch. 1 [from memory] (spectral phase, GDD and TOD).
 """
 
 from __future__ import annotations
 
-import copy
-from collections.abc import Callable
 from dataclasses import dataclass
-from typing import Literal
 
 import numpy as np
-from scipy.optimize import minimize, minimize_scalar
 
 from hcfplan.compression.elements import clip_to_band, material_phase, phase_derivatives_at
+from hcfplan.compression.references import ReferencePulse, reference_pulses
+from hcfplan.compression.scoring import (
+    OBJECTIVES,
+    Objective,
+    Scorer,
+    peak_powers,
+    scan_then_refine,
+)
 from hcfplan.errors import ConfigError
-from hcfplan.numerics.fft import shared_transforms
 from hcfplan.numerics.grid import Grid
-from hcfplan.pulse import metrics
 from hcfplan.pulse.metrics import PulseMetrics, pulse_metrics
-
-Objective = Literal["peak_power", "fwhm"]
 
 #: Spectral power, relative to its peak, below which the residual phase is not defined (nan).
 RESIDUAL_PHASE_FLOOR = 1e-4
-#: Points of the coarse scans that precede each bounded scalar refinement.
-_SCAN_POINTS = 21
-
-
-def _negative_peak_power(grid: Grid, field_t: np.ndarray) -> float:
-    """Objective to minimise: minus the peak power. [W]"""
-    return -metrics.peak_power(field_t)
-
-
-def _duration(grid: Grid, field_t: np.ndarray) -> float:
-    """Objective to minimise: FWHM of the main peak, the time window if unresolved. [s]"""
-    width = metrics.fwhm(grid.time, np.abs(field_t) ** 2)
-    return width if np.isfinite(width) else grid.time_window
-
-
-#: Objective name -> function (grid, field_t) -> score to *minimise*.
-OBJECTIVES: dict[str, Callable[[Grid, np.ndarray], float]] = {
-    "peak_power": _negative_peak_power,
-    "fwhm": _duration,
-}
 
 
 @dataclass(frozen=True, eq=False)
@@ -92,33 +81,15 @@ class TrimSpec:
     def from_index(
         cls, grid: Grid, refractive_index: np.ndarray, insertion_min: float, insertion_max: float
     ) -> TrimSpec:
-        """Build from n(omega) evaluated on ``grid.omega`` [1] and the insertion bounds [m]."""
+        """Build from n(omega) evaluated on ``grid.omega`` [1] and the insertion bounds [m].
+
+        References
+        ----------
+        None: :func:`hcfplan.compression.elements.material_phase` per unit length, whose
+        docstring names its source.
+        """
         unit = material_phase(grid.omega, grid.omega0, refractive_index, 1.0)
         return cls(unit, insertion_min, insertion_max)
-
-
-@dataclass(frozen=True, eq=False)
-class ReferencePulse:
-    """A reference compression: ideal polynomial phase, or the transform limit.
-
-    Attributes
-    ----------
-    name : str
-        ``"quadratic"``, ``"quadratic_cubic"`` or ``"transform_limit"``.
-    total_gdd, total_tod : float
-        GDD and TOD of the applied phase (fixed + ideal) at omega0; nan for the transform
-        limit. [s^2], [s^3]
-    field_t : ndarray
-        Temporal envelope on ``grid.time``. [sqrt(W)]
-    metrics : PulseMetrics
-        Metrics of ``field_t``.
-    """
-
-    name: str
-    total_gdd: float
-    total_tod: float
-    field_t: np.ndarray
-    metrics: PulseMetrics
 
 
 @dataclass(frozen=True, eq=False)
@@ -207,6 +178,10 @@ def residual_spectral_phase(grid: Grid, spectrum: np.ndarray) -> np.ndarray:
     are removed first, so that the phase changes slowly between samples; then the phase is unwrapped
     over the retained samples in ascending frequency and a straight line fitted with the spectral
     power as weight is subtracted. Common practice, no source.
+
+    References
+    ----------
+    None: numerical helper (weighted linear fit of the unwrapped phase).
     """
     field_t = grid.to_time(spectrum)
     power_t = np.abs(field_t) ** 2
@@ -221,77 +196,6 @@ def residual_spectral_phase(grid: Grid, spectrum: np.ndarray) -> np.ndarray:
     residual = np.full(grid.points, np.nan)
     residual[order[keep]] = phase - (slope * x + offset)
     return residual
-
-
-def _scan_then_refine(fun: Callable[[float], float], lo: float, hi: float) -> tuple[float, float]:
-    """Minimise ``fun`` on [lo, hi]: coarse scan, then bounded Brent around the best point."""
-    xs = np.linspace(lo, hi, _SCAN_POINTS)
-    values = np.array([fun(x) for x in xs])
-    i = int(np.argmin(values))
-    a, b = xs[max(i - 1, 0)], xs[min(i + 1, xs.size - 1)]
-    res = minimize_scalar(fun, bounds=(a, b), method="bounded", options={"xatol": (hi - lo) * 1e-6})
-    if res.fun <= values[i]:
-        return float(res.x), float(res.fun)
-    return float(xs[i]), float(values[i])
-
-
-class _Scorer:
-    """Objective score of ``spectrum * exp(i phase)`` for the many phases of the search.
-
-    The searches call the objective 100-1000 times per compressor (each call a complex
-    exponential and an FFT over the grid), more than the rest of a scan point's chain after the
-    fiber. So the work per call is kept to that exponential and that FFT:
-
-    * Only the samples where ``spectrum`` is nonzero are computed (outside the mirror band the
-      clipped spectrum is exactly zero). The phases of the search are given on those samples
-      only, as :meth:`part` of the full arrays.
-    * A phase common to every call of one search (the fixed elements, the mirrors of one bounce
-      count) is folded into the spectrum once (:meth:`with_phase`).
-    * The polynomial phases of the references use the precomputed 0.5 dw^2 and dw^3 / 6
-      (:func:`_polynomial` with unit coefficients).
-    * The FFT is the solver's default back end with its buffers
-      (:func:`~hcfplan.numerics.fft.shared_transforms`, pyFFTW when it is installed).
-
-    The score is the same function of the phase as before; only rounding differs.
-    """
-
-    def __init__(self, grid: Grid, spectrum: np.ndarray,
-                 objective: Callable[[Grid, np.ndarray], float]) -> None:
-        self.grid, self.objective = grid, objective
-        keep = np.flatnonzero(spectrum)
-        self._keep = None if keep.size == grid.points else keep
-        self.spectrum = self.part(spectrum)
-        self.quadratic = self.part(_polynomial(grid, 1.0, 0.0))  # 0.5 dw^2
-        self.cubic = self.part(_polynomial(grid, 0.0, 1.0))  # dw^3 / 6
-        self._fft = shared_transforms(grid.points)
-        self._scale = 1.0 / (grid.points * grid.dt)  # unnormalised FFT -> envelope
-
-    def part(self, array: np.ndarray) -> np.ndarray:
-        """``array`` on the samples the search computes (all when the spectrum has no zeros)."""
-        return array if self._keep is None else array[self._keep]
-
-    def with_phase(self, phase: np.ndarray) -> _Scorer:
-        """A scorer of ``spectrum * exp(i phase)`` (``phase`` given as a :meth:`part`)."""
-        other = copy.copy(self)
-        other.spectrum = self.spectrum * np.exp(1j * phase)
-        return other
-
-    def polynomial(self, gdd: float, tod: float) -> np.ndarray:
-        """:func:`_polynomial` on the searched samples. [rad]"""
-        return gdd * self.quadratic + tod * self.cubic
-
-    def __call__(self, phase: np.ndarray) -> float:
-        """Objective of ``spectrum * exp(i phase)``, ``phase`` given as a :meth:`part`. [rad]"""
-        factor = np.exp(1j * phase)
-        target = self._fft.spectrum_in
-        if self._keep is None:
-            np.multiply(self.spectrum, factor, out=target)
-        else:  # the FFT may overwrite its input: every sample is written each call
-            target.fill(0.0)
-            target[self._keep] = self.spectrum * factor
-        field_t = self._fft.forward()
-        field_t *= self._scale
-        return self.objective(self.grid, field_t)
 
 
 def _bounce_counts(max_bounces: int, in_pairs: bool) -> np.ndarray:
@@ -328,7 +232,7 @@ def _check_inputs(grid: Grid, arrays: dict[str, np.ndarray], objective: str) -> 
 
 
 def _scan_bounces(
-    score: _Scorer,
+    score: Scorer,
     base: np.ndarray,
     per_bounce: np.ndarray,
     counts: np.ndarray,
@@ -345,7 +249,7 @@ def _scan_bounces(
             trims.append(0.0)
             continue
         shaped = score.with_phase(phase_n)
-        best_l, best_s = _scan_then_refine(
+        best_l, best_s = scan_then_refine(
             lambda l, shaped=shaped: shaped(l * trim_phase),
             trim.insertion_min,
             trim.insertion_max,
@@ -353,99 +257,6 @@ def _scan_bounces(
         scores.append(best_s)
         trims.append(best_l)
     return np.array(scores), np.array(trims)
-
-
-def _peak_powers(score: _Scorer, phases: list[np.ndarray]) -> np.ndarray:
-    """Peak power of ``score.spectrum * exp(i phase)`` for each phase (full arrays). [W]"""
-    if score.objective is not _negative_peak_power:
-        score = copy.copy(score)
-        score.objective = _negative_peak_power
-    return np.array([-score(score.part(p)) for p in phases])
-
-
-def _reference(
-    grid: Grid, name: str, phase: np.ndarray, spectrum: np.ndarray, peak_in: float | None
-) -> ReferencePulse:
-    """Build a :class:`ReferencePulse` from an applied total phase."""
-    field_t = grid.to_time(spectrum * np.exp(1j * phase))
-    _, _, gdd, tod = phase_derivatives_at(grid.omega, grid.omega0, phase)
-    reference_metrics = pulse_metrics(grid, field_t, input_peak_power=peak_in)
-    return ReferencePulse(name, gdd, tod, field_t, reference_metrics)
-
-
-def _polynomial(grid: Grid, gdd: float, tod: float) -> np.ndarray:
-    """Phase 0.5 gdd dw^2 + tod/6 dw^3 on the grid. [rad]"""
-    return 0.5 * gdd * grid.domega**2 + tod / 6.0 * grid.domega**3
-
-
-def _best_quadratic(shaped: _Scorer, center: float, span: float) -> float:
-    """GDD of the ideal quadratic compressor minimising ``shaped`` (the spectrum after the
-    fixed elements) on center +- span. [s^2]"""
-    gdd, _ = _scan_then_refine(
-        lambda g: shaped(shaped.polynomial(g, 0.0)), center - span, center + span
-    )
-    return gdd
-
-
-def _best_cubic(
-    shaped: _Scorer, gdd0: float, tod_center: float, scale: float
-) -> tuple[float, float]:
-    """(GDD, TOD) of the ideal quadratic + cubic compressor, starting from ``gdd0``."""
-    s_quadratic = shaped(shaped.polynomial(gdd0, 0.0))
-    span = max(20.0 * scale**3, 2.0 * abs(tod_center))
-    tod0, _ = _scan_then_refine(
-        lambda t: shaped(shaped.polynomial(gdd0, t)), tod_center - span, tod_center + span
-    )
-    norm = abs(s_quadratic) if s_quadratic != 0 else 1.0
-
-    def scaled(x: np.ndarray) -> float:
-        return shaped(shaped.polynomial(x[0] * scale**2, x[1] * scale**3)) / norm
-
-    res = minimize(
-        scaled,
-        np.array([gdd0 / scale**2, tod0 / scale**3]),
-        method="Nelder-Mead",
-        options={"xatol": 1e-4, "fatol": 1e-10, "maxiter": 600},
-    )
-    if res.fun * norm > s_quadratic:
-        return gdd0, 0.0
-    return float(res.x[0] * scale**2), float(res.x[1] * scale**3)
-
-
-def _references(
-    grid: Grid,
-    clipped: np.ndarray,
-    fixed: np.ndarray,
-    score: _Scorer,
-    compressor: tuple[float, float, float],
-    peak_in: float | None,
-) -> tuple[ReferencePulse, ReferencePulse, ReferencePulse]:
-    """Quadratic, quadratic + cubic and transform-limit references.
-
-    ``compressor`` is (GDD, TOD, GDD search half-span) of the mirrors + trim at omega0; the
-    ideal phases are searched around it.
-    """
-    tl_field = metrics.transform_limit(grid, clipped)
-    scale = metrics.fwhm(grid.time, np.abs(tl_field) ** 2)
-    scale = scale if np.isfinite(scale) else 10.0 * grid.dt
-    gdd_center, tod_center, gdd_span = compressor
-    shaped = score.with_phase(score.part(fixed))
-    gdd_q = _best_quadratic(shaped, gdd_center, max(gdd_span, 20.0 * scale**2))
-    gdd_c, tod_c = _best_cubic(shaped, gdd_q, tod_center, scale)
-    tl = ReferencePulse(
-        "transform_limit",
-        float("nan"),
-        float("nan"),
-        tl_field,
-        pulse_metrics(grid, tl_field, input_peak_power=peak_in),
-    )
-    return (
-        _reference(grid, "quadratic", fixed + _polynomial(grid, gdd_q, 0.0), clipped, peak_in),
-        _reference(
-            grid, "quadratic_cubic", fixed + _polynomial(grid, gdd_c, tod_c), clipped, peak_in
-        ),
-        tl,
-    )
 
 
 @dataclass(frozen=True, eq=False)
@@ -553,6 +364,18 @@ def optimize_bounces(
     -------
     CompressionResult
         Ties between counts go to the smaller count. See the module docstring for definitions.
+
+    Notes
+    -----
+    The elements are phase-only (convention 4 of :mod:`hcfplan.numerics.grid`); GDD and TOD
+    are the second and third derivatives of the applied phase at omega0 [1]. The search is
+    numerical: every candidate count is scored, the trim by a coarse scan and bounded Brent
+    minimisation (:func:`hcfplan.compression.scoring.scan_then_refine`).
+
+    References
+    ----------
+    .. [1] J.-C. Diels and W. Rudolph, *Ultrashort Laser Pulse Phenomena*, 2nd ed., Academic
+           Press, 2006, ch. 1 [from memory] (spectral phase, GDD and TOD).
     """
     arrays = {"spectrum": spectrum, "fixed_phase": fixed_phase}
     arrays["mirror_phase_per_bounce"] = mirror_phase_per_bounce
@@ -563,7 +386,7 @@ def optimize_bounces(
         raise ConfigError(f"input_peak_power = {input_peak_power} W: must be > 0")
     counts = _bounce_counts(max_bounces, in_pairs)
     chain = _chain(grid, spectrum, fixed_phase, mirror_phase_per_bounce, band, trim)
-    score = _Scorer(grid, chain.clipped, OBJECTIVES[objective])
+    score = Scorer(grid, chain.clipped, OBJECTIVES[objective])
     scores, trims = _scan_bounces(score, chain.fixed, chain.mirror, counts, chain.trim)
     best = int(np.argmin(scores))
     n, insertion = int(counts[best]), float(trims[best])
@@ -573,17 +396,18 @@ def optimize_bounces(
     gdd, tod = chain.gdd_tod(phase)
     fixed_gdd, fixed_tod = chain.gdd_tod(chain.fixed)
     compressor = (gdd - fixed_gdd, tod - fixed_tod, chain.search_span(counts))
-    refs = _references(grid, chain.clipped, chain.fixed, score, compressor, input_peak_power)
+    refs = reference_pulses(grid, chain.clipped, chain.fixed, score, compressor,
+                            input_peak_power)
     # with the peak-power objective the bounce scan has computed the curves already
     by_peak = objective == "peak_power"
     if by_peak and chain.trim is None:
         curve = -scores
     else:
-        curve = _peak_powers(score, [chain.phase(k, 0.0) for k in counts])
+        curve = peak_powers(score, [chain.phase(k, 0.0) for k in counts])
     curve_trim = None
     if chain.trim is not None:
         phases = [chain.phase(k, l) for k, l in zip(counts, trims, strict=True)]
-        curve_trim = -scores if by_peak else _peak_powers(score, phases)
+        curve_trim = -scores if by_peak else peak_powers(score, phases)
     return CompressionResult(
         grid=grid,
         objective=objective,

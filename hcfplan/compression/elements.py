@@ -10,6 +10,11 @@ Refractive indices are arrays evaluated on ``omega`` by the caller (the planning
 module does not depend on the material tables.
 
 The elements are phase-only; the mirror reflection band is the only loss (:func:`clip_to_band`).
+
+References
+----------
+.. [1] J.-C. Diels and W. Rudolph, *Ultrashort Laser Pulse Phenomena*, 2nd ed., Academic
+       Press, 2006, ch. 1 [from memory] (spectral phase, GDD and TOD).
 """
 
 from __future__ import annotations
@@ -60,6 +65,10 @@ def phase_derivatives_at(
     -----
     A degree-4 least-squares polynomial in :math:`\\Delta\\omega` over the nine samples nearest to
     ``omega0``; exact for polynomial phases up to degree 4. Common practice, no source.
+
+    References
+    ----------
+    None: numerical helper (local least-squares polynomial fit).
     """
     order, w = _sorted_view(omega)
     p = np.asarray(phase, dtype=float)[order]
@@ -111,6 +120,11 @@ def material_phase(
     in the retarded-time window; GDD and higher orders are unchanged. The slope is taken from
     the local fit of :func:`phase_derivatives_at`, so ``refractive_index`` must be finite near
     ``omega0``; non-finite values elsewhere stay non-finite in the result.
+
+    References
+    ----------
+    .. [1] J.-C. Diels and W. Rudolph, *Ultrashort Laser Pulse Phenomena*, 2nd ed., Academic
+           Press, 2006, ch. 1 [from memory] (spectral phase, GDD and TOD).
     """
     if not thickness >= 0:
         raise ConfigError(f"thickness = {thickness} m: must be >= 0")
@@ -137,6 +151,11 @@ def stack_phase(
     -------
     ndarray
         Total phase. [rad]
+
+    References
+    ----------
+    .. [1] J.-C. Diels and W. Rudolph, *Ultrashort Laser Pulse Phenomena*, 2nd ed., Academic
+           Press, 2006, ch. 1 [from memory] (spectral phase, GDD and TOD).
     """
     total = np.zeros(np.shape(omega))
     for refractive_index, thickness in layers:
@@ -163,6 +182,11 @@ def mirror_phase(omega: np.ndarray, omega0: float, gdd: float, tod: float = 0.0)
     ndarray
         :math:`\\phi = \\tfrac{1}{2}\\,\\mathrm{GDD}\\,\\Delta\\omega^2 +
         \\tfrac{1}{6}\\,\\mathrm{TOD}\\,\\Delta\\omega^3`. [rad]
+
+    References
+    ----------
+    .. [1] J.-C. Diels and W. Rudolph, *Ultrashort Laser Pulse Phenomena*, 2nd ed., Academic
+           Press, 2006, ch. 1 [from memory] (spectral phase, GDD and TOD).
     """
     domega = np.asarray(omega, dtype=float) - omega0
     return 0.5 * gdd * domega**2 + tod / 6.0 * domega**3
@@ -192,6 +216,13 @@ def phase_from_gdd_curve(omega: np.ndarray, omega0: float, gdd_values: np.ndarra
     Two cumulative trapezoidal integrations over ascending ``omega``; the group delay is set to
     zero at ``omega0`` after the first and the phase after the second. Exact for a GDD linear
     in omega when ``omega0`` is a sample (trapezoidal integration of a linear function).
+
+    References
+    ----------
+    .. [1] J.-C. Diels and W. Rudolph, *Ultrashort Laser Pulse Phenomena*, 2nd ed., Academic
+           Press, 2006, ch. 1 [from memory] (spectral phase, GDD and TOD).
+
+    The integration is a numerical helper.
     """
     gdd_values = np.asarray(gdd_values, dtype=float)
     if not np.all(np.isfinite(gdd_values)):
@@ -220,6 +251,10 @@ def band_from_wavelengths(wavelength_short: float, wavelength_long: float) -> tu
     -------
     omega_lo, omega_hi : float
         :math:`2\\pi c/\\lambda_{long}`, :math:`2\\pi c/\\lambda_{short}`. [rad/s]
+
+    References
+    ----------
+    None: numerical helper (unit conversion).
     """
     if not 0 < wavelength_short < wavelength_long:
         raise ConfigError(
@@ -230,7 +265,12 @@ def band_from_wavelengths(wavelength_short: float, wavelength_long: float) -> tu
 
 
 def band_mask(omega: np.ndarray, band: tuple[float, float]) -> np.ndarray:
-    """Boolean mask of the samples inside ``band = (omega_lo, omega_hi)`` [rad/s], edges in."""
+    """Boolean mask of the samples inside ``band = (omega_lo, omega_hi)`` [rad/s], edges in.
+
+    References
+    ----------
+    None: numerical helper.
+    """
     omega_lo, omega_hi = band
     if not 0 < omega_lo < omega_hi:
         raise ConfigError(
@@ -265,6 +305,10 @@ def clip_to_band(
     -----
     The mirror is modelled with unit reflectivity inside the band and zero outside (hard
     edges). This is the only loss of the compressor.
+
+    References
+    ----------
+    None: a model assumption of this package (hard-edged band), no published model.
     """
     spectrum = np.asarray(spectrum, dtype=complex)
     if band is None:

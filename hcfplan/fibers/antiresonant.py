@@ -36,8 +36,8 @@ from hcfplan.errors import ConfigError
 from hcfplan.fibers.base import GasLike
 from hcfplan.fibers.capillary import (
     ATTENUATION_CONVENTION,
-    _check_common,
     capillary_propagation_constant,
+    check_gas_filled_fiber,
 )
 from hcfplan.fibers.modes import U11, effective_area_j0, peak_intensity_area
 from hcfplan.materials.solids import SolidMaterial, load_material
@@ -59,6 +59,11 @@ def wall_phase(omega: np.ndarray, wall_thickness: float, n_glass, n_gas) -> np.n
     """Transverse phase phi = k0 d sqrt(n_glass^2 - n_gas^2) across the wall. [rad]
 
     (omega [rad/s], wall_thickness [m]; complex ``n_glass`` allowed.)
+
+    References
+    ----------
+    M. Zeisberger and M. A. Schmidt, Sci. Rep. 7, 11761 (2017).
+    Resonances at phi = m pi: N. M. Litchinitser et al., Opt. Lett. 27, 1592 (2002) [from memory].
     """
     return omega / c * wall_thickness * np.sqrt(np.asarray(n_glass, dtype=complex) ** 2 - n_gas**2)
 
@@ -103,6 +108,13 @@ def arf_wall_index_zeisberger2017(
     Real indices (eps > 1, the usual case) are computed with these real-valued forms: the
     complex square root, sine and cosine took most of a fiber report (the derivative rule
     evaluates the model at about 10^5 frequencies per call).
+
+    References
+    ----------
+    M. Zeisberger and M. A. Schmidt, Sci. Rep. 7, 11761 (2017); written from memory and
+    re-derived (module docstring).
+    Resonances: N. M. Litchinitser et al., Opt. Lett. 27, 1592 (2002) [from memory].
+    Thick-wall limit: E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
     """
     k0 = omega / c
     n_glass = np.asarray(n_glass)
@@ -163,7 +175,7 @@ class AntiresonantFiber:
     cladding: str | SolidMaterial = "fused_silica"
 
     def __post_init__(self) -> None:
-        _check_common(self.core_radius, self.length, self.gas)
+        check_gas_filled_fiber(self.core_radius, self.length, self.gas)
         if not 0 < self.wall_thickness < self.core_radius:
             raise ConfigError(
                 f"fiber wall_thickness = {self.wall_thickness} m: must be > 0 and < core_radius"
@@ -177,7 +189,12 @@ class AntiresonantFiber:
 
     @property
     def kerr_n2(self) -> float:
-        """n2 of the filling gas used in gamma. [m^2/W]"""
+        """n2 of the filling gas used in gamma. [m^2/W]
+
+        References
+        ----------
+        none: the n2 of the fill (the gas table cites its source)
+        """
         return float(self.gas.n2)
 
     def _wall_index(self, omega: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -190,29 +207,55 @@ class AntiresonantFiber:
         return n_gas, delta
 
     def propagation_constant(self, omega: np.ndarray) -> np.ndarray:
-        """beta(omega) including the gas and the wall (anti-resonance) dispersion. [rad/m]"""
+        """beta(omega) including the gas and the wall (anti-resonance) dispersion. [rad/m]
+
+        References
+        ----------
+        M. Zeisberger and M. A. Schmidt, Sci. Rep. 7, 11761 (2017).
+        E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
+        """
         omega = np.asarray(omega, dtype=float)
         n_gas, delta = self._wall_index(omega)
         core = capillary_propagation_constant(omega, self.core_radius, n_gas, U11)
         return core + omega / c * delta.real
 
     def attenuation(self, omega: np.ndarray) -> np.ndarray:
-        """FIELD attenuation alpha(omega) = k0 Im(Delta n). [1/m]"""
+        """FIELD attenuation alpha(omega) = k0 Im(Delta n). [1/m]
+
+        References
+        ----------
+        M. Zeisberger and M. A. Schmidt, Sci. Rep. 7, 11761 (2017).
+        """
         omega = np.asarray(omega, dtype=float)
         return omega / c * self._wall_index(omega)[1].imag
 
     def effective_area(self, omega: np.ndarray) -> np.ndarray:
-        """A_eff of the J0 mode of radius R (frequency independent). [m^2]"""
+        """A_eff of the J0 mode of radius R (frequency independent). [m^2]
+
+        References
+        ----------
+        J0 mode of E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
+        """
         return np.full(np.shape(omega), effective_area_j0(self.core_radius))
 
     def nonlinear_coefficient(self, omega: np.ndarray) -> np.ndarray:
-        """gamma(omega) = n2 omega / (c A_eff). [1/(W m)]"""
+        """gamma(omega) = n2 omega / (c A_eff). [1/(W m)]
+
+        References
+        ----------
+        none: definition of gamma (common practice, no source)
+        """
         omega = np.asarray(omega, dtype=float)
         return self.kerr_n2 * omega / (c * self.effective_area(omega))
 
     @property
     def peak_intensity_area(self) -> float:
-        """A_I = pi R^2 J1(u11)^2 (J0 mode). [m^2]"""
+        """A_I = pi R^2 J1(u11)^2 (J0 mode). [m^2]
+
+        References
+        ----------
+        J0 mode of E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
+        """
         return peak_intensity_area(self.core_radius)
 
     def resonance_wavelengths(self, m_max: int) -> np.ndarray:
@@ -222,6 +265,10 @@ class AntiresonantFiber:
         fixed-point iteration (the right side varies slowly with lambda, so it converges fast).
         Each order stops at its own convergence, so lambda_m does not depend on ``m_max``; the
         orders solved are kept per fiber (:data:`_KNOWN_RESONANCES`) and reused.
+
+        References
+        ----------
+        N. M. Litchinitser et al., Opt. Lett. 27, 1592 (2002) [from memory].
         """
         if not (isinstance(m_max, (int, np.integer)) and m_max >= 1):
             raise ConfigError(f"m_max = {m_max!r}: must be an integer >= 1")
@@ -268,6 +315,11 @@ class AntiresonantFiber:
         Returns
         -------
         ndarray of bool
+
+        References
+        ----------
+        N. M. Litchinitser et al., Opt. Lett. 27, 1592 (2002) [from memory]; the band width is a
+        choice (common practice, no source).
         """
         if not 0 < width < 1:
             raise ConfigError(f"resonance band width = {width}: must be in (0, 1)")
@@ -279,7 +331,12 @@ class AntiresonantFiber:
         return np.any(distance < width / 2.0, axis=-1)
 
     def describe(self) -> dict:
-        """Defining SI parameters of the model."""
+        """Defining SI parameters of the model.
+
+        References
+        ----------
+        none: no physics (the model's defining parameters)
+        """
         return {
             "model": "antiresonant",
             "mode": "HE11",

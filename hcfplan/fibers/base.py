@@ -32,7 +32,13 @@ class GasLike(Protocol):
 
     n2: float
 
-    def refractive_index(self, omega: np.ndarray) -> np.ndarray: ...
+    def refractive_index(self, omega: np.ndarray) -> np.ndarray:
+        """Refractive index of the fill at ``omega`` [rad/s]. [-]
+
+        References
+        ----------
+        none: interface (the gas model cites its source)
+        """
 
 
 @runtime_checkable
@@ -42,15 +48,51 @@ class Waveguide(Protocol):
     length: float
     kerr_n2: float
 
-    def propagation_constant(self, omega: np.ndarray) -> np.ndarray: ...
+    def propagation_constant(self, omega: np.ndarray) -> np.ndarray:
+        """beta(omega) of the mode (item 1 of the module docstring). [rad/m]
 
-    def attenuation(self, omega: np.ndarray) -> np.ndarray: ...
+        References
+        ----------
+        none: interface (each fiber model cites its source)
+        """
 
-    def effective_area(self, omega: np.ndarray) -> np.ndarray: ...
+    def attenuation(self, omega: np.ndarray) -> np.ndarray:
+        """FIELD attenuation alpha(omega) (item 2 of the module docstring). [1/m]
 
-    def nonlinear_coefficient(self, omega: np.ndarray) -> np.ndarray: ...
+        References
+        ----------
+        none: interface (each fiber model cites its source)
+        """
+
+    def effective_area(self, omega: np.ndarray) -> np.ndarray:
+        """Nonlinear effective area A_eff(omega) (item 3 of the module docstring). [m^2]
+
+        References
+        ----------
+        none: interface (each fiber model cites its source)
+        """
+
+    def nonlinear_coefficient(self, omega: np.ndarray) -> np.ndarray:
+        """gamma(omega) (item 4 of the module docstring). [1/(W m)]
+
+        References
+        ----------
+        none: interface (each fiber model cites its source)
+        """
 
     @property
-    def peak_intensity_area(self) -> float: ...
+    def peak_intensity_area(self) -> float:
+        """Area A_I with on-axis peak intensity P / A_I (item 5 of the module docstring). [m^2]
 
-    def describe(self) -> dict: ...
+        References
+        ----------
+        none: interface (each fiber model cites its source)
+        """
+
+    def describe(self) -> dict:
+        """Defining SI parameters of the model (item 7 of the module docstring).
+
+        References
+        ----------
+        none: no physics (the model's defining parameters)
+        """

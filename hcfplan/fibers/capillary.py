@@ -63,6 +63,10 @@ def capillary_propagation_constant(
     square root of the transverse-resonance condition k_t = u/a (expanding it to first order in
     (u/(k a))^2 gives Marcatili's form). The square-root form for gas filling is common practice
     in the hollow-fiber literature (from memory, no specific source verified).
+
+    References
+    ----------
+    E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
     """
     arg = (omega * n_gas / c) ** 2 - (u / core_radius) ** 2
     return np.sqrt(np.maximum(arg, 0.0))
@@ -96,6 +100,10 @@ def capillary_attenuation_marcatili1964(
     exp(-2 alpha z)). Marcatili treat an empty tube (core index 1); for a gas core the
     wavelength in the gas and the index ratio nu are used (our generalisation; the change
     relative to the vacuum form is of order n_gas - 1). Valid for a >> lambda and |nu| a >> lambda.
+
+    References
+    ----------
+    E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
     """
     wavelength_gas = 2.0 * np.pi * c / (omega * n_gas)
     nu = n_clad / n_gas
@@ -140,6 +148,11 @@ def capillary_bend_attenuation_marcatili1964(
     its mean, an assumption). Equivalent form: alpha(inf) (4/3) (2 pi a/(u lambda))^4 (a/R)^2
     (1 + 1/u^2). Valid for a bend that is gentle on the scale of the mode (the paper's
     perturbation regime, a/R small).
+
+    References
+    ----------
+    E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964); the bend
+    term written from memory, not checked against the paper.
     """
     wavelength_gas = 2.0 * np.pi * c / (omega * n_gas)
     nu = n_clad / n_gas
@@ -148,7 +161,27 @@ def capillary_bend_attenuation_marcatili1964(
     return geometry / (wavelength_gas**2 * bend_radius**2) * polarisation_averaged
 
 
-def _check_common(core_radius: float, length: float, gas) -> None:
+def check_gas_filled_fiber(core_radius: float, length: float, gas) -> None:
+    """Check the inputs every gas-filled hollow-core model shares.
+
+    Parameters
+    ----------
+    core_radius : float
+        Core radius, > 0. [m]
+    length : float
+        Fiber length, > 0. [m]
+    gas : GasLike
+        Filling medium with ``refractive_index(omega)`` and ``n2`` [m^2/W].
+
+    Raises
+    ------
+    ConfigError
+        Naming the first bad input (``fiber core_radius``, ``fiber length`` or ``fiber gas``).
+
+    References
+    ----------
+    none: numerical helper (input checks)
+    """
     if not core_radius > 0:
         raise ConfigError(f"fiber core_radius = {core_radius} m: must be > 0")
     if not length > 0:
@@ -194,7 +227,7 @@ class CapillaryFiber:
     bend_radius: float | None = None
 
     def __post_init__(self) -> None:
-        _check_common(self.core_radius, self.length, self.gas)
+        check_gas_filled_fiber(self.core_radius, self.length, self.gas)
         if len(self.mode) != 2 or self.mode[0] != 1:
             raise ConfigError(f"fiber mode = {self.mode!r}: only EH1m modes (1, m) are modelled")
         eh_eigenvalue(self.mode[1])
@@ -209,12 +242,22 @@ class CapillaryFiber:
 
     @property
     def u(self) -> float:
-        """Mode eigenvalue u_1m (m-th zero of J0). [-]"""
+        """Mode eigenvalue u_1m (m-th zero of J0). [-]
+
+        References
+        ----------
+        E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
+        """
         return eh_eigenvalue(self.mode[1])
 
     @property
     def kerr_n2(self) -> float:
-        """n2 of the filling gas used in gamma. [m^2/W]"""
+        """n2 of the filling gas used in gamma. [m^2/W]
+
+        References
+        ----------
+        none: the n2 of the fill (the gas table cites its source)
+        """
         return float(self.gas.n2)
 
     def _indices(self, omega: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -229,14 +272,24 @@ class CapillaryFiber:
         return omega, self.gas.refractive_index(omega), solid_index(self._material(), omega)
 
     def propagation_constant(self, omega: np.ndarray) -> np.ndarray:
-        """beta(omega) of the mode including the gas dispersion. [rad/m]"""
+        """beta(omega) of the mode including the gas dispersion. [rad/m]
+
+        References
+        ----------
+        E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
+        """
         omega = np.asarray(omega, dtype=float)
         return capillary_propagation_constant(
             omega, self.core_radius, self.gas.refractive_index(omega), self.u
         )
 
     def attenuation(self, omega: np.ndarray) -> np.ndarray:
-        """FIELD attenuation alpha(omega), straight tube plus bend term. [1/m]"""
+        """FIELD attenuation alpha(omega), straight tube plus bend term. [1/m]
+
+        References
+        ----------
+        E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
+        """
         omega, n_gas, n_clad = self._indices(omega)
         alpha = capillary_attenuation_marcatili1964(omega, self.core_radius, n_gas, n_clad, self.u)
         if self.bend_radius is not None:
@@ -246,21 +299,41 @@ class CapillaryFiber:
         return alpha
 
     def effective_area(self, omega: np.ndarray) -> np.ndarray:
-        """A_eff of the J0 mode (frequency independent). [m^2]"""
+        """A_eff of the J0 mode (frequency independent). [m^2]
+
+        References
+        ----------
+        J0 mode of E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
+        """
         return np.full(np.shape(omega), effective_area_j0(self.core_radius, self.u))
 
     def nonlinear_coefficient(self, omega: np.ndarray) -> np.ndarray:
-        """gamma(omega) = n2 omega / (c A_eff). [1/(W m)]"""
+        """gamma(omega) = n2 omega / (c A_eff). [1/(W m)]
+
+        References
+        ----------
+        none: definition of gamma (common practice, no source)
+        """
         omega = np.asarray(omega, dtype=float)
         return self.kerr_n2 * omega / (c * self.effective_area(omega))
 
     @property
     def peak_intensity_area(self) -> float:
-        """A_I = pi a^2 J1(u)^2 so that the on-axis intensity is P / A_I. [m^2]"""
+        """A_I = pi a^2 J1(u)^2 so that the on-axis intensity is P / A_I. [m^2]
+
+        References
+        ----------
+        J0 mode of E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
+        """
         return peak_intensity_area(self.core_radius, self.u)
 
     def describe(self) -> dict:
-        """Defining SI parameters of the model."""
+        """Defining SI parameters of the model.
+
+        References
+        ----------
+        none: no physics (the model's defining parameters)
+        """
         material = self._material()
         return {
             "model": "capillary",

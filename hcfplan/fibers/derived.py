@@ -26,7 +26,8 @@ from hcfplan.constants import c
 from hcfplan.errors import ConfigError
 from hcfplan.fibers.base import Waveguide
 from hcfplan.numerics.derivatives import derivative, derivative_table
-from hcfplan.pulse.fields import PulseShape, shape_t0_factor
+from hcfplan.pulse.fields import shape_t0_factor
+from hcfplan.pulse.shapes import PulseShape
 
 #: Samples per ZDW search before each sign change is refined with brentq.
 ZDW_SEARCH_POINTS = 400
@@ -48,6 +49,10 @@ def dispersion_coefficients(waveguide: Waveguide, omega0: float, order: int = 4)
     -------
     ndarray
         [beta0 (rad/m), beta1 (s/m), beta2 (s^2/m), ..., beta_order (s^order/m)].
+
+    References
+    ----------
+    none: numerical helper (Chebyshev derivatives, :mod:`hcfplan.numerics.derivatives`)
     """
     if not 1 <= order <= 6:
         raise ConfigError(f"dispersion order = {order}: must be 1..6")
@@ -55,7 +60,12 @@ def dispersion_coefficients(waveguide: Waveguide, omega0: float, order: int = 4)
 
 
 def group_velocity_dispersion(waveguide: Waveguide, omega: float | np.ndarray) -> np.ndarray:
-    """beta2(omega) = d^2 beta / d omega^2 of the mode. [s^2/m]  (omega [rad/s])"""
+    """beta2(omega) = d^2 beta / d omega^2 of the mode. [s^2/m]  (omega [rad/s])
+
+    References
+    ----------
+    none: numerical helper (Chebyshev derivatives, :mod:`hcfplan.numerics.derivatives`)
+    """
     return derivative(waveguide.propagation_constant, omega, 2)
 
 
@@ -80,6 +90,10 @@ def zero_dispersion_wavelengths(
     -----
     beta2 is sampled at :data:`ZDW_SEARCH_POINTS` log-spaced wavelengths; two zeros closer than
     the sample spacing (about 0.2 % of the range ratio per step) can be missed.
+
+    References
+    ----------
+    none: numerical helper (root search by Brent's method)
     """
     lo, hi = (float(x) for x in wavelength_range)
     if not 0 < lo < hi:
@@ -116,6 +130,10 @@ def zero_dispersion_pressure(
     -------
     float
         Pressure of zero GVD (Brent's method, relative tolerance 1e-10). [Pa]
+
+    References
+    ----------
+    none: numerical helper (root search by Brent's method)
     """
     lo, hi = (float(p) for p in pressure_range)
     if not 0 <= lo < hi:
@@ -134,17 +152,31 @@ def t0_from_fwhm(duration_fwhm: float, shape: PulseShape) -> float:
     """Shape parameter T0 from the intensity FWHM (sech^2: /1.7627, Gaussian: /1.6651). [s]
 
     (duration_fwhm [s]; the shape registry is :func:`hcfplan.pulse.fields.shape_t0_factor`.)
+
+    References
+    ----------
+    none: shape factors of :mod:`hcfplan.pulse.fields` (common practice, no source)
     """
     return duration_fwhm / shape_t0_factor(shape)
 
 
 def dispersion_length(duration_t0: float, beta2: float) -> float:
-    """L_D = T0^2 / |beta2| ([1]). [m]  (duration_t0 [s], beta2 [s^2/m])"""
+    """L_D = T0^2 / |beta2| ([1]). [m]  (duration_t0 [s], beta2 [s^2/m])
+
+    References
+    ----------
+    G. P. Agrawal, Nonlinear Fiber Optics, 6th ed., Academic Press (2019), ch. 3-5 [from memory].
+    """
     return duration_t0**2 / np.abs(beta2)
 
 
 def nonlinear_length(gamma: float, peak_power: float) -> float:
-    """L_NL = 1 / (gamma P0) ([1]). [m]  (gamma [1/(W m)], peak_power [W])"""
+    """L_NL = 1 / (gamma P0) ([1]). [m]  (gamma [1/(W m)], peak_power [W])
+
+    References
+    ----------
+    G. P. Agrawal, Nonlinear Fiber Optics, 6th ed., Academic Press (2019), ch. 3-5 [from memory].
+    """
     return 1.0 / (gamma * peak_power)
 
 
@@ -152,12 +184,21 @@ def soliton_order(duration_t0: float, beta2: float, gamma: float, peak_power: fl
     """N = sqrt(L_D / L_NL) = sqrt(gamma P0 T0^2 / |beta2|) ([1]). [-]
 
     (duration_t0 [s], beta2 [s^2/m], gamma [1/(W m)], peak_power [W])
+
+    References
+    ----------
+    G. P. Agrawal, Nonlinear Fiber Optics, 6th ed., Academic Press (2019), ch. 3-5 [from memory].
     """
     return np.sqrt(dispersion_length(duration_t0, beta2) / nonlinear_length(gamma, peak_power))
 
 
 def fission_length(duration_t0: float, beta2: float, gamma: float, peak_power: float) -> float:
-    """Soliton fission length L_fiss ~ L_D / N ([2]). [m]  (units as :func:`soliton_order`)"""
+    """Soliton fission length L_fiss ~ L_D / N ([2]). [m]  (units as :func:`soliton_order`)
+
+    References
+    ----------
+    J. M. Dudley, G. Genty and S. Coen, Rev. Mod. Phys. 78, 1135 (2006) [from memory].
+    """
     order = soliton_order(duration_t0, beta2, gamma, peak_power)
     return dispersion_length(duration_t0, beta2) / order
 
@@ -176,6 +217,10 @@ def effective_length(length: float | np.ndarray, alpha_field: float | np.ndarray
     -------
     ndarray
         Effective length. [m]
+
+    References
+    ----------
+    G. P. Agrawal, Nonlinear Fiber Optics, 6th ed., Academic Press (2019), ch. 3-5 [from memory].
     """
     power_loss = 2.0 * np.asarray(alpha_field, dtype=float)
     length = np.asarray(length, dtype=float)
@@ -184,7 +229,12 @@ def effective_length(length: float | np.ndarray, alpha_field: float | np.ndarray
 
 
 def transmission(waveguide: Waveguide, omega: float | np.ndarray) -> np.ndarray:
-    """Power transmission exp(-2 alpha(omega) L) of the whole fiber. [-]  (omega [rad/s])"""
+    """Power transmission exp(-2 alpha(omega) L) of the whole fiber. [-]  (omega [rad/s])
+
+    References
+    ----------
+    none: definition of the field attenuation (common practice, no source)
+    """
     return np.exp(-2.0 * waveguide.attenuation(np.asarray(omega, dtype=float)) * waveguide.length)
 
 
@@ -192,6 +242,10 @@ def nonlinear_phase(gamma: float, peak_power: float, effective_length: float) ->
     """Peak SPM phase phi_max = gamma P0 L_eff ([1]). [rad]
 
     (gamma [1/(W m)], peak_power [W], effective_length [m])
+
+    References
+    ----------
+    G. P. Agrawal, Nonlinear Fiber Optics, 6th ed., Academic Press (2019), ch. 3-5 [from memory].
     """
     return gamma * peak_power * effective_length
 
@@ -208,6 +262,11 @@ def spm_broadening_factor(phi_max: float | np.ndarray) -> np.ndarray:
     -------
     ndarray
         Delta omega_rms / Delta omega_rms,0 ([3], from memory; dispersion neglected). [-]
+
+    References
+    ----------
+    S. C. Pinault and M. J. Potasek, J. Opt. Soc. Am. B 2, 1318 (1985) [from memory: formula and
+    citation not checked].
     """
     phi = np.asarray(phi_max, dtype=float)
     return np.sqrt(1.0 + 4.0 / (3.0 * np.sqrt(3.0)) * phi**2)

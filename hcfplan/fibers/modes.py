@@ -29,7 +29,12 @@ _QUADRATURE_NODES = 96  # Gauss-Legendre nodes on [0, 1]; integrands are smooth 
 
 
 def eh_eigenvalue(m: int) -> float:
-    """u_1m, the m-th zero of J0 (EH1m eigenvalue of [1]). [-]"""
+    """u_1m, the m-th zero of J0 (EH1m eigenvalue of [1]). [-]
+
+    References
+    ----------
+    E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
+    """
     if not (isinstance(m, (int, np.integer)) and m >= 1):
         raise ConfigError(f"mode radial order m = {m!r}: must be an integer >= 1")
     return float(special.jn_zeros(0, int(m))[-1])
@@ -56,6 +61,10 @@ def eh_mode_profile(r: float | np.ndarray, core_radius: float, u: float = U11) -
     -------
     ndarray
         Field amplitude relative to the axis. [-]
+
+    References
+    ----------
+    E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
     """
     _check_radius(core_radius)
     r = np.asarray(r, dtype=float)
@@ -107,6 +116,10 @@ def effective_area_j0(core_radius: float, u: float = U11) -> float:
     Notes
     -----
     Integrals over the core only, by 96-point Gauss-Legendre quadrature in r.
+
+    References
+    ----------
+    J0 mode of E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
     """
     _check_radius(core_radius)
     return _effective_area_unit(float(u)) * core_radius**2
@@ -126,6 +139,10 @@ def peak_intensity_area(core_radius: float, u: float = U11) -> float:
     -----
     :math:`\\int_0^a J_0^2(u r/a)\\, 2\\pi r\\, dr = \\pi a^2 J_1(u)^2` when :math:`J_0(u) = 0`
     (standard Bessel integral); for EH11 A_I = 0.8467 a^2.
+
+    References
+    ----------
+    J0 mode of E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
     """
     _check_radius(core_radius)
     return float(np.pi * core_radius**2 * special.j1(u) ** 2)
@@ -154,6 +171,10 @@ def gaussian_coupling_efficiency(
     Notes
     -----
     Maximum 0.9808 at w0/a = 0.6436 for EH11; this is the "w0 = 0.64 a, 98 %" result of [2].
+
+    References
+    ----------
+    R. L. Abrams, IEEE J. Quantum Electron. QE-8, 838 (1972) [from memory].
     """
     _check_radius(core_radius)
     ratio = np.asarray(beam_waist, dtype=float) / core_radius
@@ -191,6 +212,10 @@ def optimum_beam_waist(core_radius: float, u: float = U11) -> float:
     -------
     float
         w0 = 0.6436 a for EH11 (1/e field radius). [m]
+
+    References
+    ----------
+    R. L. Abrams, IEEE J. Quantum Electron. QE-8, 838 (1972) [from memory].
     """
     _check_radius(core_radius)
     return _optimum_ratio(float(u)) * core_radius

@@ -45,6 +45,10 @@ def taylor_propagation_constant(omega: np.ndarray, omega0: float, betas) -> np.n
         Expansion frequency. [rad/s]
     betas : sequence of float
         (beta2, beta3, ...). [s^n/m]
+
+    References
+    ----------
+    none: Taylor series of beta about omega0 (common practice, no source)
     """
     detuning = np.asarray(omega, dtype=float) - omega0
     beta = np.zeros_like(detuning)
@@ -118,34 +122,69 @@ class TaylorFiber:
 
     @property
     def kerr_n2(self) -> float:
-        """gamma c A_eff / omega0 if the area is given, else nan. [m^2/W]"""
+        """gamma c A_eff / omega0 if the area is given, else nan. [m^2/W]
+
+        References
+        ----------
+        none: definition of gamma inverted (common practice, no source)
+        """
         if self.mode_area is None:
             return math.nan
         return self.gamma * c * self.mode_area / self.omega0
 
     def propagation_constant(self, omega: np.ndarray) -> np.ndarray:
-        """beta(omega) from the Taylor series (beta0 = beta1 = 0). [rad/m]"""
+        """beta(omega) from the Taylor series (beta0 = beta1 = 0). [rad/m]
+
+        References
+        ----------
+        none: Taylor series of beta about omega0 (common practice, no source)
+        """
         return taylor_propagation_constant(omega, self.omega0, self.betas)
 
     def attenuation(self, omega: np.ndarray) -> np.ndarray:
-        """Flat FIELD attenuation ``loss``. [1/m]"""
+        """Flat FIELD attenuation ``loss``. [1/m]
+
+        References
+        ----------
+        none: a given constant
+        """
         return np.full(np.shape(omega), float(self.loss))
 
     def effective_area(self, omega: np.ndarray) -> np.ndarray:
-        """``mode_area`` for every omega (nan if not given). [m^2]"""
+        """``mode_area`` for every omega (nan if not given). [m^2]
+
+        References
+        ----------
+        none: a given constant
+        """
         return np.full(np.shape(omega), self.peak_intensity_area)
 
     def nonlinear_coefficient(self, omega: np.ndarray) -> np.ndarray:
-        """The constant gamma for every omega (no omega/omega0 factor). [1/(W m)]"""
+        """The constant gamma for every omega (no omega/omega0 factor). [1/(W m)]
+
+        References
+        ----------
+        none: a given constant
+        """
         return np.full(np.shape(omega), float(self.gamma))
 
     @property
     def peak_intensity_area(self) -> float:
-        """``mode_area`` if given, else nan. [m^2]"""
+        """``mode_area`` if given, else nan. [m^2]
+
+        References
+        ----------
+        none: a given constant
+        """
         return math.nan if self.mode_area is None else float(self.mode_area)
 
     def describe(self) -> dict:
-        """Defining SI parameters of the model."""
+        """Defining SI parameters of the model.
+
+        References
+        ----------
+        none: no physics (the model's defining parameters)
+        """
         return {
             "model": "taylor",
             "omega0": self.omega0,

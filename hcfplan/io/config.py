@@ -6,159 +6,42 @@ Loading runs in four steps, each of which reports the first problem as one
 1. read and parse the file (:func:`hcfplan.io.tomlio.read_toml`);
 2. apply ``--set section.key=value`` overrides (:func:`apply_overrides`);
 3. check every section and key against :data:`hcfplan.io.schema.SCHEMA` (unknown keys get the
-   nearest valid key suggested; types, finiteness and ranges are checked) and fill defaults;
-4. cross-check keys that depend on each other and convert to SI once, into the frozen specs.
+   nearest valid key suggested; types, finiteness and ranges are checked) and fill defaults
+   (:mod:`hcfplan.io.checks`);
+4. cross-check keys that depend on each other (:mod:`hcfplan.io.crosschecks`), read the CSV
+   files the config names, and convert to SI once, into the frozen specs of
+   :mod:`hcfplan.io.specs`. A run needs no file access after this.
 """
 
 from __future__ import annotations
 
-import difflib
-import math
-import re
-from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
 from hcfplan import units
 from hcfplan.errors import ConfigError
-from hcfplan.io.schema import REQUIRED, REQUIRED_SECTIONS, SCHEMA, Key
+from hcfplan.io import crosschecks
+from hcfplan.io.checks import describe, known_key, validate_raw
+from hcfplan.io.schema import REQUIRED_SECTIONS
+from hcfplan.io.specs import (
+    CellSpec,
+    CompressorSpec,
+    FiberSpec,
+    GasSpec,
+    GridSpec,
+    LaserSpec,
+    LimitsSpec,
+    MeasuredCurve,
+    PlanConfig,
+    SpreadDefaults,
+    ThzSpec,
+)
 from hcfplan.io.tomlio import parse_toml_value, read_toml
 
-#: Largest radial order m of an EH1m mode accepted in ``fiber.mode``.
-MAX_MODE_ORDER = 1000
-_MODE_PATTERN = re.compile(r"EH1([1-9][0-9]{0,3})", re.ASCII | re.IGNORECASE)
-#: Section and key names shown as typed; anything else is shown quoted (repr).
-_PLAIN_NAME = re.compile(r"[A-Za-z0-9_+\-]{1,64}", re.ASCII)
-
-# ---------------------------------------------------------------------------------------------
-# Specs (SI values only)
-
-
-@dataclass(frozen=True)
-class LaserSpec:
-    wavelength: float  #: [m]
-    duration_fwhm: float  #: intensity FWHM [s]
-    shape: str
-    energy: float  #: [J]
-    repetition_rate: float | None  #: [Hz]
-    gdd: float  #: [s^2]
-    spectrum_csv: Path | None
-    beam_waist: float | None  #: [m]
-
-
-@dataclass(frozen=True)
-class FiberSpec:
-    kind: str
-    length: float  #: [m]
-    core_radius: float | None  #: [m]
-    cladding: str
-    wall_thickness: float | None  #: [m]
-    bend_radius: float | None  #: [m]
-    mode_order: int  #: m of EH1m
-    betas: tuple[float, ...]  #: (beta2, beta3, ...) [s^n/m]
-    gamma: float | None  #: [1/(W m)]
-    loss: float  #: field attenuation [1/m]
-    self_steepening: bool
-    raman_fraction: float
-    raman_tau1: float  #: [s]
-    raman_tau2: float  #: [s]
-    effective_area: float | None  #: [m^2]
-
-
-@dataclass(frozen=True)
-class GasSpec:
-    components: tuple[tuple[str, float], ...]  #: (table name, mole fraction)
-    pressure: float  #: [Pa]
-    temperature: float  #: [K]
-    equation_of_state: str
-    ionization_model: str
-    table_dirs: tuple[Path, ...]
-
-
-@dataclass(frozen=True)
-class CellSpec:
-    rated_pressure: float | None  #: [Pa]
-    window_material: str
-    window_thickness: float | None  #: [m]
-    window_clear_aperture: float | None  #: [m]
-
-
-@dataclass(frozen=True)
-class CompressorSpec:
-    air_path: float  #: [m]
-    mirror_gdd: float | None  #: per bounce [s^2]
-    mirror_tod: float  #: per bounce [s^3]
-    mirror_gdd_csv: Path | None
-    mirror_band: tuple[float, float] | None  #: wavelengths [m]
-    max_bounces: int
-    bounces_in_pairs: bool
-    objective: str
-    wedge_material: str | None
-    wedge_max_insertion: float  #: [m]
-
-
-@dataclass(frozen=True)
-class ThzSpec:
-    crystal: str
-    thickness: float  #: [m]
-    cutoff_db: float
-    cutoff_quantity: str
-    detector_crystal: str | None
-    detector_thickness: float | None  #: [m]
-    probe_fwhm: float | None  #: [s]
-    beam_waist: float | None  #: [m]
-    d_eff: float | None  #: [m/V]
-    damage_fluence: float | None  #: [J/m^2]
-
-
-@dataclass(frozen=True)
-class LimitsSpec:
-    self_focusing_margin: float
-    ionization_fraction_limit: float
-    window_safety_factor: float
-    window_mounting: str
-    window_distance: float | None  #: [m]
-    entrance_gas_path: float | None  #: [m]
-    b_integral_limit: float  #: [rad]
-    cladding_damage_fluence: float | None  #: [J/m^2]
-    room_volume: float | None  #: [m^3]
-    cylinder_volume: float | None  #: [m^3]
-    cylinder_pressure: float | None  #: [Pa]
-
-
-@dataclass(frozen=True)
-class SpreadDefaults:
-    energy_percent: float
-    pressure_percent: float
-    fwhm_percent: float
-
-
-@dataclass(frozen=True)
-class GridSpec:
-    points: int | None
-    time_window: float | None  #: [s]
-    z_samples: int
-    rtol: float
-    stop_ionization_fraction: float
-
-
-@dataclass(frozen=True)
-class PlanConfig:
-    """A validated config: SI specs plus the resolved user-unit table (for ``check``)."""
-
-    laser: LaserSpec
-    fiber: FiberSpec
-    gas: GasSpec | None
-    cell: CellSpec
-    compressor: CompressorSpec
-    thz: ThzSpec
-    limits: LimitsSpec
-    spread: SpreadDefaults
-    grid: GridSpec
-    resolved: dict[str, dict[str, Any]]
-    present_sections: tuple[str, ...]
-    source: Path | None = None
-    overrides: tuple[str, ...] = field(default=())
+#: The specs are re-exported here: ``from hcfplan.io.config import PlanConfig`` keeps working.
+__all__ = ["CellSpec", "CompressorSpec", "FiberSpec", "GasSpec", "GridSpec", "LaserSpec",
+           "LimitsSpec", "MeasuredCurve", "PlanConfig", "SpreadDefaults", "ThzSpec",
+           "apply_overrides", "config_from_mapping", "load_config", "parse_override"]
 
 
 # ---------------------------------------------------------------------------------------------
@@ -175,7 +58,7 @@ def parse_override(text: str) -> tuple[str, str, Any]:
     if len(parts) != 2 or not all(parts):
         raise ConfigError(f"--set {text!r}: the key path must be section.key, got {path!r}")
     section, key = (part.strip() for part in parts)
-    _known_key(section, key, prefix="--set ")
+    known_key(section, key, prefix="--set ")
     try:
         value = parse_toml_value(raw)
     except ValueError as exc:
@@ -198,276 +81,7 @@ def apply_overrides(raw: dict[str, Any], overrides: list[str] | tuple[str, ...])
 
 
 # ---------------------------------------------------------------------------------------------
-# Key checks
-
-
-def _suggest(name: str, options) -> str:
-    """'; did you mean ...?' with the closest option (case-insensitive), or ''."""
-    by_lower = {str(option).lower(): option for option in options}
-    close = difflib.get_close_matches(str(name).lower(), list(by_lower), n=1, cutoff=0.5)
-    return f"; did you mean {by_lower[close[0]]!r}?" if close else ""
-
-
-def _name(name: Any) -> str:
-    """A section or key name for a message: as typed if plain, else quoted (one line)."""
-    text = str(name)
-    return text if _PLAIN_NAME.fullmatch(text) else repr(text[:64])
-
-
-def _known_key(section: str, key: str, prefix: str = "") -> Key:
-    if section not in SCHEMA:
-        raise ConfigError(
-            f"{prefix}{_name(section)}.{_name(key)}: unknown section [{_name(section)}]"
-            f"{_suggest(section, SCHEMA)} (sections: {', '.join(SCHEMA)})"
-        )
-    if key not in SCHEMA[section]:
-        raise ConfigError(
-            f"{prefix}{section}.{_name(key)}: unknown key{_suggest(key, SCHEMA[section])} "
-            f"(keys of [{section}]: {', '.join(SCHEMA[section])})"
-        )
-    return SCHEMA[section][key]
-
-
-#: Longest rendering of a received value in a message. [characters]
-_MAX_SHOWN = 120
-
-
-def _describe(value: Any) -> str:
-    """The received value for a message: one line, shortened if long."""
-    if isinstance(value, int) and not isinstance(value, bool) and abs(value) > 10**30:
-        return f"{'-' if value < 0 else ''}~1e{int(abs(value).bit_length() * math.log10(2))}"
-    try:
-        text = repr(value) if isinstance(value, str) else str(value)
-    except ValueError:  # e.g. a list holding an integer too long to print
-        text = f"<{type(value).__name__}>"
-    text = " ".join(text.split())
-    return text if len(text) <= _MAX_SHOWN else text[:_MAX_SHOWN] + "..."
-
-
-def _check_number(path: str, value: Any, spec: Key, integer: bool) -> float | int:
-    if isinstance(value, bool) or not isinstance(value, (int, float)):
-        kind = "an integer" if integer else "a number"
-        raise ConfigError(f"{path} = {_describe(value)}: must be {kind}")
-    if integer and not isinstance(value, int):
-        raise ConfigError(f"{path} = {value}: must be an integer")
-    if isinstance(value, float) and not math.isfinite(value):
-        raise ConfigError(f"{path} = {value}: must be a finite number")
-    shown = _describe(value)  # int/float comparisons below are exact, even for huge ints
-    if spec.low is not None:
-        if spec.low_open and not value > spec.low:
-            raise ConfigError(f"{path} = {shown}: must be > {spec.low:g}")
-        if not spec.low_open and not value >= spec.low:
-            raise ConfigError(f"{path} = {shown}: must be >= {spec.low:g}")
-    if spec.high is not None and value > spec.high:
-        raise ConfigError(f"{path} = {shown}: must be <= {spec.high:g}")
-    if integer:
-        return value
-    try:
-        return float(value)
-    except OverflowError:
-        raise ConfigError(f"{path} = {shown}: too large for a floating-point number") from None
-
-
-def _check_fractions(path: str, value: Any) -> dict[str, float]:
-    if not isinstance(value, dict) or not value:
-        raise ConfigError(f"{path}: must be a table of gas = mole fraction, e.g. "
-                          "{ He = 0.7, Ar = 0.3 }")
-    out = {}
-    for name, frac in value.items():
-        where = f"{path}.{_name(name)}"
-        if not str(name).strip():
-            raise ConfigError(f"{where}: the gas name must not be empty")
-        if isinstance(frac, bool) or not isinstance(frac, (int, float)):
-            raise ConfigError(f"{where} = {_describe(frac)}: must be a finite number")
-        if isinstance(frac, float) and not math.isfinite(frac):
-            raise ConfigError(f"{where} = {frac}: must be a finite number")
-        if not 0.0 < frac <= 1.0:
-            raise ConfigError(f"{where} = {_describe(frac)}: must be > 0 and <= 1")
-        out[name] = float(frac)
-    total = sum(out.values())
-    if abs(total - 1.0) > 1e-6:
-        raise ConfigError(f"{path}: mole fractions sum to {total:.6g}, must sum to 1")
-    return out
-
-
-def _finite_float(path: str, value: Any) -> float:
-    """``value`` as a finite float, or a ConfigError naming ``path``."""
-    if isinstance(value, bool) or not isinstance(value, (int, float)):
-        raise ConfigError(f"{path} = {_describe(value)}: must be a finite number")
-    try:
-        number = float(value)
-    except OverflowError:
-        number = math.inf
-    if not math.isfinite(number):
-        raise ConfigError(f"{path} = {_describe(value)}: must be a finite number")
-    return number
-
-
-def _check_value(path: str, value: Any, spec: Key) -> Any:
-    kind = spec.kind
-    if kind in ("float", "int"):
-        return _check_number(path, value, spec, integer=(kind == "int"))
-    if kind == "bool":
-        if not isinstance(value, bool):
-            raise ConfigError(f"{path} = {_describe(value)}: must be true or false")
-        return value
-    if kind in ("str", "path", "choice"):
-        if not isinstance(value, str) or not value.strip():
-            raise ConfigError(f"{path} = {_describe(value)}: must be a non-empty string")
-        if kind == "choice" and value not in spec.choices:
-            raise ConfigError(f"{path} = {value!r}: must be one of {', '.join(spec.choices)}"
-                              f"{_suggest(value, spec.choices)}")
-        return value
-    if kind == "float_list":
-        if not isinstance(value, list) or not value:
-            raise ConfigError(f"{path}: must be a non-empty list of numbers")
-        return [_finite_float(f"{path}[{i}]", v) for i, v in enumerate(value)]
-    if kind == "band":
-        if (not isinstance(value, list) or len(value) != 2
-                or any(isinstance(v, bool) or not isinstance(v, (int, float)) for v in value)):
-            raise ConfigError(f"{path} = {_describe(value)}: must be [low, high]")
-        lo, hi = (_finite_float(path, v) for v in value)
-        if not 0.0 < lo < hi:
-            raise ConfigError(f"{path} = {_describe(value)}: must be [low, high] with "
-                              "0 < low < high")
-        return [lo, hi]
-    if kind == "fractions":
-        return _check_fractions(path, value)
-    raise AssertionError(f"schema kind {kind!r} not handled")  # a bug, not bad input
-
-
-def validate_raw(raw: dict[str, Any]) -> dict[str, dict[str, Any]]:
-    """Check sections and keys, fill defaults; return the resolved table (user units).
-
-    Problems are reported in reading order: unknown sections, then each present section's keys
-    and values, then missing sections and missing required keys.
-    """
-    for section, table in raw.items():
-        if section not in SCHEMA:
-            raise ConfigError(f"[{_name(section)}]: unknown section{_suggest(section, SCHEMA)} "
-                              f"(sections: {', '.join(SCHEMA)})")
-        if not isinstance(table, dict):
-            raise ConfigError(f"{section} = {_describe(table)}: must be a [{section}] table")
-    checked: dict[str, dict[str, Any]] = {}
-    for section, table in raw.items():
-        checked[section] = {key: _check_value(f"{section}.{key}", value,
-                                              _known_key(section, key))
-                            for key, value in table.items()}
-    for section in REQUIRED_SECTIONS:
-        if section not in raw:
-            raise ConfigError(f"[{section}]: required section is missing")
-    taylor = checked["fiber"].get("kind") == "taylor"
-    resolved: dict[str, dict[str, Any]] = {}
-    for section, keys in SCHEMA.items():
-        given = checked.get(section, {})
-        out: dict[str, Any] = {}
-        for key, spec in keys.items():
-            if key in given:
-                out[key] = given[key]
-            elif spec.default is REQUIRED:
-                if section in raw and not (section == "gas" and taylor):
-                    raise ConfigError(f"{section}.{key}: required key is missing")
-                out[key] = None
-            else:
-                out[key] = spec.default
-        resolved[section] = out
-    return resolved
-
-
-# ---------------------------------------------------------------------------------------------
-# Cross-checks
-
-
-def _require(resolved: dict, section: str, key: str, why: str) -> None:
-    if resolved[section][key] is None:
-        raise ConfigError(f"{section}.{key}: required {why}")
-
-
-def _cross_check_fiber(resolved: dict) -> None:
-    fiber = resolved["fiber"]
-    kind = fiber["kind"]
-    if kind in ("capillary", "antiresonant"):
-        _require(resolved, "fiber", "core_diameter_um", f"for kind = {kind!r}")
-    if kind == "antiresonant":
-        _require(resolved, "fiber", "wall_thickness_um", "for kind = 'antiresonant'")
-        if fiber["wall_thickness_um"] >= fiber["core_diameter_um"] / 2:
-            raise ConfigError(f"fiber.wall_thickness_um = {fiber['wall_thickness_um']}: must be "
-                              f"smaller than the core radius ({fiber['core_diameter_um'] / 2} um)")
-    if kind == "taylor":
-        _require(resolved, "fiber", "betas_fs_n_per_mm", "for kind = 'taylor'")
-        _require(resolved, "fiber", "gamma_per_w_per_m", "for kind = 'taylor'")
-    else:
-        taylor_only = ("betas_fs_n_per_mm", "gamma_per_w_per_m", "effective_area_um2")
-        for key in taylor_only:
-            if fiber[key] is not None:
-                raise ConfigError(f"fiber.{key}: only allowed with kind = 'taylor' "
-                                  f"(kind is {kind!r})")
-    mode = fiber["mode"]
-    match = _MODE_PATTERN.fullmatch(mode.strip())
-    if match is None or int(match.group(1)) > MAX_MODE_ORDER:
-        raise ConfigError(f"fiber.mode = {_describe(mode)}: must be EH1m with "
-                          f"1 <= m <= {MAX_MODE_ORDER} (e.g. 'EH11')")
-
-
-def _cross_check_gas(resolved: dict, present: set[str]) -> None:
-    gas = resolved["gas"]
-    kind = resolved["fiber"]["kind"]
-    if "gas" not in present:
-        if kind != "taylor":
-            raise ConfigError(f"[gas]: required section is missing for fiber.kind = {kind!r}")
-        return
-    if gas["species"] is not None and gas["mixture"] is not None:
-        raise ConfigError("gas.species and gas.mixture: give one of them, not both")
-    if gas["species"] is None and gas["mixture"] is None:
-        raise ConfigError("gas.species: required (or gas.mixture)")
-
-
-def _cross_check_compressor(resolved: dict) -> None:
-    comp = resolved["compressor"]
-    if comp["mirror_gdd_fs2"] is not None and comp["mirror_gdd_csv"] is not None:
-        raise ConfigError("compressor.mirror_gdd_fs2 and compressor.mirror_gdd_csv: give one "
-                          "of them, not both")
-    if comp["wedge_max_insertion_mm"] > 0 and comp["wedge_material"] is None:
-        raise ConfigError("compressor.wedge_material: required when wedge_max_insertion_mm > 0")
-    thz = resolved["thz"]
-    if (thz["detector_crystal"] is None) != (thz["detector_thickness_mm"] is None):
-        raise ConfigError("thz.detector_crystal and thz.detector_thickness_mm: give both or "
-                          "neither")
-
-
-def _check_names(resolved: dict, present: set[str], table_dirs: tuple[Path, ...]) -> None:
-    """Check gas, material and crystal names against the shipped and user tables."""
-    from hcfplan.materials import crystals, gases, solids
-
-    if "gas" in present:
-        names = ([resolved["gas"]["species"]] if resolved["gas"]["species"]
-                 else list(resolved["gas"]["mixture"]))
-        key = "gas.species" if resolved["gas"]["species"] else "gas.mixture"
-        for name in names:
-            try:
-                gases.load_gas_table(name, table_dirs)
-            except ConfigError as exc:
-                valid = gases.available_gases(table_dirs)
-                if any(name.lower() == v.lower() for v in valid):
-                    raise  # the table exists but is malformed: its own message names file/key
-                raise ConfigError(f"{key} = {name!r}: unknown gas{_suggest(name, valid)} "
-                                  f"(available: {', '.join(valid)})") from exc
-    material_keys = [("fiber", "cladding"), ("cell", "window_material"),
-                     ("compressor", "wedge_material")]
-    valid_solids = solids.material_names()
-    for section, key in material_keys:
-        name = resolved[section][key]
-        if name is not None and name not in valid_solids:
-            raise ConfigError(f"{section}.{key} = {name!r}: unknown material"
-                              f"{_suggest(name, valid_solids)} "
-                              f"(available: {', '.join(valid_solids)})")
-    valid_crystals = crystals.crystal_names()
-    for key in ("crystal", "detector_crystal"):
-        name = resolved["thz"][key]
-        if name is not None and name.lower() not in {v.lower() for v in valid_crystals}:
-            raise ConfigError(f"thz.{key} = {name!r}: unknown crystal"
-                              f"{_suggest(name, valid_crystals)} "
-                              f"(available: {', '.join(valid_crystals)})")
+# Files named by the config
 
 
 def _resolve_path(value: str | None, base: Path, key: str, must_be_dir: bool = False):
@@ -479,15 +93,17 @@ def _resolve_path(value: str | None, base: Path, key: str, must_be_dir: bool = F
             path = base / path
         found = path.is_dir() if must_be_dir else path.is_file()
     except (OSError, RuntimeError, ValueError) as exc:  # unknown ~user, name too long, NUL
-        raise ConfigError(f"{key} = {_describe(value)}: not a usable path ({exc})") from None
+        raise ConfigError(f"{key} = {describe(value)}: not a usable path ({exc})") from None
     if not found:
         what = "folder" if must_be_dir else "file"
-        raise ConfigError(f"{key} = {_describe(value)}: {what} not found ({path})")
+        raise ConfigError(f"{key} = {describe(value)}: {what} not found ({path})")
     return path
 
 
-def _checked_csv(value: str | None, base: Path, key: str, column: str | None):
-    """Resolve a CSV path and read it once, so a bad file is reported before any run.
+def _measured_curve(value: str | None, base: Path, key: str,
+                    column: str | None) -> MeasuredCurve | None:
+    """Resolve a CSV path and read it now, so a bad file is reported before any run and the
+    run itself reads no file.
 
     ``column`` names the value column (``None`` for a spectrum: ``intensity``, >= 0).
     """
@@ -498,12 +114,12 @@ def _checked_csv(value: str | None, base: Path, key: str, column: str | None):
 
     try:
         if column is None:
-            read_spectrum_csv(path)
+            wavelength, values = read_spectrum_csv(path)
         else:
-            read_curve_csv(path, column)
+            wavelength, values = read_curve_csv(path, column)
     except ConfigError as exc:
         raise ConfigError(f"{key}: {exc}") from None
-    return path
+    return MeasuredCurve(source=path, wavelength=wavelength, values=values)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -521,7 +137,7 @@ def _build_fiber(f: dict) -> FiberSpec:
         core_radius=None if core is None else core / 2,
         cladding=f["cladding"], wall_thickness=_si(f["wall_thickness_um"], "um"),
         bend_radius=f["bend_radius_m"],
-        mode_order=int(_MODE_PATTERN.fullmatch(f["mode"].strip()).group(1)),
+        mode_order=crosschecks.mode_order(f["mode"]),
         betas=tuple(units.taylor_betas_to_si(f["betas_fs_n_per_mm"] or [])),
         gamma=f["gamma_per_w_per_m"],
         loss=units.power_loss_db_per_m_to_field_attenuation(f["loss_db_per_m"]),
@@ -549,8 +165,11 @@ def _build_specs(r: dict, present: set[str], base: Path, extra_gas_dirs) -> dict
     lim = r["limits"]
     gas_dir = _resolve_path(r["gas"]["table_dir"], base, "gas.table_dir", must_be_dir=True)
     table_dirs = tuple(([gas_dir] if gas_dir else []) + [Path(d) for d in extra_gas_dirs])
-    _check_names(r, present, table_dirs)
+    crosschecks.check_names(r, present, table_dirs)
     band = comp["mirror_band_nm"]
+    spectrum = _measured_curve(las["spectrum_csv"], base, "laser.spectrum_csv", None)
+    if spectrum is not None:
+        crosschecks.check_measured_spectrum(spectrum.wavelength, r)
     return dict(
         laser=LaserSpec(
             wavelength=units.to_si(las["wavelength_nm"], "nm"),
@@ -558,7 +177,7 @@ def _build_specs(r: dict, present: set[str], base: Path, extra_gas_dirs) -> dict
             energy=units.to_si(las["energy_uj"], "uj"),
             repetition_rate=_si(las["repetition_khz"], "khz"),
             gdd=units.to_si(las["gdd_fs2"], "fs2"),
-            spectrum_csv=_checked_csv(las["spectrum_csv"], base, "laser.spectrum_csv", None),
+            spectrum=spectrum,
             beam_waist=_si(las["beam_waist_um"], "um")),
         fiber=_build_fiber(r["fiber"]),
         gas=_build_gas(r["gas"], present, table_dirs),
@@ -569,8 +188,8 @@ def _build_specs(r: dict, present: set[str], base: Path, extra_gas_dirs) -> dict
         compressor=CompressorSpec(
             air_path=comp["air_path_m"], mirror_gdd=_si(comp["mirror_gdd_fs2"], "fs2"),
             mirror_tod=units.to_si(comp["mirror_tod_fs3"], "fs3"),
-            mirror_gdd_csv=_checked_csv(comp["mirror_gdd_csv"], base,
-                                        "compressor.mirror_gdd_csv", "gdd_fs2"),
+            mirror_gdd_curve=_measured_curve(comp["mirror_gdd_csv"], base,
+                                             "compressor.mirror_gdd_csv", "gdd_fs2"),
             mirror_band=None if band is None else (band[0] * 1e-9, band[1] * 1e-9),
             max_bounces=comp["max_bounces"], bounces_in_pairs=comp["bounces_in_pairs"],
             objective=comp["objective"], wedge_material=comp["wedge_material"],
@@ -606,9 +225,10 @@ def config_from_mapping(raw: dict[str, Any], *, base_dir: Path | str = ".",
     data = apply_overrides(raw, list(overrides))
     present = {s for s in data if isinstance(data[s], dict)}
     resolved = validate_raw(data)
-    _cross_check_fiber(resolved)
-    _cross_check_gas(resolved, present)
-    _cross_check_compressor(resolved)
+    crosschecks.check_fiber(resolved)
+    crosschecks.check_gas(resolved, present)
+    crosschecks.check_compressor(resolved)
+    crosschecks.check_grid(resolved)
     specs = _build_specs(resolved, present, Path(base_dir), extra_gas_dirs)
     shown = {s: t for s, t in resolved.items() if s in present or s in REQUIRED_SECTIONS}
     return PlanConfig(**specs, resolved=shown, present_sections=tuple(sorted(present)),

@@ -25,7 +25,10 @@ class Key:
 
     ``kind`` is one of ``float``, ``int``, ``bool``, ``str``, ``choice``, ``float_list``,
     ``band`` (two increasing floats), ``fractions`` (table of name -> fraction), ``path``.
-    ``low``/``high`` bound the value (in the key's unit); ``low_open`` makes the low bound strict.
+    ``low``/``high`` bound the value (in the key's unit); ``low_open`` makes the low bound strict,
+    ``high_open`` the high bound. Bounds that keep values away from zero exclude inputs no model
+    here can use (a zero-size beam or crystal, an energy of 1e-300 uJ); they are common
+    practice, no source.
     """
 
     kind: str
@@ -34,6 +37,7 @@ class Key:
     low: float | None = None
     high: float | None = None
     low_open: bool = True
+    high_open: bool = False
     choices: tuple[str, ...] = ()
 
 
@@ -46,7 +50,7 @@ SCHEMA: dict[str, dict[str, Key]] = {
         "shape": Key("choice", "sech2", "Temporal shape of the input pulse.",
                      choices=("sech2", "gaussian")),
         "energy_uj": Key(F, REQUIRED, "Pulse energy before the fiber (before coupling).",
-                         0.0, 1.0e6),
+                         1.0e-6, 1.0e6, low_open=False),
         "repetition_khz": Key(F, None, "Repetition rate (for average power; optional).",
                               0.0, 1.0e6),
         "gdd_fs2": Key(F, 0.0, "Input chirp as spectral GDD.", -1.0e7, 1.0e7, low_open=False),
@@ -55,7 +59,7 @@ SCHEMA: dict[str, dict[str, Key]] = {
                             "replaces the analytic shape (flat phase plus gdd_fs2)."),
         "beam_waist_um": Key(F, None,
                              "1/e^2 intensity radius of the focused beam at the fiber entrance; "
-                             "default: the coupling optimum 0.64 a.", 0.0, 1.0e5),
+                             "default: the coupling optimum 0.64 a.", 1.0, 1.0e5, low_open=False),
     },
     "fiber": {
         "kind": Key("choice", REQUIRED, "Fiber model.",
@@ -65,19 +69,21 @@ SCHEMA: dict[str, dict[str, Key]] = {
         "length_m": Key(F, REQUIRED, "Fiber length.", 0.0, 100.0),
         "cladding": Key("str", "fused_silica", "Cladding / wall glass (a solid material name)."),
         "wall_thickness_um": Key(F, None, "Tube wall thickness (antiresonant).", 0.0, 100.0),
-        "bend_radius_m": Key(F, None, "Bend radius (capillary bend loss; optional).", 0.0, 1.0e6),
+        "bend_radius_m": Key(F, None, "Bend radius (capillary bend loss; optional).", 1.0e-3,
+                             1.0e6, low_open=False),
         "mode": Key("str", "EH11", "Capillary mode EH1m (EH11 is the fundamental)."),
         "betas_fs_n_per_mm": Key("float_list", None,
                                  "Taylor fiber: [beta2, beta3, ...] about the pump in fs^n/mm."),
-        "gamma_per_w_per_m": Key(F, None, "Taylor fiber: nonlinear coefficient.", 0.0, 1.0e3,
-                                 low_open=False),
+        "gamma_per_w_per_m": Key(F, None, "Taylor fiber: nonlinear coefficient.", 0.0, 1.0e3),
         "loss_db_per_m": Key(F, 0.0, "Taylor fiber: flat power loss.", 0.0, 1.0e4,
                              low_open=False),
         "self_steepening": Key("bool", True, "Taylor fiber: include self-steepening."),
         "raman_fraction": Key(F, 0.0, "Taylor fiber: fractional delayed Raman response f_R.",
-                              0.0, 1.0, low_open=False),
-        "raman_tau1_fs": Key(F, 12.2, "Taylor fiber: Raman oscillation time tau1.", 0.0, 1.0e4),
-        "raman_tau2_fs": Key(F, 32.0, "Taylor fiber: Raman damping time tau2.", 0.0, 1.0e5),
+                              0.0, 1.0, low_open=False, high_open=True),
+        "raman_tau1_fs": Key(F, 12.2, "Taylor fiber: Raman oscillation time tau1.", 0.1, 1.0e4,
+                             low_open=False),
+        "raman_tau2_fs": Key(F, 32.0, "Taylor fiber: Raman damping time tau2.", 0.1, 1.0e5,
+                             low_open=False),
         "effective_area_um2": Key(F, None, "Taylor fiber: effective mode area (for intensities).",
                                   0.0, 1.0e8),
     },
@@ -122,16 +128,19 @@ SCHEMA: dict[str, dict[str, Key]] = {
     },
     "thz": {
         "crystal": Key("str", "GaP", "Generation crystal."),
-        "thickness_mm": Key(F, 0.3, "Generation crystal thickness.", 0.0, 50.0),
-        "cutoff_db": Key(F, -20.0, "Cutoff level relative to the spectral peak.", -200.0, 0.0),
+        "thickness_mm": Key(F, 0.3, "Generation crystal thickness.", 1.0e-3, 50.0,
+                            low_open=False),
+        "cutoff_db": Key(F, -20.0, "Cutoff level relative to the spectral peak.", -200.0, 0.0,
+                         low_open=False, high_open=True),
         "cutoff_quantity": Key("choice", "power", "Spectrum the cutoff level applies to.",
                                choices=("power", "field")),
         "detector_crystal": Key("str", None, "EO detection crystal (optional)."),
-        "detector_thickness_mm": Key(F, None, "EO detection crystal thickness.", 0.0, 50.0),
+        "detector_thickness_mm": Key(F, None, "EO detection crystal thickness.", 1.0e-3, 50.0,
+                                     low_open=False),
         "probe_fwhm_fs": Key(F, None, "Probe pulse FWHM for EO gating (default: the compressed "
-                             "pulse).", 0.0, 1.0e5),
+                             "pulse).", 1.0, 1.0e5),
         "beam_waist_um": Key(F, None, "Pump 1/e^2 radius on the crystal (absolute estimates).",
-                             0.0, 1.0e6),
+                             1.0, 1.0e6, low_open=False),
         "d_eff_pm_per_v": Key(F, None, "Effective chi(2) coefficient (absolute estimates).",
                               0.0, 1.0e4),
         "damage_fluence_j_per_cm2": Key(F, None, "Crystal damage fluence for the pump check.",
@@ -141,7 +150,7 @@ SCHEMA: dict[str, dict[str, Key]] = {
         "self_focusing_margin": Key(F, 2.0, "Required ratio P_cr / P_peak.", 1.0, 1.0e3,
                                     low_open=False),
         "ionization_fraction_limit": Key(F, 1.0e-4, "Ionisation fraction treated as the limit.",
-                                         0.0, 1.0),
+                                         0.0, 1.0, high_open=True),
         "window_safety_factor": Key(F, 4.0, "Safety factor of the window plate formula.",
                                     1.0, 100.0, low_open=False),
         "window_mounting": Key("choice", "clamped", "Window edge support.",

@@ -53,21 +53,22 @@ def parse_toml_value(text: str) -> Any:
     """Parse one TOML value (``1.5``, ``"Ar"``, ``[1, 2]``, ``{ He = 0.7 }``, ``true``).
 
     A bare word that is not valid TOML (``Ar``) is returned as the string itself.
-    Raises ``ValueError`` for text that looks like TOML but is malformed.
+    Raises :class:`~hcfplan.errors.ConfigError` (a ``ValueError``) for text that looks like TOML
+    but is malformed; callers prefix the option and key it came from.
     """
     stripped = text.strip()
     if stripped == "":
-        raise ValueError("empty value")
+        raise ConfigError("empty value")
     if any(ch in stripped for ch in "\r\n"):
-        raise ValueError(f"{stripped!r}: the value must be on one line")
+        raise ConfigError(f"{stripped!r}: the value must be on one line")
     try:
         return _toml.loads(f"v = {stripped}")["v"]
     except _toml.TOMLDecodeError:
         if stripped[0] in "[{\"'" or any(ch in stripped for ch in "=[]{}\"'"):
-            raise ValueError(f"cannot parse {stripped!r} as a TOML value") from None
+            raise ConfigError(f"cannot parse {stripped!r} as a TOML value") from None
         return stripped
     except ValueError as exc:  # e.g. an integer literal longer than Python converts
-        raise ValueError(f"cannot parse {stripped[:40]!r}...: {_first_line(exc)}") from None
+        raise ConfigError(f"cannot parse {stripped[:40]!r}...: {_first_line(exc)}") from None
 
 
 def _format_value(value: Any) -> str:

@@ -10,7 +10,8 @@ atom or of an ion of charge ``charge - 1``, single active electron; linear polar
 average (slowly varying envelope); field below barrier suppression
 (:func:`barrier_suppression_intensity`), above which the tunnelling formulas overestimate the
 rate. ADK further needs the Keldysh parameter γ ≪ 1; PPT covers multiphoton (γ ≫ 1) and tunnel
-regimes. Nothing here warns: the checks belong to ``hcfplan.limits.beam``. The PPT sum is slow, so
+regimes. Nothing here warns: the barrier-suppression check is made by
+``hcfplan.planning.reports.limits``. The PPT sum is slow, so
 the solver evaluates a :class:`~hcfplan.ionization.tables.RateTable` from
 :func:`~hcfplan.ionization.tables.tabulate_rate`, not the formula.
 
@@ -46,7 +47,6 @@ from hcfplan.constants import au_energy, au_field, au_time, c, e, epsilon_0, m_e
 from hcfplan.errors import ConfigError
 
 RateModel = Literal["ppt", "adk"]
-PulseShape = Literal["gaussian", "sech2"]
 
 #: The PPT multiphoton sum stops once exp(-alpha (kappa - nu)) falls below this value.
 _SUM_TOLERANCE = 1e-12
@@ -59,12 +59,48 @@ _SMALL_GAMMA = 1e-2
 
 
 # ----------------------------------------------------------------------------- input checks
-def _check_positive(name: str, value: float, unit: str) -> None:
+def check_positive(name: str, value: float, unit: str) -> None:
+    """Raise a ConfigError naming ``name`` unless ``value`` > 0.
+
+    Parameters
+    ----------
+    name : str
+        Name of the input as the caller knows it (shown in the message).
+    value : float
+        Value to check. [unit]
+    unit : str
+        Unit shown after the value ("" for none).
+
+    Raises
+    ------
+    ConfigError
+        ``value`` is not > 0 (NaN included).
+
+    References
+    ----------
+    none: numerical helper.
+    """
     if not value > 0:
         raise ConfigError(f"{name} = {value} {unit}: must be > 0")
 
 
-def _check_intensity(intensity: np.ndarray) -> None:
+def check_intensity(intensity: np.ndarray) -> None:
+    """Raise a ConfigError naming the first intensity that is negative or NaN.
+
+    Parameters
+    ----------
+    intensity : ndarray
+        Intensities. [W/m^2]
+
+    Raises
+    ------
+    ConfigError
+        Some element is < 0 or NaN.
+
+    References
+    ----------
+    none: numerical helper.
+    """
     if intensity.size and not np.all(intensity >= 0):
         bad = intensity[~(intensity >= 0)].flat[0]
         raise ConfigError(f"intensity = {bad} W/m^2: must be >= 0 (and not NaN)")
@@ -85,24 +121,57 @@ def _check_state(l: int, m: int, charge: int) -> None:
 
 def _checked(intensity, wavelength: float, ip: float) -> np.ndarray:
     intensity = np.asarray(intensity, dtype=float)
-    _check_intensity(intensity)
-    _check_positive("wavelength", wavelength, "m")
-    _check_positive("ip", ip, "J")
+    check_intensity(intensity)
+    check_positive("wavelength", wavelength, "m")
+    check_positive("ip", ip, "J")
     return intensity
 
 
 # ----------------------------------------------------------------------------- basics
-def _field_au(intensity: np.ndarray) -> np.ndarray:
-    """Peak field of a linearly polarised wave, I = c eps0 E0^2 / 2, in atomic units."""
-    return np.sqrt(2.0 * intensity / (c * epsilon_0)) / au_field
+def field_au(intensity: npt.ArrayLike) -> np.ndarray:
+    """Peak field of a linearly polarised wave of cycle-averaged intensity I, in atomic units.
+
+    Parameters
+    ----------
+    intensity : float or ndarray
+        Cycle-averaged intensity. [W/m^2]
+
+    Returns
+    -------
+    ndarray
+        :math:`E_0/E_\\mathrm{au}` with :math:`I = \\tfrac12 c\\varepsilon_0 E_0^2` and
+        :math:`E_\\mathrm{au}` = ``hcfplan.constants.au_field``. [-]
+
+    References
+    ----------
+    none: unit conversion.
+    """
+    return np.sqrt(2.0 * np.asarray(intensity, dtype=float) / (c * epsilon_0)) / au_field
 
 
-def _omega_au(wavelength: float) -> float:
+def omega_au(wavelength: float) -> float:
+    """Angular frequency of light of a given vacuum wavelength, in atomic units.
+
+    Parameters
+    ----------
+    wavelength : float
+        Vacuum wavelength. [m]
+
+    Returns
+    -------
+    float
+        :math:`\\omega\\,t_\\mathrm{au}` with :math:`\\omega = 2\\pi c/\\lambda` and
+        :math:`t_\\mathrm{au}` = ``hcfplan.constants.au_time``. [-]
+
+    References
+    ----------
+    none: unit conversion.
+    """
     return 2.0 * np.pi * c / wavelength * au_time
 
 
 def keldysh_parameter(intensity: npt.ArrayLike, wavelength: float, ip: float) -> np.ndarray:
-    """Keldysh parameter :math:`\\gamma = \\omega\\sqrt{2 m_e I_p}/(e E_0)` of [5].
+    """Keldysh parameter :math:`\\gamma = \\omega\\sqrt{2 m_e I_p}/(e E_0)` of [1].
 
     Parameters
     ----------
@@ -118,6 +187,11 @@ def keldysh_parameter(intensity: npt.ArrayLike, wavelength: float, ip: float) ->
     ndarray
         Keldysh parameter (dimensionless); ``inf`` at zero intensity. γ ≫ 1 is the multiphoton
         regime, γ ≪ 1 the tunnel regime. Equivalent to :math:`\\sqrt{I_p/(2U_p)}`.
+
+    References
+    ----------
+    .. [1] L. V. Keldysh, "Ionization in the field of a strong electromagnetic wave," Sov. Phys.
+           JETP, vol. 20, no. 5, pp. 1307-1314, 1965. [from memory]
     """
     intensity = _checked(intensity, wavelength, ip)
     omega = 2.0 * np.pi * c / wavelength
@@ -127,7 +201,7 @@ def keldysh_parameter(intensity: npt.ArrayLike, wavelength: float, ip: float) ->
 
 
 def barrier_suppression_intensity(ip: float, charge: int = 1) -> float:
-    """Intensity at which the field lowers the Coulomb barrier to the bound level [4].
+    """Intensity at which the field lowers the Coulomb barrier to the bound level [1].
 
     Parameters
     ----------
@@ -151,8 +225,14 @@ def barrier_suppression_intensity(ip: float, charge: int = 1) -> float:
               \\approx 4.00\\times 10^{9}\\,\\frac{(I_p/\\mathrm{eV})^4}{Z^2}\\ \\mathrm{W/cm^2}.
 
     (A version without :math:`\\varepsilon_0^2` circulates; it is dimensionally wrong.)
+
+    References
+    ----------
+    .. [1] S. Augst, D. Strickland, D. D. Meyerhofer, S. L. Chin and J. H. Eberly, "Tunneling
+           ionization of noble gases in a high-intensity laser field," Phys. Rev. Lett., vol. 63,
+           no. 20, pp. 2212-2215, 1989, doi:10.1103/PhysRevLett.63.2212.
     """
-    _check_positive("ip", ip, "J")
+    check_positive("ip", ip, "J")
     _check_charge(charge)
     return c * np.pi**2 * epsilon_0**3 * ip**4 / (2.0 * charge**2 * e**6)
 
@@ -187,7 +267,7 @@ def _log_adk_rate(intensity, wavelength, ip, l, m=0, charge=1) -> np.ndarray:
     _check_state(l, m, charge)
     ip_au = ip / au_energy
     n_star, log_cf, f0 = _state_constants(ip_au, l, m, charge)
-    field = _field_au(intensity)
+    field = field_au(intensity)
     with np.errstate(divide="ignore", invalid="ignore"):
         log_ratio = np.log(2.0 * f0 / field)
         log_w = (
@@ -236,6 +316,12 @@ def adk_rate(
     :math:`f(l,m) = (2l+1)(l+|m|)!/[2^{|m|}|m|!(l-|m|)!]` (Eqs. (1)-(3) of [1]; the last factor
     is the cycle average for linear polarisation). For hydrogen it reduces to the static rate
     :math:`(4/F)e^{-2/(3F)}`. Valid for :math:`\\gamma \\ll 1` and below barrier suppression.
+
+    References
+    ----------
+    .. [1] M. V. Ammosov, N. B. Delone and V. P. Krainov, "Tunnel ionization of complex atoms and
+           of atomic ions in an alternating electromagnetic field," Sov. Phys. JETP, vol. 64,
+           no. 6, pp. 1191-1194, 1986. [from memory]
     """
     return np.exp(_log_adk_rate(intensity, wavelength, ip, l, m, charge))[()]
 
@@ -331,10 +417,10 @@ def _log_ppt_rate(intensity, wavelength, ip, l, m=0, charge=1) -> np.ndarray:
     intensity = _checked(intensity, wavelength, ip)
     _check_state(l, m, charge)
     ip_au = ip / au_energy
-    omega = _omega_au(wavelength)
+    omega = omega_au(wavelength)
     n_star, log_cf, f0 = _state_constants(ip_au, l, m, charge)
     am = abs(m)
-    field = np.atleast_1d(_field_au(intensity))
+    field = np.atleast_1d(field_au(intensity))
     on = field > 0
     f = field[on]
     gamma = omega * math.sqrt(2.0 * ip_au) / f  # Keldysh parameter [5]
@@ -364,7 +450,7 @@ def _log_ppt_rate(intensity, wavelength, ip, l, m=0, charge=1) -> np.ndarray:
 def ppt_rate(
     intensity: npt.ArrayLike, wavelength: float, ip: float, l: int, m: int = 0, charge: int = 1
 ) -> np.ndarray:
-    """Cycle-averaged PPT photoionisation rate for linear polarisation [2], in the form of [3].
+    """Cycle-averaged PPT photoionisation rate for linear polarisation [1], in the form of [2].
 
     Parameters
     ----------
@@ -400,7 +486,7 @@ def ppt_rate(
     \\frac{\\sqrt{1+\\gamma^2}}{2\\gamma}]`, :math:`\\alpha = 2[\\mathrm{asinh}\\,\\gamma -
     \\gamma/\\sqrt{1+\\gamma^2}]`, :math:`\\beta = 2\\gamma/\\sqrt{1+\\gamma^2}`,
     :math:`\\nu = (I_p/\\omega)(1 + 1/(2\\gamma^2))`, and :math:`w_m` the integral in
-    :func:`_w_m` (the Dawson function for m = 0); Eqs. (7)-(9) of [3] [from memory]. As
+    :func:`_w_m` (the Dawson function for m = 0); Eqs. (7)-(9) of [2] [from memory]. As
     γ → 0, g → 1 and A_m → 1, and w becomes the cycle-averaged ADK rate exactly.
 
     The sum over photon numbers κ stops when :math:`e^{-\\alpha(\\kappa-\\nu)} < 10^{-12}`;
@@ -411,12 +497,23 @@ def ppt_rate(
     multiphoton regime the slope :math:`d\\ln w/d\\ln I` is :math:`\\lceil\\nu\\rceil - n^*`
     rather than the photon number. Slow (long sums at small γ): use
     :func:`hcfplan.ionization.tables.tabulate_rate` for repeated calls.
+
+    References
+    ----------
+    .. [1] A. M. Perelomov, V. S. Popov and M. V. Terent'ev, "Ionization of atoms in an
+           alternating electric field," Sov. Phys. JETP, vol. 23, no. 5, pp. 924-934, 1966.
+           [from memory]
+    .. [2] F. A. Ilkov, J. E. Decker and S. L. Chin, "Ionization of atoms in the tunnelling
+           regime with experimental evidence using Hg atoms," J. Phys. B, vol. 25, no. 19,
+           pp. 4005-4020, 1992, doi:10.1088/0953-4075/25/19/011. [from memory]
     """
     return np.exp(_log_ppt_rate(intensity, wavelength, ip, l, m, charge))[()]
 
 
+#: model key -> rate function (intensity [W/m^2], wavelength [m], ip [J], l, m, charge) -> [1/s]
 RATE_MODELS: dict[str, Callable[..., np.ndarray]] = {"ppt": ppt_rate, "adk": adk_rate}
-_LOG_RATE_MODELS: dict[str, Callable[..., np.ndarray]] = {
+#: model key -> natural log of the same rate [ln(1/s)] (-inf at zero intensity), for tables
+LOG_RATE_MODELS: dict[str, Callable[..., np.ndarray]] = {
     "ppt": _log_ppt_rate,
     "adk": _log_adk_rate,
 }
@@ -429,6 +526,10 @@ def rate_function(model: RateModel) -> Callable[..., np.ndarray]:
     ------
     ConfigError
         If ``model`` is not a key of :data:`RATE_MODELS`; the message lists the valid keys.
+
+    References
+    ----------
+    none: registry look-up (the models carry their own references).
     """
     try:
         return RATE_MODELS[model]

@@ -1,11 +1,12 @@
-"""Rate tables and ionisation fractions for the solver and the limits.
+"""Rate tables: a photoionisation rate tabulated once and evaluated by interpolation.
 
 The PPT sum of :mod:`hcfplan.ionization.rates` is slow; :func:`tabulate_rate` tabulates a rate on an
 adaptive intensity grid once (nodes at the PPT channel closings, bisection to a relative
 tolerance) and :class:`RateTable` evaluates it by log-log interpolation.
-:func:`ionization_fraction` integrates a rate over an intensity history, and
-:func:`intensity_for_fraction` finds the peak intensity of a pulse that leaves a given fraction.
-Units and validity as in :mod:`hcfplan.ionization.rates`.
+:func:`cached_rate_table` keeps such tables in hcfplan's cache folder
+(:mod:`hcfplan.numerics.cache`) between runs. The ionised fraction of a pulse and the peak
+intensity for a given fraction are in :mod:`hcfplan.ionization.fraction`. Units and validity as
+in :mod:`hcfplan.ionization.rates`.
 
 References
 ----------
@@ -21,22 +22,24 @@ import functools
 import math
 from collections.abc import Callable
 from dataclasses import dataclass
+from pathlib import Path
 
 import numpy as np
 import numpy.typing as npt
 
+from hcfplan import constants
 from hcfplan.constants import au_energy, au_field, c, epsilon_0
 from hcfplan.errors import ConfigError
+from hcfplan.ionization import rates
 from hcfplan.ionization.rates import (
-    _LOG_RATE_MODELS,
-    PulseShape,
+    LOG_RATE_MODELS,
     RateModel,
-    _check_intensity,
-    _check_positive,
-    _field_au,
-    _omega_au,
+    check_positive,
+    field_au,
+    omega_au,
     rate_function,
 )
+from hcfplan.numerics.cache import cached_arrays
 
 #: PPT channel closings become table nodes down to this Keldysh parameter.
 _CLOSING_MIN_GAMMA = 0.03
@@ -62,7 +65,11 @@ class RateTable:
     Below the lowest node the rate is 0: start the table where rate × duration is negligible.
     Above the highest node it is extrapolated in log-log with the mean slope of the table's top
     factor e in intensity (such intensities are usually beyond barrier suppression;
-    ``hcfplan.limits.beam`` flags them).
+    ``hcfplan.planning.reports.limits`` flags them).
+
+    References
+    ----------
+    none: numerical helper (the tabulated models carry their own references).
     """
 
     log_intensity: np.ndarray
@@ -104,13 +111,13 @@ def _ppt_channel_closings(wavelength, ip, intensity_min, intensity_max) -> np.nd
     Only closings with γ >= _CLOSING_MIN_GAMMA are returned: below that the channel structure
     of the PPT rate is smaller than 1e-4 relative and the refinement alone resolves it.
     """
-    omega, ip_au = _omega_au(wavelength), ip / au_energy
-    f_top = min(float(_field_au(intensity_max)), omega * math.sqrt(2 * ip_au) / _CLOSING_MIN_GAMMA)
+    omega, ip_au = omega_au(wavelength), ip / au_energy
+    f_top = min(float(field_au(intensity_max)), omega * math.sqrt(2 * ip_au) / _CLOSING_MIN_GAMMA)
 
     def nu(field):  # (I_p/ω)(1 + 1/(2γ²)) = I_p/ω + F²/(4ω³)
         return ip_au / omega + field**2 / (4.0 * omega**3)
 
-    k = np.arange(math.floor(nu(float(_field_au(intensity_min)))) + 1, math.floor(nu(f_top)) + 1)
+    k = np.arange(math.floor(nu(float(field_au(intensity_min)))) + 1, math.floor(nu(f_top)) + 1)
     field = np.sqrt(4.0 * omega**3 * (k - ip_au / omega))
     return 0.5 * c * epsilon_0 * (field * au_field) ** 2
 
@@ -182,18 +189,27 @@ def tabulate_rate(
     interpolation of ln w versus ln I at every midpoint is within ``rtol``. With the defaults
     the interpolated rate stays within 1e-3 of the formula from 1e12 to 1e16 W/cm^2 (tested for
     Ar at 0.8 µm and Xe at 1.03 µm).
+
+    References
+    ----------
+    .. [1] A. M. Perelomov, V. S. Popov and M. V. Terent'ev, "Ionization of atoms in an
+           alternating electric field," Sov. Phys. JETP, vol. 23, no. 5, pp. 924-934, 1966
+           (the threshold photon number ν whose integer crossings become nodes). [from memory]
+    .. [2] F. A. Ilkov, J. E. Decker and S. L. Chin, J. Phys. B, vol. 25, no. 19,
+           pp. 4005-4020, 1992, doi:10.1088/0953-4075/25/19/011 (the form of the PPT sum).
+           [from memory]
     """
-    log_fn = _LOG_RATE_MODELS.get(model)
+    log_fn = LOG_RATE_MODELS.get(model)
     if log_fn is None:
         rate_function(model)  # raises the ConfigError that lists the valid keys
-    _check_positive("intensity_min", intensity_min, "W/m^2")
+    check_positive("intensity_min", intensity_min, "W/m^2")
     if not intensity_max > intensity_min:
         raise ConfigError(
             f"intensity_max = {intensity_max} W/m^2: must be > intensity_min = {intensity_min}"
         )
     if points < 2:
         raise ConfigError(f"points = {points}: must be >= 2")
-    _check_positive("rtol", rtol, "")
+    check_positive("rtol", rtol, "")
     log_fn(intensity_min, wavelength, ip, l, m, charge)  # validates the remaining inputs once
     closings = _BREAKPOINTS[model](wavelength, ip, intensity_min, intensity_max)
     x0 = np.union1d(
@@ -205,142 +221,66 @@ def tabulate_rate(
     return RateTable(log_intensity=x, log_rate=y, model=model)
 
 
-# ----------------------------------------------------------------------------- fractions
-def ionization_fraction(
-    intensity_t: npt.ArrayLike,
-    dt: float,
-    rate: Callable[[np.ndarray], np.ndarray],
-    neutral_fraction_start: npt.ArrayLike = 1.0,
-) -> np.ndarray:
-    """Ionised fraction ρ(t) for an intensity history, from dρ/dt = W(I(t)) (1 - ρ).
+# ----------------------------------------------------------------------------- disk cache
+def rate_table_is_sound(arrays: dict[str, np.ndarray]) -> bool:
+    """Whether arrays read back from the cache folder can form a :class:`RateTable`.
 
     Parameters
     ----------
-    intensity_t : ndarray
-        Intensity samples I(t_k), t_k = t_0 + k dt, along the last axis. [W/m^2]
-    dt : float
-        Sample spacing. [s]
-    rate : callable
-        W(I) in 1/s for an intensity array in W/m^2, e.g. a :class:`RateTable` or
-        ``functools.partial(ppt_rate, wavelength=..., ip=..., l=...)``.
-    neutral_fraction_start : float or ndarray
-        Neutral fraction 1 - ρ at t_0 (default 1: no ions yet).
+    arrays : dict of str to ndarray
+        The stored ``log_intensity`` and ``log_rate``.
 
     Returns
     -------
-    ndarray
-        ρ(t_k), same shape as ``intensity_t``; ρ(t_0) = 1 - ``neutral_fraction_start``.
+    bool
+        True for two 1-D arrays of equal length >= 2 with finite, strictly increasing
+        ``log_intensity``.
 
-    Notes
-    -----
-    With W held at W_k over [t_k, t_k + dt) the equation is solved exactly per step,
-    :math:`\\rho_{k+1} = 1 - (1-\\rho_k)e^{-W_k\\,dt}`, i.e.
-    :math:`\\rho_k = 1 - (1-\\rho_0)\\exp(-\\sum_{j<k} W_j\\,dt)`. No recombination, single
-    ionisation only.
+    References
+    ----------
+    none: numerical helper.
     """
-    _check_positive("dt", dt, "s")
-    intensity_t = np.asarray(intensity_t, dtype=float)
-    _check_intensity(intensity_t)
-    w_dt = np.asarray(rate(intensity_t), dtype=float) * dt
-    exponent = np.cumsum(w_dt, axis=-1) - w_dt  # Σ_{j<k} W_j dt
-    neutral = np.asarray(neutral_fraction_start, dtype=float)
-    return (1.0 - neutral) - neutral * np.expm1(-exponent)  # = 1 - n0 exp(-S), exact for tiny S
+    x, y = arrays.get("log_intensity"), arrays.get("log_rate")
+    return (x is not None and y is not None and x.ndim == y.ndim == 1 and x.size == y.size >= 2
+            and bool(np.all(np.diff(x) > 0)) and bool(np.all(np.isfinite(x))))
 
 
-def _gaussian(x: np.ndarray) -> np.ndarray:
-    return np.exp(-4.0 * math.log(2.0) * x**2)  # intensity, FWHM = 1 in units of x
-
-
-def _sech2(x: np.ndarray) -> np.ndarray:
-    return 1.0 / np.cosh(2.0 * math.log1p(math.sqrt(2.0)) * x) ** 2  # FWHM = 1
-
-
-_PULSE_SHAPES: dict[str, Callable[[np.ndarray], np.ndarray]] = {
-    "gaussian": _gaussian,
-    "sech2": _sech2,
-}
-#: Time window (in FWHM units, each side) and samples used by intensity_for_fraction.
-_PULSE_HALF_WINDOW = 3.0
-_PULSE_SAMPLES = 1201
-
-
-@functools.lru_cache(maxsize=16)
-def _cached_table(model, wavelength, ip, l, m, charge, intensity_min, intensity_max) -> RateTable:
-    """A PPT/ADK table to 1e-3 for intensity_for_fraction, cached (its arrays are read-only)."""
-    return tabulate_rate(
-        model, wavelength, ip, l, m, charge, intensity_min, intensity_max, rtol=1e-3
-    )
-
-
-def intensity_for_fraction(
-    target_fraction: float,
-    duration_fwhm: float,
-    shape: PulseShape,
-    wavelength: float,
-    ip: float,
-    l: int,
-    m: int = 0,
-    charge: int = 1,
-    model: RateModel = "ppt",
-    intensity_bounds: tuple[float, float] = (1e16, 1e20),
-) -> float:
-    """Peak intensity at which a pulse leaves a given ionised fraction behind it.
+def cached_rate_table(model: RateModel, wavelength: float, ip: float, l: int,  # noqa: E741
+                      m: int, charge: int, intensity_min: float,
+                      intensity_max: float) -> RateTable:
+    """:func:`tabulate_rate` with its default accuracy, kept in hcfplan's cache folder.
 
     Parameters
     ----------
-    target_fraction : float
-        Final ionised fraction, 0 < ρ < 1.
-    duration_fwhm : float
-        Intensity FWHM of the pulse. [s]
-    shape : {"gaussian", "sech2"}
-        Temporal intensity profile.
-    wavelength : float
-        Vacuum wavelength. [m]
-    ip : float
-        Ionisation potential. [J]
-    l, m, charge : int
-        As in :func:`ppt_rate`.
-    model : {"ppt", "adk"}
-        Rate model.
-    intensity_bounds : tuple of float
-        Search bracket for the peak intensity (default 1e12 to 1e16 W/cm^2). [W/m^2]
+    model, wavelength, ip, l, m, charge, intensity_min, intensity_max :
+        As in :func:`tabulate_rate`.
 
     Returns
     -------
-    float
-        Peak (cycle-averaged) intensity. [W/m^2]
+    RateTable
+        The same numbers as :func:`tabulate_rate` (nodes and log rates are stored exactly),
+        with read-only arrays.
 
     Notes
     -----
-    Solves :math:`1 - \\exp(-\\int W(I_0 s(t))\\,dt) = \\rho` for :math:`I_0` by Brent's method in
-    :math:`\\ln I_0`, with the rate from a :class:`RateTable` spanning the bracket and the
-    integral over ±3 FWHM with 1201 samples (:func:`ionization_fraction`).
+    The entry is keyed by the inputs and by the source files of :mod:`hcfplan.constants`,
+    :mod:`hcfplan.ionization.rates` and this module (:func:`hcfplan.numerics.cache.cached_arrays`),
+    so a change of the formulas makes a new entry. A damaged or unsound file
+    (:func:`rate_table_is_sound`) is computed again.
+
+    References
+    ----------
+    none: caching wrapper (the rate models carry their own references).
     """
-    from scipy.optimize import brentq  # lazy: scipy.optimize adds ~0.4 s to CLI start-up
+    def compute() -> dict[str, np.ndarray]:
+        table = tabulate_rate(model, wavelength, ip, l, m, charge, intensity_min, intensity_max)
+        return {"log_intensity": table.log_intensity, "log_rate": table.log_rate}
 
-    if not 0.0 < target_fraction < 1.0:
-        raise ConfigError(f"target_fraction = {target_fraction}: must be in (0, 1)")
-    _check_positive("duration_fwhm", duration_fwhm, "s")
-    profile = _PULSE_SHAPES.get(shape)
-    if profile is None:
-        raise ConfigError(
-            f"pulse shape = {shape!r}: unknown; valid shapes are {sorted(_PULSE_SHAPES)}"
-        )
-    lo, hi = intensity_bounds
-    table = _cached_table(model, wavelength, ip, l, m, charge, lo, hi)
-    x = np.linspace(-_PULSE_HALF_WINDOW, _PULSE_HALF_WINDOW, _PULSE_SAMPLES)
-    envelope = profile(x)
-    dt = (x[1] - x[0]) * duration_fwhm
-
-    def excess(log_peak: float) -> float:
-        fraction = ionization_fraction(math.exp(log_peak) * envelope, dt, table)[-1]
-        return math.log(max(fraction, 1e-300)) - math.log(target_fraction)
-
-    f_lo, f_hi = excess(math.log(lo)), excess(math.log(hi))
-    if f_lo > 0 or f_hi < 0:
-        raise ConfigError(
-            f"target_fraction = {target_fraction}: not reached between {lo:.3e} and {hi:.3e} "
-            f"W/m^2 (fractions there: {math.exp(f_lo) * target_fraction:.3e}, "
-            f"{math.exp(f_hi) * target_fraction:.3e}); widen intensity_bounds"
-        )
-    return math.exp(brentq(excess, math.log(lo), math.log(hi), xtol=1e-10, rtol=1e-12))
+    inputs = (model, float(wavelength), float(ip), int(l), int(m), int(charge),
+              float(intensity_min), float(intensity_max))
+    sources = (Path(constants.__file__), Path(rates.__file__), Path(__file__))
+    arrays = cached_arrays("rate-table", inputs, sources, compute, rate_table_is_sound)
+    x, y = arrays["log_intensity"], arrays["log_rate"]
+    x.setflags(write=False)
+    y.setflags(write=False)
+    return RateTable(log_intensity=x, log_rate=y, model=model)

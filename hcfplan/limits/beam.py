@@ -1,7 +1,9 @@
 """Limits of a gas-filled fiber setup: self-focusing, ionisation, beam and fluence estimates.
 
 Pure functions in SI. The cell, window and gas-handling checks are in :mod:`hcfplan.limits.cell`;
-:mod:`hcfplan.planning.reports.limits` composes both for a configured setup. Every limit here is
+the ionised fraction of a pulse and the peak intensity for a given fraction in
+:mod:`hcfplan.ionization.fraction`. :mod:`hcfplan.planning.reports.limits` composes them for a
+configured setup. Every limit here is
 an estimate: the model, its validity range and the source are stated in each docstring.
 
 References
@@ -21,18 +23,15 @@ References
 from __future__ import annotations
 
 import math
-from collections.abc import Callable, Sequence
+from collections.abc import Callable
 from typing import Literal
 
 import numpy as np
 
 from hcfplan.errors import ConfigError
+from hcfplan.pulse.shapes import PulseShape
 
 SelfFocusingModel = Literal["fibich2000", "marburger1975"]
-PulseShape = Literal["gaussian", "sech2"]
-#: (weight, rate) pairs: the number fraction of the ionising species in the gas [-] and its
-#: cycle-averaged rate W(I) [1/s] for an intensity array [W/m^2].
-WeightedRates = Sequence[tuple[float, Callable[[np.ndarray], np.ndarray]]]
 
 #: Self-focusing margin P_cr / P_peak asked for by default (common practice, no source).
 DEFAULT_SELF_FOCUSING_MARGIN = 2.0
@@ -41,9 +40,6 @@ DEFAULT_SELF_FOCUSING_MARGIN = 2.0
 DEFAULT_IONIZATION_FRACTION_LIMIT = 1e-4
 #: B-integral treated as the limit in a window (common practice, no source).
 DEFAULT_B_INTEGRAL_LIMIT = 1.0
-#: Samples and half-window (in FWHM) of the pulse envelope used for the ionised fraction.
-_PULSE_SAMPLES = 801
-_PULSE_HALF_WINDOW = 3.0
 
 
 def _critical_power_fibich2000(wavelength: np.ndarray, n0: np.ndarray, n2: np.ndarray):
@@ -101,6 +97,13 @@ def self_focusing_power(
     -----
     Valid for the paraxial, continuous-wave picture; pulses much shorter than the collapse
     time, plasma and dispersion raise the power actually needed.
+
+    References
+    ----------
+    .. [1] G. Fibich, A. L. Gaeta, "Critical power for self-focusing in bulk media and in hollow
+           waveguides," Opt. Lett. 25, 335-337 (2000), doi:10.1364/OL.25.000335.
+    .. [2] J. H. Marburger, "Self-focusing: theory," Prog. Quantum Electron. 4, 35-110 (1975),
+           doi:10.1016/0079-6727(75)90003-8 [DOI and the collapse-distance formula from memory].
     """
     if model not in SELF_FOCUSING_MODELS:
         raise ConfigError(
@@ -147,6 +150,10 @@ def self_focusing_margin(critical_power, peak_power):
     -------
     float or ndarray
         P_cr / P_peak; infinite for zero peak power. [-]
+
+    References
+    ----------
+    none: ratio of two powers.
     """
     _check_positive("peak_power", peak_power, "W", allow_zero=True)
     with np.errstate(divide="ignore"):
@@ -187,7 +194,13 @@ def max_pressure_for_self_focusing(
     -----
     With n2 = n2_ref N/N_ref the condition is N(p) = N_ref P_cr(p_ref)/(margin P_peak) (up to the
     slow variation of n0), so the real-gas density, not p/(k_B T), fixes the answer at high
-    pressure. Validity as :func:`self_focusing_power`.
+    pressure. Critical power of [1] through ``critical_power_at``; validity as
+    :func:`self_focusing_power`.
+
+    References
+    ----------
+    .. [1] G. Fibich, A. L. Gaeta, "Critical power for self-focusing in bulk media and in hollow
+           waveguides," Opt. Lett. 25, 335-337 (2000), doi:10.1364/OL.25.000335.
     """
     _check_positive("peak_power", peak_power, "W")
     _check_margin(margin)
@@ -196,23 +209,16 @@ def max_pressure_for_self_focusing(
         raise ConfigError(f"pressure_range = ({lo}, {hi}) Pa: need 0 < min < max")
     target = margin * peak_power
 
-    def excess(log_p: float) -> float:
+    def excess(log_p: float) -> float:  # ln(P_cr(p) / (margin P_peak)): falls with pressure
         return math.log(critical_power_at(math.exp(log_p)) / target)
 
-    return _falling_crossing(excess, lo, hi, 1e-13)
-
-
-def _falling_crossing(excess: Callable[[float], float], lo: float, hi: float,
-                      tol: float) -> float:
-    """x in [lo, hi] where ``excess(ln x)`` (decreasing) crosses 0, by Brent's method in ln x
-    with tolerance ``tol``; ``inf`` if excess >= 0 still at ``hi``, ``nan`` if < 0 at ``lo``."""
     from scipy.optimize import brentq  # lazy: keeps CLI start-up short
 
     if excess(math.log(hi)) >= 0:
         return math.inf
     if excess(math.log(lo)) < 0:
         return math.nan
-    return math.exp(brentq(excess, math.log(lo), math.log(hi), xtol=tol, rtol=tol))
+    return math.exp(brentq(excess, math.log(lo), math.log(hi), xtol=1e-13, rtol=1e-13))
 
 
 def max_energy_for_self_focusing(
@@ -246,9 +252,15 @@ def max_energy_for_self_focusing(
 
     Notes
     -----
-    Peak power per joule from :func:`hcfplan.pulse.fields.peak_power_from_energy` (0.9394/tau for a
-    Gaussian, 0.8814/tau for sech^2). Chirped input pulses have a lower peak power; the limit
-    then holds for more energy.
+    Critical power as in [1]. Peak power per joule from
+    :func:`hcfplan.pulse.fields.peak_power_from_energy` (0.9394/tau for a Gaussian, 0.8814/tau
+    for sech^2). Chirped input pulses have a lower peak power; the limit then holds for more
+    energy.
+
+    References
+    ----------
+    .. [1] G. Fibich, A. L. Gaeta, "Critical power for self-focusing in bulk media and in hollow
+           waveguides," Opt. Lett. 25, 335-337 (2000), doi:10.1364/OL.25.000335.
     """
     from hcfplan.pulse.fields import peak_power_from_energy
 
@@ -268,7 +280,7 @@ def self_focusing_distance_marburger1975(
     beam_radius: float,
     wavefront_radius: float = math.inf,
 ) -> float:
-    """Distance to the self-focus of a Gaussian beam, Marburger's fit [2].
+    """Distance to the self-focus of a Gaussian beam, Marburger's fit [1].
 
     Parameters
     ----------
@@ -298,6 +310,11 @@ def self_focusing_distance_marburger1975(
     same paper (formula, constants and the lens transformation for a converging beam from
     memory; the form is also the one quoted in reviews of filamentation). An info value:
     pulses, plasma and the finite gas path change it.
+
+    References
+    ----------
+    .. [1] J. H. Marburger, "Self-focusing: theory," Prog. Quantum Electron. 4, 35-110 (1975),
+           doi:10.1016/0079-6727(75)90003-8 [DOI and the collapse-distance formula from memory].
     """
     _check_positive("peak_power", peak_power, "W")
     _check_positive("beam_radius", beam_radius, "m")
@@ -313,105 +330,6 @@ def self_focusing_distance_marburger1975(
 
 
 # ----------------------------------------------------------------------------- ionisation
-def _envelope(shape: str) -> tuple[np.ndarray, float]:
-    """Intensity profile on +-3 FWHM (FWHM = 1) and its sample spacing in FWHM units."""
-    x = np.linspace(-_PULSE_HALF_WINDOW, _PULSE_HALF_WINDOW, _PULSE_SAMPLES)
-    profiles = {
-        "gaussian": lambda u: np.exp(-4.0 * math.log(2.0) * u**2),
-        "sech2": lambda u: 1.0 / np.cosh(2.0 * math.log1p(math.sqrt(2.0)) * u) ** 2,
-    }
-    if shape not in profiles:
-        raise ConfigError(f"pulse shape = {shape!r}: unknown; valid shapes are {sorted(profiles)}")
-    return profiles[shape](x), float(x[1] - x[0])
-
-
-def pulse_ionization_fraction(
-    peak_intensity,
-    duration_fwhm: float,
-    shape: PulseShape,
-    rates: WeightedRates,
-):
-    """Ionised fraction of the gas left behind a pulse of given peak intensity.
-
-    Parameters
-    ----------
-    peak_intensity : float or ndarray
-        Peak (cycle-averaged) intensity. [W/m^2]
-    duration_fwhm : float
-        Intensity FWHM. [s]
-    shape : {"gaussian", "sech2"}
-        Temporal intensity profile.
-    rates : sequence of (weight, rate)
-        For each ionising species its number fraction in the gas [-] (mole fraction of the
-        component times the species fraction of the table record, e.g. 0.2095 for O2 in air)
-        and its rate W(I) [1/s], e.g. an :class:`hcfplan.ionization.tables.RateTable`.
-
-    Returns
-    -------
-    float or ndarray
-        :math:`\\rho = \\sum_i x_i \\rho_i` with
-        :math:`\\rho_i = 1 - \\exp(-\\int W_i(I(t))\\,dt)`, same shape as ``peak_intensity``. [-]
-
-    Notes
-    -----
-    Integrated over +-3 FWHM with 801 samples
-    (:func:`hcfplan.ionization.tables.ionization_fraction`); single ionisation, no
-    recombination, each species depletes independently. The rate model
-    holds below barrier suppression (see :func:`hcfplan.ionization.rates.ppt_rate` [5]).
-    """
-    from hcfplan.ionization.tables import ionization_fraction
-
-    _check_positive("duration_fwhm", duration_fwhm, "s")
-    peak = np.asarray(peak_intensity, dtype=float)
-    _check_positive("peak_intensity", peak, "W/m^2", allow_zero=True)
-    profile, step = _envelope(shape)
-    history = peak[..., None] * profile
-    total = np.zeros(peak.shape)
-    for weight, rate in rates:
-        total = total + weight * ionization_fraction(history, step * duration_fwhm, rate)[..., -1]
-    return float(total) if total.ndim == 0 else total
-
-
-def peak_intensity_for_fraction(
-    fraction_limit: float,
-    duration_fwhm: float,
-    shape: PulseShape,
-    rates: WeightedRates,
-    intensity_range: tuple[float, float] = (1e15, 1e20),
-) -> float:
-    """Peak intensity at which :func:`pulse_ionization_fraction` reaches ``fraction_limit``.
-
-    Parameters
-    ----------
-    fraction_limit : float
-        Ionised fraction treated as the limit, 0 < rho < sum of the weights. [-]
-    duration_fwhm, shape, rates :
-        As in :func:`pulse_ionization_fraction`.
-    intensity_range : (float, float)
-        Search interval (default 1e11 to 1e16 W/cm^2). [W/m^2]
-
-    Returns
-    -------
-    float
-        Peak intensity (Brent's method in ln I, relative tolerance 1e-12); ``inf`` if the
-        fraction stays below the limit over the range, ``nan`` if it exceeds it at the bottom.
-        [W/m^2]
-    """
-    weights = sum(w for w, _ in rates)
-    if not 0 < fraction_limit < weights:
-        raise ConfigError(
-            f"ionization fraction limit = {fraction_limit}: must be in (0, {weights:g})")
-    lo, hi = (float(i) for i in intensity_range)
-    if not 0 < lo < hi:
-        raise ConfigError(f"intensity_range = ({lo}, {hi}) W/m^2: need 0 < min < max")
-
-    def margin_left(log_i: float) -> float:  # ln(limit / fraction): falls with intensity
-        rho = pulse_ionization_fraction(math.exp(log_i), duration_fwhm, shape, rates)
-        return math.log(fraction_limit / max(rho, 1e-300))
-
-    return _falling_crossing(margin_left, lo, hi, 1e-12)
-
-
 def energy_from_peak_intensity(
     peak_intensity,
     intensity_area: float,
@@ -438,6 +356,10 @@ def energy_from_peak_intensity(
     -------
     float or ndarray
         E = I0 A_I / (P_peak per joule) / efficiency. [J]
+
+    References
+    ----------
+    none: conversion through the peak power of :func:`hcfplan.pulse.fields.peak_power_from_energy`.
     """
     from hcfplan.pulse.fields import peak_power_from_energy
 
@@ -452,7 +374,7 @@ def energy_from_peak_intensity(
 
 # ----------------------------------------------------------------------------- Gaussian beams
 def gaussian_beam_radius(beam_waist: float, wavelength: float, distance, n0: float = 1.0):
-    """1/e^2 intensity radius w(z) = w0 sqrt(1 + (z / z_R)^2), z_R = pi n0 w0^2 / lambda [3].
+    """1/e^2 intensity radius w(z) = w0 sqrt(1 + (z / z_R)^2), z_R = pi n0 w0^2 / lambda [1].
 
     Parameters
     ----------
@@ -474,6 +396,11 @@ def gaussian_beam_radius(beam_waist: float, wavelength: float, distance, n0: flo
     -----
     Paraxial TEM00 beam; a fiber output in the EH11 mode is approximated by the Gaussian of
     the matched waist 0.64 a (98 % overlap).
+
+    References
+    ----------
+    .. [1] A. E. Siegman, *Lasers*, University Science Books, 1986, ch. 17 (Gaussian beams:
+           w(z), z_R, R(z)) [chapter from memory].
     """
     _check_positive("beam_waist", beam_waist, "m")
     _check_positive("wavelength", wavelength, "m")
@@ -491,6 +418,11 @@ def gaussian_peak_intensity(peak_power, beam_radius):
         Power. [W]
     beam_radius : float or ndarray
         1/e^2 intensity radius. [m]
+
+    References
+    ----------
+    .. [1] A. E. Siegman, *Lasers*, University Science Books, 1986, ch. 17 (Gaussian beams:
+           w(z), z_R, R(z)) [chapter from memory].
     """
     _check_positive("beam_radius", beam_radius, "m")
     value = 2.0 * np.asarray(peak_power, dtype=float) / (np.pi * np.asarray(beam_radius) ** 2)
@@ -509,6 +441,11 @@ def gaussian_fluence(energy, beam_radius: float, radius=0.0):
     radius : float or ndarray
         Distance from the beam axis (e.g. the core radius for the light that reaches the
         fiber facet around the bore). [m]
+
+    References
+    ----------
+    .. [1] A. E. Siegman, *Lasers*, University Science Books, 1986, ch. 17 (Gaussian beams:
+           w(z), z_R, R(z)) [chapter from memory].
     """
     _check_positive("beam_radius", beam_radius, "m")
     r = np.asarray(radius, dtype=float)
@@ -518,7 +455,7 @@ def gaussian_fluence(energy, beam_radius: float, radius=0.0):
 
 
 def b_integral(peak_intensity, n2: float, thickness: float, wavelength: float):
-    """Peak nonlinear phase B = (2 pi / lambda) n2 I L of a plate at constant intensity [4].
+    """Peak nonlinear phase B = (2 pi / lambda) n2 I L of a plate at constant intensity [1].
 
     Parameters
     ----------
@@ -541,6 +478,11 @@ def b_integral(peak_intensity, n2: float, thickness: float, wavelength: float):
     The beam size is taken constant through the plate (L << z_R). Beyond about 3 rad
     small-scale self-focusing becomes a risk; 1 rad is the usual design limit (common
     practice, no source).
+
+    References
+    ----------
+    .. [1] R. W. Boyd, *Nonlinear Optics*, 3rd ed., Academic Press, 2008, Sec. 7.2 (B-integral
+           B = (2 pi / lambda) int n2 I dz) [section from memory].
     """
     _check_positive("wavelength", wavelength, "m")
     _check_positive("thickness", thickness, "m", allow_zero=True)

@@ -96,6 +96,11 @@ def pressure_rating_status(pressure: float, rated_pressure: float | None) -> Rat
     -------
     str
         ``"within rating"``, ``"exceeds rating"`` or ``"not checked"`` (no rating given).
+
+    References
+    ----------
+    None: a comparison with the maker's rating, no published model. The maker's rating, local
+    pressure-equipment codes and licensed practice decide, not this comparison.
     """
     _positive("pressure", pressure, "Pa", allow_zero=True)
     if rated_pressure is None:
@@ -115,6 +120,10 @@ def window_pressure_difference(fill_pressure, outside_pressure: float = P_1ATM):
     outside_pressure : float
         Absolute pressure on the other side: 1 atm for a window to the lab (default), 0 for a
         window onto a vacuum beamline (then the full fill pressure loads it). [Pa]
+
+    References
+    ----------
+    None: numerical helper (the load is the pressure difference across the plate).
     """
     _positive("fill_pressure", fill_pressure, "Pa", allow_zero=True)
     _positive("outside_pressure", outside_pressure, "Pa", allow_zero=True)
@@ -133,6 +142,15 @@ def simply_supported_stress_coefficient(poisson_ratio: float) -> float:
     -----
     Maximum stress (at the centre) sigma = 3 (3 + nu) q a^2 / (8 t^2), Table 11.2 case 10a of
     [1]; nu = 0 gives the 1.125 of :data:`WINDOW_STRESS_COEFFICIENTS`.
+
+    References
+    ----------
+    .. [1] W. C. Young, R. G. Budynas, *Roark's Formulas for Stress and Strain*, 7th ed.,
+           McGraw-Hill, 2002, Table 11.2, cases 10a (uniform load, simply supported edge) and
+           10b (uniform load, fixed edge) [case numbers from memory].
+    .. [2] S. Timoshenko, S. Woinowsky-Krieger, *Theory of Plates and Shells*, 2nd ed.,
+           McGraw-Hill, 1959, Secs. 15-16 (uniformly loaded circular plates; the same formulas,
+           derived from D nabla^4 w = q).
     """
     if not 0 <= poisson_ratio < 0.5:
         raise ConfigError(f"poisson_ratio = {poisson_ratio}: must be in [0, 0.5)")
@@ -175,6 +193,15 @@ def window_min_thickness(
     t << r and a centre deflection below about t/2 (:func:`window_center_deflection`). Brittle
     materials scatter in strength and weaken with surface damage and thermal shock; the
     safety factor covers only part of that.
+
+    References
+    ----------
+    .. [1] W. C. Young, R. G. Budynas, *Roark's Formulas for Stress and Strain*, 7th ed.,
+           McGraw-Hill, 2002, Table 11.2, cases 10a (uniform load, simply supported edge) and
+           10b (uniform load, fixed edge) [case numbers from memory].
+    .. [2] S. Timoshenko, S. Woinowsky-Krieger, *Theory of Plates and Shells*, 2nd ed.,
+           McGraw-Hill, 1959, Secs. 15-16 (uniformly loaded circular plates; the same formulas,
+           derived from D nabla^4 w = q).
     """
     _positive("pressure_difference", pressure_difference, "Pa", allow_zero=True)
     _positive("clear_aperture", clear_aperture, "m")
@@ -198,7 +225,16 @@ def window_max_pressure_difference(
     """Largest pressure load a window of given thickness carries with the safety factor. [Pa]
 
     The inverse of :func:`window_min_thickness`: dP_max = sigma_f t^2 / (K SF r^2)
-    (parameters as there; ``thickness`` [m]).
+    (parameters as there; ``thickness`` [m]); the same plate formulas of [1], [2].
+
+    References
+    ----------
+    .. [1] W. C. Young, R. G. Budynas, *Roark's Formulas for Stress and Strain*, 7th ed.,
+           McGraw-Hill, 2002, Table 11.2, cases 10a (uniform load, simply supported edge) and
+           10b (uniform load, fixed edge) [case numbers from memory].
+    .. [2] S. Timoshenko, S. Woinowsky-Krieger, *Theory of Plates and Shells*, 2nd ed.,
+           McGraw-Hill, 1959, Secs. 15-16 (uniformly loaded circular plates; the same formulas,
+           derived from D nabla^4 w = q).
     """
     _positive("thickness", thickness, "m")
     _positive("clear_aperture", clear_aperture, "m")
@@ -259,6 +295,15 @@ def window_center_deflection(
     -----
     Small-deflection theory (valid for y below about t/2); a bowed window acts as a weak
     lens, which is why the value is shown.
+
+    References
+    ----------
+    .. [1] W. C. Young, R. G. Budynas, *Roark's Formulas for Stress and Strain*, 7th ed.,
+           McGraw-Hill, 2002, Table 11.2, cases 10a (uniform load, simply supported edge) and
+           10b (uniform load, fixed edge) [case numbers from memory].
+    .. [2] S. Timoshenko, S. Woinowsky-Krieger, *Theory of Plates and Shells*, 2nd ed.,
+           McGraw-Hill, 1959, Secs. 15-16 (uniformly loaded circular plates; the same formulas,
+           derived from D nabla^4 w = q).
     """
     for name, value, unit in (("clear_aperture", clear_aperture, "m"),
                               ("thickness", thickness, "m"),
@@ -287,6 +332,16 @@ def released_gas_volume(cylinder_volume, cylinder_density, room_density):
         real-gas EOS (CoolProp): at 200 bar argon is about 7 % denser than the ideal gas. [1/m^3]
     room_density : float
         Number density of the same gas at room pressure and temperature. [1/m^3]
+
+    Notes
+    -----
+    The whole inventory at room conditions, the starting point of the worst-case release
+    estimate of [1].
+
+    References
+    ----------
+    .. [1] EIGA Doc. 44/09, "Hazards of inert gases and oxygen depletion," European Industrial
+           Gases Association, 2009 [from memory: the worst-case release estimate].
     """
     _positive("cylinder_volume", cylinder_volume, "m^3", allow_zero=True)
     _positive("cylinder_density", cylinder_density, "1/m^3", allow_zero=True)
@@ -334,7 +389,7 @@ def oxygen_fraction_after_release(
     model : {"instant_mixing", "continuous_mixing", "displacement"}
         Release model (:data:`OXYGEN_DEPLETION_MODELS`). ``"instant_mixing"`` (default):
         :math:`x_{O_2} = 0.2095\\,V_{room}/(V_{room}+V_g)`, the gas mixes completely with the
-        room air and the excess volume leaves as mixture; the kind of estimate of [3].
+        room air and the excess volume leaves as mixture; the kind of estimate of [1].
         ``"continuous_mixing"``: :math:`0.2095\\,e^{-V_g/V_{room}}`. ``"displacement"``:
         :math:`0.2095\\,(1 - V_g/V_{room})`, the released gas pushes out unmixed air (the most
         pessimistic of the three).
@@ -353,7 +408,14 @@ def oxygen_fraction_after_release(
     No ventilation, one well-mixed room (or, for ``"displacement"``, none). Gases denser than
     air (Ar, Kr, Xe) pool near the floor and lighter ones (He) collect under the ceiling, so
     the local fraction can be lower than any of these room averages. Compare with
-    :data:`OXYGEN_ACTION_LEVEL`.
+    :data:`OXYGEN_ACTION_LEVEL` [2].
+
+    References
+    ----------
+    .. [1] EIGA Doc. 44/09, "Hazards of inert gases and oxygen depletion," European Industrial
+           Gases Association, 2009 [from memory: the worst-case release estimate].
+    .. [2] US Code of Federal Regulations, 29 CFR 1910.134(b), definition of an oxygen-deficient
+           atmosphere (below 19.5 % oxygen by volume) [from memory].
     """
     _positive("room_volume", room_volume, "m^3")
     _positive("released_volume", released_volume, "m^3", allow_zero=True)
@@ -377,9 +439,16 @@ def max_release_for_oxygen_level(
     room_volume : float
         Free room volume. [m^3]
     oxygen_level : float
-        Oxygen fraction not to go below (default 0.195 [4], from memory). [-]
+        Oxygen fraction not to go below (default 0.195 [2], from memory). [-]
     air_oxygen_fraction : float
         Oxygen fraction of the air. [-]
+
+    References
+    ----------
+    .. [1] EIGA Doc. 44/09, "Hazards of inert gases and oxygen depletion," European Industrial
+           Gases Association, 2009 [from memory: the worst-case release estimate].
+    .. [2] US Code of Federal Regulations, 29 CFR 1910.134(b), definition of an oxygen-deficient
+           atmosphere (below 19.5 % oxygen by volume) [from memory].
     """
     _positive("room_volume", room_volume, "m^3")
     if not 0 < oxygen_level < air_oxygen_fraction:

@@ -1,8 +1,8 @@
-"""Nonlinear crystals for THz generation and detection: tables, optical and THz indices.
+"""Nonlinear crystals for THz generation and detection: optical and THz indices.
 
-Each crystal is one TOML file (data only, a source string beside every number) in the shipped
-folder ``hcfplan/materials/data/crystals`` or in a user folder. :func:`load_crystal` turns it into
-a frozen :class:`CrystalTable` of SI values; the functions below evaluate it.
+The tables (one TOML file per crystal, a source string beside every number) are loaded by
+:mod:`hcfplan.materials.crystal_tables` into a frozen :class:`CrystalTable` of SI values; the
+functions below evaluate it. The table names used most are re-exported here.
 
 Conventions
 -----------
@@ -30,321 +30,43 @@ References
 from __future__ import annotations
 
 import warnings
-from collections.abc import Callable, Iterable, Sequence
-from dataclasses import dataclass
-from importlib import resources
-from pathlib import Path
-from typing import Any, Literal
+from collections.abc import Callable
 
 import numpy as np
 
-from hcfplan.constants import c, eV
+from hcfplan.constants import c
 from hcfplan.errors import ConfigError, ValidityWarning
-from hcfplan.materials.table_files import read_table_toml
+from hcfplan.materials.crystal_tables import (
+    OPTICAL_MODEL_NAMES,
+    THZ_MODEL_NAMES,
+    CrystalTable,
+    LorentzOscillator,
+    OpticalIndexModel,
+    OpticalModelName,
+    ThzDielectricModel,
+    ThzModelName,
+    crystal_names,
+    load_crystal,
+)
 
-OpticalModelName = Literal["sellmeier_pole_um", "sellmeier_pole_um2", "tabulated_um", "constant"]
-ThzModelName = Literal["lorentz", "constant"]
-
-_PACKAGE_DATA = "hcfplan.materials.data.crystals"
-_LOCAL_DATA = Path(__file__).parent / "data" / "crystals"
-
-#: Property keys allowed in ``[properties]`` -> (field name, factor to SI).
-#: ``ev`` and ``cm_per_gw`` are not in :data:`hcfplan.units.SUFFIXES`, so they are converted here.
-_PROPERTY_KEYS: dict[str, tuple[str, float]] = {
-    "r41_pm_per_v": ("r41", 1e-12),
-    "d_eff_pm_per_v": ("d_eff", 1e-12),
-    "band_gap_direct_ev": ("band_gap_direct", eV),
-    "band_gap_indirect_ev": ("band_gap_indirect", eV),
-    "two_photon_absorption_cm_per_gw": ("two_photon_coefficient", 1e-2 / 1e9),  # cm/GW -> m/W
-    "damage_fluence_j_per_cm2": ("damage_fluence", 1e4),  # J/cm^2 -> J/m^2
-}
-
-
-@dataclass(frozen=True)
-class OpticalIndexModel:
-    """Optical refractive-index model of a crystal.
-
-    Sellmeier coefficients are kept as printed (wavelength in micrometres); the evaluating
-    functions convert. ``table_wavelength`` [m] and ``table_index`` hold tabulated data.
-    ``wavelength_min``/``wavelength_max`` [m] bound the validity range.
-    """
-
-    model: OpticalModelName
-    constant: float
-    b: tuple[float, ...]
-    poles: tuple[float, ...]
-    table_wavelength: tuple[float, ...]
-    table_index: tuple[float, ...]
-    wavelength_min: float
-    wavelength_max: float
-    source: str
-
-
-@dataclass(frozen=True)
-class LorentzOscillator:
-    """One lattice oscillator: TO angular frequency ``omega`` [rad/s], dimensionless
-    ``strength`` S, damping ``damping`` Gamma [rad/s]."""
-
-    omega: float
-    strength: float
-    damping: float
-    source: str
-
-
-@dataclass(frozen=True)
-class ThzDielectricModel:
-    """THz dielectric function: ``eps_inf`` plus ``oscillators``, valid up to ``frequency_max``
-    [Hz]."""
-
-    model: ThzModelName
-    eps_inf: float
-    oscillators: tuple[LorentzOscillator, ...]
-    frequency_max: float
-    source: str
-
-
-@dataclass(frozen=True)
-class CrystalTable:
-    """One crystal, all values SI. Optional properties are ``None`` when the table has none.
-
-    Attributes: ``r41`` [m/V], ``d_eff`` [m/V] (optical rectification, P = eps0 d_eff |E|^2),
-    ``band_gap_direct``/``band_gap_indirect`` [J], ``two_photon_coefficient`` [m/W] measured at
-    ``two_photon_wavelength`` [m], ``damage_fluence`` [J/m^2]. ``sources`` maps each property key
-    of the file to its source string; ``notes`` are (key, text) pairs.
-    """
-
-    name: str
-    description: str
-    path: str
-    optical: OpticalIndexModel
-    thz: ThzDielectricModel
-    r41: float | None = None
-    d_eff: float | None = None
-    band_gap_direct: float | None = None
-    band_gap_indirect: float | None = None
-    two_photon_coefficient: float | None = None
-    two_photon_wavelength: float | None = None
-    damage_fluence: float | None = None
-    sources: tuple[tuple[str, str], ...] = ()
-    notes: tuple[tuple[str, str], ...] = ()
-
-    def source(self, key: str) -> str:
-        """Source string of a property key of the file (e.g. ``'r41_pm_per_v'``)."""
-        return dict(self.sources).get(key, "")
-
-
-# ----------------------------------------------------------------------------------------------
-# Loading and validation
-# ----------------------------------------------------------------------------------------------
-
-
-def _shipped_files() -> dict[str, Any]:
-    """Map lower-case crystal name -> readable file of the shipped folder."""
-    try:
-        folder = resources.files(_PACKAGE_DATA)
-        entries = list(folder.iterdir())
-    except (ModuleNotFoundError, FileNotFoundError, NotADirectoryError):
-        entries = list(_LOCAL_DATA.glob("*.toml"))
-    return {e.name[:-5].lower(): e for e in entries if e.name.endswith(".toml")}
-
-
-def _user_files(search_dirs: Iterable[str | Path]) -> dict[str, Path]:
-    found: dict[str, Path] = {}
-    for folder in search_dirs:
-        for path in sorted(Path(folder).glob("*.toml")):
-            found.setdefault(path.stem.lower(), path)
-    return found
-
-
-def crystal_names(search_dirs: Sequence[str | Path] = ()) -> list[str]:
-    """Sorted lower-case names of every crystal table in ``search_dirs`` and the shipped folder."""
-    return sorted(set(_user_files(search_dirs)) | set(_shipped_files()))
-
-
-def load_crystal(name: str, search_dirs: Sequence[str | Path] = ()) -> CrystalTable:
-    """Load and validate the crystal table ``name`` (case-insensitive, the file stem).
-
-    Parameters
-    ----------
-    name : str
-        Crystal name, e.g. ``"GaP"``, ``"znte"``, ``"thin"``.
-    search_dirs : sequence of path
-        User folders searched first (a user file shadows a shipped file of the same name).
-
-    Raises
-    ------
-    ConfigError
-        Unknown crystal (the message lists the valid names) or an invalid table (the message
-        names the file and the key).
-    """
-    key = name.lower()
-    user = _user_files(search_dirs)
-    entry = user.get(key) or _shipped_files().get(key)
-    if entry is None:
-        raise ConfigError(
-            f"crystal = {name!r}: unknown; valid names: {', '.join(crystal_names(search_dirs))}"
-        )
-    data = read_table_toml(entry, entry.name)
-    return _table_from_dict(data, str(entry))
-
-
-def _fail(path: str, key: str, message: str) -> ConfigError:
-    return ConfigError(f"{Path(path).name}: {key} {message}")
-
-
-def _table(value: Any, path: str, where: str) -> dict:
-    if not isinstance(value, dict):
-        raise _fail(path, where, f"= {value!r}: must be a table")
-    return value
-
-
-def _require(section: dict, key: str, path: str, where: str) -> Any:
-    if key not in section:
-        raise _fail(path, f"{where}.{key}", "is missing")
-    return section[key]
-
-
-def _source(section: dict, path: str, where: str, key: str = "source") -> str:
-    value = section.get(key)
-    if not isinstance(value, str) or not value.strip():
-        raise _fail(path, f"{where}.{key}", "is missing: every number needs a source string")
-    return value
-
-
-def _number(section: dict, key: str, path: str, where: str, *, positive: bool = False) -> float:
-    value = _require(section, key, path, where)
-    if isinstance(value, bool) or not isinstance(value, (int, float)) or not _finite(value):
-        raise _fail(path, f"{where}.{key}", f"= {value!r}: must be a finite number")
-    if value < 0 or (positive and value == 0):
-        raise _fail(path, f"{where}.{key}", f"= {value!r}: must be {'>' if positive else '>='} 0")
-    return float(value)
-
-
-def _finite(value: int | float) -> bool:
-    try:
-        return bool(np.isfinite(float(value)))
-    except OverflowError:  # an integer beyond the float range
-        return False
-
-
-def _numbers(section: dict, key: str, path: str, where: str) -> tuple[float, ...]:
-    values = _require(section, key, path, where)
-    if not isinstance(values, list) or not values:
-        raise _fail(path, f"{where}.{key}", f"= {values!r}: must be a non-empty list of numbers")
-    return tuple(_number({key: v}, key, path, where) for v in values)
-
-
-def _range(section: dict, path: str, where: str, lo_key: str, hi_key: str) -> tuple[float, float]:
-    lo = _number(section, lo_key, path, where)
-    hi = _number(section, hi_key, path, where, positive=True)
-    if not lo < hi:
-        raise _fail(path, f"{where}.{lo_key}", f"= {lo} > {where}.{hi_key} = {hi}: need lo < hi")
-    _source(section, path, where, "range_source")
-    return lo, hi
-
-
-def _optical_from_dict(sec: dict, path: str) -> OpticalIndexModel:
-    where = "optical_index"
-    model = _require(sec, "model", path, where)
-    if not isinstance(model, str) or model not in _OPTICAL_MODELS:
-        raise _fail(path, f"{where}.model", f"= {model!r}: valid: {', '.join(_OPTICAL_MODELS)}")
-    source = _source(sec, path, where)
-    lo, hi = _range(sec, path, where, "valid_min_um", "valid_max_um")
-    fields: dict[str, Any] = {"constant": 0.0, "b": (), "poles": (), "table_wavelength": (),
-                              "table_index": ()}
-    if model == "constant":
-        fields["constant"] = _number(sec, "index", path, where, positive=True)
-    elif model == "tabulated_um":
-        wl = _numbers(sec, "wavelength_um", path, where)
-        n = _numbers(sec, "index", path, where)
-        if len(wl) != len(n) or len(wl) < 4:
-            raise _fail(path, f"{where}.index", f"has {len(n)} values for {len(wl)} wavelengths"
-                        ": need equal lengths, at least 4")
-        if np.any(np.diff(wl) <= 0):
-            raise _fail(path, f"{where}.wavelength_um", "is not strictly increasing")
-        fields["table_wavelength"] = tuple(w * 1e-6 for w in wl)  # um -> m
-        fields["table_index"] = n
-    else:
-        pole_key = "pole_um" if model == "sellmeier_pole_um" else "pole_um2"
-        fields["constant"] = _number(sec, "constant", path, where)
-        fields["b"] = _numbers(sec, "b", path, where)
-        fields["poles"] = _numbers(sec, pole_key, path, where)
-        if len(fields["b"]) != len(fields["poles"]):
-            raise _fail(path, f"{where}.{pole_key}", "must have as many entries as b")
-    return OpticalIndexModel(model=model, wavelength_min=lo * 1e-6, wavelength_max=hi * 1e-6,
-                             source=source, **fields)
-
-
-def _oscillator_from_dict(sec: dict, path: str, where: str) -> LorentzOscillator:
-    return LorentzOscillator(
-        omega=2 * np.pi * 1e12 * _number(sec, "frequency_thz", path, where, positive=True),
-        strength=_number(sec, "strength", path, where),
-        damping=2 * np.pi * 1e12 * _number(sec, "damping_thz", path, where),
-        source=_source(sec, path, where),
-    )
-
-
-def _thz_from_dict(sec: dict, path: str) -> ThzDielectricModel:
-    where = "thz_permittivity"
-    model = _require(sec, "model", path, where)
-    if not isinstance(model, str) or model not in _THZ_MODELS:
-        raise _fail(path, f"{where}.model", f"= {model!r}: valid: {', '.join(_THZ_MODELS)}")
-    source = _source(sec, path, where)
-    fmax = _number(sec, "valid_max_thz", path, where, positive=True) * 1e12
-    _source(sec, path, where, "range_source")
-    if model == "constant":
-        eps_inf = _number(sec, "index", path, where, positive=True) ** 2
-        oscillators: tuple[LorentzOscillator, ...] = ()
-    else:
-        eps_inf = _number(sec, "eps_inf", path, where, positive=True)
-        raw = sec.get("oscillators", [])
-        if not isinstance(raw, list):
-            raise _fail(path, f"{where}.oscillators", "must be an array of [[...]] tables")
-        oscillators = tuple(
-            _oscillator_from_dict(_table(o, path, f"{where}.oscillators[{i}]"), path,
-                                  f"{where}.oscillators[{i}]")
-            for i, o in enumerate(raw)
-        )
-    return ThzDielectricModel(model, eps_inf, oscillators, fmax, source)
-
-
-def _properties_from_dict(sec: dict, path: str) -> tuple[dict[str, Any], tuple]:
-    values: dict[str, Any] = {}
-    sources = []
-    for key, entry in sec.items():
-        where = f"properties.{key}"
-        if key not in _PROPERTY_KEYS:
-            raise _fail(path, where, f"is not a known property; valid: {', '.join(_PROPERTY_KEYS)}")
-        if not isinstance(entry, dict):
-            raise _fail(path, where, "must be a table {value = ..., source = \"...\"}")
-        field, factor = _PROPERTY_KEYS[key]
-        values[field] = _number(entry, "value", path, where) * factor
-        sources.append((key, _source(entry, path, where)))
-        if key.startswith("two_photon"):
-            values["two_photon_wavelength"] = (
-                _number(entry, "wavelength_nm", path, where, positive=True) * 1e-9
-            )
-    return values, tuple(sources)
-
-
-def _table_from_dict(data: dict, path: str) -> CrystalTable:
-    for section in ("optical_index", "thz_permittivity"):
-        if not isinstance(data.get(section), dict):
-            raise _fail(path, f"[{section}]", "is missing")
-    props, sources = _properties_from_dict(
-        _table(data.get("properties", {}), path, "[properties]"), path)
-    notes = tuple((str(k), str(v)) for k, v in
-                  _table(data.get("notes", {}), path, "[notes]").items())
-    return CrystalTable(
-        name=str(_require(data, "name", path, "(top level)")),
-        description=str(data.get("description", "")),
-        path=path,
-        optical=_optical_from_dict(data["optical_index"], path),
-        thz=_thz_from_dict(data["thz_permittivity"], path),
-        sources=sources,
-        notes=notes,
-        **props,
-    )
+__all__ = [
+    "OPTICAL_MODEL_NAMES",
+    "THZ_MODEL_NAMES",
+    "CrystalTable",
+    "LorentzOscillator",
+    "OpticalIndexModel",
+    "OpticalModelName",
+    "ThzDielectricModel",
+    "ThzModelName",
+    "coherence_length",
+    "crystal_names",
+    "load_crystal",
+    "optical_group_index",
+    "optical_index",
+    "thz_absorption",
+    "thz_index",
+    "thz_permittivity",
+]
 
 
 # ----------------------------------------------------------------------------------------------
@@ -383,7 +105,8 @@ def _constant_index(model: OpticalIndexModel, wavelength: np.ndarray):
     return np.full_like(wavelength, model.constant), np.zeros_like(wavelength)
 
 
-_OPTICAL_MODELS: dict[str, Callable] = {
+#: model name -> evaluator(model, wavelength [m]) -> (n, dn/dlambda [1/m])
+OPTICAL_MODELS: dict[str, Callable] = {
     "sellmeier_pole_um": _sellmeier_pole_um,
     "sellmeier_pole_um2": _sellmeier_pole_um2,
     "tabulated_um": _tabulated,
@@ -406,7 +129,7 @@ def _optical_n_dn(crystal: CrystalTable, omega) -> tuple[np.ndarray, np.ndarray,
             ValidityWarning,
             stacklevel=3,
         )
-    n, dn = _OPTICAL_MODELS[model.model](model, wavelength)
+    n, dn = OPTICAL_MODELS[model.model](model, wavelength)
     return wavelength, n, dn
 
 
@@ -429,6 +152,14 @@ def optical_index(crystal: CrystalTable, omega: np.ndarray | float) -> np.ndarra
     -----
     Sellmeier form n^2 = A + sum_j B_j lambda^2 / (lambda^2 - lambda_j^2) with lambda in um as
     printed by the source of the table; emits :class:`ValidityWarning` outside its range.
+
+    References
+    ----------
+    .. [1] J. Opt. Soc. Am. B 36(11), 3039 (2019): GaP Sellmeier and THz oscillator model.
+    .. [2] D. T. F. Marple, "Refractive index of ZnSe, ZnTe, and CdTe," J. Appl. Phys. 35, 539
+           (1964).
+
+    Any other table: the ``source`` string of its ``[optical_index]`` block.
     """
     return _optical_n_dn(crystal, omega)[1]
 
@@ -447,6 +178,19 @@ def optical_group_index(crystal: CrystalTable, omega: np.ndarray | float) -> np.
     -------
     ndarray
         Group index c / v_g. [-]
+
+    Notes
+    -----
+    n and dn/dlambda from the table's optical model (see :func:`optical_index`); the group-index
+    relation itself is common practice, no source.
+
+    References
+    ----------
+    .. [1] J. Opt. Soc. Am. B 36(11), 3039 (2019): GaP Sellmeier and THz oscillator model.
+    .. [2] D. T. F. Marple, "Refractive index of ZnSe, ZnTe, and CdTe," J. Appl. Phys. 35, 539
+           (1964).
+
+    Any other table: the ``source`` string of its ``[optical_index]`` block.
     """
     wavelength, n, dn = _optical_n_dn(crystal, omega)
     return n - wavelength * dn
@@ -469,7 +213,8 @@ def _constant_eps(model: ThzDielectricModel, Omega: np.ndarray) -> np.ndarray:
     return np.full(Omega.shape, model.eps_inf, dtype=complex)
 
 
-_THZ_MODELS: dict[str, Callable] = {"lorentz": _lorentz, "constant": _constant_eps}
+#: model name -> evaluator(model, Omega [rad/s]) -> complex relative permittivity
+THZ_MODELS: dict[str, Callable] = {"lorentz": _lorentz, "constant": _constant_eps}
 
 
 def thz_permittivity(crystal: CrystalTable, Omega: np.ndarray | float) -> np.ndarray:
@@ -491,9 +236,20 @@ def thz_permittivity(crystal: CrystalTable, Omega: np.ndarray | float) -> np.nda
     -----
     eps = eps_inf + sum_j S_j Omega_j^2 / (Omega_j^2 - Omega^2 - i Gamma_j Omega) (module
     docstring); valid up to ``crystal.thz.frequency_max``.
+
+    References
+    ----------
+    .. [1] J. Opt. Soc. Am. B 36(11), 3039 (2019): GaP Sellmeier and THz oscillator model.
+    .. [3] H. H. Li, J. Phys. Chem. Ref. Data 13, 103 (1984) (ZnTe lattice pole).
+    .. [4] G. Gallot, J. Zhang, R. W. McGowan, T.-I. Jeon, D. Grischkowsky, "Measurements of the
+           THz absorption and dispersion of ZnTe and their relevance to the electro-optic
+           detection of THz radiation," Appl. Phys. Lett. 74, 3450 (1999),
+           doi:10.1063/1.124124 [DOI from memory].
+
+    Any other table: the ``source`` strings of its ``[thz_permittivity]`` block and oscillators.
     """
     Omega = np.asarray(Omega, dtype=float)
-    return _THZ_MODELS[crystal.thz.model](crystal.thz, Omega)
+    return THZ_MODELS[crystal.thz.model](crystal.thz, Omega)
 
 
 def thz_index(crystal: CrystalTable, Omega: np.ndarray | float) -> np.ndarray:
@@ -510,6 +266,13 @@ def thz_index(crystal: CrystalTable, Omega: np.ndarray | float) -> np.ndarray:
     -------
     ndarray of complex
         Complex refractive index; k = (n + i kappa) Omega / c. [-]
+
+    References
+    ----------
+    The permittivity model of :func:`thz_permittivity` ([1], [3], [4] of the module docstring:
+    J. Opt. Soc. Am. B 36(11), 3039 (2019); H. H. Li, J. Phys. Chem. Ref. Data 13, 103 (1984);
+    G. Gallot et al., Appl. Phys. Lett. 74, 3450 (1999)). n + i kappa = sqrt(eps) is common
+    practice, no source.
     """
     return np.sqrt(thz_permittivity(crystal, Omega))
 
@@ -528,6 +291,13 @@ def thz_absorption(crystal: CrystalTable, Omega: np.ndarray | float) -> np.ndarr
     -------
     ndarray
         Power absorption coefficient. [1/m]
+
+    References
+    ----------
+    The permittivity model of :func:`thz_permittivity` ([1], [3], [4] of the module docstring:
+    J. Opt. Soc. Am. B 36(11), 3039 (2019); H. H. Li, J. Phys. Chem. Ref. Data 13, 103 (1984);
+    G. Gallot et al., Appl. Phys. Lett. 74, 3450 (1999)). alpha = 2 kappa Omega / c is common
+    practice, no source.
     """
     Omega = np.asarray(Omega, dtype=float)
     return 2.0 * thz_index(crystal, Omega).imag * Omega / c
@@ -555,8 +325,12 @@ def coherence_length(
     Notes
     -----
     l_c = pi / |Delta k| with Delta k = Omega (n_g - n_THz) / c, i.e. lambda_THz / (2 |Delta n|);
-    see N. C. J. van der Valk, P. C. M. Planken, A. N. Buijserd, H. J. Bakker, J. Opt. Soc. Am. B
-    22, 1714 (2005). n_THz is the real part of :func:`thz_index`.
+    see [5]. n_THz is the real part of :func:`thz_index`.
+
+    References
+    ----------
+    .. [5] N. C. J. van der Valk, P. C. M. Planken, A. N. Buijserd, H. J. Bakker, J. Opt. Soc.
+           Am. B 22, 1714 (2005).
     """
     n_g = optical_group_index(crystal, omega_pump)
     Omega = np.asarray(Omega, dtype=float)

@@ -1,27 +1,18 @@
-"""Gas data tables: the frozen records, the TOML loader and its validation.
+"""Gas data tables: the frozen records, the dispersion forms, the TOML loader and search path.
 
 One TOML file per gas lives in the top-level ``gases/`` folder (shipped as the package
 ``hcfplan._gases``). Users may put their own tables in further directories; those are searched
-first. Every block of a table carries a ``source`` string, and every key with a unit carries the
-unit as a suffix (``potential_ev``, ``reference_pressure_pa``); values are converted to SI exactly
-once, here. Dispersion coefficients are kept as printed (micrometre units) and the wavelength is
+first. The layout of a file and the checks of each key are in
+:mod:`hcfplan.materials.gas_table_schema`; this module builds the records from the checked SI
+values. Dispersion coefficients are kept as printed (micrometre units) and the wavelength is
 converted when a fit is evaluated, see :func:`refractive_index_from_fit`.
 
-Table layout (blocks, ``[[...]]`` = array of records)::
-
-    schema_version = 1
-    [gas]          name, symbol, molar_mass_g_per_mol, source, notes?
-    [[dispersion]] key, default?, form, <form coefficients>, reference_temperature_k,
-                   reference_pressure_pa | _bar, valid_wavelength_um = [lo, hi], source
-    [kerr]         n2_m2_per_w, wavelength_nm, pulse_duration_fs?, reference_temperature_k,
-                   reference_pressure_pa | _bar, kind, source, notes?
-    [ionization]   species, mole_fraction, potential_ev, l, m, charge, source
-    [[raman]]      molecule, mole_fraction, rotational_constant_per_cm,
-                   centrifugal_constant_per_cm, polarizability_anisotropy_angstrom3 | _m3,
-                   spin_weight_even, spin_weight_odd, dephasing_time_ps,
-                   dephasing_reference_pressure_pa, source        (molecular gases only)
-    [eos]          coolprop_name, source, notes?
-    [notes]        text                                              (optional)
+References
+----------
+.. [1] A. Borzsonyi, Z. Heiner, M. P. Kalashnikov, A. P. Kovacs, K. Osvay, Appl. Opt. 47,
+       4856-4863 (2008), doi:10.1364/AO.47.004856 (form ``n2_minus_1_sellmeier``).
+.. [2] P. E. Ciddor, Appl. Opt. 35, 1566-1573 (1996), doi:10.1364/AO.35.001566, Eq. (1)
+       (form ``n_minus_1_inverse``).
 """
 
 from __future__ import annotations
@@ -37,26 +28,27 @@ from typing import Any
 
 import numpy as np
 
-from hcfplan.constants import eV
 from hcfplan.errors import ConfigError
+from hcfplan.materials.gas_table_schema import (
+    DISPERSION_FIELDS,
+    EOS_FIELDS,
+    GAS_FIELDS,
+    IONIZATION_FIELDS,
+    KERR_FIELDS,
+    NOTES_FIELDS,
+    RAMAN_FIELDS,
+    check_block,
+    check_top_level,
+    dispersion_coefficient_fields,
+    required_block,
+)
 from hcfplan.materials.table_files import read_table_toml
-from hcfplan.units import SUFFIXES
 
 #: Environment variable with extra table directories (os.pathsep-separated); read only by
 #: :func:`gas_search_dirs` when the caller passes an environment mapping.
 GAS_PATH_VARIABLE = "HCFPLAN_GAS_PATH"
 
 _SHIPPED_PACKAGE = "hcfplan._gases"
-
-#: Unit suffixes used by the gas tables that the shared table in units.py does not (yet) have.
-_EXTRA_FACTORS = {
-    "ev": eV,
-    "g_per_mol": 1e-3,
-    "per_cm": 100.0,
-    "angstrom3": 1e-30,
-    "m2_per_w": 1.0,
-}
-
 
 @dataclass(frozen=True)
 class DispersionFit:
@@ -151,12 +143,17 @@ class GasTable:
     symbol: str = ""
     dispersion_fits: tuple[DispersionFit, ...] = ()
 
+    @property
+    def label(self) -> str:
+        """Short name for messages: the symbol, or the name if the table has no symbol."""
+        return self.symbol or self.name
+
 
 # --- dispersion forms ---------------------------------------------------------------------------
 
 
 def _n_sellmeier(coefficients: tuple, wavelength: np.ndarray) -> np.ndarray:
-    """n from n^2 - 1 = sum B_i lambda^2 / (lambda^2 - C_i), lambda in um (Borzsonyi 2008 form)."""
+    """n from n^2 - 1 = sum B_i lambda^2 / (lambda^2 - C_i), lambda in um (form of [1])."""
     wavelength_um = np.asarray(wavelength, dtype=float) * 1e6  # the fits take micrometres
     lam2 = wavelength_um**2
     n2_minus_1 = sum(b * lam2 / (lam2 - c_um2) for b, c_um2 in coefficients)
@@ -164,7 +161,7 @@ def _n_sellmeier(coefficients: tuple, wavelength: np.ndarray) -> np.ndarray:
 
 
 def _n_inverse(coefficients: tuple, wavelength: np.ndarray) -> np.ndarray:
-    """n from n - 1 = sum A_i / (B_i - lambda^-2), lambda in um (Peck/Ciddor form)."""
+    """n from n - 1 = sum A_i / (B_i - lambda^-2), lambda in um (form of Eq. (1) of [2])."""
     wavenumber2 = (1.0 / (np.asarray(wavelength, dtype=float) * 1e6)) ** 2  # [um^-2]
     return 1.0 + sum(a / (b - wavenumber2) for a, b in coefficients)
 
@@ -173,12 +170,6 @@ def _n_inverse(coefficients: tuple, wavelength: np.ndarray) -> np.ndarray:
 DISPERSION_FORMS: dict[str, Callable[[tuple, np.ndarray], np.ndarray]] = {
     "n2_minus_1_sellmeier": _n_sellmeier,
     "n_minus_1_inverse": _n_inverse,
-}
-
-#: form name -> the two TOML keys holding its coefficient lists
-_FORM_KEYS = {
-    "n2_minus_1_sellmeier": ("b", "c_um2"),
-    "n_minus_1_inverse": ("a_per_um2", "b_per_um2"),
 }
 
 
@@ -199,204 +190,30 @@ def refractive_index_from_fit(fit: DispersionFit, wavelength: np.ndarray) -> np.
 
     Notes
     -----
-    No range check here; :func:`hcfplan.materials.gases.refractive_index_reference` warns.
+    ``"n2_minus_1_sellmeier"``: :math:`n^2 - 1 = \\sum_i B_i \\lambda^2/(\\lambda^2 - C_i)`, the
+    form of [1]; ``"n_minus_1_inverse"``: :math:`n - 1 = \\sum_i A_i/(B_i - \\lambda^{-2})`, the
+    form of Eq. (1) of [2]; :math:`\\lambda` in micrometres as printed. The coefficients and the
+    reference state come from the record (its ``source`` names the paper). No range check here;
+    :func:`hcfplan.materials.gases.refractive_index_reference` warns.
+
+    References
+    ----------
+    .. [1] A. Borzsonyi, Z. Heiner, M. P. Kalashnikov, A. P. Kovacs, K. Osvay, Appl. Opt. 47,
+           4856-4863 (2008), doi:10.1364/AO.47.004856.
+    .. [2] P. E. Ciddor, Appl. Opt. 35, 1566-1573 (1996), doi:10.1364/AO.35.001566.
     """
     return DISPERSION_FORMS[fit.form](fit.coefficients, wavelength)
 
 
-# --- field checks -------------------------------------------------------------------------------
-
-
-def _is_number(value: Any) -> bool:
-    if not isinstance(value, int | float) or isinstance(value, bool):
-        return False
-    try:
-        return math.isfinite(value)
-    except OverflowError:  # an integer beyond the float range
-        return False
-
-
-def _kind_number(value: Any) -> str:
-    return "" if _is_number(value) else "must be a finite number"
-
-
-def _kind_int(value: Any) -> str:
-    return "" if isinstance(value, int) and not isinstance(value, bool) else "must be an integer"
-
-
-def _kind_str(value: Any) -> str:
-    return "" if isinstance(value, str) and value.strip() else "must be a non-empty string"
-
-
-def _kind_bool(value: Any) -> str:
-    return "" if isinstance(value, bool) else "must be true or false"
-
-
-def _kind_numbers(value: Any) -> str:
-    ok = isinstance(value, list) and value and all(_is_number(v) for v in value)
-    return "" if ok else "must be a non-empty list of numbers"
-
-
-def _kind_range(value: Any) -> str:
-    if not (isinstance(value, list) and len(value) == 2 and all(_is_number(v) for v in value)):
-        return "must be a list [lo, hi] of two numbers"
-    if not 0 < value[0] < value[1]:
-        return "must satisfy 0 < lo < hi"
-    return ""
-
-
-_KINDS: dict[str, Callable[[Any], str]] = {
-    "number": _kind_number,
-    "int": _kind_int,
-    "str": _kind_str,
-    "bool": _kind_bool,
-    "numbers": _kind_numbers,
-    "range": _kind_range,
-}
-
-
-def _values(value: Any) -> list:
-    return value if isinstance(value, list) else [value]
-
-
-_CHECKS: dict[str, Callable[[Any], str]] = {
-    "": lambda v: "",
-    "positive": lambda v: "" if all(x > 0 for x in _values(v)) else "must be > 0",
-    "nonnegative": lambda v: "" if all(x >= 0 for x in _values(v)) else "must be >= 0",
-    "fraction": lambda v: "" if 0 < v <= 1 else "must be in (0, 1]",
-    "charge": lambda v: "" if v >= 1 else "must be >= 1",
-    "kerr_kind": lambda v: (
-        "" if v in ("electronic", "effective") else "must be 'electronic' or 'effective'"
-    ),
-    "form": lambda v: "" if v in DISPERSION_FORMS else f"must be one of {sorted(DISPERSION_FORMS)}",
-}
-
-
-@dataclass(frozen=True)
-class _Field:
-    """One table key: base name, value kind, value check, allowed unit suffixes, required."""
-
-    name: str
-    kind: str
-    check: str = ""
-    units: tuple[str, ...] = ()
-    required: bool = True
-
-
-def _factor(unit: str) -> float:
-    return _EXTRA_FACTORS[unit] if unit in _EXTRA_FACTORS else SUFFIXES[unit][0]
-
-
-def _to_si(value: Any, factor: float) -> Any:
-    if isinstance(value, list):
-        return [v * factor for v in value]
-    return value * factor
-
-
-def _read_field(block: Mapping, field: _Field, where: str, path: str) -> tuple[str, Any]:
-    """Find, check and convert one field; returns (TOML key used, SI value or None)."""
-    keys = [f"{field.name}_{u}" for u in field.units] or [field.name]
-    present = [k for k in keys if k in block]
-    if len(present) > 1:
-        raise ConfigError(f"{path}: {where}: give only one of {', '.join(present)}")
-    if not present:
-        if field.required:
-            hint = "every block needs a source string" if field.name == "source" else "required"
-            alternatives = f" (or {', '.join(keys[1:])})" if len(keys) > 1 else ""
-            raise ConfigError(f"{path}: {where}.{keys[0]}{alternatives}: missing: {hint}")
-        return keys[0], None
-    key = present[0]
-    value = block[key]
-    problem = _KINDS[field.kind](value) or _CHECKS[field.check](value)
-    if problem:
-        raise ConfigError(f"{path}: {where}.{key} = {value!r}: {problem}")
-    if field.units:
-        value = _to_si(value, _factor(key[len(field.name) + 1 :]))
-    return key, value
-
-
-def _check_block(block: Any, fields: Sequence[_Field], where: str, path: str) -> dict[str, Any]:
-    """Validate one TOML table against ``fields``; return {base name: SI value or None}."""
-    if not isinstance(block, Mapping):
-        raise ConfigError(f"{path}: {where}: must be a table")
-    used, values = set(), {}
-    for field in fields:
-        key, values[field.name] = _read_field(block, field, where, path)
-        used.add(key)
-    unknown = sorted(set(block) - used)
-    if unknown:
-        allowed = ", ".join(f.name + (f"_{f.units[0]}" if f.units else "") for f in fields)
-        raise ConfigError(f"{path}: {where}.{unknown[0]}: unknown key (allowed: {allowed})")
-    return values
-
-
-# --- block schemas and record builders ----------------------------------------------------------
-
-_T = _Field("reference_temperature", "number", "positive", ("k",))
-_P = _Field("reference_pressure", "number", "positive", ("pa", "bar"))
-_SOURCE = _Field("source", "str")
-_NOTES = _Field("notes", "str", required=False)
-
-_GAS_FIELDS = (
-    _Field("name", "str"),
-    _Field("symbol", "str"),
-    _Field("molar_mass", "number", "positive", ("g_per_mol",)),
-    _SOURCE,
-    _NOTES,
-)
-_DISPERSION_FIELDS = (
-    _Field("key", "str"),
-    _Field("default", "bool", required=False),
-    _Field("form", "str", "form"),
-    _T,
-    _P,
-    _Field("valid_wavelength", "range", "positive", ("um", "nm")),
-    _SOURCE,
-    _NOTES,
-)
-_KERR_FIELDS = (
-    _Field("n2", "number", "positive", ("m2_per_w",)),
-    _Field("wavelength", "number", "positive", ("nm", "um")),
-    _Field("pulse_duration", "number", "positive", ("fs", "ps"), required=False),
-    _T,
-    _P,
-    _Field("kind", "str", "kerr_kind"),
-    _SOURCE,
-    _NOTES,
-)
-_IONIZATION_FIELDS = (
-    _Field("species", "str"),
-    _Field("mole_fraction", "number", "fraction"),
-    _Field("potential", "number", "positive", ("ev",)),
-    _Field("l", "int", "nonnegative"),
-    _Field("m", "int"),
-    _Field("charge", "int", "charge"),
-    _SOURCE,
-    _NOTES,
-)
-_RAMAN_FIELDS = (
-    _Field("molecule", "str"),
-    _Field("mole_fraction", "number", "fraction"),
-    _Field("rotational_constant", "number", "positive", ("per_cm",)),
-    _Field("centrifugal_constant", "number", "nonnegative", ("per_cm",)),
-    _Field("polarizability_anisotropy", "number", "positive", ("angstrom3", "m3")),
-    _Field("spin_weight_even", "number", "nonnegative"),
-    _Field("spin_weight_odd", "number", "nonnegative"),
-    _Field("dephasing_time", "number", "positive", ("ps", "fs", "s")),
-    _Field("dephasing_reference_pressure", "number", "positive", ("pa", "bar")),
-    _SOURCE,
-)
-_EOS_FIELDS = (_Field("coolprop_name", "str"), _SOURCE, _NOTES)
-_NOTES_FIELDS = (_Field("text", "str"),)
-_TOP_KEYS = ("schema_version", "gas", "dispersion", "kerr", "ionization", "raman", "eos", "notes")
+# --- record builders ------------------------------------------------------------------------
 
 
 def _dispersion_record(block: Any, where: str, path: str) -> tuple[DispersionFit, bool]:
     """Build one DispersionFit; returns (fit, marked default)."""
     form = block.get("form") if isinstance(block, Mapping) else None
-    first, second = _FORM_KEYS.get(form, ("", "")) if isinstance(form, str) else ("", "")
-    coefficient_fields = (_Field(first, "numbers"), _Field(second, "numbers")) if first else ()
-    values = _check_block(block, _DISPERSION_FIELDS + coefficient_fields, where, path)
+    coefficient_fields = dispersion_coefficient_fields(form)
+    values = check_block(block, DISPERSION_FIELDS + coefficient_fields, where, path)
+    first, second = (f.name for f in coefficient_fields)
     if len(values[first]) != len(values[second]):
         raise ConfigError(
             f"{path}: {where}.{first} and {where}.{second}: must have the same length "
@@ -436,7 +253,7 @@ def _dispersion_records(blocks: Any, path: str) -> tuple[DispersionFit, tuple[Di
 
 
 def _kerr_record(block: Any, path: str) -> KerrData:
-    v = _check_block(block, _KERR_FIELDS, "kerr", path)
+    v = check_block(block, KERR_FIELDS, "kerr", path)
     duration = math.nan if v["pulse_duration"] is None else float(v["pulse_duration"])
     return KerrData(
         n2=float(v["n2"]),
@@ -450,7 +267,7 @@ def _kerr_record(block: Any, path: str) -> KerrData:
 
 
 def _ionization_record(block: Any, path: str) -> IonizationData:
-    v = _check_block(block, _IONIZATION_FIELDS, "ionization", path)
+    v = check_block(block, IONIZATION_FIELDS, "ionization", path)
     if abs(v["m"]) > v["l"]:
         raise ConfigError(f"{path}: ionization.m = {v['m']}: must satisfy |m| <= l = {v['l']}")
     return IonizationData(
@@ -465,7 +282,7 @@ def _ionization_record(block: Any, path: str) -> IonizationData:
 
 
 def _raman_record(block: Any, where: str, path: str) -> RotationalRamanSpecies:
-    v = _check_block(block, _RAMAN_FIELDS, where, path)
+    v = check_block(block, RAMAN_FIELDS, where, path)
     weights = (float(v["spin_weight_even"]), float(v["spin_weight_odd"]))
     if sum(weights) == 0:
         raise ConfigError(f"{path}: {where}.spin_weight_even/odd = 0, 0: one must be > 0")
@@ -482,43 +299,24 @@ def _raman_record(block: Any, where: str, path: str) -> RotationalRamanSpecies:
     )
 
 
-def _required_block(data: Mapping, key: str, path: str) -> Any:
-    if key not in data:
-        raise ConfigError(f"{path}: [{key}]: missing block")
-    return data[key]
-
-
-#: The table layout version this loader reads.
-SCHEMA_VERSION = 1
-
-
 def _table_from_data(data: Mapping, path: str) -> GasTable:
     """Validate parsed TOML data and build the GasTable."""
-    unknown = sorted(set(data) - set(_TOP_KEYS))
-    if unknown:
-        shown = unknown[0] if unknown[0].isidentifier() else repr(unknown[0])
-        raise ConfigError(f"{path}: {shown}: unknown block "
-                          f"(allowed: {', '.join(_TOP_KEYS)})")
-    version = data.get("schema_version", SCHEMA_VERSION)
-    if not (isinstance(version, int) and not isinstance(version, bool)
-            and version == SCHEMA_VERSION):
-        raise ConfigError(f"{path}: schema_version = {version!r}: this hcfplan reads "
-                          f"schema_version = {SCHEMA_VERSION}")
-    gas = _check_block(_required_block(data, "gas", path), _GAS_FIELDS, "gas", path)
-    eos = _check_block(_required_block(data, "eos", path), _EOS_FIELDS, "eos", path)
-    default_fit, fits = _dispersion_records(_required_block(data, "dispersion", path), path)
+    check_top_level(data, path)
+    gas = check_block(required_block(data, "gas", path), GAS_FIELDS, "gas", path)
+    eos = check_block(required_block(data, "eos", path), EOS_FIELDS, "eos", path)
+    default_fit, fits = _dispersion_records(required_block(data, "dispersion", path), path)
     raman_blocks = data.get("raman", [])
     if not isinstance(raman_blocks, list):
         raise ConfigError(f"{path}: raman: must be an array of [[raman]] records")
     notes = data.get("notes")
-    text = _check_block(notes, _NOTES_FIELDS, "notes", path)["text"] if notes is not None else ""
+    text = check_block(notes, NOTES_FIELDS, "notes", path)["text"] if notes is not None else ""
     return GasTable(
         name=gas["name"],
         coolprop_name=eos["coolprop_name"],
         molar_mass=float(gas["molar_mass"]),
         dispersion=default_fit,
-        kerr=_kerr_record(_required_block(data, "kerr", path), path),
-        ionization=_ionization_record(_required_block(data, "ionization", path), path),
+        kerr=_kerr_record(required_block(data, "kerr", path), path),
+        ionization=_ionization_record(required_block(data, "ionization", path), path),
         raman=tuple(_raman_record(b, f"raman[{i}]", path) for i, b in enumerate(raman_blocks)),
         path=path,
         notes="\n".join(s.strip() for s in (gas["notes"] or "", text) if s and s.strip()),
@@ -535,6 +333,10 @@ def shipped_gas_dir(package: str = _SHIPPED_PACKAGE) -> Path:
 
     Uses ``importlib.resources`` on ``package`` (present when hcfplan is installed); in a plain
     source checkout on PYTHONPATH it falls back to the ``gases/`` folder next to ``hcfplan/``.
+
+    References
+    ----------
+    None: file helper (no published model).
     """
     try:
         root = Path(str(importlib.resources.files(package)))
@@ -553,6 +355,10 @@ def gas_search_dirs(
     The environment is read only from ``environ`` when it is passed (the CLI passes
     ``os.environ``). The shipped tables are not included; :func:`load_gas_table` always
     searches them last.
+
+    References
+    ----------
+    None: file helper (no published model).
     """
     dirs = [Path(d) for d in extra]
     if environ is not None:
@@ -636,10 +442,19 @@ def load_gas_table(name: str, search_dirs: Sequence[str | Path] = ()) -> GasTabl
     ConfigError
         Unknown gas (the message lists the available ones), a missing directory, or a
         malformed file (the message names the file and the key).
+
+    References
+    ----------
+    None: file reader (no published model); each block of the table names its own source.
     """
     return _load_file(str(_find_table(name, _all_dirs(search_dirs))))
 
 
 def available_gases(search_dirs: Sequence[str | Path] = ()) -> list[str]:
-    """File stems of all tables in ``search_dirs`` and the shipped directory, sorted."""
+    """File stems of all tables in ``search_dirs`` and the shipped directory, sorted.
+
+    References
+    ----------
+    None: file helper (no published model).
+    """
     return _stems(_all_dirs(search_dirs))

@@ -220,6 +220,10 @@ def read_solid_table(path: str | Path) -> dict[str, SolidMaterial]:
     ConfigError
         If the file is not valid TOML or a record lacks a key or source, has min > max or a
         negative value; the message names the file and the key.
+
+    References
+    ----------
+    None: file reader (no published model); every record names its own ``source``.
     """
     path = Path(path)
     data = read_table_toml(path)
@@ -233,7 +237,12 @@ def _default_table() -> dict[str, SolidMaterial]:
 
 
 def material_names() -> list[str]:
-    """Names of the shipped solid materials, sorted."""
+    """Names of the shipped solid materials, sorted.
+
+    References
+    ----------
+    None: file helper (no published model).
+    """
     return sorted(_default_table())
 
 
@@ -244,6 +253,11 @@ def load_material(name: str) -> SolidMaterial:
     ------
     ConfigError
         For an unknown name; the message lists the valid names.
+
+    References
+    ----------
+    None: file reader (no published model); the sources of the shipped records are listed in
+    the module docstring ([1]-[6]) and beside each number in ``data/solids.toml``.
     """
     table = _default_table()
     if name not in table:
@@ -274,6 +288,21 @@ def refractive_index(material: MaterialRef, omega: float | np.ndarray) -> np.nda
     -----
     ValidityWarning
         If a wavelength 2 pi c / omega lies outside the fitted range (the fit is extrapolated).
+
+    Notes
+    -----
+    :math:`n^2 = 1 + a + \\sum_i B_i \\lambda^2/(\\lambda^2 - \\lambda_i^2)`, lambda in micrometres
+    as printed by the source of the record; valid over the record's fitted wavelength range.
+
+    References
+    ----------
+    .. [1] I. H. Malitson, J. Opt. Soc. Am. 55, 1205 (1965), doi:10.1364/JOSA.55.001205
+           (``fused_silica``).
+    .. [2] I. H. Malitson, Appl. Opt. 2, 1103 (1963), doi:10.1364/AO.2.001103 (``caf2``).
+    .. [3] M. J. Dodge, Appl. Opt. 23, 1980 (1984), doi:10.1364/AO.23.001980 [from memory]
+           (``mgf2_ordinary``).
+    .. [4] I. H. Malitson, M. J. Dodge, J. Opt. Soc. Am. 62, 1405 (1972) [from memory]
+           (``sapphire_ordinary``).
     """
     mat = _as_material(material)
     fit = mat.dispersion
@@ -294,12 +323,28 @@ def _wavenumber_derivatives(material: MaterialRef, omega, max_order: int) -> np.
 
 
 def group_index(material: MaterialRef, omega: float | np.ndarray) -> np.ndarray:
-    """Group index n_g = c dk/d omega. [-]  (omega [rad/s])"""
+    """Group index n_g = c dk/d omega. [-]  (omega [rad/s])
+
+    References
+    ----------
+    The material's Sellmeier fit, as in :func:`refractive_index`: I. H. Malitson, J. Opt. Soc.
+    Am. 55, 1205 (1965); I. H. Malitson, Appl. Opt. 2, 1103 (1963); M. J. Dodge, Appl. Opt. 23,
+    1980 (1984) [from memory]; I. H. Malitson, M. J. Dodge, J. Opt. Soc. Am. 62, 1405 (1972)
+    [from memory]. The derivatives are numerical (:mod:`hcfplan.numerics.derivatives`).
+    """
     return c * _wavenumber_derivatives(material, omega, 1)[1]
 
 
 def group_velocity_dispersion(material: MaterialRef, omega: float | np.ndarray) -> np.ndarray:
-    """GVD d^2k/d omega^2 of the bulk material. [s^2/m]  (omega [rad/s]; > 0 is normal)"""
+    """GVD d^2k/d omega^2 of the bulk material. [s^2/m]  (omega [rad/s]; > 0 is normal)
+
+    References
+    ----------
+    The material's Sellmeier fit, as in :func:`refractive_index`: I. H. Malitson, J. Opt. Soc.
+    Am. 55, 1205 (1965); I. H. Malitson, Appl. Opt. 2, 1103 (1963); M. J. Dodge, Appl. Opt. 23,
+    1980 (1984) [from memory]; I. H. Malitson, M. J. Dodge, J. Opt. Soc. Am. 62, 1405 (1972)
+    [from memory]. The derivatives are numerical (:mod:`hcfplan.numerics.derivatives`).
+    """
     return _wavenumber_derivatives(material, omega, 2)[2]
 
 
@@ -316,6 +361,13 @@ def group_delay_dispersion(
         Angular frequency. [rad/s]
     thickness : float
         Path length through the material. [m]
+
+    References
+    ----------
+    The material's Sellmeier fit, as in :func:`refractive_index`: I. H. Malitson, J. Opt. Soc.
+    Am. 55, 1205 (1965); I. H. Malitson, Appl. Opt. 2, 1103 (1963); M. J. Dodge, Appl. Opt. 23,
+    1980 (1984) [from memory]; I. H. Malitson, M. J. Dodge, J. Opt. Soc. Am. 62, 1405 (1972)
+    [from memory]. The derivatives are numerical (:mod:`hcfplan.numerics.derivatives`).
     """
     return group_velocity_dispersion(material, omega) * thickness
 
@@ -323,5 +375,13 @@ def group_delay_dispersion(
 def third_order_dispersion(
     material: MaterialRef, omega: float | np.ndarray, thickness: float
 ) -> np.ndarray:
-    """TOD of a plate of the given thickness, d^3(k L)/d omega^3. [s^3]  (thickness [m])"""
+    """TOD of a plate of the given thickness, d^3(k L)/d omega^3. [s^3]  (thickness [m])
+
+    References
+    ----------
+    The material's Sellmeier fit, as in :func:`refractive_index`: I. H. Malitson, J. Opt. Soc.
+    Am. 55, 1205 (1965); I. H. Malitson, Appl. Opt. 2, 1103 (1963); M. J. Dodge, Appl. Opt. 23,
+    1980 (1984) [from memory]; I. H. Malitson, M. J. Dodge, J. Opt. Soc. Am. 62, 1405 (1972)
+    [from memory]. The derivatives are numerical (:mod:`hcfplan.numerics.derivatives`).
+    """
     return _wavenumber_derivatives(material, omega, 3)[3] * thickness

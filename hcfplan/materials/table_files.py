@@ -18,7 +18,17 @@ except ModuleNotFoundError:  # pragma: no cover - Python 3.10
 
 
 def read_table_toml(path: str | Path, label: str | None = None) -> dict[str, Any]:
-    """Parse the table file ``path``; messages start with ``label`` (default: the path)."""
+    """Parse the table file ``path``; messages start with ``label`` (default: the path).
+
+    Raises
+    ------
+    ConfigError
+        Not valid TOML, not UTF-8, or unreadable; one line naming the file.
+
+    References
+    ----------
+    None: file reader (TOML via :mod:`tomllib`; no published model).
+    """
     path = Path(path)
     name = str(path) if label is None else label
     try:

@@ -119,6 +119,11 @@ def derivative_table(
     ndarray
         Shape ``(max_order + 1,) + shape(omega)``; entry k is d^k func / d omega^k.
         [unit of func / (rad/s)^k]
+
+    References
+    ----------
+    L. N. Trefethen, Approximation Theory and Approximation Practice, SIAM (2013), ch. 8 [chapter
+    from memory].
     """
     _check_order(max_order)
     omega_arr = np.asarray(omega, dtype=float)
@@ -198,6 +203,11 @@ def derivative(
     -------
     float or ndarray
         d^order func / d omega^order, same shape as ``omega``. [unit of func / (rad/s)^order]
+
+    References
+    ----------
+    L. N. Trefethen, Approximation Theory and Approximation Practice, SIAM (2013), ch. 8 [chapter
+    from memory].
     """
     value = derivative_table(func, omega, order, rel_width=rel_width, degree=degree)[order]
     return float(value) if np.ndim(value) == 0 else value

@@ -58,18 +58,42 @@ class ScipyTransforms:
         self.transforms = {"c2c": 0, "r2c": 0, "c2r": 0}
 
     def forward(self) -> np.ndarray:
+        """Unnormalised FFT of ``spectrum_in`` (item 2 of the module docstring).
+
+        References
+        ----------
+        none: numerical helper (scipy.fft)
+        """
         self.transforms["c2c"] += 1
         return sfft.fft(self.spectrum_in, workers=self.workers)
 
     def backward(self, source: np.ndarray, out: np.ndarray) -> None:
+        """Unnormalised inverse FFT of ``source`` into ``out`` (item 3 of the module docstring).
+
+        References
+        ----------
+        none: numerical helper (scipy.fft)
+        """
         self.transforms["c2c"] += 1
         out[...] = sfft.ifft(source, norm="forward", overwrite_x=True, workers=self.workers)
 
     def real_forward(self) -> np.ndarray:
+        """Unnormalised real FFT of ``real_in`` (item 4 of the module docstring).
+
+        References
+        ----------
+        none: numerical helper (scipy.fft)
+        """
         self.transforms["r2c"] += 1
         return sfft.rfft(self.real_in, workers=self.workers)
 
     def real_backward(self, half: np.ndarray) -> np.ndarray:
+        """Unnormalised inverse real FFT of ``half`` (item 4 of the module docstring).
+
+        References
+        ----------
+        none: numerical helper (scipy.fft)
+        """
         self.transforms["c2r"] += 1
         return sfft.irfft(half, n=self.points, norm="forward", overwrite_x=True,
                           workers=self.workers)
@@ -113,11 +137,24 @@ class FftwTransforms:
         return plan
 
     def forward(self) -> np.ndarray:
+        """Unnormalised FFT of ``spectrum_in`` (item 2 of the module docstring).
+
+        References
+        ----------
+        M. Frigo and S. G. Johnson, Proc. IEEE 93, 216 (2005).
+        """
         self.transforms["c2c"] += 1
         self._forward.execute()
         return self.time
 
     def backward(self, source: np.ndarray, out: np.ndarray) -> None:
+        """Unnormalised inverse FFT of ``source`` into ``out`` (item 3 of the module docstring;
+        arrays not aligned for FFTW go through scipy.fft).
+
+        References
+        ----------
+        M. Frigo and S. G. Johnson, Proc. IEEE 93, 216 (2005).
+        """
         self.transforms["c2c"] += 1
         entry = self._backward.get((id(source), id(out)))
         if entry is None or entry[0] is not source or entry[1] is not out:
@@ -129,11 +166,23 @@ class FftwTransforms:
         entry[2].execute()
 
     def real_forward(self) -> np.ndarray:
+        """Unnormalised real FFT of ``real_in`` (item 4 of the module docstring).
+
+        References
+        ----------
+        M. Frigo and S. G. Johnson, Proc. IEEE 93, 216 (2005).
+        """
         self.transforms["r2c"] += 1
         self._real_plans()[0].execute()
         return self.half
 
     def real_backward(self, half: np.ndarray) -> np.ndarray:
+        """Unnormalised inverse real FFT of ``half`` (item 4 of the module docstring).
+
+        References
+        ----------
+        M. Frigo and S. G. Johnson, Proc. IEEE 93, 216 (2005).
+        """
         self.transforms["c2r"] += 1
         self._real_plans()[1].execute()
         return self.real_out
@@ -145,7 +194,12 @@ class FftwTransforms:
         return self._real
 
     def empty(self) -> np.ndarray:
-        """An aligned complex work array of N points (a backward target)."""
+        """An aligned complex work array of N points (a backward target).
+
+        References
+        ----------
+        none: numerical helper
+        """
         return self._pyfftw.zeros_aligned(self.points, complex)
 
 
@@ -159,7 +213,12 @@ FFT_BACKENDS: dict[str, type] = {"fftw": FftwTransforms, "scipy": ScipyTransform
 
 
 def fftw_available() -> bool:
-    """True when pyFFTW can be imported (without importing it)."""
+    """True when pyFFTW can be imported (without importing it).
+
+    References
+    ----------
+    none: numerical helper
+    """
     return importlib.util.find_spec("pyfftw") is not None
 
 
@@ -177,6 +236,10 @@ def import_pyfftw():
     once (the import system's documented way to block a module); the entry is removed
     afterwards, so importing Dask later works as usual. If Dask was already imported, nothing
     is blocked.
+
+    References
+    ----------
+    none: numerical helper
     """
     found = sys.modules.get("pyfftw")
     if found is not None:
@@ -194,7 +257,12 @@ def import_pyfftw():
 
 
 def default_backend() -> str:
-    """``"fftw"`` when pyFFTW is installed, else ``"scipy"``."""
+    """``"fftw"`` when pyFFTW is installed, else ``"scipy"``.
+
+    References
+    ----------
+    none: numerical helper
+    """
     return "fftw" if fftw_available() else "scipy"
 
 
@@ -207,7 +275,12 @@ def shared_transforms(points: int, backend: str | None = None):
     spectra one after the other (the compressor search, the solver's records). Planning, even
     from FFTW wisdom, costs 10-40 ms; a kept back end costs nothing after its first use. The
     caller fills ``spectrum_in``, calls ``forward()`` and uses the result before it calls
-    other code, which may use the same back end."""
+    other code, which may use the same back end.
+
+    References
+    ----------
+    none: numerical helper
+    """
     kept = getattr(_SHARED, "by_points", None)
     if kept is None:
         kept = _SHARED.by_points = {}
@@ -220,6 +293,11 @@ def shared_transforms(points: int, backend: str | None = None):
 
 
 def work_array(transforms, points: int) -> np.ndarray:
-    """A complex work array suited as a ``backward`` target of this back end."""
+    """A complex work array suited as a ``backward`` target of this back end.
+
+    References
+    ----------
+    none: numerical helper
+    """
     maker = getattr(transforms, "empty", None)
     return maker() if maker is not None else np.zeros(points, complex)

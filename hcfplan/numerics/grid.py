@@ -35,6 +35,7 @@ References
 
 from __future__ import annotations
 
+import warnings
 from dataclasses import dataclass
 from functools import cached_property
 
@@ -42,6 +43,7 @@ import numpy as np
 from scipy import fft as sfft
 
 from hcfplan.constants import c
+from hcfplan.errors import ConfigError, ValidityWarning
 
 
 @dataclass(frozen=True)
@@ -56,6 +58,13 @@ class Grid:
         Time step. [s]
     omega0 : float
         Pump (reference) angular frequency. [rad/s]
+
+    Raises
+    ------
+    ConfigError
+        Fewer than 16 points, a non-positive ``dt`` or ``omega0``, or a frequency window that
+        reaches zero frequency. Configs are checked before a grid is made
+        (:mod:`hcfplan.io.crosschecks`), so these name the grid's own parameters.
     """
 
     points: int
@@ -64,13 +73,13 @@ class Grid:
 
     def __post_init__(self) -> None:
         if self.points < 16:
-            raise ValueError(f"grid points = {self.points}: must be >= 16")
+            raise ConfigError(f"grid points = {self.points}: must be >= 16")
         if not self.dt > 0:
-            raise ValueError(f"grid dt = {self.dt} s: must be > 0")
+            raise ConfigError(f"grid dt = {self.dt} s: must be > 0")
         if not self.omega0 > 0:
-            raise ValueError(f"grid omega0 = {self.omega0} rad/s: must be > 0")
+            raise ConfigError(f"grid omega0 = {self.omega0} rad/s: must be > 0")
         if self.omega0 - np.pi / self.dt <= 0:
-            raise ValueError(
+            raise ConfigError(
                 f"grid frequency window reaches zero frequency (omega0 = {self.omega0:.3e}, "
                 f"half window = {np.pi / self.dt:.3e} rad/s): use a larger dt"
             )
@@ -193,8 +202,6 @@ def choose_grid(
     ``2 * MAX_HALF_WINDOW_FRACTION * omega0`` so that the window never reaches zero frequency
     (a ``ValidityWarning`` says when the cap applies); ``dt = pi / half_window``.
     """
-    from hcfplan.errors import ConfigError, ValidityWarning
-
     for name, value, unit in (("omega0", omega0, "rad/s"), ("duration_fwhm", duration_fwhm, "s")):
         if not (np.isfinite(value) and value > 0):
             raise ConfigError(f"{name} = {value} {unit}: must be > 0")
@@ -209,8 +216,6 @@ def choose_grid(
     )
     half_cap = MAX_HALF_WINDOW_FRACTION * omega0
     if half_needed > half_cap:
-        import warnings
-
         warnings.warn(
             f"grid: the expected spectrum (half width {half_needed:.3e} rad/s) does not fit "
             f"below zero frequency; the window is capped at {half_cap:.3e} rad/s",

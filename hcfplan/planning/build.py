@@ -8,6 +8,8 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
+
 from hcfplan.constants import c
 from hcfplan.errors import ConfigError, GasPhaseError
 
@@ -17,8 +19,20 @@ def pump_omega(laser) -> float:
     return 2 * math.pi * c / laser.wavelength
 
 
+#: Longest reason quoted from a physics error in a one-line message. [characters]
+MAX_REASON = 240
+
+
+def _reason(exc: Exception) -> str:
+    """The error's text on one line, shortened (equation-of-state libraries can print long
+    solver dumps)."""
+    text = " ".join(str(exc).split())
+    return text if len(text) <= MAX_REASON else text[:MAX_REASON] + "..."
+
+
 def build_medium(gas_spec):
-    """GasMedium for the configured fill; a refused phase becomes a ConfigError on the key."""
+    """GasMedium for the configured fill; a refused phase becomes a ConfigError naming the
+    pressure and temperature keys (in the config's units)."""
     from hcfplan.materials import gases
 
     fill = gases.GasFill(components=gas_spec.components, pressure=gas_spec.pressure,
@@ -26,7 +40,9 @@ def build_medium(gas_spec):
     try:
         return gases.gas_medium(fill, search_dirs=gas_spec.table_dirs)
     except GasPhaseError as exc:
-        raise ConfigError(f"gas.pressure_bar = {gas_spec.pressure / 1e5:g}: {exc}") from None
+        raise ConfigError(f"gas.pressure_bar = {gas_spec.pressure / 1e5:.10g}, "
+                          f"gas.temperature_k = {gas_spec.temperature:.10g}: {_reason(exc)}"
+                          ) from None
 
 
 def build_waveguide(fiber, medium, omega0: float):
@@ -61,3 +77,47 @@ def coupling(config) -> tuple[float, float | None, float | None]:
     optimum = modes.optimum_beam_waist(fiber.core_radius)
     waist = config.laser.beam_waist or optimum
     return float(modes.gaussian_coupling_efficiency(waist, fiber.core_radius)), waist, optimum
+
+
+#: Linear loss of the fiber at the pump above which no light is taken to reach the exit
+#: (300 dB, a transmission of 1e-30); beyond it the fields of the later stages leave the
+#: floating-point range (common practice, no source). [dB]
+MAX_FIBER_LOSS_DB = 300.0
+#: Config keys that set the linear loss of each fiber kind.
+_LOSS_KEYS = {"capillary": ("core_diameter_um", "mode", "bend_radius_m"),
+              "antiresonant": ("core_diameter_um", "wall_thickness_um"),
+              "taylor": ("loss_db_per_m",)}
+
+
+def check_transmission(config, waveguide, omega0: float) -> float:
+    """Linear power transmission of the fiber at the pump; a ConfigError naming the fiber keys
+    when the loss over the fiber exceeds :data:`MAX_FIBER_LOSS_DB` (no light would arrive).
+
+    Parameters
+    ----------
+    config : PlanConfig
+        The validated config (its ``resolved`` table gives the keys as the user wrote them).
+    waveguide : Waveguide
+        From :func:`build_waveguide`.
+    omega0 : float
+        Pump angular frequency. [rad/s]
+
+    Returns
+    -------
+    float
+        exp(-2 alpha(omega0) L), alpha the field attenuation (grid.py convention 5). [1]
+    """
+    alpha = float(waveguide.attenuation(np.array([omega0]))[0])
+    loss_db_per_m = 20 * math.log10(math.e) * alpha  # power loss of exp(-2 alpha z)
+    loss_db = loss_db_per_m * config.fiber.length
+    if loss_db <= MAX_FIBER_LOSS_DB:  # False for NaN
+        return math.exp(min(-2 * alpha * config.fiber.length, 0.0))
+    fiber = config.resolved["fiber"]
+    given = ", ".join(f"fiber.{key} = {fiber[key]}" for key in _LOSS_KEYS[config.fiber.kind]
+                      if fiber.get(key) is not None)
+    raise ConfigError(
+        f"fiber.length_m = {fiber['length_m']} with {given}: the linear loss at the pump "
+        f"(laser.wavelength_nm = {config.resolved['laser']['wavelength_nm']}) is "
+        f"{loss_db_per_m:.4g} dB/m, {loss_db:.4g} dB over the fiber; above "
+        f"{MAX_FIBER_LOSS_DB:g} dB no light would reach the exit"
+    )

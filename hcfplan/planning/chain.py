@@ -9,7 +9,6 @@ from __future__ import annotations
 
 import dataclasses
 import math
-import warnings as warnings_module
 from collections.abc import Callable
 from dataclasses import dataclass
 from typing import Any
@@ -17,8 +16,15 @@ from typing import Any
 import numpy as np
 
 from hcfplan.constants import P_1ATM, T_ROOM
-from hcfplan.planning.build import build_medium, build_waveguide, coupling, pump_omega
+from hcfplan.planning.build import (
+    build_medium,
+    build_waveguide,
+    check_transmission,
+    coupling,
+    pump_omega,
+)
 from hcfplan.planning.validity import (
+    collect_warnings,
     light_band,
     quiet_validity,
     quiet_validity_of_materials,
@@ -56,14 +62,12 @@ def _broadening_estimate(report: dict) -> float:
 
 
 def _input_field(config, grid, energy: float):
-    from hcfplan.io.csvdata import read_spectrum_csv
     from hcfplan.pulse import fields as pulse
 
     laser = config.laser
-    if laser.spectrum_csv is not None:
-        wavelength, intensity = read_spectrum_csv(laser.spectrum_csv)
-        return pulse.field_from_measured_spectrum(grid, wavelength, intensity, energy,
-                                                  gdd=laser.gdd)
+    if laser.spectrum is not None:  # read while the config was loaded
+        return pulse.field_from_measured_spectrum(grid, laser.spectrum.wavelength,
+                                                  laser.spectrum.values, energy, gdd=laser.gdd)
     return pulse.pulse_field(grid, laser.shape, laser.duration_fwhm, energy, gdd=laser.gdd)
 
 
@@ -75,11 +79,9 @@ def run_chain(config, *, progress: Callable[[float, float, int], None] | None = 
     replaced by one range check against the -40 dB extent of the output spectrum
     (:mod:`hcfplan.planning.validity`). Other warnings raised on the way are kept as lines.
     """
-    with warnings_module.catch_warnings(record=True) as caught:
-        warnings_module.simplefilter("always")
-        with quiet_validity_of_materials():
-            chain = _run_chain(config, progress, workers)
-    extra = _grid_notes(chain, [str(w.message) for w in caught])
+    with collect_warnings() as caught, quiet_validity_of_materials():
+        chain = _run_chain(config, progress, workers)
+    extra = _grid_notes(chain, caught)
     grid, prop = chain.grid, chain.propagation
     band = light_band(grid.frequency, np.abs(prop.field_out_spectrum) ** 2)
     notes = range_notes(config, chain.medium, band, "the output spectrum at -40 dB")
@@ -102,12 +104,14 @@ def _grid_notes(chain: ChainResult, caught: list[str]) -> list[str]:
 def _run_chain(config, progress, workers) -> ChainResult:
     from hcfplan.numerics.grid import choose_grid
     from hcfplan.planning.reports.fiber import fiber_report
+    from hcfplan.propagation.options import SolverOptions
     from hcfplan.propagation.solve import propagate
 
     laser = config.laser
     omega0 = pump_omega(laser)
     medium = build_medium(config.gas) if config.gas is not None else None
     waveguide = build_waveguide(config.fiber, medium, omega0)
+    check_transmission(config, waveguide, omega0)
     efficiency, _, _ = coupling(config)
     energy = laser.energy * efficiency
     report = fiber_report(config)
@@ -115,11 +119,12 @@ def _run_chain(config, progress, workers) -> ChainResult:
                        points=config.grid.points, time_window=config.grid.time_window)
     field0 = _input_field(config, grid, energy)
     peak_in = float(np.max(np.abs(field0) ** 2))
-    result = propagate(field0, grid, waveguide, gas=medium, rtol=config.grid.rtol,
-                       z_samples=config.grid.z_samples,
-                       ionization_model=(config.gas.ionization_model if config.gas else None),
-                       stop_ionization_fraction=config.grid.stop_ionization_fraction,
-                       workers=workers, progress=progress)
+    options = SolverOptions(rtol=config.grid.rtol, z_samples=config.grid.z_samples,
+                            ionization_model=(config.gas.ionization_model if config.gas
+                                              else None),
+                            stop_ionization_fraction=config.grid.stop_ionization_fraction,
+                            workers=workers)
+    result = propagate(field0, grid, waveguide, gas=medium, options=options, progress=progress)
     warnings = list(report["warnings"]) + list(result.warnings)
     compression = thz = pm_map = None
     if result.success:
@@ -142,10 +147,10 @@ def _run_chain(config, progress, workers) -> ChainResult:
 
 def _air_index(omega: np.ndarray) -> np.ndarray:
     """Lab air (Ciddor 1996 standard-air fit) at :data:`AIR_PRESSURE`, :data:`AIR_TEMPERATURE`."""
-    from hcfplan.materials import gases
+    from hcfplan.materials import gas_density, gases
 
     table = gases.load_gas_table("air")
-    density = gases.number_density(table, AIR_PRESSURE, AIR_TEMPERATURE, eos="ideal")
+    density = gas_density.number_density(table, AIR_PRESSURE, AIR_TEMPERATURE, eos="ideal")
     return gases.refractive_index(table, omega, density, fit="ciddor1996", eos="ideal")
 
 
@@ -177,13 +182,12 @@ def fixed_phase(config, grid) -> np.ndarray:
 
 def _mirror_phase(config, grid) -> np.ndarray:
     from hcfplan.compression.elements import mirror_phase, phase_from_gdd_curve
-    from hcfplan.io.csvdata import read_curve_csv
 
     comp = config.compressor
-    if comp.mirror_gdd_csv is not None:
+    if comp.mirror_gdd_curve is not None:  # read while the config was loaded
         from hcfplan.constants import c
 
-        wavelength, gdd_curve = read_curve_csv(comp.mirror_gdd_csv, "gdd_fs2")  # SI [s^2]
+        wavelength, gdd_curve = comp.mirror_gdd_curve.wavelength, comp.mirror_gdd_curve.values
         omega_curve = 2 * math.pi * c / wavelength
         order = np.argsort(omega_curve)
         gdd = np.interp(grid.omega, omega_curve[order], gdd_curve[order])
@@ -204,7 +208,7 @@ def compress_output(config, grid, spectrum: np.ndarray, input_peak_power: float)
     if comp.wedge_material is not None and comp.wedge_max_insertion > 0:
         n = _material_index(comp.wedge_material, grid.omega)
         trim = TrimSpec.from_index(grid, n, 0.0, comp.wedge_max_insertion)
-    has_mirrors = comp.mirror_gdd is not None or comp.mirror_gdd_csv is not None
+    has_mirrors = comp.mirror_gdd is not None or comp.mirror_gdd_curve is not None
     return optimize_bounces(grid, spectrum, fixed_phase(config, grid), _mirror_phase(config, grid),
                             max_bounces=comp.max_bounces if has_mirrors else 0,
                             in_pairs=comp.bounces_in_pairs, objective=comp.objective,
@@ -227,35 +231,14 @@ def _compression_warnings(comp) -> list[str]:
 # THz
 
 
-def _detector(config, grid):
-    """EO detector of the config; a given probe FWHM means a transform-limited Gaussian probe."""
-    from hcfplan.materials import crystals
-    from hcfplan.pulse import fields as pulse
-    from hcfplan.thz.detection import EoDetector
-
-    thz = config.thz
-    if thz.detector_crystal is None:
-        return None
-    probe = None
-    if thz.probe_fwhm is not None:
-        probe = grid.to_spectrum(pulse.pulse_field(grid, "gaussian", thz.probe_fwhm, 1e-9))
-    return EoDetector(crystal=crystals.load_crystal(thz.detector_crystal),
-                      thickness=thz.detector_thickness, probe_spectrum=probe)
-
-
 def thz_output(config, grid, compression):
     """THz estimate from the compressed pulse (None when the config has no [thz] section)."""
     if "thz" not in config.present_sections:
         return None
-    from hcfplan.materials import crystals
+    from hcfplan.planning.reports.thz import thz_setup
     from hcfplan.thz.generation import thz_estimate
 
-    thz = config.thz
-    return thz_estimate(grid, compression.spectrum, crystals.load_crystal(thz.crystal),
-                        thz.thickness, detector=_detector(config, grid),
-                        cutoff_db=thz.cutoff_db, cutoff_level=thz.cutoff_quantity,
-                        beam_radius=thz.beam_waist, d_eff=thz.d_eff,
-                        damage_fluence=thz.damage_fluence)
+    return thz_estimate(grid, compression.spectrum, thz_setup(config.thz, grid))
 
 
 #: Pump-wavelength span (relative to the pump) and sample counts of the phase-matching map.

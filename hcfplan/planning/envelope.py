@@ -60,7 +60,7 @@ def thz_cutoff_gaussian_estimate(duration_fwhm, level_db: float = -20.0,
     level_db : float
         Cutoff level relative to the spectral peak (< 0). [dB]
     quantity : {"power", "field"}
-        What ``level_db`` refers to, as in :func:`hcfplan.thz.generation.thz_cutoff`.
+        What ``level_db`` refers to, as in :func:`hcfplan.thz.measures.thz_cutoff`.
 
     Returns
     -------
@@ -82,7 +82,7 @@ def thz_cutoff_gaussian_estimate(duration_fwhm, level_db: float = -20.0,
     """
     from scipy.special import lambertw
 
-    from hcfplan.thz.generation import CUTOFF_LEVELS
+    from hcfplan.thz.measures import CUTOFF_LEVELS
 
     if quantity not in CUTOFF_LEVELS:
         raise ConfigError(f"cutoff quantity = {quantity!r}: valid: {', '.join(CUTOFF_LEVELS)}")
@@ -288,6 +288,7 @@ def envelope_map(config, *, energies=None, pressures=None,
 
 
 def _envelope_map(config, energies, pressures, points) -> EnvelopeResult:
+    from hcfplan.ionization.fraction import peak_intensity_for_fraction
     from hcfplan.limits import beam as limits
 
     laser, lim = config.laser, config.limits
@@ -301,8 +302,8 @@ def _envelope_map(config, energies, pressures, points) -> EnvelopeResult:
         critical, laser.duration_fwhm, laser.shape, margin=lim.self_focusing_margin,
         coupling_efficiency=efficiency)
     rates = weighted_rates(medium, laser.wavelength, config.gas.ionization_model)
-    i_lim = limits.peak_intensity_for_fraction(lim.ionization_fraction_limit, laser.duration_fwhm,
-                                               laser.shape, rates, RATE_TABLE_RANGE)
+    i_lim = peak_intensity_for_fraction(lim.ionization_fraction_limit, laser.duration_fwhm,
+                                        laser.shape, rates, RATE_TABLE_RANGE)
     area = build_waveguide(config.fiber, medium, omega0).peak_intensity_area
     ion_energy = limits.energy_from_peak_intensity(i_lim, area, laser.duration_fwhm, laser.shape,
                                                    efficiency)

@@ -90,7 +90,6 @@ def corner_tasks(config, spec: SpreadSpec, overrides=(), extra_gas_dirs=()) -> l
     from hcfplan.io.tomlio import read_toml
     from hcfplan.planning.scan import config_key, override_text
 
-
     source = Path(config.source)
     raw = read_toml(source)
     tasks = []
@@ -114,9 +113,9 @@ def corner_tasks(config, spec: SpreadSpec, overrides=(), extra_gas_dirs=()) -> l
 
 
 def _value(record: dict, section: str, key: str):
-    holder = record["margins"] if section == "margins" else record["summary"].get(section, {})
     from hcfplan.planning.scan import number_or_none
 
+    holder = record["margins"] if section == "margins" else record["summary"].get(section, {})
     return number_or_none(holder.get(key) if isinstance(holder, dict) else None)
 
 
@@ -140,10 +139,10 @@ def run_spread(tasks: list[dict], spec: SpreadSpec, nominal: dict, *,
     ``nominal`` is the record-like dict ``{"summary": ..., "margins": ...}`` of the nominal run
     (the caller has it already). ``workers`` > 1 runs the corners in local processes.
     """
-    from hcfplan.planning.scan import _run_processes, _run_serial
+    from hcfplan.planning.scan import run_processes, run_serial
 
     records: list[dict] = []
-    runner = _run_processes if workers > 1 and len(tasks) > 1 else _run_serial
+    runner = run_processes if workers > 1 and len(tasks) > 1 else run_serial
     runner(tasks, records.append, workers, None)
     ok = [r for r in records if r["status"] == "ok"]
     failed = tuple(f"{r['values']}: {r['message']}" for r in records if r["status"] != "ok")

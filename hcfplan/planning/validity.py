@@ -5,13 +5,21 @@ per-call ``ValidityWarning`` of the material modules is silenced on those evalua
 (:func:`quiet_validity`) and the ranges are checked here instead, once, against the band that
 carries light: the pump for the first-look reports, the -40 dB extent of the output spectrum
 after a run.
+
+This module is also the one place where warnings become text for the user's warning list
+(:func:`collect_warnings`): hcfplan's own warnings keep their wording, and any other warning
+(a numpy floating-point warning, a scipy warning, ...) says which library raised it and in
+which hcfplan module, e.g. ``numpy (in hcfplan.fibers.antiresonant): invalid value encountered
+in sqrt``.
 """
 
 from __future__ import annotations
 
 import contextlib
+import inspect
 import warnings
 from collections.abc import Iterator
+from types import FrameType
 
 import numpy as np
 
@@ -40,6 +48,82 @@ def quiet_validity_of_materials() -> Iterator[None]:
     with warnings.catch_warnings():
         warnings.filterwarnings("ignore", category=ValidityWarning, module=MATERIAL_MODULES)
         yield
+
+
+#: Text of numpy's floating-point warnings ("invalid value encountered in sqrt"); numpy issues
+#: them as plain RuntimeWarnings attributed to the calling line (common practice, no source).
+NUMPY_FLOATING_POINT_TEXT = " encountered in "
+#: Modules whose frames are skipped when looking for where a warning was raised.
+_WARNING_MACHINERY = ("warnings", __name__)
+
+
+def _module_of(frame: FrameType) -> str:
+    return str(frame.f_globals.get("__name__", "?"))
+
+
+def warning_line(message: Warning | str, category: type[Warning],
+                 frame: FrameType | None) -> str:
+    """One line for the user's warning list.
+
+    Parameters
+    ----------
+    message : Warning or str
+        The warning (or its text).
+    category : type
+        Its category.
+    frame : frame or None
+        The innermost stack frame at the time of the warning (outside the ``warnings``
+        machinery); walked outwards to find the library and the hcfplan module involved.
+
+    Returns
+    -------
+    str
+        hcfplan's own warnings (categories defined in hcfplan, such as ``ValidityWarning``):
+        the text as it is. Any other warning: ``"<library> (in <hcfplan module>): <text>"``,
+        where the library is the package that defines the category or whose code raised it
+        (numpy for its floating-point warnings), and the module is the innermost hcfplan
+        module on the stack (or the raising module when hcfplan is not on it).
+    """
+    text = " ".join(str(message).split())
+    if category.__module__.split(".")[0] == "hcfplan":
+        return text
+    modules = []
+    while frame is not None:
+        name = _module_of(frame)
+        if name not in _WARNING_MACHINERY:
+            modules.append(name)
+        frame = frame.f_back
+    raising = modules[0] if modules else "?"
+    ours = next((m for m in modules if m.split(".")[0] == "hcfplan"), raising)
+    if category.__module__ not in ("builtins", "warnings"):
+        library = category.__module__.split(".")[0]
+    elif issubclass(category, RuntimeWarning) and NUMPY_FLOATING_POINT_TEXT in text:
+        library = "numpy"
+    elif raising.split(".")[0] != "hcfplan":
+        library = raising.split(".")[0]
+    else:
+        library = category.__name__
+    return f"{library} (in {ours}): {text}"
+
+
+@contextlib.contextmanager
+def collect_warnings() -> Iterator[list[str]]:
+    """Record every warning raised inside the block as a line (:func:`warning_line`).
+
+    Yields the list the lines are appended to. Every warning is recorded each time it occurs
+    (filters reset to ``always``; filters set inside the block, such as
+    :func:`quiet_validity_of_materials`, still apply). The previous warning state is restored
+    on exit.
+    """
+    lines: list[str] = []
+
+    def record(message, category, filename, lineno, file=None, line=None) -> None:
+        lines.append(warning_line(message, category, inspect.currentframe()))
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("always")
+        warnings.showwarning = record
+        yield lines
 
 
 def light_band(frequency: np.ndarray, power: np.ndarray,

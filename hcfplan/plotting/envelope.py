@@ -10,6 +10,8 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
+from hcfplan.errors import ConfigError
+
 if TYPE_CHECKING:
     from matplotlib.axes import Axes
 
@@ -53,9 +55,14 @@ def plot_envelope(ax: Axes, result: EnvelopeResult, *, contours: str = "duration
     Returns
     -------
     matplotlib.axes.Axes
+
+    Raises
+    ------
+    ConfigError
+        An unknown ``contours`` value (the command line checks ``--contours`` first).
     """
     if contours not in ("duration", "cutoff", "both"):
-        raise ValueError(f"contours = {contours!r}: use 'duration', 'cutoff' or 'both'")
+        raise ConfigError(f"contours = {contours!r}: use 'duration', 'cutoff' or 'both'")
     p = np.asarray(result.pressures) * BAR
     e = np.asarray(result.energies) * UJ
     top, bottom = e.max(), e.min()

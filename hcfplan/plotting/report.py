@@ -1,12 +1,15 @@
 """The figures of one ``simulate`` run, each drawn into a fresh figure from a ChainResult.
 
 :data:`FIGURES` maps a file stem to a ``draw(fig, chain)`` function; :func:`applies` says
-whether a figure exists for a run (no compressor or THz figure without those stages).
+whether a figure exists for a run (no compressor or THz figure without those stages);
+:func:`figure_jobs` lists the figures of a run folder for
+:func:`hcfplan.io.results.write_figures`.
 """
 
 from __future__ import annotations
 
 from collections.abc import Callable
+from pathlib import Path
 
 from hcfplan.plotting.propagation import (
     plot_energy_and_ionization,
@@ -162,3 +165,28 @@ def applies(name: str, chain) -> bool:
     """Whether the figure ``name`` can be drawn for ``chain``."""
     stage = _NEEDS.get(name)
     return stage is None or getattr(chain, stage) is not None
+
+
+def figure_jobs(out_dir: Path, chain, spread=None) -> list[tuple[Path, Callable, tuple]]:
+    """The figure jobs ``(path, draw, args)`` of a run folder, the costliest first.
+
+    Parameters
+    ----------
+    out_dir : Path
+        Run folder; every figure is ``out_dir / "<stem>.png"``.
+    chain : ChainResult
+        The run (:func:`hcfplan.planning.chain.run_chain`).
+    spread : SpreadResult, optional
+        Corner runs of ``--spread``; with corners, ``spread.png`` is drawn too.
+
+    Returns
+    -------
+    list of tuple
+        Jobs for :func:`hcfplan.io.results.write_figures`.
+    """
+    out_dir = Path(out_dir)
+    jobs = [(out_dir / f"{name}.png", draw, (chain,))
+            for name, draw in FIGURES.items() if applies(name, chain)]
+    if spread is not None and spread.corners:
+        jobs.insert(2, (out_dir / "spread.png", draw_spread, (chain, spread)))
+    return jobs

@@ -53,7 +53,12 @@ ErrorNormName = Literal["relative_l2", "scaled_rms"]
 def relative_l2_norm(
     delta: np.ndarray, new: np.ndarray, old: np.ndarray, rtol: float, atol: float
 ) -> float:
-    """||delta|| / (rtol max(||old||, ||new||) + atol sqrt(n)) (module docstring). [1]"""
+    """||delta|| / (rtol max(||old||, ||new||) + atol sqrt(n)) (module docstring). [1]
+
+    References
+    ----------
+    none: numerical helper (the norm chosen here, module docstring)
+    """
     big = max(float(np.linalg.norm(new)), float(np.linalg.norm(old)))
     return float(np.linalg.norm(delta) / (rtol * big + atol * np.sqrt(delta.size)))
 
@@ -61,7 +66,13 @@ def relative_l2_norm(
 def scaled_rms_norm(
     delta: np.ndarray, new: np.ndarray, old: np.ndarray, rtol: float, atol: float
 ) -> float:
-    """RMS of delta scaled by atol + rtol * max(|old|, |new|) (module docstring). [1]"""
+    """RMS of delta scaled by atol + rtol * max(|old|, |new|) (module docstring). [1]
+
+    References
+    ----------
+    The usual norm of ODE codes: E. Hairer, S. P. Nørsett and G. Wanner, Solving Ordinary
+    Differential Equations I, 2nd ed., Springer (1993), sec. II.4 [from memory].
+    """
     scale = np.maximum(np.abs(new), np.abs(old))
     scale *= rtol
     scale += atol
@@ -79,7 +90,13 @@ ERROR_NORMS: dict[str, Callable[..., float]] = {
 
 
 def step_factor(err: float, embedded_order: int) -> float:
-    """Factor for the next step from the error norm (inf/nan -> MIN_FACTOR). [1]"""
+    """Factor for the next step from the error norm (inf/nan -> MIN_FACTOR). [1]
+
+    References
+    ----------
+    The elementary controller of E. Hairer, S. P. Nørsett and G. Wanner, Solving Ordinary
+    Differential Equations I, 2nd ed., Springer (1993), sec. II.4 [from memory].
+    """
     if not math.isfinite(err):  # (math: a Python float per step, 10x cheaper than numpy's)
         return MIN_FACTOR
     if err == 0.0:

@@ -38,7 +38,12 @@ def _flat(a):  # pragma: no cover - compiled
 
 @njit(**_SUM_JIT)
 def stage_first(ui, acc, x, d, u, g, nu, s):  # pragma: no cover - compiled
-    """ui = d u;  acc = k1 = d i g nu;  x = ui + s k1.  Returns sum |u|^2."""
+    """ui = d u;  acc = k1 = d i g nu;  x = ui + s k1.  Returns sum |u|^2.
+
+    References
+    ----------
+    A stage of RK4IP, J. Hult, J. Lightwave Technol. 25, 3770 (2007).
+    """
     UI, ACC, X, D, U, NU = _flat(ui), _flat(acc), _flat(x), _flat(d), _flat(u), _flat(nu)
     total = 0.0
     for k in range(u.size):
@@ -57,7 +62,12 @@ def stage_first(ui, acc, x, d, u, g, nu, s):  # pragma: no cover - compiled
 
 @njit(**_JIT)
 def stage_middle(x, acc, ui, g, r, s):  # pragma: no cover - compiled
-    """k = i g r;  acc += 2 k;  x = ui + s k."""
+    """k = i g r;  acc += 2 k;  x = ui + s k.
+
+    References
+    ----------
+    A stage of RK4IP, J. Hult, J. Lightwave Technol. 25, 3770 (2007).
+    """
     X, ACC, UI, R = _flat(x), _flat(acc), _flat(ui), _flat(r)
     for k in range(r.size):
         i, j = 2 * k, 2 * k + 1
@@ -69,7 +79,12 @@ def stage_middle(x, acc, ui, g, r, s):  # pragma: no cover - compiled
 
 @njit(**_JIT)
 def stage_last(x, acc, ui, g, r, s, d):  # pragma: no cover - compiled
-    """k = i g r;  acc += 2 k;  x = d (ui + s k)."""
+    """k = i g r;  acc += 2 k;  x = d (ui + s k).
+
+    References
+    ----------
+    A stage of RK4IP, J. Hult, J. Lightwave Technol. 25, 3770 (2007).
+    """
     X, ACC, UI, R, D = _flat(x), _flat(acc), _flat(ui), _flat(r), _flat(d)
     for k in range(r.size):
         i, j = 2 * k, 2 * k + 1
@@ -83,7 +98,12 @@ def stage_last(x, acc, ui, g, r, s, d):  # pragma: no cover - compiled
 
 @njit(**_SUM_JIT)
 def stage_combine(u4, x, d, ui, acc, g, r, s):  # pragma: no cover - compiled
-    """u4 = x = d (ui + s acc) + s i g r.  Returns sum |u4|^2 (inf/nan if not finite)."""
+    """u4 = x = d (ui + s acc) + s i g r.  Returns sum |u4|^2 (inf/nan if not finite).
+
+    References
+    ----------
+    A stage of RK4IP, J. Hult, J. Lightwave Technol. 25, 3770 (2007).
+    """
     U4, X, D, UI, ACC, R = _flat(u4), _flat(x), _flat(d), _flat(ui), _flat(acc), _flat(r)
     total = 0.0
     for k in range(r.size):
@@ -100,7 +120,13 @@ def stage_combine(u4, x, d, ui, acc, g, r, s):  # pragma: no cover - compiled
 
 @njit(**_SUM_JIT)
 def difference_norm2(g, r4, r5):  # pragma: no cover - compiled
-    """sum |i g (r4 - r5)|^2."""
+    """sum |i g (r4 - r5)|^2.
+
+    References
+    ----------
+    Local-error estimate of ERK4(3)-IP, S. Balac and F. Mahé, Comput. Phys. Commun. 184, 1211
+    (2013).
+    """
     R4, R5 = _flat(r4), _flat(r5)
     total = 0.0
     for k in range(g.size):
@@ -115,7 +141,15 @@ def difference_norm2(g, r4, r5):  # pragma: no cover - compiled
 # gives nan, as control.scaled_rms_norm does
 @njit(**_SUM_JIT, error_model="numpy")
 def difference_scaled_rms(g, r4, r5, u4, u, s, rtol, atol):  # pragma: no cover - compiled
-    """RMS of s i g (r4 - r5) / (atol + rtol max(|u4|, |u|))."""
+    """RMS of s i g (r4 - r5) / (atol + rtol max(|u4|, |u|)).
+
+    References
+    ----------
+    Local-error estimate of ERK4(3)-IP, S. Balac and F. Mahé, Comput. Phys. Commun. 184, 1211
+    (2013).
+    Scaled RMS norm: E. Hairer, S. P. Nørsett and G. Wanner, Solving Ordinary Differential Equations
+    I, 2nd ed., Springer (1993), sec. II.4 [from memory].
+    """
     R4, R5, U4, U = _flat(r4), _flat(r5), _flat(u4), _flat(u)
     total = 0.0
     for k in range(g.size):
@@ -130,7 +164,12 @@ def difference_scaled_rms(g, r4, r5, u4, u, s, rtol, atol):  # pragma: no cover 
 
 @njit(**_JIT)
 def kerr_in_place(a):  # pragma: no cover - compiled
-    """a = a |a|^2."""
+    """a = a |a|^2.
+
+    References
+    ----------
+    none: numerical helper
+    """
     A = _flat(a)
     for k in range(a.size):
         i, j = 2 * k, 2 * k + 1
@@ -141,7 +180,12 @@ def kerr_in_place(a):  # pragma: no cover - compiled
 
 @njit(**_JIT)
 def power_of(a, power):  # pragma: no cover - compiled
-    """power = |a|^2."""
+    """power = |a|^2.
+
+    References
+    ----------
+    none: numerical helper
+    """
     A = _flat(a)
     for k in range(a.size):
         power[k] = A[2 * k] ** 2 + A[2 * k + 1] ** 2
@@ -149,7 +193,12 @@ def power_of(a, power):  # pragma: no cover - compiled
 
 @njit(**_JIT)
 def delayed_in_place(a, power, delayed, instantaneous):  # pragma: no cover - compiled
-    """a = a (f_i |a|^2 + delayed)."""
+    """a = a (f_i |a|^2 + delayed).
+
+    References
+    ----------
+    none: numerical helper
+    """
     A = _flat(a)
     for k in range(a.size):
         v = instantaneous * power[k] + delayed[k]
@@ -203,6 +252,11 @@ def plasma_in_place(a, p, power, delayed, instantaneous, log_i, log_w, starts, s
     table) the kernel took 86 us per call before the rate-0 branch, 43 us with it (both on an
     earlier machine), and 22 -> 14 us with the blocks (most of what is left are the rates of
     the samples above the tables).
+
+    References
+    ----------
+    Plasma terms of M. Geissler et al., Phys. Rev. Lett. 83, 2930 (1999).
+    in the envelope form of M. F. Saleh et al., Phys. Rev. Lett. 107, 203902 (2011) [from memory].
     """
     A, P = _flat(a), _flat(p)
     count, n = densities.size, a.size
@@ -274,7 +328,12 @@ def plasma_in_place(a, p, power, delayed, instantaneous, log_i, log_w, starts, s
 def spectrum_sums(u, rank, ascending, row, far, band, band_wavelength):  # pragma: no cover
     """density = |u|^2 into ``row`` (FFT order, e.g. a float32 row) and into ``ascending`` at
     the positions ``rank`` (ascending frequency). Returns (sum of density, its sum where ``far``
-    is True, its sum where ``band`` is True, sum of band_wavelength * density there)."""
+    is True, its sum where ``band`` is True, sum of band_wavelength * density there).
+
+    References
+    ----------
+    none: numerical helper
+    """
     U = _flat(u)
     total, far_sum, band_sum, band_moment = 0.0, 0.0, 0.0, 0.0
     for i in range(u.size):
@@ -301,6 +360,10 @@ def outermost_width(x, y, level):  # pragma: no cover - compiled
 
     The recorder's bandwidth at every record; at 8192 points the numpy function took 27 us
     with warm caches and 150-180 us inside a run, this pass about 12 us inside a run.
+
+    References
+    ----------
+    none: numerical helper
     """
     n = y.size
     if n < 3:
@@ -338,7 +401,12 @@ def outermost_width(x, y, level):  # pragma: no cover - compiled
 
 @njit(**_JIT)
 def power_sums(a, power, scale, far):  # pragma: no cover - compiled
-    """power = scale |a|^2.  Returns (max of power, nan if any is nan; its sum where ``far``)."""
+    """power = scale |a|^2.  Returns (max of power, nan if any is nan; its sum where ``far``).
+
+    References
+    ----------
+    none: numerical helper
+    """
     A = _flat(a)
     peak, far_sum, seen_nan = -np.inf, 0.0, False
     for i in range(a.size):
@@ -357,7 +425,12 @@ def power_sums(a, power, scale, far):  # pragma: no cover - compiled
 def add_scaled_product(out, factor, extra, weight):  # pragma: no cover - compiled
     """out = factor out - i weight extra (real factor and weight, complex arrays): the raw
     spectrum of the plasma case, where N = i raw (the gain 1 of the steppers' kernels) and
-    N = i factor out + weight extra."""
+    N = i factor out + weight extra.
+
+    References
+    ----------
+    none: numerical helper
+    """
     O, E = _flat(out), _flat(extra)
     for k in range(out.size):
         i, j = 2 * k, 2 * k + 1
@@ -369,7 +442,12 @@ def add_scaled_product(out, factor, extra, weight):  # pragma: no cover - compil
 
 def warm_kernels() -> None:
     """Call every kernel once with 4-point arrays (loads or compiles the machine code; used by
-    :mod:`.warmup` and ``bench/solver.py``). A new kernel is added here."""
+    :mod:`hcfplan.planning.scan.warmup` and ``bench/solver.py``). A new kernel is added here.
+
+    References
+    ----------
+    none: numerical helper
+    """
     a, b, c, d, e, f, g, h = (np.ones(4, complex) for _ in range(8))
     real, zero = np.ones(4), np.zeros(4)
     stage_first(a, b, c, d, e, real, g, 0.1)

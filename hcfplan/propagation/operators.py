@@ -75,6 +75,7 @@ from scipy import fft as sfft
 from hcfplan.constants import c, e, epsilon_0, m_e
 from hcfplan.numerics.derivatives import derivative
 from hcfplan.numerics.grid import Grid
+from hcfplan.propagation.ionizing import IonizingSpecies
 from hcfplan.propagation.raman import raman_response_blowwood1989, rotational_raman_response
 
 #: Part of the frequency window, on each side, covered by the edge absorber.
@@ -98,14 +99,25 @@ class LinearTerms:
 
 
 def edge_absorber(grid: Grid, length: float) -> np.ndarray:
-    """Smooth field attenuation in the outer ``EDGE_FRACTION`` of the frequency window. [1/m]"""
+    """Smooth field attenuation in the outer ``EDGE_FRACTION`` of the frequency window. [1/m]
+
+    References
+    ----------
+    none: numerical helper (absorbing boundary; common practice, no source)
+    """
     x = np.abs(grid.domega) / (np.pi / grid.dt)  # 0 at the pump, 1 at the window edge
     ramp = np.clip((x - (1 - 2 * EDGE_FRACTION)) / (2 * EDGE_FRACTION), 0.0, 1.0)
     return EDGE_ATTENUATION / length * np.sin(0.5 * np.pi * ramp) ** 2
 
 
 def linear_terms(grid: Grid, waveguide, length: float) -> LinearTerms:
-    """Build L(omega) from the waveguide's full beta(omega) and alpha(omega) (module notes)."""
+    """Build L(omega) from the waveguide's full beta(omega) and alpha(omega) (module notes).
+
+    References
+    ----------
+    none: numerical helper (assembles the waveguide's beta and alpha; each fiber model cites its
+    source)
+    """
     with np.errstate(all="ignore"):
         beta = np.asarray(waveguide.propagation_constant(grid.omega), dtype=float)
         alpha = np.asarray(waveguide.attenuation(grid.omega), dtype=float)
@@ -121,7 +133,13 @@ def linear_terms(grid: Grid, waveguide, length: float) -> LinearTerms:
 
 
 def kerr_coefficient_spectrum(grid: Grid, waveguide, valid: np.ndarray) -> np.ndarray:
-    """gamma(omega) including the shock factor (module notes), zero where invalid. [1/(W m)]"""
+    """gamma(omega) including the shock factor (module notes), zero where invalid. [1/(W m)]
+
+    References
+    ----------
+    Frequency-dependent gamma and shock term: B. Kibler, J. M. Dudley and S. Coen, Appl. Phys. B 81,
+    337 (2005) [from memory].
+    """
     gamma = np.asarray(waveguide.nonlinear_coefficient(grid.omega), dtype=float)
     shock = getattr(waveguide, "self_steepening", None)
     if shock:  # TaylorFiber: constant gamma, shock term applied here
@@ -149,6 +167,12 @@ def delayed_response(grid: Grid, waveguide, gas) -> tuple[float, np.ndarray | No
         h(k dt) dt for k = 0..N-1 (dimensionless weights), None without delayed response.
     notes : list of str
         Warnings for the result.
+
+    References
+    ----------
+    Damped oscillator: K. J. Blow and D. Wood, IEEE J. Quantum Electron. 25, 2665 (1989).
+    Rotational response: J. R. Peñano et al., Phys. Rev. E 68, 056502 (2003) [from memory].
+    Y.-H. Chen, S. Varma, A. York and H. M. Milchberg, Opt. Express 15, 11341 (2007) [from memory].
     """
     delay, window = _tapered_half_window(grid)
     notes: list[str] = []
@@ -185,17 +209,14 @@ def _raman_species(gas) -> list:
     return found
 
 
-@dataclass(frozen=True)
-class IonizingSpecies:
-    """One ionising gas component: neutral density [1/m^3], Ip [J] and rate table (1/s)."""
-
-    number_density: float
-    potential: float
-    rate: object  #: RateTable of :mod:`hcfplan.ionization.tables`: intensity [W/m^2] -> 1/s
-
-
 def plasma_refraction_coefficient(omega0: float) -> float:
-    """e^2 / (2 eps0 m_e c omega0): phase rate per electron density. [m^2 rad]"""
+    """e^2 / (2 eps0 m_e c omega0): phase rate per electron density. [m^2 rad]
+
+    References
+    ----------
+    M. Geissler et al., Phys. Rev. Lett. 83, 2930 (1999).
+    M. F. Saleh et al., Phys. Rev. Lett. 107, 203902 (2011) [from memory].
+    """
     return e**2 / (2 * epsilon_0 * m_e * c * omega0)
 
 
@@ -252,7 +273,16 @@ class NonlinearTerms:
             self.tables = _packed_tables(species)
 
     def evaluate(self, out: np.ndarray) -> np.ndarray:
-        """Raw nonlinear spectrum of the spectrum in :attr:`input` into ``out`` (N = i gain out)."""
+        """Raw nonlinear spectrum of the spectrum in :attr:`input` into ``out`` (N = i gain out).
+
+        References
+        ----------
+        Kerr and shock term: B. Kibler, J. M. Dudley and S. Coen, Appl. Phys. B 81, 337 (2005) [from
+        memory].
+        Raman: K. J. Blow and D. Wood, IEEE J. Quantum Electron. 25, 2665 (1989).
+        Plasma: M. Geissler et al., Phys. Rev. Lett. 83, 2930 (1999).
+        M. F. Saleh et al., Phys. Rev. Lett. 107, 203902 (2011) [from memory].
+        """
         self.n_calls += 1
         kn, fft = self.kernels, self.fft
         a = fft.forward()  # = scale * A(t)
@@ -294,6 +324,11 @@ class NonlinearTerms:
     def ionization_of(self, power: np.ndarray) -> tuple[float, float]:
         """Ionisation fraction and electron line density [1/m] left by the power [W] (fused
         kernel; also stored in :attr:`ionization_fraction` and :attr:`electron_line_density`).
+
+        References
+        ----------
+        M. Geissler et al., Phys. Rev. Lett. 83, 2930 (1999).
+        M. F. Saleh et al., Phys. Rev. Lett. 107, 203902 (2011) [from memory].
         """
         end = self.kernels.plasma_in_place(
             self.plasma_spectrum, self.plasma_time, power, self.no_delay, 0.0, *self.tables, 1.0,

@@ -54,12 +54,26 @@ References
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 from hcfplan.constants import c, h, hbar, k_B
+from hcfplan.errors import ConfigError
 
 #: Rotational levels are summed up to E_J / (k_B T) = this value (population < e^-40).
 _ENERGY_CUTOFF = 40.0
+
+
+def _check_positive(name: str, value, unit: str) -> None:
+    """ConfigError naming ``name`` unless ``value`` is a finite number > 0 (values from gas
+    tables and configs)."""
+    try:
+        ok = math.isfinite(value) and value > 0
+    except TypeError:
+        ok = False
+    if not ok:
+        raise ConfigError(f"{name} = {value!r} {unit}: must be finite and > 0")
 
 
 def raman_response_blowwood1989(t: np.ndarray, tau1: float, tau2: float) -> np.ndarray:
@@ -79,15 +93,24 @@ def raman_response_blowwood1989(t: np.ndarray, tau1: float, tau2: float) -> np.n
     ndarray
         h(t) = (tau1^2 + tau2^2)/(tau1 tau2^2) exp(-t/tau2) sin(t/tau1) for t >= 0, else 0. [1/s]
 
+    Raises
+    ------
+    ConfigError
+        When ``tau1`` or ``tau2`` is not a finite number > 0 (the message names it).
+
     Notes
     -----
     The damped-oscillator response of [1] (equation number not checked; also in Agrawal,
     *Nonlinear Fiber Optics*, ch. 2 [from memory]); the prefactor makes
     :math:`\\int_0^\\infty h\\,dt = 1`.
+
+    References
+    ----------
+    K. J. Blow and D. Wood, IEEE J. Quantum Electron. 25, 2665 (1989).
     """
+    _check_positive("raman_tau1", tau1, "s")
+    _check_positive("raman_tau2", tau2, "s")
     t = np.asarray(t, dtype=float)
-    if not (tau1 > 0 and tau2 > 0):
-        raise ValueError(f"raman tau1 = {tau1} s, tau2 = {tau2} s: must be > 0")
     tp = np.maximum(t, 0.0)
     value = (tau1**2 + tau2**2) / (tau1 * tau2**2) * np.exp(-tp / tau2) * np.sin(tp / tau1)
     return np.where(t >= 0, value, 0.0)
@@ -110,9 +133,18 @@ def rotational_lines(species, temperature: float) -> tuple[np.ndarray, np.ndarra
         Line angular frequencies :math:`\\omega_J = (E_{J+2}-E_J)/\\hbar`. [rad/s]
     amplitude : ndarray
         :math:`(2/\\hbar)(p_J - p_{J+2}) S_J` (module docstring). [1/(J s)]
+
+    Raises
+    ------
+    ConfigError
+        When ``temperature`` is not a finite number > 0.
+
+    References
+    ----------
+    J. R. Peñano et al., Phys. Rev. E 68, 056502 (2003) [from memory].
+    Y.-H. Chen, S. Varma, A. York and H. M. Milchberg, Opt. Express 15, 11341 (2007) [from memory].
     """
-    if not temperature > 0:
-        raise ValueError(f"temperature = {temperature} K: must be > 0")
+    _check_positive("temperature", temperature, "K")
     b, d = species.rotational_constant, species.centrifugal_constant
     kt = k_B * temperature
     j_max = int(np.sqrt(_ENERGY_CUTOFF * kt / (h * c * b))) + 4
@@ -160,6 +192,16 @@ def rotational_raman_response(
     ndarray
         R(t), zero for t < 0; :math:`\\delta n(t) = \\int R(\\tau) I(t-\\tau) d\\tau`.
         [m^2/(W s)]
+
+    Raises
+    ------
+    ConfigError
+        When ``temperature`` is not a finite number > 0.
+
+    References
+    ----------
+    J. R. Peñano et al., Phys. Rev. E 68, 056502 (2003) [from memory].
+    Y.-H. Chen, S. Varma, A. York and H. M. Milchberg, Opt. Express 15, 11341 (2007) [from memory].
     """
     t = np.asarray(t, dtype=float)
     omega, amplitude = rotational_lines(species, temperature)
@@ -184,6 +226,16 @@ def rotational_kerr_n2(species, number_density: float, temperature: float) -> fl
     float
         :math:`\\int_0^\\infty R\\,dt = (4\\pi^2N\\Delta\\alpha^2/c)\\sum_J a_J\\,
         \\omega_J/(\\omega_J^2 + T_2^{-2})`. [m^2/W]
+
+    Raises
+    ------
+    ConfigError
+        When ``temperature`` is not a finite number > 0.
+
+    References
+    ----------
+    J. R. Peñano et al., Phys. Rev. E 68, 056502 (2003) [from memory].
+    Y.-H. Chen, S. Varma, A. York and H. M. Milchberg, Opt. Express 15, 11341 (2007) [from memory].
     """
     omega, amplitude = rotational_lines(species, temperature)
     gamma = _dephasing_rate(species)

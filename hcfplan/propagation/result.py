@@ -151,7 +151,12 @@ class Recorder:
 
         Two compiled passes (:func:`~.kernels.spectrum_sums`, :func:`~.kernels.power_sums`)
         give the spectral density, the power and their sums; the numpy expressions they
-        replace took 0.25 ms per record at 2048 points (20 % of the demo config's run)."""
+        replace took 0.25 ms per record at 2048 points (20 % of the demo config's run).
+
+        References
+        ----------
+        none: numerical helper
+        """
         i, grid = self.count, self.grid
         total, far_sum, band_sum, band_moment = self._kernels.spectrum_sums(
             u, self._rank, self._density_sorted, self.spectra[i], self._far_frequency,
@@ -200,7 +205,12 @@ class Recorder:
         return self.plasma.ionization_of(power)
 
     def edge_warnings(self) -> list[str]:
-        """Warnings: pulse at the window edges, spectrum in a fiber resonance band."""
+        """Warnings: pulse at the window edges, spectrum in a fiber resonance band.
+
+        References
+        ----------
+        none: numerical helper
+        """
         from hcfplan.numerics.grid import MAX_HALF_WINDOW_FRACTION
 
         found = []
@@ -249,7 +259,12 @@ class Recorder:
         )
 
     def arrays(self) -> dict:
-        """The filled rows as result fields."""
+        """The filled rows as result fields.
+
+        References
+        ----------
+        none: numerical helper
+        """
         n = self.count
         v = {k: a[:n].copy() for k, a in self.values.items()}
         return {

@@ -122,6 +122,12 @@ class RK4IP(_InteractionPicture):
     """Fixed-step RK4 in the interaction picture (Hult [1]); four N evaluations per step."""
 
     def step(self, state: StepState, h: float) -> tuple[bool, str]:
+        """One RK4IP step of length ``h`` [m] from ``state`` (item 5 of the module docstring).
+
+        References
+        ----------
+        J. Hult, J. Lightwave Technol. 25, 3770 (2007).
+        """
         norm2 = self._rk4(state.u, h, self.half_propagator(h))
         state.h = h
         if not math.isfinite(norm2):
@@ -161,6 +167,14 @@ class ERK43IP(_InteractionPicture):
     embedded_order = 3
 
     def step(self, state: StepState, h: float) -> tuple[bool, str]:
+        """One attempt of length ``h`` [m] from ``state``, accepted when the embedded error
+        estimate meets the tolerance (item 5 of the module docstring).
+
+        References
+        ----------
+        S. Balac and F. Mahé, Comput. Phys. Commun. 184, 1211 (2013).
+        RK4IP part: J. Hult, J. Lightwave Technol. 25, 3770 (2007).
+        """
         norm2 = self._rk4(state.u, h, self.half_propagator(h))
         if not math.isfinite(norm2):
             state.h = h * step_factor(np.inf, self.embedded_order)

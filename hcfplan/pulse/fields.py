@@ -1,5 +1,8 @@
 """Input pulses on a :class:`~hcfplan.numerics.grid.Grid`: analytic shapes and measured spectra.
 
+The analytic shapes and their constants are those of the registry
+:data:`hcfplan.pulse.shapes.PULSE_SHAPES`.
+
 All fields follow the conventions of :mod:`hcfplan.numerics.grid`: ``|A|^2`` is power [W], the
 spectrum is ``grid.to_spectrum(A)`` with ``|A~|^2`` in J/Hz, and a spectral phase multiplies the
 spectrum as ``exp(i phi)``. A group-delay dispersion ``gdd`` is the phase ``phi = gdd * dw**2 / 2``,
@@ -20,43 +23,16 @@ References
 from __future__ import annotations
 
 import warnings
-from collections.abc import Callable
-from typing import Literal
 
 import numpy as np
 
 from hcfplan.constants import c
 from hcfplan.errors import ConfigError, ValidityWarning
 from hcfplan.numerics.grid import Grid
-
-PulseShape = Literal["sech2", "gaussian"]
+from hcfplan.pulse.shapes import PulseShape, pulse_shape
 
 #: Fraction of the measured spectral energy allowed outside the grid before a warning.
 SPECTRUM_CUT_TOLERANCE = 1e-3
-
-
-def _sech_amplitude(x: np.ndarray) -> np.ndarray:
-    """Amplitude sech(x); intensity sech^2(x)."""
-    return 1.0 / np.cosh(np.clip(x, -700.0, 700.0))
-
-
-def _gaussian_amplitude(x: np.ndarray) -> np.ndarray:
-    """Amplitude exp(-x^2/2); intensity exp(-x^2) (Agrawal's T0 convention [1])."""
-    return np.exp(-0.5 * x**2)
-
-
-#: shape -> (amplitude of t/T0, FWHM/T0 of the intensity, energy / (P0 T0))
-_SHAPES: dict[str, tuple[Callable[[np.ndarray], np.ndarray], float, float]] = {
-    "sech2": (_sech_amplitude, 2.0 * np.log(1.0 + np.sqrt(2.0)), 2.0),
-    "gaussian": (_gaussian_amplitude, 2.0 * np.sqrt(np.log(2.0)), np.sqrt(np.pi)),
-}
-
-
-def _shape_entry(shape: str) -> tuple[Callable[[np.ndarray], np.ndarray], float, float]:
-    try:
-        return _SHAPES[shape]
-    except (KeyError, TypeError):
-        raise ConfigError(f"pulse shape = {shape!r}: allowed are {sorted(_SHAPES)}") from None
 
 
 def shape_t0_factor(shape: PulseShape) -> float:
@@ -71,8 +47,17 @@ def shape_t0_factor(shape: PulseShape) -> float:
     -------
     float
         FWHM / T0: ``2 ln(1 + sqrt 2) = 1.7627`` (sech^2), ``2 sqrt(ln 2) = 1.6651`` (Gaussian). [1]
+
+    Notes
+    -----
+    Read from the shape registry :data:`hcfplan.pulse.shapes.PULSE_SHAPES`.
+
+    References
+    ----------
+    .. [1] G. P. Agrawal, *Nonlinear Fiber Optics*, 6th ed., Academic Press, 2019, ch. 3
+           (Gaussian and sech pulse shapes, T0 and the FWHM). [from memory]
     """
-    return _shape_entry(shape)[1]
+    return pulse_shape(shape).fwhm_per_t0
 
 
 def peak_power_from_energy(energy: float, duration_fwhm: float, shape: PulseShape) -> float:
@@ -99,11 +84,17 @@ def peak_power_from_energy(energy: float, duration_fwhm: float, shape: PulseShap
     :math:`P_0 = \\ln(1+\\sqrt2)\\,E/\\tau = 0.8814\\,E/\\tau`.
     Gaussian: :math:`E = P_0\\int e^{-t^2/T_0^2}dt = \\sqrt\\pi P_0T_0` and
     :math:`T_0 = \\tau/(2\\sqrt{\\ln 2})`, so
-    :math:`P_0 = 2\\sqrt{\\ln2/\\pi}\\,E/\\tau = 0.9394\\,E/\\tau`.
+    :math:`P_0 = 2\\sqrt{\\ln2/\\pi}\\,E/\\tau = 0.9394\\,E/\\tau` [1]. The constants are
+    those of :data:`hcfplan.pulse.shapes.PULSE_SHAPES`.
+
+    References
+    ----------
+    .. [1] G. P. Agrawal, *Nonlinear Fiber Optics*, 6th ed., Academic Press, 2019, ch. 3
+           (Gaussian and sech pulse shapes, T0 and the FWHM). [from memory]
     """
-    _, fwhm_per_t0, energy_per_p0t0 = _shape_entry(shape)
+    entry = pulse_shape(shape)
     _check_positive("duration_fwhm", duration_fwhm, "s")
-    return energy * fwhm_per_t0 / (energy_per_p0t0 * duration_fwhm)
+    return energy * entry.fwhm_per_t0 / (entry.energy_per_p0t0 * duration_fwhm)
 
 
 def _check_positive(name: str, value: float, unit: str) -> None:
@@ -142,12 +133,22 @@ def pulse_field(
     -------
     ndarray of complex
         A(t) with |A|^2 in W, on ``grid.time``. [sqrt(W)]
+
+    Notes
+    -----
+    The amplitude a(t/T0) comes from :func:`hcfplan.pulse.shapes.pulse_shape`, with
+    T0 = FWHM / (FWHM/T0) [1].
+
+    References
+    ----------
+    .. [1] G. P. Agrawal, *Nonlinear Fiber Optics*, 6th ed., Academic Press, 2019, ch. 3
+           (Gaussian and sech pulse shapes, T0 and the FWHM). [from memory]
     """
-    amplitude, fwhm_per_t0, _ = _shape_entry(shape)
+    entry = pulse_shape(shape)
     _check_positive("duration_fwhm", duration_fwhm, "s")
     _check_positive("energy", energy, "J")
-    t0 = duration_fwhm / fwhm_per_t0
-    field = amplitude(grid.time / t0).astype(complex)
+    t0 = duration_fwhm / entry.fwhm_per_t0
+    field = entry.amplitude(grid.time / t0).astype(complex)
     if gdd != 0.0:
         field = grid.to_time(_apply_gdd(grid, grid.to_spectrum(field), gdd))
     return field * np.sqrt(energy / grid.energy_t(field))
@@ -186,6 +187,10 @@ def field_from_measured_spectrum(
     S_\\lambda\\,\\lambda^2/c`; it is interpolated linearly in frequency onto the grid
     (zero outside the measured range). A ``ValidityWarning`` is issued if more than
     ``SPECTRUM_CUT_TOLERANCE`` of the measured energy lies outside the grid's window.
+
+    References
+    ----------
+    none: change of variables and interpolation, no published model.
     """
     wavelength = np.asarray(wavelength, dtype=float)
     intensity = np.asarray(intensity, dtype=float)

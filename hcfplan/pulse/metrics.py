@@ -36,11 +36,6 @@ Extent = Literal["contiguous", "outermost"]
 #: Level, relative to the peak, below which :func:`main_lobe` ends the lobe.
 MAIN_LOBE_FLOOR = 1e-3
 
-#: Analytic time-bandwidth products (FWHM in intensity, FWHM in frequency) of transform-limited
-#: pulses: Gaussian 2 ln2 / pi, sech^2 4 ln^2(1 + sqrt 2) / pi^2 (Diels & Rudolph, ch. 1).
-TBP_GAUSSIAN = 2.0 * np.log(2.0) / np.pi
-TBP_SECH2 = 4.0 * np.log(1.0 + np.sqrt(2.0)) ** 2 / np.pi**2
-
 
 def _ascending(x: np.ndarray, y: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """Return ``(x, y)`` as float arrays sorted by ascending ``x``."""
@@ -131,6 +126,10 @@ def width_at_level(
     sampled maximum underestimates the true one). Crossings are then interpolated linearly,
     which for a Gaussian overestimates the FWHM by at most :math:`0.193\\,(\\Delta x/\\tau)^2`
     relative (about 5e-4 at 20 samples per FWHM, 1e-4 at 44).
+
+    References
+    ----------
+    none: numerical helper.
     """
     if not 0.0 < level < 1.0:
         raise ConfigError(f"level = {level}: must be between 0 and 1 (relative to the peak)")
@@ -163,6 +162,10 @@ def fwhm(x: np.ndarray, y: np.ndarray) -> float:
     -------
     float
         FWHM in the unit of ``x``; ``nan`` when the peak touches an array end.
+
+    References
+    ----------
+    none: numerical helper.
     """
     return width_at_level(x, y, 0.5, extent="contiguous")
 
@@ -188,6 +191,10 @@ def spectral_width(frequency: np.ndarray, power: np.ndarray, level_db: float = -
     Notes
     -----
     "Outermost": side lobes above the level widen the result (see the module docstring).
+
+    References
+    ----------
+    none: numerical helper.
     """
     if not level_db < 0:
         raise ConfigError(f"level_db = {level_db} dB: must be < 0")
@@ -209,6 +216,10 @@ def rms_width(x: np.ndarray, y: np.ndarray) -> float:
     float
         :math:`\\sqrt{\\langle x^2\\rangle - \\langle x\\rangle^2}` with trapezoidal moments, in the
         unit of ``x`` (the half-width convention; multiply by 2 for a full rms width).
+
+    References
+    ----------
+    none: numerical helper.
     """
     x, y = _ascending(x, y)
     norm = np.trapezoid(y, x)
@@ -239,6 +250,10 @@ def transform_limit(grid: Grid, spectrum: np.ndarray) -> np.ndarray:
     -----
     With a flat phase ``fft`` puts the peak at index 0; ``fftshift`` moves it to index
     ``N // 2``, which is t = 0 on ``grid.time``. Energy is unchanged (Parseval).
+
+    References
+    ----------
+    none: numerical helper.
     """
     return np.fft.fftshift(grid.to_time(np.abs(spectrum).astype(complex)))
 
@@ -252,6 +267,10 @@ def transform_limited_fwhm(grid: Grid, spectrum: np.ndarray) -> float:
         The grid of ``spectrum``.
     spectrum : ndarray
         Spectral amplitude in FFT order. [sqrt(J/Hz)]
+
+    References
+    ----------
+    none: numerical helper.
     """
     return fwhm(grid.time, np.abs(transform_limit(grid, spectrum)) ** 2)
 
@@ -263,6 +282,10 @@ def peak_power(field_t: np.ndarray) -> float:
     ----------
     field_t : ndarray
         Temporal envelope with |A|^2 in watts. [sqrt(W)]
+
+    References
+    ----------
+    none: numerical helper.
     """
     return float(np.max(np.abs(field_t) ** 2))
 
@@ -306,6 +329,10 @@ def main_lobe(time: np.ndarray, power: np.ndarray) -> tuple[float, float, float]
     array end. The floor keeps numerical noise in the far wings from being counted as structure;
     for a clean Gaussian it leaves about 2e-4 of the energy outside the lobe
     (erfc(sqrt(ln 1000))).
+
+    References
+    ----------
+    none: numerical helper.
     """
     power = np.asarray(power, dtype=float)
     i_peak = int(np.argmax(power))
@@ -331,6 +358,10 @@ def pre_post_pulse_energy(time: np.ndarray, power: np.ndarray) -> tuple[float, f
     -------
     pre, post : float
         Energy at times strictly before ``t_lo`` and strictly after ``t_hi``. [J]
+
+    References
+    ----------
+    none: numerical helper.
     """
     time = np.asarray(time, dtype=float)
     power = np.asarray(power, dtype=float)
@@ -353,7 +384,8 @@ def time_bandwidth_product(duration_fwhm: float, bandwidth_fwhm: float) -> float
 
     Notes
     -----
-    Transform-limited values: :data:`TBP_GAUSSIAN` (0.441) and :data:`TBP_SECH2` (0.315).
+    Transform-limited values (0.441 Gaussian, 0.315 sech^2) are
+    ``hcfplan.pulse.shapes.pulse_shape(shape).time_bandwidth_product``.
 
     References
     ----------
@@ -372,6 +404,11 @@ def time_bandwidth_product_of(grid: Grid, field_t: np.ndarray) -> float:
         The grid of ``field_t``.
     field_t : ndarray
         Temporal envelope on ``grid.time``. [sqrt(W)]
+
+    References
+    ----------
+    .. [1] J.-C. Diels and W. Rudolph, *Ultrashort Laser Pulse Phenomena*, 2nd ed., Academic
+           Press, 2006, ch. 1 (table of pulse shapes) [from memory].
     """
     duration = fwhm(grid.time, np.abs(field_t) ** 2)
     bandwidth = fwhm(grid.frequency, np.abs(grid.to_spectrum(field_t)) ** 2)
@@ -404,6 +441,10 @@ class PulseMetrics:
         Times bounding the main lobe. [s]
     pre_pulse_energy, post_pulse_energy : float
         Energy before / after the main lobe. [J]
+
+    References
+    ----------
+    none: result holder of :func:`pulse_metrics`.
     """
 
     energy: float
@@ -432,6 +473,10 @@ def pulse_metrics(
         Temporal envelope on ``grid.time``. [sqrt(W)]
     input_peak_power : float, optional
         Peak power before the fiber or compressor, for the gain. [W]
+
+    References
+    ----------
+    none: numerical helper.
     """
     power = np.abs(field_t) ** 2
     tl_field = transform_limit(grid, grid.to_spectrum(field_t))

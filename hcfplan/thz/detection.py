@@ -75,6 +75,15 @@ def phase_matching_integral(
     Written as (exp(i (k_out + delta_k) L) - exp(i k_out L)) / (i delta_k), both exponents of
     which are bounded when Im k_out >= 0 and k_out + delta_k is real (the generation case), so
     a strongly absorbed THz wave does not overflow the intermediate exp(i delta_k L).
+
+    References
+    ----------
+    .. [1] G. Gallot and D. Grischkowsky, "Electro-optic detection of terahertz radiation," J.
+           Opt. Soc. Am. B 16, 1204 (1999) [from memory, not retrieved].
+    .. [2] A. Schneider, M. Neis, M. Stillhart, B. Ruiz, R. U. A. Khan, P. Guenter, "Generation
+           of terahertz pulses through optical rectification in organic DAST crystals: theory
+           and experiment," J. Opt. Soc. Am. B 23, 1822 (2006) [equations from memory, not
+           retrieved].
     """
     delta_k = np.asarray(delta_k, dtype=complex)
     k_out = np.asarray(k_out, dtype=complex)
@@ -127,6 +136,10 @@ def spectral_autocorrelation(spectrum_band: np.ndarray, count: int) -> np.ndarra
     ndarray of complex
         r[m]; times the sample spacing d_nu it is the spectrum of the intensity envelope,
         int |A(t)|^2 exp(i m d_omega t) dt (grid.py convention 2). [J/Hz]
+
+    References
+    ----------
+    None: numerical helper (autocorrelation by zero-padded FFT).
     """
     size = 1 << int(np.ceil(np.log2(2 * max(len(spectrum_band), count) + 1)))
     spec = np.fft.fft(spectrum_band, size)
@@ -147,6 +160,14 @@ def probe_gate(spectrum_band: np.ndarray, count: int) -> np.ndarray:
     -------
     ndarray of complex
         I~_p(Omega_m) / I~_p(0), from :func:`spectral_autocorrelation`. [-]
+
+    References
+    ----------
+    .. [1] G. Gallot and D. Grischkowsky, "Electro-optic detection of terahertz radiation," J.
+           Opt. Soc. Am. B 16, 1204 (1999) [from memory, not retrieved].
+    .. [2] A. Leitenstorfer, S. Hunsche, J. Shah, M. C. Nuss, W. H. Knox, "Detectors and
+           sources for ultrabroadband electro-optic sampling: experiment and theory," Appl.
+           Phys. Lett. 74, 1516 (1999) [from memory, not retrieved].
     """
     corr = spectral_autocorrelation(spectrum_band, count)
     return corr / corr[0].real
@@ -183,6 +204,16 @@ def eo_response(
     Notes
     -----
     Module docstring; G = (1/d) int_0^d exp(i (k_T - Omega n_g / c) z) dz, Eqs. of [1], [2].
+
+    References
+    ----------
+    .. [1] G. Gallot and D. Grischkowsky, "Electro-optic detection of terahertz radiation," J.
+           Opt. Soc. Am. B 16, 1204 (1999) [from memory, not retrieved].
+    .. [2] A. Leitenstorfer, S. Hunsche, J. Shah, M. C. Nuss, W. H. Knox, "Detectors and
+           sources for ultrabroadband electro-optic sampling: experiment and theory," Appl.
+           Phys. Lett. 74, 1516 (1999) [from memory, not retrieved].
+    .. [3] H. J. Bakker, G. C. Cho, H. Kurz, Q. Wu, X.-C. Zhang, "Distortion of terahertz
+           pulses in electro-optic sampling," J. Opt. Soc. Am. B 15, 1795 (1998).
     """
     Omega = np.asarray(Omega, dtype=float)
     n_thz = thz_index(crystal, Omega)
@@ -222,6 +253,12 @@ def phase_matching_map(
     -------
     PhaseMatchingMap
         ``coherence_length`` has shape (len(pump_wavelength), len(frequency)). [m]
+
+    References
+    ----------
+    .. [1] N. C. J. van der Valk, P. C. M. Planken, A. N. Buijserd, H. J. Bakker, "Influence of
+           pump wavelength and crystal length on the phase matching of optical rectification,"
+           J. Opt. Soc. Am. B 22, 1714 (2005).
     """
     pump_wavelength = np.asarray(pump_wavelength, dtype=float)
     frequency = np.asarray(frequency, dtype=float)

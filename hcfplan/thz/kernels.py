@@ -1,7 +1,7 @@
-"""Compiled kernel of the THz estimate's exact phase-matching sum (:mod:`hcfplan.thz.generation`).
+"""Compiled kernel of the THz estimate's exact phase-matching sum (:mod:`hcfplan.thz.mixing`).
 
-Kept apart from :mod:`hcfplan.thz.generation` so that importing that module (its cutoff definitions
-are used by the envelope map) does not import numba.
+Kept apart so that importing :mod:`hcfplan.thz.mixing` and :mod:`hcfplan.thz.generation` does not
+import numba; :func:`hcfplan.thz.mixing.mixing_sum_full` imports it where the sum is done.
 
 References
 ----------
@@ -37,6 +37,13 @@ def mixing_sums(band, k_opt, k_thz, thickness, count, out):  # pragma: no cover 
     exponentials and temporaries per term, took 64 % of a scan point (profile of
     bench/scan.py's config, 8192 points). Checked against :func:`phase_matching_integral` in
     tests/test_thz.py.
+
+    References
+    ----------
+    .. [1] A. Schneider, M. Neis, M. Stillhart, B. Ruiz, R. U. A. Khan, P. Guenter, "Generation
+           of terahertz pulses through optical rectification in organic DAST crystals: theory
+           and experiment," J. Opt. Soc. Am. B 23, 1822 (2006) [equations from memory, not
+           retrieved] (the model; the evaluation order is a numerical choice).
     """
     size = band.size
     # real and imaginary parts in arrays of their own, complex products written out in real
@@ -84,6 +91,11 @@ def mixing_sums(band, k_opt, k_thz, thickness, count, out):  # pragma: no cover 
 
 def warm_kernels() -> None:
     """Call the compiled kernel once on tiny arrays (loads its machine code from numba's cache;
-    used by :mod:`hcfplan.propagation.warmup`)."""
+    used by :mod:`hcfplan.planning.scan.warmup`).
+
+    References
+    ----------
+    None: numerical helper.
+    """
     mixing_sums(np.ones(4, complex), np.arange(4.0), np.zeros(4, complex), 1e-3, 4,
                 np.zeros(4, complex))

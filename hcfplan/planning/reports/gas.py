@@ -36,15 +36,15 @@ def gas_report(name: str, pressure: float, temperature: float, wavelengths, *,
 
 def _gas_report(name, pressure, temperature, wavelengths, eos, search_dirs) -> dict:
     from hcfplan.limits import beam as limits
-    from hcfplan.materials import gases
+    from hcfplan.materials import gas_density, gases
     from hcfplan.numerics import derivatives
 
     table = gases.load_gas_table(name, search_dirs)
     fill = gases.GasFill(components=((table.name, 1.0),), pressure=pressure,
                          temperature=temperature, eos=eos)
     medium = gases.gas_medium(fill, search_dirs=search_dirs)
-    ideal = gases.number_density(table, pressure, temperature, eos="ideal")
-    real = gases.number_density(table, pressure, temperature, eos="coolprop")
+    ideal = gas_density.number_density(table, pressure, temperature, eos="ideal")
+    real = gas_density.number_density(table, pressure, temperature, eos="coolprop")
     k = _wavenumber(medium)
     rows = []
     for wavelength in wavelengths:

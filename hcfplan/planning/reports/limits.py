@@ -196,6 +196,7 @@ def _self_focusing_part(s: _Setup, run) -> tuple[dict, list, list]:
 
 
 def _ionization_part(s: _Setup, run) -> tuple[dict, list, list]:
+    from hcfplan.ionization.fraction import peak_intensity_for_fraction, pulse_ionization_fraction
     from hcfplan.limits import beam as limits
 
     name, unit = "ionization", ""
@@ -207,11 +208,11 @@ def _ionization_part(s: _Setup, run) -> tuple[dict, list, list]:
     area = s.waveguide.peak_intensity_area
     intensity = s.peak_power_coupled / area
     bsi = lowest_barrier_suppression(s.medium)
-    i_lim = limits.peak_intensity_for_fraction(level, laser.duration_fwhm, laser.shape, s.rates,
-                                               RATE_TABLE_RANGE)
+    i_lim = peak_intensity_for_fraction(level, laser.duration_fwhm, laser.shape, s.rates,
+                                        RATE_TABLE_RANGE)
 
     def fraction(i: float) -> float:
-        return limits.pulse_ionization_fraction(i, laser.duration_fwhm, laser.shape, s.rates)
+        return pulse_ionization_fraction(i, laser.duration_fwhm, laser.shape, s.rates)
 
     values = {
         "limits.ionization.model": s.config.gas.ionization_model,
@@ -350,6 +351,7 @@ def _window_b_integral(s: _Setup, run) -> tuple[dict, list, list]:
 
 
 def _static_fill_part(s: _Setup) -> tuple[dict, list, list]:
+    from hcfplan.ionization.fraction import pulse_ionization_fraction
     from hcfplan.limits import beam as limits
 
     if s.medium is None or s.beam_waist is None:
@@ -361,8 +363,7 @@ def _static_fill_part(s: _Setup) -> tuple[dict, list, list]:
     intensity = limits.gaussian_peak_intensity(s.peak_power_full, w0)
     rayleigh = math.pi * w0**2 / laser.wavelength
     path = lim.entrance_gas_path if lim.entrance_gas_path is not None else 2 * rayleigh
-    fraction = limits.pulse_ionization_fraction(intensity, laser.duration_fwhm, laser.shape,
-                                                s.rates)
+    fraction = pulse_ionization_fraction(intensity, laser.duration_fwhm, laser.shape, s.rates)
     values = {"limits.static_fill.beam_waist_m": w0,
               "limits.static_fill.peak_power_w": s.peak_power_full,
               "limits.static_fill.peak_intensity_w_per_m2": intensity,

@@ -53,11 +53,11 @@ class ScaledGas:
 
 def gas_density_at(gas_spec, medium, pressure: float) -> float:
     """Real-gas number density [1/m^3] of the configured composition at ``pressure`` [Pa]."""
-    from hcfplan.materials import gases
+    from hcfplan.materials import gas_density
 
     if len(medium.components) == 1:
-        return gases.number_density(medium.components[0].table, pressure, gas_spec.temperature,
-                                    gas_spec.equation_of_state)
+        return gas_density.number_density(medium.components[0].table, pressure,
+                                          gas_spec.temperature, gas_spec.equation_of_state)
     return build_medium(dataclasses.replace(gas_spec, pressure=pressure)).number_density
 
 
@@ -69,11 +69,11 @@ def gas_at(gas_spec, medium, pressure: float) -> ScaledGas:
 def condensation_ceiling(medium, temperature: float, upper: float) -> float:
     """Highest pressure <= ``upper`` [Pa] at which no component (at its partial pressure) would
     be liquid or two-phase by the CoolProp EOS (bisection in ln p to 1e-6)."""
-    from hcfplan.materials import gases
+    from hcfplan.materials import gas_phase
 
     def gas_like(p: float) -> bool:
         try:
-            return all(gases.fill_phase(k.table, k.mole_fraction * p, temperature)
+            return all(gas_phase.fill_phase(k.table, k.mole_fraction * p, temperature)
                        in ("gas", "supercritical") for k in medium.components)
         except (ValueError, RuntimeError):  # CoolProp outside its range
             return False

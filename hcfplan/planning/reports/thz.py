@@ -1,22 +1,88 @@
-"""THz estimate from a measured spectrum file (the ``thz`` command)."""
+"""The THz set-up of a config or of the ``thz`` command, and the THz estimate from a measured
+spectrum file (the ``thz`` command)."""
 
 from __future__ import annotations
 
 from pathlib import Path
+from typing import Any
 
 import numpy as np
 
+from hcfplan.io.config import ThzSpec
+from hcfplan.thz.setup import ThzSetup
 
-def thz_report(spectrum_csv: Path, *, phase_csv: Path | None, crystal: str, thickness: float,
-               energy: float, cutoff_db: float, cutoff_quantity: str,
-               detector_crystal: str | None, detector_thickness: float):
-    """Read the CSV file(s), run :func:`hcfplan.thz.generation.thz_from_measured_spectrum`,
+
+def thz_setup(spec: ThzSpec, grid: Any = None) -> ThzSetup:
+    """The :class:`~hcfplan.thz.setup.ThzSetup` of a ``[thz]`` config section (or of options).
+
+    Parameters
+    ----------
+    spec : ThzSpec
+        The section, in SI (:mod:`hcfplan.io.config`).
+    grid : Grid or None
+        Grid of the simulated pulse; needed only for a given probe FWHM, which means a
+        transform-limited Gaussian probe on that grid.
+
+    Returns
+    -------
+    ThzSetup
+        Crystals loaded; the detector only when ``spec.detector_crystal`` is given.
+    """
+    from hcfplan.errors import ConfigError
+    from hcfplan.materials.crystals import load_crystal
+    from hcfplan.thz.detection import EoDetector
+
+    detector = None
+    if spec.detector_crystal is not None:
+        probe = None
+        if spec.probe_fwhm is not None:
+            if grid is None:
+                raise ConfigError("thz.probe_fwhm_fs: needs a simulated pulse (not available "
+                                  "for a measured spectrum)")
+            from hcfplan.pulse.fields import pulse_field
+
+            probe = grid.to_spectrum(pulse_field(grid, "gaussian", spec.probe_fwhm, 1e-9))
+        detector = EoDetector(crystal=load_crystal(spec.detector_crystal),
+                              thickness=spec.detector_thickness, probe_spectrum=probe)
+    return ThzSetup(crystal=load_crystal(spec.crystal), thickness=spec.thickness,
+                    detector=detector, cutoff_db=spec.cutoff_db,
+                    cutoff_level=spec.cutoff_quantity, beam_radius=spec.beam_waist,
+                    d_eff=spec.d_eff, damage_fluence=spec.damage_fluence)
+
+
+def thz_setup_from_options(*, crystal: str, thickness: float, cutoff_db: float,
+                           cutoff_quantity: str, detector_crystal: str | None,
+                           detector_thickness: float) -> ThzSetup:
+    """The set-up of the ``thz`` command's options, through the same :func:`thz_setup`.
+
+    Parameters
+    ----------
+    crystal, detector_crystal : str, str or None
+        Generation and (optional) EO detection crystal names.
+    thickness, detector_thickness : float
+        Crystal thicknesses. [m]
+    cutoff_db : float
+        Cutoff level relative to the peak. [dB]
+    cutoff_quantity : {"power", "field"}
+        Spectrum the level applies to.
+    """
+    spec = ThzSpec(crystal=crystal, thickness=thickness, cutoff_db=cutoff_db,
+                   cutoff_quantity=cutoff_quantity, detector_crystal=detector_crystal,
+                   detector_thickness=None if detector_crystal is None else detector_thickness,
+                   probe_fwhm=None, beam_waist=None, d_eff=None, damage_fluence=None)
+    return thz_setup(spec)
+
+
+def thz_report(spectrum_csv: Path, setup: ThzSetup, *, phase_csv: Path | None, energy: float):
+    """Read the CSV file(s), run :func:`hcfplan.thz.measured.thz_from_measured_spectrum`,
     summarise.
 
     Parameters
     ----------
-    thickness, detector_thickness : float
-        Crystal thicknesses. [m]
+    spectrum_csv, phase_csv : Path, Path or None
+        Measured spectrum (wavelength_nm, intensity) and optional spectral phase.
+    setup : ThzSetup
+        Crystals, detector and levels (:func:`thz_setup_from_options`).
     energy : float
         Pulse energy on the crystal. [J]
 
@@ -26,24 +92,16 @@ def thz_report(spectrum_csv: Path, *, phase_csv: Path | None, crystal: str, thic
         The result and its flat summary (SI, unit in the key names).
     """
     from hcfplan.io.csvdata import read_curve_csv, read_spectrum_csv
-    from hcfplan.materials import crystals
     from hcfplan.planning.validity import quiet_validity
-    from hcfplan.thz.detection import EoDetector
-    from hcfplan.thz.generation import thz_from_measured_spectrum
+    from hcfplan.thz.measured import thz_from_measured_spectrum
 
     wavelength, intensity = read_spectrum_csv(spectrum_csv)
     phase = None
     if phase_csv is not None:
         wl_phase, phase_values = read_curve_csv(phase_csv, "phase_rad")
         phase = np.interp(wavelength, wl_phase, phase_values)
-    detector = None
-    if detector_crystal is not None:
-        detector = EoDetector(crystal=crystals.load_crystal(detector_crystal),
-                              thickness=detector_thickness)
     with quiet_validity():
-        result = thz_from_measured_spectrum(
-            wavelength, intensity, energy, crystals.load_crystal(crystal), thickness,
-            phase=phase, cutoff_db=cutoff_db, cutoff_level=cutoff_quantity, detector=detector)
+        result = thz_from_measured_spectrum(wavelength, intensity, energy, setup, phase=phase)
     report = {
         "crystal": result.crystal,
         "thickness_m": result.thickness,

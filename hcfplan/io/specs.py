@@ -1,0 +1,159 @@
+"""The frozen specs a validated config is made of: SI values only, built by
+:mod:`hcfplan.io.config` while loading.
+
+Files a config names (a measured input spectrum, a measured mirror GDD curve) are read while
+loading and travel here as arrays (:class:`MeasuredCurve`), so a run needs no file access.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+
+@dataclass(frozen=True, eq=False)
+class MeasuredCurve:
+    """A curve versus wavelength read from a CSV file while the config was loaded.
+
+    Compared by identity (it holds arrays). The arrays are read-only.
+    """
+
+    source: Path  #: the file it was read from (for messages and reports only)
+    wavelength: np.ndarray  #: strictly increasing vacuum wavelengths [m]
+    values: np.ndarray  #: the value column in SI (intensity: arbitrary units, >= 0)
+
+    def __post_init__(self) -> None:
+        for name in ("wavelength", "values"):
+            array = np.array(getattr(self, name), dtype=float)  # a private copy
+            array.setflags(write=False)
+            object.__setattr__(self, name, array)
+
+
+@dataclass(frozen=True)
+class LaserSpec:
+    wavelength: float  #: [m]
+    duration_fwhm: float  #: intensity FWHM [s]
+    shape: str
+    energy: float  #: [J]
+    repetition_rate: float | None  #: [Hz]
+    gdd: float  #: [s^2]
+    spectrum: MeasuredCurve | None  #: measured input spectrum (values: intensity per wavelength)
+    beam_waist: float | None  #: [m]
+
+
+@dataclass(frozen=True)
+class FiberSpec:
+    kind: str
+    length: float  #: [m]
+    core_radius: float | None  #: [m]
+    cladding: str
+    wall_thickness: float | None  #: [m]
+    bend_radius: float | None  #: [m]
+    mode_order: int  #: m of EH1m
+    betas: tuple[float, ...]  #: (beta2, beta3, ...) [s^n/m]
+    gamma: float | None  #: [1/(W m)]
+    loss: float  #: field attenuation [1/m]
+    self_steepening: bool
+    raman_fraction: float
+    raman_tau1: float  #: [s]
+    raman_tau2: float  #: [s]
+    effective_area: float | None  #: [m^2]
+
+
+@dataclass(frozen=True)
+class GasSpec:
+    components: tuple[tuple[str, float], ...]  #: (table name, mole fraction)
+    pressure: float  #: [Pa]
+    temperature: float  #: [K]
+    equation_of_state: str
+    ionization_model: str
+    table_dirs: tuple[Path, ...]
+
+
+@dataclass(frozen=True)
+class CellSpec:
+    rated_pressure: float | None  #: [Pa]
+    window_material: str
+    window_thickness: float | None  #: [m]
+    window_clear_aperture: float | None  #: [m]
+
+
+@dataclass(frozen=True)
+class CompressorSpec:
+    air_path: float  #: [m]
+    mirror_gdd: float | None  #: per bounce [s^2]
+    mirror_tod: float  #: per bounce [s^3]
+    mirror_gdd_curve: MeasuredCurve | None  #: measured GDD per bounce (values in s^2)
+    mirror_band: tuple[float, float] | None  #: wavelengths [m]
+    max_bounces: int
+    bounces_in_pairs: bool
+    objective: str
+    wedge_material: str | None
+    wedge_max_insertion: float  #: [m]
+
+
+@dataclass(frozen=True)
+class ThzSpec:
+    crystal: str
+    thickness: float  #: [m]
+    cutoff_db: float
+    cutoff_quantity: str
+    detector_crystal: str | None
+    detector_thickness: float | None  #: [m]
+    probe_fwhm: float | None  #: [s]
+    beam_waist: float | None  #: [m]
+    d_eff: float | None  #: [m/V]
+    damage_fluence: float | None  #: [J/m^2]
+
+
+@dataclass(frozen=True)
+class LimitsSpec:
+    self_focusing_margin: float
+    ionization_fraction_limit: float
+    window_safety_factor: float
+    window_mounting: str
+    window_distance: float | None  #: [m]
+    entrance_gas_path: float | None  #: [m]
+    b_integral_limit: float  #: [rad]
+    cladding_damage_fluence: float | None  #: [J/m^2]
+    room_volume: float | None  #: [m^3]
+    cylinder_volume: float | None  #: [m^3]
+    cylinder_pressure: float | None  #: [Pa]
+
+
+@dataclass(frozen=True)
+class SpreadDefaults:
+    energy_percent: float
+    pressure_percent: float
+    fwhm_percent: float
+
+
+@dataclass(frozen=True)
+class GridSpec:
+    points: int | None
+    time_window: float | None  #: [s]
+    z_samples: int
+    rtol: float
+    stop_ionization_fraction: float
+
+
+@dataclass(frozen=True)
+class PlanConfig:
+    """A validated config: SI specs plus the resolved user-unit table (for ``check``)."""
+
+    laser: LaserSpec
+    fiber: FiberSpec
+    gas: GasSpec | None
+    cell: CellSpec
+    compressor: CompressorSpec
+    thz: ThzSpec
+    limits: LimitsSpec
+    spread: SpreadDefaults
+    grid: GridSpec
+    resolved: dict[str, dict[str, Any]]
+    present_sections: tuple[str, ...]
+    source: Path | None = None
+    overrides: tuple[str, ...] = field(default=())
