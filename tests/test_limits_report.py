@@ -43,8 +43,8 @@ def test_report_neutral_words_and_cautions(demo):
 
 def test_checks_have_all_fields(demo):
     _, report = demo
-    fields = {"name", "value", "limit", "unit", "limit_kind", "margin", "status", "severity",
-              "source", "assumption"}
+    fields = {"name", "value", "limit", "unit", "limit_kind", "ratio", "margin", "required",
+              "met", "status", "severity", "source", "assumption"}
     for check in report["limits.checks"]:
         assert set(check) == fields
         assert check["assumption"]

@@ -133,9 +133,14 @@ def test_choose_grid_covers_pulse_and_spectrum(factor):
         g = choose_grid(OMEGA0, 30e-15, broadening_factor=factor)
     assert g.points & (g.points - 1) == 0  # power of two
     assert g.time_window >= 40 * 30e-15
-    assert np.pi / g.dt < OMEGA0  # frequency window stays above zero frequency
+    # the window is centred on the needed band, not on the pump; it stays above a quarter of
+    # the pump frequency and below six times it (LOWER_EDGE_FRACTION, UPPER_EDGE_MULTIPLE)
+    assert g.omega_pump == OMEGA0 and g.omega_low < OMEGA0 < g.omega_high
+    assert g.omega_low >= 0.25 * OMEGA0 * (1 - 1e-12)
     needed = 8 * factor * 2 * np.pi * (2 * np.log(2) / np.pi) / 30e-15  # Gaussian TBP
-    assert np.pi / g.dt >= min(needed, 0.9 * OMEGA0) * (1 - 1e-12)
+    assert g.omega_high >= min(OMEGA0 + needed, 6 * OMEGA0) * (1 - 1e-12)
+    assert g.omega_low <= max(OMEGA0 - needed, 0.25 * OMEGA0) * (1 + 1e-12)
+    assert g.omega_high <= 6 * OMEGA0 * (1 + 1e-12)
 
 
 def test_choose_grid_overrides():

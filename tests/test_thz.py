@@ -234,7 +234,7 @@ def test_thz_spectrum_within_optical_bandwidth(method):
     beyond = result.frequency > width + 0.5 * grid.dnu
     assert beyond.any()
     assert np.max(result.generated_power[beyond]) <= 1e-20
-    assert result.cutoff_frequency <= width
+    assert result.cutoff_computed <= width
 
 
 def test_spectral_delay_does_not_change_thz_power(thin):
@@ -252,8 +252,8 @@ def test_chirp_lowers_bandwidth(thin):
     grid, tl = gaussian_pulse(30e-15)
     chirped = tl * np.exp(0.5j * 300e-30 * grid.domega**2)  # grid.py convention 4
     setup = ThzSetup(thin, 1e-4)
-    assert (thz_estimate(grid, chirped, setup).cutoff_frequency
-            < 0.8 * thz_estimate(grid, tl, setup).cutoff_frequency)
+    assert (thz_estimate(grid, chirped, setup).cutoff
+            < 0.8 * thz_estimate(grid, tl, setup).cutoff)
 
 
 # ----------------------------------------------------------------------------------- cutoff
@@ -265,22 +265,24 @@ def test_chirp_lowers_bandwidth(thin):
      (-30.0, "power", np.log(1000.0)), (-20.0, "field", np.log(1e4))],
 )
 def test_cutoff_of_synthetic_spectrum(cutoff_db, level, expected):
-    """Analytic: P = exp(-nu / nu0) meets 10^(L/10) at nu = nu0 ln(10^(-L/10)); the 'field'
-    level -20 dB means 1 % of the peak amplitude, i.e. power 1e-4."""
+    """Analytic: for P = exp(-nu / nu0) the share of the energy above f is exp(-f / nu0), so
+    the share 10^(L/10) lies above nu0 ln(10^(-L/10)); with 'field' the integral of
+    sqrt(P) = exp(-nu / (2 nu0)) is divided, and -20 dB lies above 2 nu0 ln(100) =
+    nu0 ln(1e4). Trapezoidal integrals on 0.01 nu0 steps (axis to 40 nu0): rel. 1e-4."""
     nu0 = 1e12
-    frequency = np.linspace(0, 20e12, 2001)
+    frequency = np.linspace(0, 40e12, 4001)
     cutoff, definition = thz_cutoff(frequency, np.exp(-frequency / nu0), cutoff_db, level)
-    assert cutoff == pytest.approx(expected * nu0, rel=1e-9)
-    assert f"{cutoff_db:g}" in definition and "highest frequency" in definition
+    assert cutoff == pytest.approx(expected * nu0, rel=1e-4)
+    assert f"({cutoff_db:g} dB above)" in definition and "lies below it" in definition
 
 
 def test_cutoff_definition_is_reported(thin):
     grid, spectrum = gaussian_pulse(50e-15)
     result = thz_estimate(grid, spectrum, ThzSetup(thin, 1e-4, cutoff_db=-10.0))
-    assert "power spectrum >= -10 dB of peak" in result.cutoff_definition
+    assert "90 % of the THz energy" in result.cutoff_definition
     assert "generated" in result.cutoff_definition
     lower = thz_estimate(grid, spectrum, ThzSetup(thin, 1e-4, cutoff_db=-20.0))
-    assert lower.cutoff_frequency > result.cutoff_frequency
+    assert lower.cutoff > result.cutoff
 
 
 def test_unknown_cutoff_level_lists_choices():
@@ -293,8 +295,12 @@ def test_thick_mismatched_crystal_lowers_cutoff():
     a 1 mm crystal cuts the spectrum lower than a 50 um one."""
     znte = load_crystal("znte")
     grid, spectrum = gaussian_pulse(30e-15)
-    thin_cut = thz_estimate(grid, spectrum, ThzSetup(znte, 50e-6)).cutoff_frequency
-    thick_cut = thz_estimate(grid, spectrum, ThzSetup(znte, 1e-3)).cutoff_frequency
+    # the frequency below which half the energy lies (-3 dB above), compared as computed: the
+    # thin crystal's lies beyond ZnTe's stated 4.5 THz. (With -20 dB both are set by the weak
+    # mismatched band above the LO phonon, whose share hardly depends on L once L >> l_c.)
+    setup = {"cutoff_db": -3.0}
+    thin_cut = thz_estimate(grid, spectrum, ThzSetup(znte, 50e-6, **setup)).cutoff_computed
+    thick_cut = thz_estimate(grid, spectrum, ThzSetup(znte, 1e-3, **setup)).cutoff_computed
     assert thick_cut < 0.7 * thin_cut
 
 
@@ -310,7 +316,7 @@ def test_detection_with_ideal_detector_applies_probe_gate(thin):
     result = thz_estimate(grid, spectrum, ThzSetup(thin, 100e-6, detector=EoDetector(thin, 10e-6)))
     assert result.detected_peak_frequency == pytest.approx(
         np.sqrt(4 * LN2) / (TWO_PI * duration), rel=0.01)
-    assert result.detected_cutoff_frequency < result.cutoff_frequency
+    assert result.detected_cutoff < result.cutoff
 
 
 def test_znte_detector_suppresses_its_to_band():
@@ -461,7 +467,7 @@ def test_measured_spectrum_phase(thin):
     runs = [thz_from_measured_spectrum(wavelength, per_wavelength, 1e-6, setup, phase=phase)
             for phase in (None, 300e-15 * d_omega, 0.5 * 500e-30 * d_omega**2)]
     assert np.allclose(runs[1].generated_power, runs[0].generated_power, atol=1e-6)
-    assert runs[2].cutoff_frequency < 0.8 * runs[0].cutoff_frequency
+    assert runs[2].cutoff < 0.8 * runs[0].cutoff
 
 
 def test_measured_spectrum_errors(thin):
@@ -490,8 +496,9 @@ def test_plots_draw_and_return_axes():
     )
 
     gap = load_crystal("gap")
-    grid, spectrum = gaussian_pulse(40e-15)
+    grid, spectrum = gaussian_pulse(100e-15)
     result = thz_estimate(grid, spectrum, ThzSetup(gap, 0.5e-3, detector=EoDetector(gap, 0.1e-3)))
+    assert result.cutoff is not None  # within GaP's stated range: the cutoff line is drawn
     pm_map = phase_matching_map(gap, np.linspace(0.8e-6, 1.6e-6, 9), np.linspace(0.1e12, 5e12, 20))
     fig, axes = plt.subplots(2, 2)
     assert plot_thz_spectrum(axes[0, 0], result) is axes[0, 0]
@@ -509,7 +516,7 @@ def test_plots_draw_and_return_axes():
 
 
 @pytest.mark.parametrize("module", ["detection", "generation", "kernels", "measured",
-                                    "measures", "mixing", "setup"])
+                                    "measures", "mixing", "sampling", "setup"])
 def test_public_functions_name_their_source(module):
     """House rule: every public function of hcfplan.thz has a References section in its own
     docstring (a published source, or "None: ..." for a numerical helper)."""

@@ -1,8 +1,9 @@
 """The ``hcfplan`` command line: parse, call ``planning``, print, set the exit code.
 
 Exit codes: 0 success; 1 a run that did not succeed (solver fault; partial result saved);
-2 bad input (one line on stderr naming the key, no traceback); 130 interrupted (Ctrl-C: one
-line on stderr saying what was kept, no traceback).
+2 bad input (one line on stderr naming the key, no traceback); 3 ``simulate`` finished but the
+verdict of its result is invalid (:mod:`hcfplan.planning.verdict`; results saved); 130
+interrupted (Ctrl-C: one line on stderr saying what was kept, no traceback).
 Heavy modules (scipy, CoolProp, numba, matplotlib) are imported inside the commands so that
 ``hcfplan --help`` starts quickly. Imports of the command line flow one way:
 app -> workflows -> common, output.
@@ -42,6 +43,7 @@ from hcfplan.cli.output import (
     print_rows,
     print_simulation,
     print_warnings,
+    thz_cutoff_text,
 )
 from hcfplan.cli.workflows import register as register_workflows
 from hcfplan.errors import ConfigError, HcfplanError
@@ -230,6 +232,15 @@ def simulate_command(
         typer.echo(f"hcfplan: run stopped: {chain.propagation.message} "
                    f"(partial result saved in {out_dir})", err=True)
         raise typer.Exit(1)
+    verdict = summary.get("verdict", {})
+    if verdict.get("status") == "invalid":
+        from hcfplan.planning.verdict import CODES
+
+        codes = ", ".join(r["code"] for r in verdict.get("reasons", [])
+                          if CODES[r["code"]].status == "invalid")
+        typer.echo(f"hcfplan: result invalid ({codes}); see verdict in {out_dir}/summary.json",
+                   err=True)
+        raise typer.Exit(INVALID_RESULT)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -262,25 +273,31 @@ def envelope_command(
     contours: str = typer.Option("both", "--contours",
                                  help="Contours drawn: duration, cutoff or both."),
     as_json: bool = typer.Option(False, "--json", help="Print the map and its lines as JSON."),
+    check: bool = typer.Option(
+        False, "--check", help="Run the GNLSE chain at 3 points of the map's sweet spot and "
+        "compare it with the SPM-only estimates (converged runs: seconds to minutes; default: "
+        "off, the estimates are shown as unchecked)."),
 ) -> None:
     """Energy x pressure map: self-focusing and ionisation lines, rating, regimes, estimates."""
     from hcfplan.planning.envelope import envelope_json, envelope_map
+    from hcfplan.planning.envelope_check import check_envelope
 
     if contours not in ("duration", "cutoff", "both"):
         raise ConfigError(f"--contours = {contours!r}: must be one of duration, cutoff, both")
     cfg = load_cli_config(config, set_ or [])
     result = envelope_map(cfg)
+    checked = check_envelope(cfg, result) if check else None
     if plot is not None:
         from hcfplan.io.results import write_figure
         from hcfplan.plotting.envelope import plot_envelope
 
         WRITTEN.watch(plot)
-        write_figure(plot, lambda fig, r: plot_envelope(fig.subplots(), r, contours=contours),
-                     result)
+        write_figure(plot, lambda fig, r: plot_envelope(fig.subplots(), r, contours=contours,
+                                                        check=checked), result)
     if as_json:
-        print_json(envelope_json(result))
+        print_json(envelope_json(result, checked))
         return
-    print_envelope(result, plot)
+    print_envelope(result, plot, checked)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -297,9 +314,10 @@ def thz_command(
     crystal: str = typer.Option("GaP", "--crystal", help="Generation crystal."),
     thickness_mm: float = typer.Option(0.3, "--thickness-mm", help="Crystal thickness."),
     energy_uj: float = typer.Option(1.0, "--energy-uj", help="Pulse energy on the crystal."),
-    cutoff_db: float = typer.Option(-20.0, "--cutoff-db", help="Cutoff level below the peak."),
+    cutoff_db: float = typer.Option(-20.0, "--cutoff-db", help="Share of the THz energy above the "
+                                   "cutoff (-20: 99 % of it lies below)."),
     cutoff_quantity: str = typer.Option("power", "--cutoff-quantity",
-                                        help="Spectrum the level refers to: power or field."),
+                                        help="Spectrum whose integral it divides: power or field."),
     detector_crystal: str | None = typer.Option(None, "--detector-crystal",
                                                    help="EO detection crystal (optional)."),
     detector_thickness_mm: float = typer.Option(0.3, "--detector-thickness-mm",
@@ -335,15 +353,15 @@ def thz_command(
         return
     rows = [
         ("crystal", f"{report['crystal']} {report['thickness_m'] * 1e3:g} mm", ""),
-        ("THz peak", f"{fmt(report['peak_hz'], 1e12)} THz", ""),
-        ("THz cutoff", f"{fmt(report['cutoff_hz'], 1e12)} THz", report["cutoff_definition"]),
+        ("THz peak", thz_cutoff_text(report, "peak_hz"), ""),
+        ("THz cutoff", thz_cutoff_text(report), report["cutoff_definition"]),
         ("-3 dB / -10 dB width", f"{fmt(report['bandwidth_3db_hz'], 1e12)} / "
          f"{fmt(report['bandwidth_10db_hz'], 1e12)} THz", ""),
         ("relative efficiency", f"{report['relative_efficiency']:.3g}",
          "for d_eff = 1 pm/V and 1 mm^2: compares spectra, not an absolute yield"),
     ]
-    if report.get("detected_cutoff_hz") is not None:
-        rows.append(("detected cutoff", f"{fmt(report['detected_cutoff_hz'], 1e12)} THz",
+    if detector_crystal is not None:
+        rows.append(("detected cutoff", thz_cutoff_text(report, "detected_cutoff_hz"),
                      f"EO detection in {detector_crystal}"))
     print_rows(rows)
     if "figure" in report:
@@ -361,6 +379,9 @@ register_workflows(app)
 # ---------------------------------------------------------------------------------------------
 # entry point
 
+
+#: Exit code of ``simulate`` when the result's verdict is invalid (results still saved).
+INVALID_RESULT = 3
 
 #: Exit code of an interrupted command: 128 + SIGINT, as a shell reports a job ended by Ctrl-C.
 #: Common practice, no source. Typer returns it for a KeyboardInterrupt inside a command.

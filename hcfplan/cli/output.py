@@ -139,9 +139,10 @@ def print_fiber(r: dict) -> None:
         ("fission length L_D/N", "-" if r["fiber.fission_length_m"] is None else
          f"{fmt(r['fiber.fission_length_m'])} m", ""),
         ("nonlinear phase", f"{fmt(r['estimate.nonlinear_phase_rad'])} rad",
-         f"SPM broadening x{fmt(r['estimate.spm_broadening_factor'], 1, 3)} (Gaussian rms "
-         "estimate)"),
-        ("est. output bandwidth", f"{fmt(r['estimate.output_bandwidth_hz'], 1e12)} THz", ""),
+         f"SPM broadening x{fmt(r['estimate.spm_broadening_factor'], 1, 3)} (SPM-only "
+         "estimate, Gaussian rms)"),
+        ("est. output bandwidth", f"{fmt(r['estimate.output_bandwidth_hz'], 1e12)} THz",
+         "SPM-only estimate (dispersion neglected)"),
     ]
     if "fiber.resonance_wavelengths_m" in r:
         res = ", ".join(f"{x * 1e9:.0f}" for x in r["fiber.resonance_wavelengths_m"])
@@ -152,6 +153,7 @@ def print_fiber(r: dict) -> None:
         rows.insert(1, ("gas", f"{comps} at {r['gas.pressure_pa'] / 1e5:g} bar",
                         f"{r['gas.temperature_k']:g} K, n2 {r['gas.n2_m2_per_w']:.3g} m^2/W"))
     print_rows(rows)
+    echo(f"  note: {r['estimate.note']}")
     if "figure" in r:
         echo(f"\nFigure written: {r['figure']}")
     print_warnings(r["warnings"])
@@ -194,15 +196,36 @@ def print_spread(s: dict) -> None:
     rows = []
     for key, r in spread["ranges"].items():
         factor, unit = scale.get(key.split(".")[-1], (1.0, ""))
+        void = r.get("void_corners") or 0
         rows.append((key, f"{fmt(r['low'], factor)} ... {fmt(r['high'], factor)} {unit}",
-                     f"nominal {fmt(r['nominal'], factor)}"))
+                     f"nominal {fmt(r['nominal'], factor)}"
+                     + (f"; {void} corner{'s' if void > 1 else ''} void, left out" if void
+                        else "")))
     if rows:
         print_rows(rows)
+    corners = spread.get("corners", [])
+    if corners:
+        counts = {status: sum(1 for c in corners if c["verdict"] == status)
+                  for status in ("valid", "caution", "invalid")}
+        echo("  corner verdicts: " + ", ".join(f"{n} {status}" for status, n in counts.items()))
+    for corner in corners:
+        if corner["verdict"] == "invalid":
+            codes = ", ".join(x["code"] for x in corner["verdict_reasons"])
+            echo(f"  invalid corner {corner['values']}: {codes}")
     lim = s.get("limits", {})
     if "worst_case.status" in lim:
-        echo(f"  worst corner vs the limits: {lim['worst_case.status']} (self-focusing margin "
-             f"{fmt(lim.get('worst_case.self_focusing_margin'))}, ionisation fraction "
-             f"{fmt(lim.get('worst_case.ionization_fraction'))})")
+        from hcfplan.limits.margins import margin_text
+
+        echo(f"  worst corner vs the limits: {lim['worst_case.status']}")
+        sf = lim.get("worst_case.self_focusing_margin")
+        if sf is not None:
+            required = lim.get("worst_case.self_focusing_required_margin", 1.0)
+            echo("    " + margin_text("self-focusing margin", sf, required, "P_cr/P"))
+        fraction = lim.get("worst_case.ionization_fraction")
+        if fraction is not None:
+            echo(f"    ionisation fraction {fmt(fraction)}; "
+                 + margin_text("margin", lim.get("worst_case.ionization_margin"), 1.0,
+                               "limit/fraction", met=True if fraction == 0 else None))
     for failure in spread["failed"]:
         echo(f"  corner run failed: {failure}")
 
@@ -224,20 +247,42 @@ def print_simulation(s: dict, out_dir: Path) -> None:
         ("solver", f"{s['solver']['steps']} steps ({s['solver']['rejected_steps']} rejected)",
          f"grid {s['grid']['points']} points"),
     ]
+    from hcfplan.planning.verdict import stored_verdict
+
+    verdict = stored_verdict(s)
+    rows[2] = ("output spectrum", _shown(verdict, "output.bandwidth_hz",
+                                         f"{fmt(outp['bandwidth_hz'], 1e12)} THz at -20 dB"),
+               "transform limit " + _shown(verdict, "output.transform_limit_fwhm_s",
+                                           f"{fmt(outp['transform_limit_fwhm_s'], 1e-15)} fs",
+                                           brief=True))
     comp = s.get("compressed")
     if comp:
-        rows.append(("compressed", f"{fmt(comp['fwhm_s'], 1e-15)} fs FWHM, "
-                     f"{fmt(comp['peak_power_w'], 1e9)} GW",
-                     f"{comp['bounces']} bounces, total GDD {fmt(comp['gdd_s2'], 1e-30)} fs^2, "
-                     f"main lobe {fmt(comp['main_lobe_energy_fraction'], 0.01, 3)} %, "
-                     f"TL {fmt(comp['transform_limit_fwhm_s'], 1e-15)} fs"))
+        rows.append(("compressed FWHM",
+                     _shown(verdict, "compressed.fwhm_s", f"{fmt(comp['fwhm_s'], 1e-15)} fs"),
+                     _unless_void(verdict, "compressed.transform_limit_fwhm_s",
+                                  f"TL {fmt(comp['transform_limit_fwhm_s'], 1e-15)} fs, main lobe "
+                                  f"{fmt(comp['main_lobe_energy_fraction'], 0.01, 3)} %")))
+        rows.append(("compressed peak power",
+                     _shown(verdict, "compressed.peak_power_w",
+                            f"{fmt(comp['peak_power_w'], 1e9)} GW"),
+                     _unless_void(verdict, "compressed.gdd_s2",
+                                  f"{comp['bounces']} bounces, total GDD "
+                                  f"{fmt(comp['gdd_s2'], 1e-30)} fs^2")))
     thz = s.get("thz")
     if thz:
-        rows.append(("THz", f"peak {fmt(thz['peak_hz'], 1e12)} THz, cutoff "
-                     f"{fmt(thz['cutoff_hz'], 1e12)} THz",
-                     f"{thz['crystal']} {thz['thickness_m'] * 1e3:g} mm; cutoff = "
-                     f"{thz['cutoff_definition']}"))
+        rows.append(("THz cutoff",
+                     thz_cutoff_text(thz) if thz.get("cutoff_hz") is None else
+                     _shown(verdict, "thz.cutoff_hz", thz_cutoff_text(thz)),
+                     f"{thz['crystal']} {thz['thickness_m'] * 1e3:g} mm"
+                     + _unless_void(verdict, "thz.peak_hz",
+                                    ", peak " + thz_cutoff_text(thz, "peak_hz"))
+                     + _unless_void(verdict, "thz.cutoff_hz",
+                                    f"; cutoff = {thz['cutoff_definition']}")))
     print_rows(rows)
+    grid = s["grid"]
+    if grid.get("refinements"):
+        echo(f"grid refined {grid['refinements']}x ({'; then '.join(grid['refinement_reasons'])})")
+    print_verdict(verdict)
     echo(f"\nWritten to {out_dir}/: summary.json, fields.npz"
          + (" and figures" if any(out_dir.glob("*.png")) else ""))
     print_spread(s)
@@ -246,6 +291,44 @@ def print_simulation(s: dict, out_dir: Path) -> None:
         echo()
         print_limits(_flat_limits(s["limits"]))
     print_cautions()
+
+
+def thz_cutoff_text(thz: dict, key: str = "cutoff_hz") -> str:
+    """"6.61 THz", or "above the model's range (> 4.5 THz)" when the THz summary's ``key`` is
+    null because the spectrum reaches beyond the crystal model (``model_limit_hz``)."""
+    value = thz.get(key)
+    if value is not None:
+        return f"{fmt(value, 1e12)} THz"
+    limit = thz.get("model_limit_hz")
+    if limit is None:
+        return "-"
+    return f"above the model's range (> {fmt(limit, 1e12, 3)} THz)"
+
+
+def _shown(verdict, key: str, text: str, brief: bool = False) -> str:
+    """``text``, or "void (code: numbers)" when the verdict voids the summary key ``key``
+    (``brief``: "void (code)")."""
+    reason = verdict.void_reason(key)
+    if reason is None:
+        return text
+    return f"void ({reason.code})" if brief else f"void ({reason.code}: {reason.short})"
+
+
+def _unless_void(verdict, key: str, text: str) -> str:
+    """``text``, or nothing when the verdict voids ``key`` (its reason is shown elsewhere)."""
+    return "" if verdict.void_reason(key) is not None else text
+
+
+def print_verdict(verdict) -> None:
+    """The verdict line and one line per reason (see :mod:`hcfplan.planning.verdict`)."""
+    head = {"valid": "valid", "caution": "caution: read the reasons below",
+            "invalid": "INVALID: the numbers marked void are not results"}[verdict.status]
+    echo()
+    echo(f"Verdict: {head}")
+    for reason in verdict.reasons:
+        echo(f"  ! {reason.code}: {reason.message}")
+    if verdict.void_fields:
+        echo("  (summary.json keeps the void numbers; verdict.void_fields lists them)")
 
 
 def _flat_limits(nested: dict) -> dict:
@@ -265,15 +348,17 @@ def _fmt_check_value(value, unit: str) -> str:
 
 
 def print_limits(report: dict) -> None:
-    echo("Limits (estimates):")
+    from hcfplan.limits.margins import margin_text
+
+    echo("Limits (estimates; margin = limit/value or value/limit, met when >= required):")
     rows = []
     for check in report["limits.checks"]:
         unit = check.get("unit", "")
-        margin = check.get("margin")
         rows.append((check["name"],
                      f"{_fmt_check_value(check.get('value'), unit)} vs "
                      f"{_fmt_check_value(check.get('limit'), unit)}",
-                     f"{check['status']}" + ("" if margin is None else f", margin {margin:.3g}")
+                     margin_text("margin", check.get("margin"), check.get("required", 1.0),
+                                 check.get("ratio", ""), met=check.get("met"))
                      + (" (warning only)" if check.get("severity") == "warning" else "")))
     print_rows(rows)
     echo()
@@ -281,7 +366,30 @@ def print_limits(report: dict) -> None:
     print_warnings(report.get("limits.warnings", []))
 
 
-def print_envelope(result, plot: Path | None) -> None:
+def _print_envelope_check(check) -> None:
+    from hcfplan.planning.envelope_check import UNCHECKED_NOTE, point_phrases
+
+    echo()
+    if check is None:
+        echo(f"GNLSE check: none. {UNCHECKED_NOTE}")
+        return
+    echo(f"GNLSE check of the SPM-only estimates (ratio = chain / estimate, flagged outside "
+         f"[1/{check.factor:g}, {check.factor:g}]); sweet spot: {check.sweet_spot}:")
+    for note in check.notes:
+        echo(f"  {note}")
+    for pt in check.points:
+        echo(f"  {pt.energy * 1e6:.4g} uJ, {pt.pressure / 1e5:.4g} bar: compressed FWHM "
+             f"{fmt(pt.estimate_duration, 1e-15, 3)} fs estimated, "
+             f"{fmt(pt.gnlse_duration, 1e-15, 3)} fs GNLSE (ratio {fmt(pt.ratio, 1, 2)}); "
+             f"THz cutoff {fmt(pt.estimate_cutoff, 1e12, 3)} THz estimated, "
+             f"{fmt(pt.gnlse_cutoff, 1e12, 3)} THz chain (ratio {fmt(pt.cutoff_ratio, 1, 2)})")
+        for phrase in point_phrases(pt, check.factor):
+            echo(f"    ! {phrase}")
+        if pt.note:
+            echo(f"    {pt.note}")
+
+
+def print_envelope(result, plot: Path | None, check=None) -> None:
     import numpy as np
 
     p = result.pressures
@@ -291,7 +399,7 @@ def print_envelope(result, plot: Path | None) -> None:
         ("configured point", f"{result.config_energy * 1e6:.4g} uJ at "
          f"{result.config_pressure / 1e5:.4g} bar", ""),
         ("self-focusing limit", f"{result.self_focusing_max_energy[k] * 1e6:.4g} uJ at this "
-         "pressure", f"margin P_cr/P = {result.self_focusing_margin:g}"),
+         "pressure", f"where P_cr/P = {result.self_focusing_margin:g} (the required margin)"),
         ("ionisation limit", f"{result.ionization_max_energy[k] * 1e6:.4g} uJ",
          f"fraction {result.ionization_fraction_limit:g}"),
         ("zero-dispersion pressure", "none on the map" if not np.isfinite(zdp)
@@ -304,6 +412,7 @@ def print_envelope(result, plot: Path | None) -> None:
     print_rows(rows)
     for note in result.notes:
         echo(f"  note: {note}")
+    _print_envelope_check(check)
     if plot is not None:
         echo(f"\nFigure written: {plot}")
     print_cautions()

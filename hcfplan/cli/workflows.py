@@ -95,15 +95,26 @@ def scan_figures(out_dir: Path, plan, records) -> list[str]:
 
 def _scan_rows(plan, records) -> tuple[list[str], list[list[str]]]:
     keys = [v.key for v in plan.varies]
-    header = keys + ["status", "FWHM (fs)", "peak (GW)", "THz cutoff", "SF margin",
+    required = records[0]["margins"].get("self_focusing_required") if records else None
+    header = keys + ["status", "verdict", "FWHM (fs)", "peak (GW)", "THz cutoff",
+                     "SF margin P_cr/P" + (f" (req. >= {required:g})" if required else ""),
                      "ion. fraction", "beyond limits"]
+    from hcfplan.planning.verdict import verdict_of_record
+
     rows = []
     for r in records:
         s, m = r["summary"], r["margins"]
         comp, thz = s.get("compressed", {}), s.get("thz", {})
+        verdict = verdict_of_record(r)
+
+        def shown(key, value, scale, verdict=verdict):
+            return "void" if value is not None and verdict.void_reason(key) else fmt(value, scale)
+
         rows.append([str(r["values"][k]) for k in keys] + [
-            r["status"], fmt(comp.get("fwhm_s"), 1e-15), fmt(comp.get("peak_power_w"), 1e9),
-            fmt(thz.get("cutoff_hz"), 1e12), fmt(m.get("self_focusing"), 1, 3),
+            r["status"], " ".join([verdict.status, *verdict.codes]),
+            shown("compressed.fwhm_s", comp.get("fwhm_s"), 1e-15),
+            shown("compressed.peak_power_w", comp.get("peak_power_w"), 1e9),
+            shown("thz.cutoff_hz", thz.get("cutoff_hz"), 1e12), fmt(m.get("self_focusing"), 1, 3),
             fmt(m.get("ionization_fraction"), 1, 3),
             m.get("binding") or ("-" if r["status"] == "ok" else r["message"][:60])])
     return header, rows
@@ -201,14 +212,24 @@ def recommend_command(
                              "(compressed peak power) or thz_cutoff."),
     target_thz: Optional[float] = typer.Option(  # noqa: UP007, UP045
         None, "--target-thz", help="With --goal thz_cutoff: the smallest pressure (or energy) "
-        "whose THz cutoff reaches this value, or the closest."),
-    vary: Optional[str] = typer.Option(  # noqa: UP007, UP045
-        None, "--vary", help="Searched range: gas.pressure_bar=LO:HI or laser.energy_uj=LO:HI "
-        "(default: pressure from a tenth of the fill to the cell rating, or 3x the fill)."),
+        "whose THz cutoff reaches this value."),
+    vary: Optional[list[str]] = typer.Option(  # noqa: UP007, UP045
+        None, "--vary", help="Searched range: gas.pressure_bar=LO:HI or laser.energy_uj=LO:HI; "
+        "give both for a joint search (default: pressure from a tenth of the fill to the cell "
+        "rating, or 3x the fill; the pressure stays at or below limits.rating_fraction of the "
+        "rating)."),
     gases: Optional[str] = typer.Option(  # noqa: UP007, UP045
         None, "--gases", help="Comma list of fill gases searched one after the other, e.g. "
         "Ar,Kr,Ne."),
-    budget: int = typer.Option(12, "--budget", help="Full chain runs per gas, at most."),
+    coarse: Optional[int] = typer.Option(  # noqa: UP007, UP045
+        None, "--coarse", help="Points of the coarse pass over the whole range, per searched "
+        "key (default 12 for one key, 6 per key for two)."),
+    budget: Optional[int] = typer.Option(  # noqa: UP007, UP045
+        None, "--budget", help="Full chain runs per gas, at most, coarse pass included "
+        "(default: the coarse pass + 12 for one key, + 16 for two)."),
+    workers: Optional[int] = typer.Option(  # noqa: UP007, UP045
+        None, "--workers", help="Points computed at a time, by this process and local worker "
+        "processes (default: all cores); 1 runs the points in this process only."),
     set_: Optional[list[str]] = typer.Option(None, "--set", help=SET_HELP),  # noqa: UP007, UP045
     as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
 ) -> None:
@@ -216,8 +237,22 @@ def recommend_command(
     from hcfplan.planning.recommend import overall_best, recommend
 
     gas_list = tuple(g.strip() for g in gases.split(",") if g.strip()) if gases else ()
-    recs = recommend(config, goal, search=vary, gases=gas_list, target_thz=target_thz,
-                     overrides=tuple(set_ or ()), extra_gas_dirs=gas_dirs(), budget=budget)
+    count = worker_count(workers)
+    if workers is not None and workers < 1:
+        raise ConfigError(f"--workers = {workers}: must be >= 1")
+    if count > 1:  # the fork server imports while the allowed range is worked out
+        start_workers(workers)
+    bar = TerminalBar(not as_json, "recommend")
+    try:
+        with _sigterm_as_exit():
+            recs = recommend(config, goal, search=vary, gases=gas_list, target_thz=target_thz,
+                             overrides=tuple(set_ or ()), extra_gas_dirs=gas_dirs(),
+                             budget=budget, coarse=coarse, workers=count,
+                             on_batch=lambda done, size: bar.draw(
+                                 0.0, f"{done} runs done, {size} running"))
+    finally:
+        bar.close()
+    stop_workers()
     chosen = overall_best(recs)
     if as_json:
         print_json({"chosen": _rec_json(chosen) if chosen else None,
@@ -227,49 +262,100 @@ def recommend_command(
             _print_recommendation(rec, rec is chosen and len(recs) > 1)
         print_cautions()
     if chosen is None:
-        typer.echo("hcfplan: no point meets the goal within the modelled limits: "
-                   + "; ".join(r.reason for r in recs), err=True)
+        typer.echo("hcfplan: " + "; ".join(r.reason for r in recs), err=True)
         raise typer.Exit(1)
 
 
+def _point_json(rec, e) -> dict | None:
+    if e is None:
+        return None
+    return {"values": dict(zip(rec.keys, e.values, strict=True)), "objective": e.objective,
+            "valid": e.valid, "verdict": e.verdict, "margins": e.record.get("margins"),
+            "summary": e.record.get("summary")}
+
+
 def _rec_json(rec) -> dict:
-    best = rec.best
     return {
-        "goal": rec.goal, "key": rec.key, "gas": rec.gas, "requested": list(rec.requested),
-        "allowed": list(rec.allowed) if rec.allowed else None, "bound": rec.bound_reason,
-        "tolerance": rec.tolerance, "target_thz": rec.target_thz, "reason": rec.reason,
-        "best": None if best is None else {
-            "value": best.value, "objective": best.objective,
-            "margins": best.record["margins"], "summary": best.record["summary"]},
-        "evaluations": [{"value": e.value, "status": e.status, "objective": e.objective,
-                         "acceptable": e.acceptable, "binding": e.binding}
+        "goal": rec.goal, "keys": list(rec.keys), "gas": rec.gas,
+        "requested": {k: list(s) for k, s in zip(rec.keys, rec.requested, strict=True)},
+        "allowed": ({k: list(s) for k, s in zip(rec.keys, rec.allowed, strict=True)}
+                    if rec.allowed else None),
+        "bound": rec.bound_reason, "rating_fraction": rec.rating_fraction,
+        "pressure_cap_pa": None if rec.pressure_cap is None else rec.pressure_cap * 1e5,
+        "tolerance": dict(zip(rec.keys, rec.tolerance, strict=True)),
+        "target_thz": rec.target_thz, "reason": rec.reason, "coarse_points": rec.coarse,
+        "runs": rec.runs, "best": _point_json(rec, rec.best), "binding": list(rec.binding),
+        "closest": _point_json(rec, rec.closest),
+        "excluded": [{"reason": why, "points": n} for why, n in rec.excluded],
+        "excluded_ranges": list(rec.spans),
+        "evaluations": [{"values": dict(zip(rec.keys, e.values, strict=True)),
+                         "status": e.status, "verdict": e.verdict, "objective": e.objective,
+                         "valid": e.valid, "reasons": list(e.reasons)}
                         for e in rec.evaluations],
     }
 
 
+def _values_text(rec, values) -> str:
+    return ", ".join(f"{k} = {v:.4g} {u}"
+                     for k, v, u in zip(rec.keys, values, rec.units, strict=True))
+
+
 def _print_recommendation(rec, chosen: bool) -> None:
-    unit = "bar" if rec.key == "gas.pressure_bar" else "uJ"
+    from hcfplan.planning.recommend_points import NOT_REACHED
+
     head = f"{rec.gas}: " if rec.gas else ""
-    typer.echo(f"{head}goal {rec.goal}, {rec.key} in {rec.requested[0]:g}-{rec.requested[1]:g} "
-               f"{unit}" + (f" (allowed up to {rec.allowed[1]:.4g} {unit}: {rec.bound_reason})"
-                            if rec.allowed and rec.bound_reason else ""))
+    typer.echo(f"{head}goal {rec.goal}" + (f" (target {rec.target_thz:g} THz)"
+                                           if rec.target_thz else "") + ", "
+               + ", ".join(f"{k} in {lo:g}-{hi:g} {u}" for k, (lo, hi), u
+                           in zip(rec.keys, rec.requested, rec.units, strict=True)))
+    if rec.pressure_cap is not None:
+        typer.echo(f"  pressure searched at or below {rec.rating_fraction:g} x the cell rating "
+                   f"= {rec.pressure_cap:.4g} bar (limits.rating_fraction); the cell maker's "
+                   "rating, local codes and licensed practice come first")
+    else:
+        typer.echo("  no cell rating given (cell.rated_pressure_bar): the search is not "
+                   "bounded by one; give the lowest rating of cell, windows and fittings")
+    if rec.allowed and rec.bound_reason:
+        typer.echo(f"  allowed range cut: {rec.bound_reason}")
     best = rec.best
     if best is not None:
-        s, m = best.record["summary"], best.record["margins"]
-        comp, thz = s.get("compressed", {}), s.get("thz", {})
+        from hcfplan.planning.verdict import verdict_of_record
+
+        verdict = verdict_of_record(best.record)
+        comp = best.record["summary"].get("compressed", {})
+        thz = best.record["summary"].get("thz", {})
+
+        def shown(section, name, scale):
+            reason = verdict.void_reason(f"{section}.{name}")
+            value = (comp if section == "compressed" else thz).get(name)
+            return fmt(value, scale) if reason is None else f"void ({reason.code})"
+
         mark = "  <- best" if chosen else ""
-        typer.echo(f"  chosen {rec.key} = {best.value:.4g} {unit} (search tolerance "
-                   f"{rec.tolerance:.2g} {unit}){mark}")
-        typer.echo(f"  compressed {fmt(comp.get('fwhm_s'), 1e-15)} fs, "
-                   f"{fmt(comp.get('peak_power_w'), 1e9)} GW; THz cutoff "
-                   f"{fmt(thz.get('cutoff_hz'), 1e12)} THz")
-        typer.echo(f"  margins: self-focusing {fmt(m.get('self_focusing'), 1, 3)} (required "
-                   f"{m.get('self_focusing_required'):g}), ionisation fraction "
-                   f"{fmt(m.get('ionization_fraction'), 1, 3)} (limit "
-                   f"{m.get('ionization_limit'):g})")
+        tol = ", ".join(f"{t:.2g} {u}" for t, u in zip(rec.tolerance, rec.units, strict=True))
+        typer.echo(f"  chosen {_values_text(rec, best.values)} (search tolerance {tol}; "
+                   f"verdict {best.verdict}){mark}")
+        typer.echo(f"  compressed {shown('compressed', 'fwhm_s', 1e-15)} fs, "
+                   f"{shown('compressed', 'peak_power_w', 1e9)} GW; THz cutoff "
+                   f"{shown('thz', 'cutoff_hz', 1e12)} THz")
+        if verdict.reasons:
+            typer.echo(f"  verdict {verdict.status}: {verdict.reasons_text()}")
+        for i, c in enumerate(rec.binding):
+            typer.echo(f"  {'binding:' if i == 0 else '        '} {c['text']}")
+    elif rec.closest is not None:
+        thz = rec.closest.record["summary"].get("thz", {})
+        typer.echo(f"  closest valid point: {_values_text(rec, rec.closest.values)}, THz "
+                   f"cutoff {fmt(thz.get('cutoff_hz'), 1e12)} THz (below the target)")
+    if rec.evaluations:
+        bad = sum(1 for e in rec.evaluations if not e.valid)
+        why = ", ".join(f"{n} {reason}" for reason, n in rec.excluded if reason != NOT_REACHED)
+        short = dict(rec.excluded).get(NOT_REACHED)
+        typer.echo(f"  {len(rec.evaluations)} points ({rec.coarse} in the coarse pass, "
+                   f"{rec.runs} full runs); {bad} excluded" + (f": {why}" if why else "")
+                   + (f"; {short} valid but below the target" if short else ""))
+        for span in rec.spans:
+            typer.echo(f"    {span}")
     if rec.reason:
         typer.echo(f"  note: {rec.reason}")
-    typer.echo(f"  {len(rec.evaluations)} full runs")
     typer.echo()
 
 
@@ -317,6 +403,8 @@ def compare_command(
     if as_json:
         print_json({"labels": list(labels), "rows": list(comparison.rows),
                     "margins": {"a": comparison.a.margins, "b": comparison.b.margins},
+                    "verdict": {"a": comparison.a.verdict.as_dict(),
+                                "b": comparison.b.verdict.as_dict()},
                     "spread": spreads, "figures": figures, "cautions": _cautions()})
     else:
         _print_comparison(comparison, figures, out)
@@ -361,16 +449,24 @@ def _print_comparison(comparison, figures, out) -> None:
     rows = []
     for r in comparison.rows:
         scale, unit = r["scale"], r["unit"]
-        rows.append([r["label"] + (f" ({unit})" if unit else ""), fmt(r["a"], scale),
-                     fmt(r["b"], scale), fmt(r["difference"], scale),
-                     fmt(r["ratio"], 1, 3)])
+        a = f"void ({r['a_void']})" if r.get("a_void") else fmt(r["a"], scale)
+        b = f"void ({r['b_void']})" if r.get("b_void") else fmt(r["b"], scale)
+        rows.append([r["label"] + (f" ({unit})" if unit else ""), a, b,
+                     fmt(r["difference"], scale), fmt(r["ratio"], 1, 3)])
     typer.echo(f"A = {comparison.a.label}\nB = {comparison.b.label}\n")
     print_table(["quantity", "A", "B", "B - A", "B / A"], rows)
+    from hcfplan.limits.margins import margin_text
+
     for side in (comparison.a, comparison.b):
         m = side.margins
         state = ("within the modelled limits" if m["acceptable"]
                  else f"BEYOND the modelled limits: {m['binding']}")
         typer.echo(f"\n{side.label}: {state}")
+        typer.echo("  " + margin_text("self-focusing margin", m.get("self_focusing"),
+                                      m.get("self_focusing_required", 1.0), "P_cr/P"))
+        typer.echo(f"  verdict: {side.verdict.status}")
+        for reason in side.verdict.reasons:
+            typer.echo(f"  ! {reason.code}: {reason.message}")
     if figures:
         typer.echo(f"\nFigures written to {out}/: {', '.join(figures)}")
 

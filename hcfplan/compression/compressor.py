@@ -17,8 +17,10 @@ Definitions used throughout
 * The references (best pure-quadratic phase, best quadratic + cubic phase) replace the mirrors
   and the trim by an ideal polynomial phase; the fixed phase and the band clipping stay. Their
   reported GDD/TOD, like those of the chirped-mirror result, are the totals of the applied
-  phase (fixed + compressor) at ``omega0``.
-* Main lobe, pre- and post-pulse follow :func:`hcfplan.pulse.metrics.main_lobe`.
+  phase (fixed + compressor) at the pump (``grid.omega_pump``).
+* Main lobe, pre- and post-pulse follow :func:`hcfplan.pulse.metrics.main_lobe`; every metric
+  is measured on the band-limited interpolant of the envelope (:mod:`hcfplan.pulse.metrics`),
+  and the peak-power search uses the band-limited peak too.
 
 The evaluation machinery of the searches (objectives, the scorer, the 1-D search) is in
 :mod:`hcfplan.compression.scoring`, the reference searches in
@@ -60,7 +62,7 @@ class TrimSpec:
     Attributes
     ----------
     phase_per_length : ndarray
-        ``material_phase(omega, omega0, n, 1.0)`` on ``grid.omega`` (see :meth:`from_index`).
+        ``material_phase(omega, omega_pump, n, 1.0)`` on ``grid.omega`` (see :meth:`from_index`).
         [rad/m]
     insertion_min, insertion_max : float
         Bounds of the total insertion (thickness traversed). [m]
@@ -88,7 +90,7 @@ class TrimSpec:
         None: :func:`hcfplan.compression.elements.material_phase` per unit length, whose
         docstring names its source.
         """
-        unit = material_phase(grid.omega, grid.omega0, refractive_index, 1.0)
+        unit = material_phase(grid.omega, grid.omega_pump, refractive_index, 1.0)
         return cls(unit, insertion_min, insertion_max)
 
 
@@ -105,7 +107,7 @@ class CompressionResult:
     bounces : int
         Chosen number of mirror bounces.
     total_gdd, total_tod : float
-        GDD and TOD at omega0 of the whole applied phase (fixed + mirrors + trim). [s^2], [s^3]
+        GDD and TOD at the pump of the whole applied phase (fixed + mirrors + trim). [s^2], [s^3]
     trim_insertion : float
         Chosen trim insertion (0 without a trim). [m]
     field_t : ndarray
@@ -131,7 +133,8 @@ class CompressionResult:
         The references (see the module docstring).
     cautions : tuple of str
         Plain-text notes, e.g. that the best count is the largest one allowed (the optimum may
-        lie beyond ``max_bounces``) or that the trim ended at a bound of its range.
+        lie beyond ``max_bounces``), that the trim ended at a bound of its range, or that the
+        main peak is narrower than the transform limit's.
     """
 
     grid: Grid
@@ -276,8 +279,8 @@ class _Chain:
         return total if self.trim is None else total + insertion * self.trim.phase_per_length
 
     def gdd_tod(self, phase: np.ndarray) -> tuple[float, float]:
-        """GDD [s^2] and TOD [s^3] of ``phase`` at omega0."""
-        _, _, gdd, tod = phase_derivatives_at(self.grid.omega, self.grid.omega0, phase)
+        """GDD [s^2] and TOD [s^3] of ``phase`` at the pump (``grid.omega_pump``)."""
+        _, _, gdd, tod = phase_derivatives_at(self.grid.omega, self.grid.omega_pump, phase)
         return gdd, tod
 
     def search_span(self, counts: np.ndarray) -> float:
@@ -303,6 +306,17 @@ def _chain(grid: Grid, spectrum, fixed_phase, mirror_phase_per_bounce, band, tri
         _finite_phase("mirror_phase_per_bounce", mirror_phase_per_bounce, clipped),
         trim,
     )
+
+
+def _narrower_than_limit(m: PulseMetrics) -> list[str]:
+    """A note when the main peak is narrower than the transform limit's (see
+    :mod:`hcfplan.pulse.metrics`: a phase can do that by moving energy out of the peak)."""
+    if not m.fwhm < m.transform_limited_fwhm:
+        return []
+    return [f"the main peak ({m.fwhm * 1e15:.2f} fs FWHM) is narrower than the transform "
+            f"limit's ({m.transform_limited_fwhm * 1e15:.2f} fs) because the remaining phase moves "
+            f"energy out of it (peak power {m.peak_to_transform_limit:.0%} of the transform "
+            "limit's); judge the compression by peak power, not by FWHM"]
 
 
 def _cautions(counts: np.ndarray, bounces: int, trim: TrimSpec | None, insertion: float):
@@ -368,7 +382,7 @@ def optimize_bounces(
     Notes
     -----
     The elements are phase-only (convention 4 of :mod:`hcfplan.numerics.grid`); GDD and TOD
-    are the second and third derivatives of the applied phase at omega0 [1]. The search is
+    are the second and third derivatives of the applied phase at the pump [1]. The search is
     numerical: every candidate count is scored, the trim by a coarse scan and bounded Brent
     minimisation (:func:`hcfplan.compression.scoring.scan_then_refine`).
 
@@ -408,6 +422,7 @@ def optimize_bounces(
     if chain.trim is not None:
         phases = [chain.phase(k, l) for k, l in zip(counts, trims, strict=True)]
         curve_trim = -scores if by_peak else peak_powers(score, phases)
+    result_metrics = pulse_metrics(grid, field_t, input_peak_power=input_peak_power)
     return CompressionResult(
         grid=grid,
         objective=objective,
@@ -419,7 +434,7 @@ def optimize_bounces(
         spectrum=out_spectrum,
         input_energy=grid.energy_w(spectrum),
         band_loss=chain.band_loss,
-        metrics=pulse_metrics(grid, field_t, input_peak_power=input_peak_power),
+        metrics=result_metrics,
         bounce_counts=counts,
         peak_power_vs_bounces=curve,
         peak_power_vs_bounces_trimmed=curve_trim,
@@ -427,5 +442,6 @@ def optimize_bounces(
         quadratic=refs[0],
         quadratic_cubic=refs[1],
         transform_limit=refs[2],
-        cautions=_cautions(counts, n, chain.trim, insertion),
+        cautions=_cautions(counts, n, chain.trim, insertion)
+        + tuple(_narrower_than_limit(result_metrics)),
     )

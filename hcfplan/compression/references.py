@@ -3,9 +3,9 @@ the transform limit.
 
 The references replace the chirped mirrors and the trim by an ideal polynomial phase
 :math:`\\tfrac12\\,\\mathrm{GDD}\\,\\Delta\\omega^2 + \\tfrac16\\,\\mathrm{TOD}\\,\\Delta\\omega^3`
-(the Taylor expansion of the spectral phase about omega0, [1]); the fixed phase (window, air)
+(the Taylor expansion of the spectral phase about the pump, [1]); the fixed phase (window, air)
 and the band clipping stay. Their reported GDD/TOD are the totals of the applied phase
-(fixed + ideal) at ``omega0``. The searches are numerical (coarse scan and bounded Brent for
+(fixed + ideal) at the pump. The searches are numerical (coarse scan and bounded Brent for
 the GDD, then Nelder-Mead for GDD and TOD together; :mod:`hcfplan.compression.scoring`).
 
 References
@@ -37,7 +37,7 @@ class ReferencePulse:
     name : str
         ``"quadratic"``, ``"quadratic_cubic"`` or ``"transform_limit"``.
     total_gdd, total_tod : float
-        GDD and TOD of the applied phase (fixed + ideal) at omega0; nan for the transform
+        GDD and TOD of the applied phase (fixed + ideal) at the pump; nan for the transform
         limit. [s^2], [s^3]
     field_t : ndarray
         Temporal envelope on ``grid.time``. [sqrt(W)]
@@ -57,7 +57,7 @@ def _reference(
 ) -> ReferencePulse:
     """Build a :class:`ReferencePulse` from an applied total phase."""
     field_t = grid.to_time(spectrum * np.exp(1j * phase))
-    _, _, gdd, tod = phase_derivatives_at(grid.omega, grid.omega0, phase)
+    _, _, gdd, tod = phase_derivatives_at(grid.omega, grid.omega_pump, phase)
     reference_metrics = pulse_metrics(grid, field_t, input_peak_power=peak_in)
     return ReferencePulse(name, gdd, tod, field_t, reference_metrics)
 
@@ -150,7 +150,7 @@ def reference_pulses(
     score : Scorer
         Scorer of ``clipped`` with the compressor's objective.
     compressor : (float, float, float)
-        (GDD [s^2], TOD [s^3], GDD search half-span [s^2]) of the mirrors + trim at omega0;
+        (GDD [s^2], TOD [s^3], GDD search half-span [s^2]) of the mirrors + trim at the pump;
         the ideal phases are searched around it.
     peak_in : float or None
         Peak power to which the gains refer. [W]
@@ -165,7 +165,7 @@ def reference_pulses(
            Press, 2006, ch. 1 [from memory] (Taylor expansion of the spectral phase).
     """
     tl_field = metrics.transform_limit(grid, clipped)
-    scale = metrics.fwhm(grid.time, np.abs(tl_field) ** 2)
+    scale = metrics.envelope_fwhm(grid, tl_field)
     scale = scale if np.isfinite(scale) else 10.0 * grid.dt
     gdd_center, tod_center, gdd_span = compressor
     shaped = score.with_phase(score.part(fixed))

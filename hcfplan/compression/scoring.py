@@ -27,7 +27,7 @@ SCAN_POINTS = 21
 
 
 def negative_peak_power(grid: Grid, field_t: np.ndarray) -> float:
-    """Objective to minimise: minus the peak power. [W]
+    """Objective to minimise: minus the peak power of the band-limited envelope. [W]
 
     Parameters
     ----------
@@ -35,6 +35,11 @@ def negative_peak_power(grid: Grid, field_t: np.ndarray) -> float:
         The grid of ``field_t`` (unused; the signature of every objective).
     field_t : ndarray
         Temporal envelope. [sqrt(W)]
+
+    Notes
+    -----
+    :func:`hcfplan.pulse.metrics.peak_power`: the maximum between the samples, not the highest
+    sample, so that the search does not prefer phases that happen to put the peak on a sample.
 
     References
     ----------
@@ -52,6 +57,12 @@ def main_peak_duration(grid: Grid, field_t: np.ndarray) -> float:
         The grid of ``field_t``.
     field_t : ndarray
         Temporal envelope. [sqrt(W)]
+
+    Notes
+    -----
+    The width is that of the sampled |A|^2, a cheap stand-in for the band-limited width that
+    is reported (:func:`hcfplan.pulse.metrics.envelope_fwhm` interpolates the whole window with
+    one FFT of up to 16 N points, too slow for the hundreds of calls of a search).
 
     References
     ----------
@@ -74,7 +85,7 @@ def polynomial_phase(grid: Grid, gdd: float, tod: float) -> np.ndarray:
     Parameters
     ----------
     grid : Grid
-        The grid; dw = ``grid.domega``. [rad/s]
+        The grid; dw = ``grid.domega_pump`` (the offset from the pump). [rad/s]
     gdd : float
         Group-delay dispersion. [s^2]
     tod : float
@@ -85,7 +96,8 @@ def polynomial_phase(grid: Grid, gdd: float, tod: float) -> np.ndarray:
     None: numerical helper (the Taylor form of :func:`hcfplan.compression.elements.mirror_phase`,
     whose docstring names its source).
     """
-    return 0.5 * gdd * grid.domega**2 + tod / 6.0 * grid.domega**3
+    dw = grid.domega_pump
+    return 0.5 * gdd * dw**2 + tod / 6.0 * dw**3
 
 
 def scan_then_refine(fun: Callable[[float], float], lo: float, hi: float) -> tuple[float, float]:

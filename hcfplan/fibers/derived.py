@@ -270,3 +270,62 @@ def spm_broadening_factor(phi_max: float | np.ndarray) -> np.ndarray:
     """
     phi = np.asarray(phi_max, dtype=float)
     return np.sqrt(1.0 + 4.0 / (3.0 * np.sqrt(3.0)) * phi**2)
+
+
+def dispersive_wave_frequency(waveguide: Waveguide, omega_pump: float, soliton_power: float,
+                              gamma: float, omega_max: float) -> float | None:
+    """Angular frequency of the resonant dispersive wave phase-matched with a soliton at the pump.
+
+    Parameters
+    ----------
+    waveguide : Waveguide
+        Fiber model; its ``propagation_constant`` gives beta(omega). [rad/m]
+    omega_pump : float
+        Pump (soliton) angular frequency; the dispersion there must be anomalous. [rad/s]
+    soliton_power : float
+        Soliton peak power for the nonlinear phase term. [W]
+    gamma : float
+        Nonlinear coefficient at the pump. [1/(W m)]
+    omega_max : float
+        Highest angular frequency searched. [rad/s]
+
+    Returns
+    -------
+    float or None
+        The lowest omega above the pump with
+        beta(omega) - beta(omega_p) - beta1 (omega - omega_p) - gamma P / 2 = 0; None when the
+        pump is not anomalous or no such frequency lies below ``omega_max``. [rad/s]
+
+    Notes
+    -----
+    The phase-matching condition of the soliton (moving at the pump's group velocity with the
+    nonlinear wavenumber gamma P / 2) and a linear wave, with the full beta(omega) of the
+    waveguide, as in Joly et al. [1]. Searched on ``ZDW_SEARCH_POINTS`` samples (non-finite
+    beta skipped) and refined with brentq.
+
+    References
+    ----------
+    .. [1] N. Y. Joly, J. Nold, W. Chang, P. Hölzer, A. Nazarkin, G. K. L. Wong, F. Biancalana
+           and P. St.J. Russell, "Bright spatially coherent wavelength-tunable deep-UV laser
+           source using an Ar-filled photonic crystal fiber," Phys. Rev. Lett. 106, 203901
+           (2011) [from memory].
+    """
+    betas = derivative_table(waveguide.propagation_constant, float(omega_pump), 2)
+    if not betas[2] < 0 or not omega_max > omega_pump:
+        return None
+    offset = 0.5 * gamma * soliton_power
+
+    def mismatch(omega):
+        omega = np.asarray(omega, dtype=float)
+        with np.errstate(all="ignore"):
+            beta = np.asarray(waveguide.propagation_constant(omega), dtype=float)
+        return beta - betas[0] - betas[1] * (omega - omega_pump) - offset
+
+    omega = np.linspace(omega_pump * 1.02, omega_max, ZDW_SEARCH_POINTS)
+    values = mismatch(omega)
+    for k in range(omega.size - 1):
+        a, b = values[k], values[k + 1]
+        if np.isfinite(a) and np.isfinite(b) and a < 0 <= b:
+            return float(optimize.brentq(lambda w: float(mismatch(np.array([w]))[0]),
+                                         omega[k], omega[k + 1]))
+    return None

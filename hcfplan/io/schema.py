@@ -130,9 +130,11 @@ SCHEMA: dict[str, dict[str, Key]] = {
         "crystal": Key("str", "GaP", "Generation crystal."),
         "thickness_mm": Key(F, 0.3, "Generation crystal thickness.", 1.0e-3, 50.0,
                             low_open=False),
-        "cutoff_db": Key(F, -20.0, "Cutoff level relative to the spectral peak.", -200.0, 0.0,
+        "cutoff_db": Key(F, -20.0, "Share of the THz energy above the cutoff (-20 dB: 99 % "
+                         "of it lies below the cutoff).", -200.0, 0.0,
                          low_open=False, high_open=True),
-        "cutoff_quantity": Key("choice", "power", "Spectrum the cutoff level applies to.",
+        "cutoff_quantity": Key("choice", "power", "Spectrum whose integral the cutoff divides: "
+                               "power (the energy) or field (the field amplitude).",
                                choices=("power", "field")),
         "detector_crystal": Key("str", None, "EO detection crystal (optional)."),
         "detector_thickness_mm": Key(F, None, "EO detection crystal thickness.", 1.0e-3, 50.0,
@@ -147,8 +149,9 @@ SCHEMA: dict[str, dict[str, Key]] = {
                                         0.0, 1.0e3),
     },
     "limits": {
-        "self_focusing_margin": Key(F, 2.0, "Required ratio P_cr / P_peak.", 1.0, 1.0e3,
-                                    low_open=False),
+        "self_focusing_margin": Key(F, 2.0, "Required self-focusing margin P_cr / P (critical "
+                                    "power over the coupled peak power); every report shows "
+                                    "P_cr / P beside it.", 1.0, 1.0e3, low_open=False),
         "ionization_fraction_limit": Key(F, 1.0e-4, "Ionisation fraction treated as the limit.",
                                          0.0, 1.0, high_open=True),
         "window_safety_factor": Key(F, 4.0, "Safety factor of the window plate formula.",
@@ -168,6 +171,9 @@ SCHEMA: dict[str, dict[str, Key]] = {
         "cylinder_volume_l": Key(F, None, "Water volume of the gas cylinder(s).", 0.0, 1.0e5),
         "cylinder_pressure_bar": Key(F, None, "Filling pressure of the cylinder(s).", 0.0,
                                      1000.0),
+        "rating_fraction": Key(F, 0.9, "Highest share of cell.rated_pressure_bar that "
+                               "recommend searches (common practice, operate at least 10 % "
+                               "below the relief or rated pressure, no source).", 0.0, 1.0),
     },
     "spread": {
         "energy_percent": Key(F, 5.0, "Energy half-width used by --spread default.", 0.0, 99.0),

@@ -122,6 +122,7 @@ class LimitsSpec:
     room_volume: float | None  #: [m^3]
     cylinder_volume: float | None  #: [m^3]
     cylinder_pressure: float | None  #: [Pa]
+    rating_fraction: float = 0.9  #: highest share of the rated pressure searched [1]
 
 
 @dataclass(frozen=True)

@@ -154,6 +154,11 @@ def self_focusing_margin(critical_power, peak_power):
     References
     ----------
     none: ratio of two powers.
+
+    See Also
+    --------
+    hcfplan.limits.margins.margin : the same convention (limit / value) for every margin of the
+        reports, with the required value beside it (``limits.self_focusing_margin``).
     """
     _check_positive("peak_power", peak_power, "W", allow_zero=True)
     with np.errstate(divide="ignore"):

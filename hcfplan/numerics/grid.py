@@ -2,9 +2,20 @@
 
 Conventions (every other module refers to this docstring)
 ---------------------------------------------------------
-1. **Field and envelope.** The real optical field is
+1. **Field, envelope, reference and pump.** The real optical field is
    :math:`E(z,t) = \\mathrm{Re}[A(z,t)\\, e^{i(\\beta_0 z - \\omega_0 t)}]`, i.e. a plane wave varies as
-   :math:`e^{i(\\beta z-\\omega t)}`. The envelope ``A`` is scaled so that :math:`|A|^2` is the
+   :math:`e^{i(\\beta z-\\omega t)}`. :math:`\\omega_0` (``Grid.omega0``) is the *reference*
+   frequency: the centre of the frequency window and the carrier the envelope is written about.
+   It need not be the pump frequency :math:`\\omega_p` (``Grid.omega_pump``, by default equal to
+   :math:`\\omega_0`): the window is centred on the band the run needs (:func:`choose_grid`),
+   and a pump at :math:`\\omega_p \\ne \\omega_0` enters as an envelope carrying
+   :math:`e^{-i(\\omega_p-\\omega_0)t}`. Everything that belongs to the pump uses
+   :math:`\\omega_p`: the group-velocity frame (:math:`\\beta_0, \\beta_1` in convention 4),
+   the GDD/TOD of pulses and compressors (Taylor expansions in :math:`\\omega-\\omega_p`), the
+   plasma phase and the wavelength of the ionisation rates. The shock (self-steepening) factor
+   uses the true optical frequency :math:`\\omega = \\omega_0 + \\Delta\\omega` of each sample,
+   so the equation does not depend on the choice of :math:`\\omega_0`: the envelope frame is a
+   choice, not physics. The envelope ``A`` is scaled so that :math:`|A|^2` is the
    instantaneous power in watts. Its time axis is the retarded time (moving with the group
    velocity at the pump), centred on zero.
 2. **Spectrum.** With that phase sign the spectral amplitude is
@@ -20,8 +31,8 @@ Conventions (every other module refers to this docstring)
 3. **Energy.** Parseval: :math:`\\int |A|^2 dt = \\int |\\tilde A|^2 d\\nu`, so :math:`|\\tilde A|^2`
    is the spectral energy density in J/Hz (ν in Hz).
 4. **Dispersion.** The linear operator in the frequency domain is
-   :math:`\\partial_z \\tilde A = [i(\\beta(\\omega) - \\beta_0 - \\beta_1\\Delta\\omega) - \\alpha(\\omega)]\\tilde A`
-   with :math:`\\beta_n = d^n\\beta/d\\omega^n` at the pump. **Positive β2 is normal dispersion.**
+   :math:`\\partial_z \\tilde A = [i(\\beta(\\omega) - \\beta_0 - \\beta_1(\\omega-\\omega_p)) - \\alpha(\\omega)]\\tilde A`
+   with :math:`\\beta_n = d^n\\beta/d\\omega^n` at the pump :math:`\\omega_p`. **Positive β2 is normal dispersion.**
    A spectral phase :math:`\\phi(\\omega)` multiplies the spectrum as :math:`e^{i\\phi}`; a
    material of length L adds :math:`\\phi = k(\\omega) L`, so its GDD = :math:`d^2\\phi/d\\omega^2` is
    positive for normal dispersion, and a chirped mirror of negative GDD compensates it.
@@ -48,7 +59,7 @@ from hcfplan.errors import ConfigError, ValidityWarning
 
 @dataclass(frozen=True)
 class Grid:
-    """Uniform time grid of ``points`` samples spaced ``dt`` around the pump ``omega0``.
+    """Uniform time grid of ``points`` samples spaced ``dt``; frequency window centred on ``omega0``.
 
     Parameters
     ----------
@@ -57,21 +68,28 @@ class Grid:
     dt : float
         Time step. [s]
     omega0 : float
-        Pump (reference) angular frequency. [rad/s]
+        Reference angular frequency: the centre of the frequency window and the envelope's
+        carrier (convention 1). [rad/s]
+    omega_pump : float, optional
+        Pump angular frequency (group-velocity frame, GDD references, plasma phase; convention
+        1). Default: ``omega0``. Must lie inside the frequency window. [rad/s]
 
     Raises
     ------
     ConfigError
-        Fewer than 16 points, a non-positive ``dt`` or ``omega0``, or a frequency window that
-        reaches zero frequency. Configs are checked before a grid is made
-        (:mod:`hcfplan.io.crosschecks`), so these name the grid's own parameters.
+        Fewer than 16 points, a non-positive ``dt`` or ``omega0``, a frequency window that
+        reaches zero frequency, or a pump outside the window. Configs are checked before a grid
+        is made (:mod:`hcfplan.io.crosschecks`), so these name the grid's own parameters.
     """
 
     points: int
     dt: float
     omega0: float
+    omega_pump: float = None  # type: ignore[assignment]  # None -> omega0 (set below)
 
     def __post_init__(self) -> None:
+        if self.omega_pump is None:
+            object.__setattr__(self, "omega_pump", self.omega0)
         if self.points < 16:
             raise ConfigError(f"grid points = {self.points}: must be >= 16")
         if not self.dt > 0:
@@ -83,11 +101,32 @@ class Grid:
                 f"grid frequency window reaches zero frequency (omega0 = {self.omega0:.3e}, "
                 f"half window = {np.pi / self.dt:.3e} rad/s): use a larger dt"
             )
+        if not abs(self.omega_pump - self.omega0) < np.pi / self.dt:
+            raise ConfigError(
+                f"grid omega_pump = {self.omega_pump:.3e} rad/s lies outside the frequency "
+                f"window {self.omega0 - np.pi / self.dt:.3e}-{self.omega0 + np.pi / self.dt:.3e}"
+                " rad/s"
+            )
 
     @property
     def time_window(self) -> float:
         """Total time window N dt. [s]"""
         return self.points * self.dt
+
+    @property
+    def half_window(self) -> float:
+        """Half width of the angular-frequency window, pi / dt. [rad/s]"""
+        return np.pi / self.dt
+
+    @property
+    def omega_low(self) -> float:
+        """Lower edge of the angular-frequency window. [rad/s]"""
+        return self.omega0 - np.pi / self.dt
+
+    @property
+    def omega_high(self) -> float:
+        """Upper edge of the angular-frequency window. [rad/s]"""
+        return self.omega0 + np.pi / self.dt
 
     @cached_property
     def time(self) -> np.ndarray:
@@ -96,8 +135,13 @@ class Grid:
 
     @cached_property
     def domega(self) -> np.ndarray:
-        """Angular-frequency offsets from ``omega0`` in FFT order. [rad/s]"""
+        """Angular-frequency offsets from the reference ``omega0`` in FFT order. [rad/s]"""
         return 2 * np.pi * sfft.fftfreq(self.points, self.dt)
+
+    @cached_property
+    def domega_pump(self) -> np.ndarray:
+        """Angular-frequency offsets from the pump ``omega_pump`` in FFT order. [rad/s]"""
+        return self.omega - self.omega_pump
 
     @cached_property
     def omega(self) -> np.ndarray:
@@ -118,6 +162,13 @@ class Grid:
     def dnu(self) -> float:
         """Spectral sample spacing. [Hz]"""
         return 1.0 / (self.points * self.dt)
+
+    def carrier(self) -> np.ndarray:
+        """exp(-i (omega_pump - omega0) t): the pump's carrier in the envelope (convention 1)."""
+        offset = self.omega_pump - self.omega0
+        if offset == 0.0:
+            return np.ones(self.points, dtype=complex)
+        return np.exp(-1j * offset * self.time)
 
     def to_spectrum(self, field_t: np.ndarray, *, workers: int | None = None) -> np.ndarray:
         """Spectral amplitude from the temporal envelope (convention 2); abs()**2 is in J/Hz."""
@@ -155,29 +206,100 @@ FREQUENCY_WINDOW_PER_BANDWIDTH = 16.0
 #: Transform-limited FWHM time-bandwidth product used to estimate the spectral width
 #: (Gaussian, 2 ln2 / pi = 0.4413).
 _TBP_ESTIMATE = 2.0 * np.log(2.0) / np.pi
-#: The half frequency window stays below this fraction of omega0 (never reaches zero frequency).
-MAX_HALF_WINDOW_FRACTION = 0.9
+#: The window's lower edge stays above this fraction of the lowest frequency the run needs (the
+#: pump, or the lower end of a requested band): an envelope grid never reaches zero frequency,
+#: and the mid-infrared/THz difference frequencies are not part of the optical grid
+#: (common practice, no source).
+LOWER_EDGE_FRACTION = 0.25
+#: The window's upper edge stays below this multiple of the pump frequency (the gas and glass
+#: index fits end in the vacuum ultraviolet; common practice, no source).
+UPPER_EDGE_MULTIPLE = 6.0
 
 
-def choose_grid(
-    omega0: float,
-    duration_fwhm: float,
-    *,
-    broadening_factor: float = 1.0,
-    points: int | None = None,
-    time_window: float | None = None,
-) -> Grid:
-    """Time/frequency grid sized for a pulse and its expected spectral broadening.
+def window_grid(omega_pump: float, omega_low: float, omega_high: float,
+                time_window: float) -> Grid:
+    """Grid whose frequency window spans ``omega_low``-``omega_high`` and whose time window is
+    at least ``time_window`` (rounded up to a power-of-two number of points at dt = pi / half).
 
     Parameters
     ----------
-    omega0 : float
+    omega_pump : float
+        Pump angular frequency (inside the window). [rad/s]
+    omega_low, omega_high : float
+        Edges of the angular-frequency window, 0 < low < pump < high. [rad/s]
+    time_window : float
+        Shortest total time window. [s]
+
+    Returns
+    -------
+    Grid
+        ``omega0`` the window centre, ``omega_pump`` the pump.
+
+    References
+    ----------
+    none: numerical helper (sampling theorem, dt = pi / half window; common practice, no source)
+    """
+    if not 0 < omega_low < omega_pump < omega_high:
+        raise ConfigError(f"grid window {omega_low:.3e}-{omega_high:.3e} rad/s: must be > 0 and "
+                          f"contain the pump {omega_pump:.3e} rad/s")
+    half = 0.5 * (omega_high - omega_low)
+    dt = np.pi / half
+    n = fft_friendly_size(int(np.ceil(time_window / dt * (1 - 1e-12))))
+    return Grid(points=int(n), dt=float(dt), omega0=float(0.5 * (omega_low + omega_high)),
+                omega_pump=float(omega_pump))
+
+
+def estimated_band(omega_pump: float, duration_fwhm: float,
+                   broadening_factor: float = 1.0) -> tuple[float, float]:
+    """Frequency band an input pulse broadened ``broadening_factor`` times needs, before limits.
+
+    Parameters
+    ----------
+    omega_pump : float
+        Pump angular frequency. [rad/s]
+    duration_fwhm : float
+        Intensity FWHM of the input pulse. [s]
+    broadening_factor : float
+        Expected ratio of output to input spectral width (>= 1). [1]
+
+    Returns
+    -------
+    (float, float)
+        ``omega_pump -+ 0.5 FREQUENCY_WINDOW_PER_BANDWIDTH F dw`` with ``dw = 2 pi 0.4413 /
+        duration_fwhm`` (Gaussian transform limit); the lower end may be negative. [rad/s]
+
+    References
+    ----------
+    none: estimate (Gaussian time-bandwidth product and a margin; common practice, no source)
+    """
+    half = 0.5 * FREQUENCY_WINDOW_PER_BANDWIDTH * broadening_factor * (
+        2 * np.pi * _TBP_ESTIMATE / duration_fwhm)
+    return omega_pump - half, omega_pump + half
+
+
+def choose_grid(
+    omega_pump: float,
+    duration_fwhm: float,
+    *,
+    broadening_factor: float = 1.0,
+    band: tuple[float, float] | None = None,
+    points: int | None = None,
+    time_window: float | None = None,
+) -> Grid:
+    """Time/frequency grid sized for a pulse and the spectral band the run needs.
+
+    Parameters
+    ----------
+    omega_pump : float
         Pump angular frequency. [rad/s]
     duration_fwhm : float
         Intensity FWHM of the input pulse. [s]
     broadening_factor : float
         Expected ratio of output to input spectral width (>= 1); the caller estimates it, e.g.
         from the peak nonlinear phase as ``sqrt(1 + 0.77 phi_max**2)``. [1]
+    band : (float, float), optional
+        Angular frequencies that must lie inside the window besides the broadening estimate
+        (e.g. a dispersive wave, or the extent a previous run found). [rad/s]
     points : int, optional
         Number of samples (even, >= 16). Default: the smallest power of two that spans the
         time window at the sampling the spectrum needs.
@@ -188,21 +310,31 @@ def choose_grid(
     Returns
     -------
     Grid
+        ``omega0`` the window centre, ``omega_pump`` the pump.
 
     Raises
     ------
     ConfigError
-        For non-positive inputs, odd ``points`` or an override whose frequency window would
-        reach zero frequency.
+        For non-positive inputs, odd ``points`` or overrides whose frequency window cannot be
+        placed between ``LOWER_EDGE_FRACTION`` of the lowest needed frequency and
+        ``UPPER_EDGE_MULTIPLE`` times the pump.
 
     Notes
     -----
-    The needed full frequency window is ``FREQUENCY_WINDOW_PER_BANDWIDTH * F * dw`` with
-    ``dw = 2 pi 0.4413 / duration_fwhm`` (Gaussian transform limit), capped at
-    ``2 * MAX_HALF_WINDOW_FRACTION * omega0`` so that the window never reaches zero frequency
-    (a ``ValidityWarning`` says when the cap applies); ``dt = pi / half_window``.
+    The needed band is the union of :func:`estimated_band` and ``band``. Its lower end is
+    raised to ``LOWER_EDGE_FRACTION`` of the lowest needed frequency (the pump or the band's
+    lower end) and its upper end lowered to ``UPPER_EDGE_MULTIPLE`` times the pump (a
+    ``ValidityWarning`` says when); the window is centred on it with ``dt = pi / half_window``.
+    With ``points`` and/or ``time_window`` given, dt follows from them; a window at least as
+    wide as the band is centred on it, a narrower one on the pump, and either is moved up as far
+    as its lower edge needs.
+
+    References
+    ----------
+    none: numerical helper (sampling theorem, dt = pi / half window; common practice, no source)
     """
-    for name, value, unit in (("omega0", omega0, "rad/s"), ("duration_fwhm", duration_fwhm, "s")):
+    for name, value, unit in (("omega_pump", omega_pump, "rad/s"),
+                              ("duration_fwhm", duration_fwhm, "s")):
         if not (np.isfinite(value) and value > 0):
             raise ConfigError(f"{name} = {value} {unit}: must be > 0")
     if not broadening_factor >= 1.0:
@@ -211,34 +343,43 @@ def choose_grid(
         raise ConfigError(f"grid points = {points}: must be an even number >= 16")
     if time_window is not None and not time_window > 0:
         raise ConfigError(f"grid time_window = {time_window} s: must be > 0")
-    half_needed = 0.5 * FREQUENCY_WINDOW_PER_BANDWIDTH * broadening_factor * (
-        2 * np.pi * _TBP_ESTIMATE / duration_fwhm
-    )
-    half_cap = MAX_HALF_WINDOW_FRACTION * omega0
-    if half_needed > half_cap:
-        warnings.warn(
-            f"grid: the expected spectrum (half width {half_needed:.3e} rad/s) does not fit "
-            f"below zero frequency; the window is capped at {half_cap:.3e} rad/s",
-            ValidityWarning,
-            stacklevel=2,
-        )
-    dt = np.pi / min(half_needed, half_cap)
+    lo, hi = estimated_band(omega_pump, duration_fwhm, broadening_factor)
+    lowest = omega_pump
+    if band is not None:
+        lo, hi = min(lo, band[0]), max(hi, band[1])
+        lowest = min(omega_pump, max(band[0], 0.0)) or omega_pump
+    floor, ceiling = LOWER_EDGE_FRACTION * lowest, UPPER_EDGE_MULTIPLE * omega_pump
+    if lo < floor or hi > ceiling:
+        if hi > ceiling:
+            warnings.warn(
+                f"grid: the expected spectrum (up to {hi:.3e} rad/s) reaches beyond "
+                f"{UPPER_EDGE_MULTIPLE:g} times the pump frequency; the window ends there",
+                ValidityWarning,
+                stacklevel=2,
+            )
+        lo, hi = max(lo, floor), min(hi, ceiling)
     window = TIME_WINDOW_PER_FWHM * duration_fwhm if time_window is None else time_window
+    if points is None and time_window is None:
+        return window_grid(omega_pump, lo, hi, window)
     if points is not None and time_window is not None:
         n, dt = points, time_window / points
     elif points is not None:
         n = points
-    elif time_window is not None:
-        n = fft_friendly_size(int(np.ceil(window / dt)))
-        while np.pi * n / window > half_cap and n > 16:
+        dt = np.pi / (0.5 * (hi - lo))
+    else:
+        n = fft_friendly_size(int(np.ceil(window / (np.pi / (0.5 * (hi - lo))))))
+        while np.pi * n / window > 0.5 * (ceiling - floor) and n > 16:
             n //= 2
         dt = window / n
-    else:
-        n = fft_friendly_size(int(np.ceil(window / dt)))
-    if np.pi / dt >= omega0:
+    half = np.pi / dt
+    # a window as wide as the band is centred on it, a narrower one on the pump; either moves
+    # up as far as its lower edge needs
+    centre = max(0.5 * (lo + hi) if half >= 0.5 * (hi - lo) else omega_pump, floor + half)
+    if centre + half > ceiling or not centre - half < omega_pump < centre + half:
         raise ConfigError(
-            f"grid points = {n}, time_window = {n * dt:.4g} s: the frequency window "
-            f"(half width {np.pi / dt:.3e} rad/s) reaches zero frequency (omega0 = "
-            f"{omega0:.3e} rad/s); use fewer points or a longer time window"
+            f"grid points = {n}, time_window = {n * dt:.4g} s: the frequency window (half width "
+            f"{half:.3e} rad/s) cannot lie between {LOWER_EDGE_FRACTION:g} of the lowest needed "
+            f"frequency ({floor:.3e} rad/s) and {UPPER_EDGE_MULTIPLE:g} times the pump "
+            f"({ceiling:.3e} rad/s); use fewer points or a longer time window"
         )
-    return Grid(points=int(n), dt=float(dt), omega0=float(omega0))
+    return Grid(points=int(n), dt=float(dt), omega0=float(centre), omega_pump=float(omega_pump))

@@ -53,6 +53,9 @@ class ChainResult:
     phase_matching: Any | None
     fiber_report: dict  #: the analytic first-look numbers (:func:`fiber_report`) of the config
     warnings: tuple[str, ...]
+    #: the convergence checks of the run and the grid refinements made
+    #: (:class:`hcfplan.planning.convergence.Convergence`)
+    convergence: Any = None
 
 
 def _broadening_estimate(report: dict) -> float:
@@ -78,22 +81,34 @@ def run_chain(config, *, progress: Callable[[float, float, int], None] | None = 
     Material fits are evaluated over the whole (broad) grid; their per-call range warnings are
     replaced by one range check against the -40 dB extent of the output spectrum
     (:mod:`hcfplan.planning.validity`). Other warnings raised on the way are kept as lines.
+    A grid the user did not fix is refined until the convergence checks pass
+    (:mod:`hcfplan.planning.convergence`); ``convergence`` of the result holds the checks.
     """
-    with collect_warnings() as caught, quiet_validity_of_materials():
-        chain = _run_chain(config, progress, workers)
+    from hcfplan.planning.convergence import refine_until_converged
+
+    caught: list[str] = []
+
+    def run_once(grid):
+        with collect_warnings() as lines, quiet_validity_of_materials():
+            chain = _run_chain(config, progress, workers, grid)
+        caught[:] = lines  # the warnings of the last run only
+        return chain
+
+    fixed = config.grid.points is not None or config.grid.time_window is not None
+    chain, convergence = refine_until_converged(run_once, fixed)
     extra = _grid_notes(chain, caught)
     grid, prop = chain.grid, chain.propagation
     band = light_band(grid.frequency, np.abs(prop.field_out_spectrum) ** 2)
     notes = range_notes(config, chain.medium, band, "the output spectrum at -40 dB")
     merged = tuple(dict.fromkeys(list(chain.warnings) + notes + extra))
-    return dataclasses.replace(chain, warnings=merged)
+    return dataclasses.replace(chain, warnings=merged, convergence=convergence)
 
 
 def _grid_notes(chain: ChainResult, caught: list[str]) -> list[str]:
     """Keep the grid-size notes that matter for this run.
 
-    The grid is sized from a first-look broadening estimate; when that estimate asks for more
-    than the widest window centred on the pump, ``choose_grid`` says so. That note is dropped
+    The grid is sized from a first-look broadening estimate; when that estimate reaches beyond
+    the highest frequency a window may have, ``choose_grid`` says so. That note is dropped
     when the run itself found no energy at the window edges (the solver's edge warning then
     carries the remedy).
     """
@@ -101,11 +116,22 @@ def _grid_notes(chain: ChainResult, caught: list[str]) -> list[str]:
     return [w for w in caught if edge or not w.startswith("grid: the expected spectrum")]
 
 
-def _run_chain(config, progress, workers) -> ChainResult:
+def _first_grid(config, report: dict, omega0: float):
+    """The grid of a run's first attempt: the broadening estimate and the dispersive wave."""
     from hcfplan.numerics.grid import choose_grid
+    from hcfplan.planning.convergence import dispersive_wave_band
+
+    return choose_grid(omega0, config.laser.duration_fwhm,
+                       broadening_factor=_broadening_estimate(report),
+                       band=dispersive_wave_band(report, omega0),
+                       points=config.grid.points, time_window=config.grid.time_window)
+
+
+def _run_chain(config, progress, workers, grid=None) -> ChainResult:
     from hcfplan.planning.reports.fiber import fiber_report
     from hcfplan.propagation.options import SolverOptions
     from hcfplan.propagation.solve import propagate
+    from hcfplan.pulse.metrics import peak_power
 
     laser = config.laser
     omega0 = pump_omega(laser)
@@ -115,10 +141,9 @@ def _run_chain(config, progress, workers) -> ChainResult:
     efficiency, _, _ = coupling(config)
     energy = laser.energy * efficiency
     report = fiber_report(config)
-    grid = choose_grid(omega0, laser.duration_fwhm, broadening_factor=_broadening_estimate(report),
-                       points=config.grid.points, time_window=config.grid.time_window)
+    grid = _first_grid(config, report, omega0) if grid is None else grid
     field0 = _input_field(config, grid, energy)
-    peak_in = float(np.max(np.abs(field0) ** 2))
+    peak_in = peak_power(field0)
     options = SolverOptions(rtol=config.grid.rtol, z_samples=config.grid.z_samples,
                             ionization_model=(config.gas.ionization_model if config.gas
                                               else None),
@@ -158,8 +183,9 @@ def _material_index(name: str, omega: np.ndarray) -> np.ndarray:
     from hcfplan.materials import solids
 
     # the broadened grid extends beyond the Sellmeier ranges far outside the spectrum; the
-    # ranges are checked against the light itself by range_notes
-    with quiet_validity():
+    # ranges are checked against the light itself by range_notes; nan where a fit has no real
+    # index (far infrared of a wide grid) is handled by material_phase
+    with quiet_validity(), np.errstate(invalid="ignore"):
         return solids.refractive_index(name, omega)
 
 
@@ -172,11 +198,11 @@ def fixed_phase(config, grid) -> np.ndarray:
     cell = config.cell
     if cell.window_thickness:
         n = _material_index(cell.window_material, omega)
-        phase += material_phase(omega, grid.omega0, n, cell.window_thickness)
+        phase += material_phase(omega, grid.omega_pump, n, cell.window_thickness)
     if config.compressor.air_path > 0:
         with quiet_validity():
             n_air = _air_index(omega)
-        phase += material_phase(omega, grid.omega0, n_air, config.compressor.air_path)
+        phase += material_phase(omega, grid.omega_pump, n_air, config.compressor.air_path)
     return phase
 
 
@@ -191,10 +217,10 @@ def _mirror_phase(config, grid) -> np.ndarray:
         omega_curve = 2 * math.pi * c / wavelength
         order = np.argsort(omega_curve)
         gdd = np.interp(grid.omega, omega_curve[order], gdd_curve[order])
-        return phase_from_gdd_curve(grid.omega, grid.omega0, gdd)
+        return phase_from_gdd_curve(grid.omega, grid.omega_pump, gdd)
     if comp.mirror_gdd is None:
         return np.zeros_like(grid.omega)
-    return mirror_phase(grid.omega, grid.omega0, comp.mirror_gdd, comp.mirror_tod)
+    return mirror_phase(grid.omega, grid.omega_pump, comp.mirror_gdd, comp.mirror_tod)
 
 
 def compress_output(config, grid, spectrum: np.ndarray, input_peak_power: float):
@@ -257,8 +283,8 @@ def phase_matching_output(config, thz):
     lam0 = config.laser.wavelength
     wavelengths = np.linspace(PM_MAP_WAVELENGTH_SPAN[0] * lam0, PM_MAP_WAVELENGTH_SPAN[1] * lam0,
                               PM_MAP_POINTS[0])
-    f_max = max(min(2.0 * thz.cutoff_frequency, PM_MAP_PEAK_MULTIPLE * thz.peak_frequency),
-                PM_MAP_MIN_FREQUENCY)
+    peak = thz.peak_frequency if thz.peak_frequency is not None else thz.model_limit
+    f_max = max(min(2.0 * thz.cutoff_computed, PM_MAP_PEAK_MULTIPLE * peak), PM_MAP_MIN_FREQUENCY)
     frequency = np.linspace(f_max / PM_MAP_POINTS[1], f_max, PM_MAP_POINTS[1])
     return phase_matching_map(crystals.load_crystal(config.thz.crystal), wavelengths, frequency)
 
@@ -268,21 +294,20 @@ def phase_matching_output(config, thz):
 
 
 def _input_part(chain: ChainResult) -> dict:
-    from hcfplan.pulse.metrics import fwhm
+    from hcfplan.pulse.metrics import envelope_fwhm
 
     grid, prop = chain.grid, chain.propagation
-    power_in = np.abs(prop.field_in_t) ** 2
     return {
         "input.energy_j": chain.config.laser.energy,
         "input.launched_energy_j": chain.launched_energy,
         "input.coupling_efficiency": chain.coupling_efficiency,
         "input.peak_power_w": chain.input_peak_power,
-        "input.fwhm_s": float(fwhm(grid.time, power_in)),
+        "input.fwhm_s": float(envelope_fwhm(grid, prop.field_in_t)),
     }
 
 
 def _output_part(chain: ChainResult) -> dict:
-    from hcfplan.pulse.metrics import spectral_width, transform_limited_fwhm
+    from hcfplan.pulse.metrics import peak_power, spectral_width, transform_limited_fwhm
 
     grid, prop = chain.grid, chain.propagation
     power = np.abs(prop.field_out_spectrum) ** 2
@@ -293,7 +318,7 @@ def _output_part(chain: ChainResult) -> dict:
         "output.bandwidth_definition": "full width of the power spectrum at -20 dB of its peak",
         "output.transform_limit_fwhm_s": float(transform_limited_fwhm(
             grid, prop.field_out_spectrum)),
-        "output.peak_power_w": float(np.max(np.abs(prop.field_out_t) ** 2)),
+        "output.peak_power_w": peak_power(prop.field_out_t),
         "output.max_ionization_fraction": float(np.nanmax(prop.ionization_fraction_z)),
         "output.max_peak_intensity_w_per_m2": _finite_max(prop.peak_intensity_z),
         "output.max_peak_power_w": float(np.nanmax(prop.peak_power_z)),
@@ -354,15 +379,17 @@ def _thz_part(config, thz) -> dict:
         "thz.crystal": config.thz.crystal,
         "thz.thickness_m": config.thz.thickness,
         "thz.peak_hz": thz.peak_frequency,
-        "thz.cutoff_hz": thz.cutoff_frequency,
+        "thz.cutoff_hz": thz.cutoff,  # None beyond the crystal model's range
         "thz.cutoff_definition": thz.cutoff_definition,
+        "thz.model_limit_hz": thz.model_limit,
+        "thz.frequency_step_hz": thz.frequency_step,
         "thz.bandwidth_3db_hz": thz.bandwidth_3db,
         "thz.bandwidth_10db_hz": thz.bandwidth_10db,
         "thz.relative_efficiency": thz.relative_efficiency,
     }
     if thz.detected_power is not None:
         out["thz.detected_peak_hz"] = thz.detected_peak_frequency
-        out["thz.detected_cutoff_hz"] = thz.detected_cutoff_frequency
+        out["thz.detected_cutoff_hz"] = thz.detected_cutoff
     if thz.thz_energy is not None:
         out["thz.energy_estimate_j"] = thz.thz_energy
         out["thz.energy_estimate_caution"] = thz.thz_energy_caution
@@ -381,11 +408,12 @@ class RunPeaks:
 def limits_part(chain: ChainResult) -> dict:
     """``limits.*`` of the run: the analytic checks plus the peaks reached inside the fiber."""
     from hcfplan.planning.reports.limits import limits_report
+    from hcfplan.pulse.metrics import peak_power
 
     prop = chain.propagation
     peaks = RunPeaks(max_peak_power=float(np.nanmax(prop.peak_power_z)),
                      max_peak_intensity=_finite_max(prop.peak_intensity_z),
-                     output_peak_power=float(np.max(np.abs(prop.field_out_t) ** 2)))
+                     output_peak_power=peak_power(prop.field_out_t))
     with quiet_validity_of_materials():
         return limits_report(chain.config, run=peaks)
 
@@ -411,9 +439,25 @@ def summary_dict(chain: ChainResult) -> dict:
         "grid.points": chain.grid.points,
         "grid.time_window_s": chain.grid.time_window,
         "grid.dt_s": chain.grid.dt,
+        **_grid_part(chain),
     })
     summary["warnings"] = list(chain.warnings)
+    from hcfplan.planning.verdict import verdict_fields
+
+    summary.update(verdict_fields(chain, summary))
     return nest(summary)
+
+
+def _grid_part(chain: ChainResult) -> dict:
+    grid, conv = chain.grid, chain.convergence
+    out = {"grid.frequency_window_hz": [grid.omega_low / (2 * math.pi),
+                                        grid.omega_high / (2 * math.pi)]}
+    if conv is not None:
+        out.update({"grid.refinements": conv.refinements,
+                    "grid.refinement_reasons": list(conv.reasons),
+                    "grid.converged": conv.converged,
+                    "grid.checks": [check.as_dict() for check in conv.checks]})
+    return out
 
 
 def nest(flat: dict) -> dict:

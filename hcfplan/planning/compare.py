@@ -3,7 +3,9 @@
 The one-command answer to "what does the new laser (or fiber, gas, pressure) change, and is
 the setup still within the modelled limits?". Both configs run the same chain as
 ``simulate``; margins come from :func:`hcfplan.planning.scan.point_margins` (the
-``limits_report`` values where that module exists).
+``limits_report`` values), in the one convention of :mod:`hcfplan.limits.margins`: the
+self-focusing margin is P_cr / P, shown beside the required value
+``limits.self_focusing_margin``.
 """
 
 from __future__ import annotations
@@ -23,8 +25,10 @@ ROWS: tuple[tuple[str, str, float, str], ...] = (
     ("THz peak", "thz.peak_hz", 1e12, "THz"),
     ("THz cutoff", "thz.cutoff_hz", 1e12, "THz"),
     ("self-focusing margin P_cr/P", "margins.self_focusing", 1.0, ""),
+    ("self-focusing margin P_cr/P in fiber", "margins.self_focusing_in_fiber", 1.0, ""),
+    ("required self-focusing margin", "margins.self_focusing_required", 1.0, ""),
     ("ionisation fraction", "margins.ionization_fraction", 1.0, ""),
-    ("ionisation margin limit/fraction", "margins.ionization_margin", 1.0, ""),
+    ("ionisation margin limit/fraction (required 1)", "margins.ionization_margin", 1.0, ""),
     ("fill pressure", "margins.pressure_pa", 1e5, "bar"),
 )
 
@@ -38,12 +42,20 @@ class Side:
     summary: dict  #: nested summary (with ``limits`` where available)
     margins: dict
 
+    @property
+    def verdict(self):
+        """The :class:`~hcfplan.planning.verdict.Verdict` of this side's result."""
+        from hcfplan.planning.verdict import stored_verdict
+
+        return stored_verdict(self.summary)
+
 
 @dataclass(frozen=True, eq=False)
 class Comparison:
     a: Side
     b: Side
-    rows: tuple[dict, ...]  #: label, key, unit, scale, a, b, difference, ratio (SI)
+    #: label, key, unit, scale, a, b, difference, ratio (SI), a_void, b_void
+    rows: tuple[dict, ...]
 
 
 def _number(flat: dict, key: str) -> float | None:
@@ -53,18 +65,29 @@ def _number(flat: dict, key: str) -> float | None:
 
 
 def comparison_rows(a: Side, b: Side) -> tuple[dict, ...]:
-    """The table: each quantity for A and B, B - A and B / A (SI; None where undefined)."""
+    """The table: each quantity for A and B, B - A and B / A (SI; None where undefined).
+
+    ``a_void`` and ``b_void`` name the verdict code that voids a side's number (None where it
+    stands, :mod:`hcfplan.planning.verdict`); the numbers are kept, but B - A and B / A of a
+    void number are None.
+    """
     from hcfplan.planning.scan import flatten
 
     flat_a = flatten(a.summary) | flatten(a.margins, "margins.")
     flat_b = flatten(b.summary) | flatten(b.margins, "margins.")
+    verdict_a, verdict_b = a.verdict, b.verdict
     rows = []
     for label, key, scale, unit in ROWS:
         va, vb = _number(flat_a, key), _number(flat_b, key)
-        diff = vb - va if va is not None and vb is not None else None
+        void_a = verdict_a.void_reason(key) if va is not None else None
+        void_b = verdict_b.void_reason(key) if vb is not None else None
+        both = va is not None and vb is not None and void_a is None and void_b is None
+        diff = vb - va if both else None
         ratio = vb / va if diff is not None and va != 0 else None
         rows.append({"label": label, "key": key, "unit": unit, "scale": scale, "a": va,
-                     "b": vb, "difference": diff, "ratio": ratio})
+                     "b": vb, "difference": diff, "ratio": ratio,
+                     "a_void": void_a.code if void_a else None,
+                     "b_void": void_b.code if void_b else None})
     return tuple(rows)
 
 

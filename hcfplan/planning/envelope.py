@@ -1,17 +1,22 @@
 """Operating envelope: an energy x pressure map of the analytic limits and first estimates.
 
-No GNLSE run: every line and contour is a closed-form estimate, vectorised over the map. The
+No GNLSE run here: every line and contour is a closed-form estimate, vectorised over the map
+(:mod:`hcfplan.planning.envelope_check` compares the duration and THz contours with the real
+chain at a few points). The
 pressure axis needs one real-gas density per pressure (CoolProp) and one beta2 per pressure;
 the ionisation rate is tabulated once. A 100 x 100 map takes well under a second
 (``bench/envelope.py``).
 
-Contents (:class:`EnvelopeResult`, SI): the self-focusing line (largest input energy at the
-configured margin, vs pressure), the ionisation line (input energy at which the PPT fraction
+Contents (:class:`EnvelopeResult`, SI): the self-focusing line (largest input energy at which
+P_cr / P equals the required margin ``limits.self_focusing_margin``, vs pressure; margins as in
+:mod:`hcfplan.limits.margins`), the ionisation line (input energy at which the PPT fraction
 reaches the limit; the fraction per atom does not depend on density, so this line is flat), the
 cell rating, beta2 at the pump vs pressure and the zero-dispersion pressure, and on the full map
-the soliton order, the first-estimate compressed duration (input transform limit / SPM
-broadening factor, Pinault-Potasek estimate, dispersion neglected) and the thin-crystal THz
-cutoff estimate (:func:`thz_cutoff_gaussian_estimate`).
+the soliton order, the SPM-only estimate of the compressed duration (input transform limit /
+SPM broadening factor, Pinault-Potasek estimate, dispersion neglected) and the thin-crystal THz
+cutoff of that duration (:func:`thz_cutoff_gaussian_estimate`). Both contours are labelled
+``ESTIMATE_KIND`` wherever they are shown: soliton self-compression, wave breaking, plasma and
+the crystal's phase matching can move the real values far from them.
 """
 
 from __future__ import annotations
@@ -47,6 +52,13 @@ RATING_OVERSHOOT = 1.2
 BETA2_REL_WIDTH = 1e-2
 #: Chebyshev nodes at which a mixture's density is evaluated along the pressure axis.
 MIXTURE_NODES = 16
+#: What the duration and THz contours are (JSON ``envelope.estimate_kind``).
+ESTIMATE_KIND = "spm_only"
+ESTIMATE_NOTE = ("SPM-only estimates: compressed duration = input FWHM / SPM broadening factor "
+                 "(Gaussian rms estimate; dispersion, soliton dynamics, self-steepening and "
+                 "plasma neglected; floored at one optical cycle); THz cutoff = that of a "
+                 "perfectly compressed Gaussian of this duration in a thin crystal (no phase "
+                 "mismatch, no phonon band, no detector)")
 
 
 def thz_cutoff_gaussian_estimate(duration_fwhm, level_db: float = -20.0,
@@ -58,41 +70,35 @@ def thz_cutoff_gaussian_estimate(duration_fwhm, level_db: float = -20.0,
     duration_fwhm : float or ndarray
         Intensity FWHM tau of the (compressed) pump pulse. [s]
     level_db : float
-        Cutoff level relative to the spectral peak (< 0). [dB]
+        Share of the THz energy above the cutoff (< 0), as in
+        :func:`hcfplan.thz.measures.thz_cutoff`. [dB]
     quantity : {"power", "field"}
-        What ``level_db`` refers to, as in :func:`hcfplan.thz.measures.thz_cutoff`.
+        Spectrum whose integral the cutoff divides, as in
+        :func:`hcfplan.thz.measures.thz_cutoff`.
 
     Returns
     -------
     float or ndarray
-        Highest frequency at which the THz spectrum is at the level. [Hz]
+        The cutoff of the thin-crystal spectrum, by the definition of the chain's THz
+        estimate. [Hz]
 
     Notes
     -----
     In a crystal much thinner than the coherence length, without absorption or dispersion, the
     radiated field is proportional to dI/dt, so the power spectrum is
-    :math:`S(\\Omega) \\propto \\Omega^2 |\\tilde I(\\Omega)|^2 = \\Omega^2
-    \\exp(-\\Omega^2\\tau^2/(8\\ln 2))` for :math:`I = \\exp(-4\\ln 2\\, t^2/\\tau^2)`. It peaks at
-    :math:`\\Omega_p^2 = 8\\ln 2/\\tau^2`; with :math:`x = \\Omega^2/\\Omega_p^2`,
-    :math:`S/S_p = x e^{1-x}`, and the upper crossing of a power ratio r is
-    :math:`x = -W_{-1}(-r/e)` (Lambert W, lower branch), so
-    :math:`f = \\sqrt{8\\ln 2\\, x}/(2\\pi\\tau)`; for -20 dB in power, f = 1.036 / tau. An
-    optimistic estimate: a perfectly compressed pulse, no phase mismatch, no phonon band
-    (GaP 11 THz, ZnTe 5.3 THz), no detector response.
+    :math:`S(\\Omega) \\propto \\Omega^2 \\exp(-\\Omega^2\\tau^2/(8\\ln 2))`; its cutoff
+    follows from the incomplete gamma function
+    (:func:`hcfplan.thz.measures.gaussian_pulse_cutoff`); for -20 dB of the energy
+    f = 0.8926 / tau. An optimistic estimate: a perfectly compressed pulse, no phase mismatch,
+    no phonon band (GaP 11 THz, ZnTe 5.3 THz), no detector response.
+
+    References
+    ----------
+    None: Gaussian integrals of a thin-crystal spectrum (common practice, no source).
     """
-    from scipy.special import lambertw
+    from hcfplan.thz.measures import gaussian_pulse_cutoff
 
-    from hcfplan.thz.measures import CUTOFF_LEVELS
-
-    if quantity not in CUTOFF_LEVELS:
-        raise ConfigError(f"cutoff quantity = {quantity!r}: valid: {', '.join(CUTOFF_LEVELS)}")
-    if not level_db < 0:
-        raise ConfigError(f"cutoff level = {level_db} dB: must be < 0")
-    ratio, _ = CUTOFF_LEVELS[quantity](level_db)
-    x = float(-lambertw(-ratio / math.e, -1).real)
-    tau = np.asarray(duration_fwhm, dtype=float)
-    value = math.sqrt(8 * math.log(2) * x) / (2 * math.pi * tau)
-    return float(value) if value.ndim == 0 else value
+    return gaussian_pulse_cutoff(duration_fwhm, level_db, quantity)
 
 
 @dataclass(frozen=True, eq=False)
@@ -118,7 +124,7 @@ class EnvelopeResult:
     pressure_ceiling: float  #: condensation ceiling of the fill (or the search limit) [Pa]
     config_energy: float  #: [J]
     config_pressure: float  #: [Pa]
-    self_focusing_margin: float
+    self_focusing_margin: float  #: required P_cr / P on the self-focusing line [-]
     ionization_fraction_limit: float
     thz_cutoff_db: float
     thz_cutoff_quantity: str
@@ -309,11 +315,9 @@ def _envelope_map(config, energies, pressures, points) -> EnvelopeResult:
                                                    efficiency)
     order, duration, cutoff = _map_estimates(config, energies, efficiency, beta2, gamma, alpha)
     notes = tuple(medium.warnings) + (
-        "lines and contours are analytic estimates (no propagation): self-focusing from "
-        "Fibich & Gaeta's P_cr, ionisation from the PPT fraction of the input pulse, "
-        "compressed duration = input FWHM / SPM broadening factor (dispersion neglected; "
-        "floored at one optical cycle), THz "
-        "cutoff for a thin crystal and a perfectly compressed Gaussian",)
+        "lines are analytic estimates (no propagation): self-focusing from Fibich & Gaeta's "
+        "P_cr, ionisation from the PPT fraction of the input pulse",
+        "duration and THz contours are " + ESTIMATE_NOTE)
     return EnvelopeResult(
         energies=_readonly(energies), pressures=_readonly(pressures),
         self_focusing_max_energy=_readonly(sf_energy),
@@ -343,9 +347,13 @@ def _maybe(x):
     return None if x is None or not math.isfinite(x) else float(x)
 
 
-def envelope_json(result: EnvelopeResult) -> dict:
+def envelope_json(result: EnvelopeResult, check=None) -> dict:
     """The map as a JSON-ready dict (SI, unit in the key names; 2-D arrays as [energy][pressure],
-    non-finite values as null)."""
+    non-finite values as null), with the ``check.*`` keys of ``check`` (an
+    :class:`~hcfplan.planning.envelope_check.EnvelopeCheck`; None: ``check.status =
+    "unchecked"``)."""
+    from hcfplan.planning.envelope_check import check_json
+
     return {
         "envelope.energies_j": _listed(result.energies),
         "envelope.pressures_pa": _listed(result.pressures),
@@ -357,14 +365,18 @@ def envelope_json(result: EnvelopeResult) -> dict:
         "envelope.rated_pressure_pa": _maybe(result.rated_pressure),
         "envelope.pressure_ceiling_pa": _maybe(result.pressure_ceiling),
         "envelope.soliton_order": _nested(result.soliton_order),
+        "envelope.estimate_kind": ESTIMATE_KIND,
+        "envelope.estimate_note": ESTIMATE_NOTE,
         "envelope.compressed_duration_s": _nested(result.compressed_duration),
         "envelope.thz_cutoff_hz": _nested(result.thz_cutoff),
         "envelope.config_energy_j": result.config_energy,
         "envelope.config_pressure_pa": result.config_pressure,
-        "envelope.self_focusing_margin": result.self_focusing_margin,
+        "envelope.self_focusing_required_margin": result.self_focusing_margin,
+        "envelope.self_focusing_line": "input energy where P_cr/P equals the required margin",
         "envelope.ionization_fraction_limit": result.ionization_fraction_limit,
         "envelope.thz_cutoff_db": result.thz_cutoff_db,
         "envelope.thz_cutoff_quantity": result.thz_cutoff_quantity,
         "envelope.array_layout": "2-D arrays are [energy index][pressure index]",
         "envelope.notes": list(result.notes),
+        **check_json(check),
     }

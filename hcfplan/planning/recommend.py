@@ -1,80 +1,99 @@
-"""Search a pressure (or energy) range for the point that best meets a goal, within the limits.
+"""Search a pressure (or energy, or both) range for the point that best meets a goal.
 
-Two stages:
+1. Allowed range (no propagation). The pressure stays at or below ``limits.rating_fraction``
+   x ``cell.rated_pressure_bar``: the rating is never used as an operating point. For one
+   searched key, the range is also cut at the largest value that keeps the input-side checks
+   of ``limits_report`` within their limits (self-focusing and ionisation at the input, the
+   checks before a static-fill fiber); these fall monotonically with pressure and energy.
+2. Coarse pass: full chain runs at evenly spaced points over the whole allowed range (both
+   ends; a grid for two keys), run in parallel on the scan's executors.
+3. Refinement (:mod:`hcfplan.planning.recommend_search`): bisection towards the best local
+   optima (a pattern search for two keys), or, with ``target_thz``, a bisection inside the
+   first coarse interval where the THz cutoff crosses the target from below.
 
-1. Analytic bound (no propagation): the largest value of the searched key that keeps the
-   input self-focusing margin, the input ionisation fraction and the cell rating
-   (``limits.self_focusing.max_pressure_pa``, ``limits.*.max_energy_j`` of
-   :func:`hcfplan.planning.reports.limits.limits_report`; without that module a bisection on
-   P_cr / P of :func:`hcfplan.planning.scan.point_margins`). Both margins fall monotonically
-   with pressure and with energy, so the allowed range is ``[low, bound]``.
-2. Full chain runs (:func:`hcfplan.planning.scan.compute_point`) inside the allowed range,
-   within an evaluation budget: a coarse pass over evenly spaced values including both ends,
-   then a golden-section refinement (``scipy.optimize.minimize_scalar``, bounded) around the
-   best point for ``shortest`` / ``peak_power`` / ``thz_cutoff``, or a bisection for the
-   smallest value that reaches ``target_thz``. A run that ends beyond a limit (e.g. the
-   ionisation in the fiber after self-compression) is never chosen and lowers the bound.
-
-Assumptions: the objective is unimodal in the searched key over the allowed range (golden
-section); the THz cutoff grows with the searched key (bisection). Both are checked only at
-the evaluated points.
+Every point carries a verdict (:func:`hcfplan.planning.recommend_points.point_verdict`): a run
+that failed, a missing goal quantity or a limit exceeded in the run excludes the point. The
+answer is the best valid point of all evaluated (the smallest that reaches the target), so it
+is never worse than the best valid point of the coarse pass; the objective need be neither
+unimodal nor monotone. The answer names the constraints closest to their required value, and
+without an answer, which reason excludes which part of the range.
 """
 
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass
 from pathlib import Path
 from typing import Literal
 
 from hcfplan.errors import ConfigError
+from hcfplan.planning import recommend_search as search
+from hcfplan.planning.recommend_points import (
+    GOALS,
+    MIN_MAIN_LOBE_FRACTION,
+    Evaluation,
+    PointRunner,
+    binding_constraints,
+    score,
+)
 
 Goal = Literal["shortest", "peak_power", "thz_cutoff"]
-
-#: goal -> (summary section, key, sign): the search minimises sign * value
-GOALS: dict[str, tuple[str, str, float]] = {
-    "shortest": ("compressed", "fwhm_s", 1.0),
-    "peak_power": ("compressed", "peak_power_w", -1.0),
-    "thz_cutoff": ("thz", "cutoff_hz", -1.0),
-}
-#: For the goal "shortest", a compressed pulse counts only with at least this share of its
-#: energy in the main lobe: a short spike on a broad pedestal is not a short pulse for a lab
-#: (common practice, no source).
-MIN_MAIN_LOBE_FRACTION = 0.5
 SEARCH_KEYS = ("gas.pressure_bar", "laser.energy_uj")
-#: Default evaluation budget (full chain runs per gas).
-DEFAULT_BUDGET = 12
-#: Default search tolerance, as a fraction of the allowed range.
+#: Default coarse pass: points for one key, points per key for two keys.
+COARSE_POINTS = {1: 12, 2: 6}
+#: Default refinement runs after the coarse pass, for one and two keys.
+REFINE_RUNS = {1: 12, 2: 16}
+#: Default search tolerance, as a fraction of the allowed range of each key.
 DEFAULT_TOLERANCE = 0.01
-#: Points of the coarse pass (both ends included).
-COARSE_POINTS = 4
+#: Relative tolerance of the bisection for the edge of the input-side checks.
+EDGE_RTOL = 1e-5
 
-
-@dataclass(frozen=True)
-class Evaluation:
-    """One full run at ``value`` of the searched key."""
-
-    value: float
-    status: str
-    objective: float | None  #: the goal quantity (SI), None when missing
-    acceptable: bool
-    binding: str
-    record: dict = field(repr=False)
+__all__ = ["COARSE_POINTS", "DEFAULT_TOLERANCE", "GOALS", "MIN_MAIN_LOBE_FRACTION",
+           "REFINE_RUNS", "SEARCH_KEYS", "Evaluation", "Recommendation", "default_range",
+           "overall_best", "parse_range", "parse_ranges", "recommend"]
 
 
 @dataclass(frozen=True)
 class Recommendation:
+    """The answer of one search (one gas)."""
+
     goal: str
-    key: str
+    keys: tuple[str, ...]
     gas: str | None
-    requested: tuple[float, float]
-    allowed: tuple[float, float] | None  #: after the analytic bound; None if empty
-    bound_reason: str  #: what sets the upper end of the allowed range ("" = the request)
-    tolerance: float  #: in the key's unit
-    best: Evaluation | None
-    reason: str  #: why there is no best point, or what limited it
-    evaluations: tuple[Evaluation, ...]
+    requested: tuple[tuple[float, float], ...]  #: per key, in its unit
+    allowed: tuple[tuple[float, float], ...] | None  #: per key; None if empty
+    bound_reason: str  #: what cuts the upper end of the allowed range ("" = the request)
+    tolerance: tuple[float, ...]  #: per key, in its unit
+    best: Evaluation | None  #: the chosen point (valid; reaches the target if one is given)
+    reason: str  #: why there is no answer, or what it sits on
+    evaluations: tuple[Evaluation, ...]  #: every point, sorted by values
     target_thz: float | None = None
+    coarse: int = 0  #: points of the coarse pass
+    runs: int = 0  #: full chain runs
+    rating_fraction: float | None = None
+    pressure_cap: float | None = None  #: rating_fraction x rated pressure [bar]; None: no rating
+    binding: tuple[dict, ...] = ()  #: constraints closest to their required value at best
+    excluded: tuple[tuple[str, int], ...] = ()  #: (reason, points)
+    spans: tuple[str, ...] = ()  #: which reason excludes which part of the range
+    closest: Evaluation | None = None  #: with an unreached target: the highest valid cutoff
+
+    @property
+    def key(self) -> str:
+        return self.keys[0]
+
+    @property
+    def units(self) -> tuple[str, ...]:
+        return tuple(unit(k) for k in self.keys)
+
+
+def unit(key: str) -> str:
+    """Display unit of a search key."""
+    return "bar" if key == "gas.pressure_bar" else "uJ"
+
+
+def _si(key: str) -> float:
+    return 1e5 if key == "gas.pressure_bar" else 1e-6
 
 
 def parse_range(text: str) -> tuple[str, tuple[float, float]]:
@@ -92,56 +111,26 @@ def parse_range(text: str) -> tuple[str, tuple[float, float]]:
     return key, (lo, hi)
 
 
+def parse_ranges(texts: Sequence[str]) -> list[tuple[str, tuple[float, float]]]:
+    """One or two ``--vary`` ranges (two: one pressure and one energy range)."""
+    if not 1 <= len(texts) <= 2:
+        raise ConfigError(f"--vary: give one or two ranges, got {len(texts)}")
+    out = [parse_range(t) for t in texts]
+    if len(out) == 2 and out[0][0] == out[1][0]:
+        raise ConfigError(f"--vary {out[0][0]}: the same key is given twice")
+    return out
+
+
+def default_range(config) -> tuple[float, float]:
+    """Pressure range when none is given: a tenth of the fill up to the cell rating (the
+    search itself stops at ``limits.rating_fraction`` of it), or 3x the fill. [bar]"""
+    p = config.gas.pressure / 1e5
+    hi = config.cell.rated_pressure / 1e5 if config.cell.rated_pressure else 3 * p
+    return p / 10, hi
+
+
 # ---------------------------------------------------------------------------------------------
-# stage 1: analytic bound
-
-
-def _config(raw, base_dir, overrides, gas_dirs, source):
-    from hcfplan.io.config import config_from_mapping
-
-    return config_from_mapping(raw, base_dir=base_dir, overrides=overrides,
-                               extra_gas_dirs=gas_dirs, source=source)
-
-
-def _unit(key: str) -> tuple[str, float]:
-    """Display unit of a search key and its SI factor."""
-    return ("bar", 1e5) if key == "gas.pressure_bar" else ("uJ", 1e-6)
-
-
-def analytic_bound(make_config, key: str, lo: float, hi: float) -> tuple[float, str]:
-    """Largest allowed value of ``key`` in ``[lo, hi]`` from the input-side limits.
-
-    ``make_config(value)`` returns the config at one value. Returns (bound, reason); the
-    bound is below ``lo`` when the whole range is beyond a limit; reason "" when ``hi`` is
-    allowed.
-    """
-    from hcfplan.planning.scan import limits_values
-
-    config = make_config(lo)
-    report = limits_values(config)
-    unit, si = _unit(key)
-    lim = config.limits
-    candidates = [(hi, "")]
-    if key == "gas.pressure_bar":
-        if config.cell.rated_pressure is not None:
-            candidates.append((config.cell.rated_pressure / si,
-                               f"cell rating {config.cell.rated_pressure / si:.4g} bar"))
-        sf = _pressure_bound_self_focusing(report)
-    else:
-        sf = _energy_bound(report, "limits.self_focusing.max_energy_j", si)
-        ion = _energy_bound(report, "limits.ionization.max_energy_j", si)
-        if ion is not None:
-            candidates.append((ion, f"ionisation fraction > {lim.ionization_fraction_limit:g} "
-                                    f"above {ion:.4g} {unit}"))
-    if sf is not None:
-        candidates.append((sf, f"self-focusing margin < {lim.self_focusing_margin:g} above "
-                               f"{sf:.4g} {unit}"))
-    bound, reason = min(candidates, key=lambda c: c[0])
-    return _sharpen(make_config, lo, bound, reason, unit)
-
-
-#: Relative tolerance of the bisection for the edge of the input-side checks.
-EDGE_RTOL = 1e-5
+# allowed range
 
 
 def _beyond(make_config, value: float) -> list[str]:
@@ -153,12 +142,12 @@ def _beyond(make_config, value: float) -> list[str]:
             if c.get("severity") == "limit" and c.get("status") == "exceeds"]
 
 
-def _sharpen(make_config, lo: float, bound: float, reason: str, unit: str):
+def _sharpen(make_config, lo: float, bound: float, reason: str, unit_: str):
     """Lower ``bound`` to the edge of every input-side check of ``limits_report``.
 
-    The closed-form bounds cover self-focusing in the fiber, ionisation and the rating; other
-    input-side checks (e.g. self-focusing in the gas before a static-fill fiber) are found
-    by bisection on the report at the edge, assuming each is crossed once in the range.
+    The closed-form bounds cover self-focusing in the fiber and ionisation; other input-side
+    checks (e.g. self-focusing in the gas before a static-fill fiber) are found by bisection
+    on the report at the edge, assuming each is crossed once in the range.
     """
     b, a = max(bound, lo), min(bound, lo)
     if not _beyond(make_config, b):
@@ -166,239 +155,240 @@ def _sharpen(make_config, lo: float, bound: float, reason: str, unit: str):
     while _beyond(make_config, a) and a > lo * 1e-3:  # the edge lies lower: step down
         b, a = a, a / 2
     if _beyond(make_config, a):
-        return a, f"{', '.join(_beyond(make_config, a))} beyond the limit at {a:.4g} {unit}"
+        return a, f"{', '.join(_beyond(make_config, a))} beyond the limit at {a:.4g} {unit_}"
     while b - a > EDGE_RTOL * b:
         mid = 0.5 * (a + b)
         a, b = (a, mid) if _beyond(make_config, mid) else (mid, b)
-    return a, f"{', '.join(_beyond(make_config, b))} beyond the limit above {a:.4g} {unit}"
+    return a, f"{', '.join(_beyond(make_config, b))} beyond the limit above {a:.4g} {unit_}"
 
 
-def _energy_bound(report: dict, name: str, si: float) -> float | None:
-    value = report.get(name)
-    return None if value is None else float(value) / si
+def analytic_bound(make_config, key: str, lo: float, hi: float) -> tuple[float, str]:
+    """Largest value of ``key`` in ``[lo, hi]`` within the input-side limits.
+
+    ``make_config(value)`` returns the config at one value. Returns (bound, reason); the
+    bound is below ``lo`` when the whole range is beyond a limit; reason "" when ``hi`` is
+    allowed.
+    """
+    from hcfplan.planning.scan import limits_values
+
+    config = make_config(lo)
+    report = limits_values(config)
+    lim, u, si = config.limits, unit(key), _si(key)
+    candidates = [(hi, "")]
+    if key == "gas.pressure_bar":
+        sf = report.get("limits.self_focusing.max_pressure_pa")
+    else:
+        sf = report.get("limits.self_focusing.max_energy_j")
+        ion = report.get("limits.ionization.max_energy_j")
+        if ion is not None:
+            ion = float(ion) / si
+            candidates.append((ion, f"ionisation fraction > {lim.ionization_fraction_limit:g} "
+                                    f"above {ion:.4g} {u}"))
+    if sf is not None:
+        sf = float(sf) / si
+        candidates.append((sf, f"self-focusing margin < {lim.self_focusing_margin:g} above "
+                               f"{sf:.4g} {u}"))
+    bound, reason = min(candidates, key=lambda c: c[0])
+    return _sharpen(make_config, lo, bound, reason, u)
 
 
-def _pressure_bound_self_focusing(report: dict) -> float | None:
-    value = report.get("limits.self_focusing.max_pressure_pa")
-    return None if value is None else float(value) / 1e5
+def rating_cap(config) -> float | None:
+    """``limits.rating_fraction`` x the cell's rated pressure [bar]; None without a rating."""
+    rated = config.cell.rated_pressure
+    return None if rated is None else config.limits.rating_fraction * rated / 1e5
 
 
 # ---------------------------------------------------------------------------------------------
-# stage 2: full runs
+# one search
 
 
-class _Runner:
-    """Full chain runs at values of one key, cached, counted against a budget."""
+@dataclass(frozen=True)
+class _Setup:
+    """What one search runs on."""
 
-    def __init__(self, raw, base_dir, overrides, gas_dirs, source, key, budget, goal):
-        self.args = (raw, base_dir, tuple(overrides), tuple(gas_dirs), source)
-        self.key, self.budget, self.goal = key, budget, goal
-        self.done: dict[float, Evaluation] = {}
-
-    def config(self, value: float):
-        from hcfplan.planning.scan import override_text
-
-        raw, base, over, dirs, source = self.args
-        return _config(raw, base, over + (override_text(self.key, float(value)),), dirs, source)
-
-    @property
-    def left(self) -> int:
-        return self.budget - len(self.done)
-
-    def __call__(self, value: float) -> Evaluation:
-        from hcfplan.planning.scan import compute_point, config_key, override_text
-
-        value = float(value)
-        if value in self.done:
-            return self.done[value]
-        raw, base, over, dirs, source = self.args
-        task = {"raw": raw, "base_dir": str(base), "source": str(source),
-                "overrides": list(over + (override_text(self.key, value),)),
-                "extra_gas_dirs": list(dirs), "key": config_key(self.config(value).resolved),
-                "values": {self.key: value}}
-        record = compute_point(task)
-        section, name, _ = GOALS[self.goal]
-        objective = record["summary"].get(section, {}).get(name)
-        ok = record["status"] == "ok" and objective is not None
-        binding = record["margins"].get("binding", "") or ("" if ok else
-                                                           record["message"] or "run failed")
-        acceptable = ok and record["margins"]["acceptable"]
-        lobe = record["summary"].get("compressed", {}).get("main_lobe_energy_fraction")
-        if ok and self.goal == "shortest" and (lobe is None or lobe < MIN_MAIN_LOBE_FRACTION):
-            acceptable = False
-            share = "unknown" if lobe is None else f"{lobe:.2g}"
-            binding = ", ".join(b for b in (binding, f"pulse quality: main-lobe energy "
-                                            f"fraction {share} < {MIN_MAIN_LOBE_FRACTION:g}")
-                                if b)
-        self.done[value] = Evaluation(value, record["status"], objective, acceptable, binding,
-                                      record)
-        return self.done[value]
+    args: tuple  #: (raw, base folder, overrides, gas folders, source)
+    goal: str
+    spans: tuple[tuple[str, tuple[float, float]], ...]
+    target: float | None  #: [Hz]
+    coarse: int
+    budget: int
+    tolerance: float
+    workers: int
 
 
-def _score(ev: Evaluation, goal: str) -> float:
-    """Lower is better; points beyond a limit or failed score +inf."""
-    if not ev.acceptable:
-        return math.inf
-    return GOALS[goal][2] * ev.objective
+def _allowed(runner: PointRunner, setup: _Setup, config):
+    """(allowed spans or None, bound reason, pressure cap [bar] or None)."""
+    cap = rating_cap(config)
+    fraction = config.limits.rating_fraction
+    cap_reason = (f"{fraction:g} x the cell rating {config.cell.rated_pressure / 1e5:g} bar "
+                  "(limits.rating_fraction)") if cap is not None else ""
+    allowed, reasons = [], []
+    for key, (lo, hi) in setup.spans:
+        top = hi
+        if key == "gas.pressure_bar" and cap is not None and cap < hi:
+            top = cap
+            reasons.append(f"{key} up to {cap:.4g} bar: {cap_reason}")
+        allowed.append((lo, top))
+    if not any(k == "gas.pressure_bar" for k, _ in setup.spans) and cap is not None \
+            and config.gas.pressure / 1e5 > cap * (1 + 1e-12):
+        return None, (f"fill pressure {config.gas.pressure / 1e5:g} bar is above "
+                      f"{cap_reason} = {cap:.4g} bar"), cap
+    if len(setup.spans) == 1:
+        key = setup.spans[0][0]
+        lo, top = allowed[0]
+        if top < lo:
+            return None, reasons[0], cap
+        bound, why = analytic_bound(lambda v: runner.config((v,)), key, lo, top)
+        if bound < lo:
+            return None, why, cap
+        if why:
+            allowed[0], reasons = (lo, bound), [why]
+    elif any(top < lo for lo, top in allowed):
+        return None, "; ".join(reasons), cap
+    return tuple(allowed), "; ".join(reasons), cap
 
 
-def _best(runner: _Runner) -> Evaluation | None:
-    good = [e for e in runner.done.values() if e.acceptable]
-    return min(good, key=lambda e: _score(e, runner.goal)) if good else None
+def _grid_points(allowed, coarse: int) -> list[tuple[float, ...]]:
+    axes = [search.coarse_values(lo, hi, coarse) for lo, hi in allowed]
+    if len(axes) == 1:
+        return [(x,) for x in axes[0]]
+    return [(x, y) for x in axes[0] for y in axes[1]]
 
 
-def _optimise(runner: _Runner, lo: float, hi: float, tol: float) -> None:
-    """Coarse pass (both ends), then bounded golden/Brent refinement around the best."""
-    import numpy as np
-    from scipy.optimize import minimize_scalar
-
-    count = max(2, min(COARSE_POINTS, runner.left))
-    grid = np.linspace(lo, hi, count) if hi > lo else np.array([lo])
-    for x in grid[::-1]:
-        ev = runner(x)
-        if not ev.acceptable and ev.status == "ok" and x > grid[0]:
-            hi = x  # beyond a limit in the run (monotone in the key): search below
-    best = _best(runner)
-    if best is None or runner.left <= 0 or len(grid) < 2:
-        return
-    i = int(np.argmin(np.abs(grid - best.value)))
-    a, b = grid[max(i - 1, 0)], min(grid[min(i + 1, len(grid) - 1)], hi)
-    if b - a <= tol:
-        return
-
-    def objective(x: float) -> float:
-        if runner.left <= 0:
-            return math.inf
-        score = _score(runner(x), runner.goal)
-        return score if math.isfinite(score) else 1e300
-
-    minimize_scalar(objective, bounds=(a, b), method="bounded",
-                    options={"xatol": tol, "maxiter": runner.left})
-
-
-def _reach_target(runner: _Runner, lo: float, hi: float, tol: float, target: float) -> None:
-    """Smallest value whose THz cutoff reaches ``target`` (bisection; cutoff rising)."""
-    top = runner(hi)
-    if not (top.acceptable and top.objective >= target):
-        return
-    bottom = runner(lo)
-    if bottom.acceptable and bottom.objective >= target:
-        return
-    a, b = lo, hi
-    while b - a > tol and runner.left > 0:
-        mid = 0.5 * (a + b)
-        ev = runner(mid)
-        if ev.acceptable and ev.objective >= target:
-            b = mid
-        else:
-            a = mid
-
+def _search(setup: _Setup, gas: str | None, on_batch=None) -> Recommendation:
+    keys = tuple(k for k, _ in setup.spans)
+    units = tuple(unit(k) for k in keys)
+    runner = PointRunner(setup.args, keys, setup.goal, setup.budget, setup.workers, on_batch)
+    config = runner.config(tuple(lo for _, (lo, _) in setup.spans))
+    fraction = config.limits.rating_fraction
+    allowed, bound_reason, cap = _allowed(runner, setup, config)
+    requested = tuple(span for _, span in setup.spans)
+    common = {"goal": setup.goal, "keys": keys, "gas": gas, "requested": requested,
+              "target_thz": None if setup.target is None else setup.target / 1e12,
+              "rating_fraction": fraction, "pressure_cap": cap}
+    if allowed is None:
+        where = ", ".join(f"{k} in {lo:g}-{hi:g} {unit(k)}" for k, (lo, hi) in setup.spans)
+        return Recommendation(**common, allowed=None, bound_reason=bound_reason,
+                              tolerance=tuple(0.0 for _ in keys), best=None,
+                              reason=f"no allowed {where}: {bound_reason}", evaluations=())
+    tol = tuple(setup.tolerance * (hi - lo) for lo, hi in allowed)
+    sc = lambda e: score(e, setup.goal)  # noqa: E731
+    reached = None
+    if setup.target is not None:
+        reached = lambda e: e.objective is not None and e.objective >= setup.target  # noqa: E731
+    points = _grid_points(allowed, setup.coarse)
+    coarse = runner.evaluate(points)
+    if setup.target is not None:
+        search.smallest_reaching(runner, coarse, reached, tol[0], max(1, setup.workers))
+    elif len(keys) == 1:
+        search.refine_1d(runner, sc, tol[0])
+    else:
+        axes = [search.coarse_values(lo, hi, setup.coarse) for lo, hi in allowed]
+        grid = {(i, j): runner.done[(x, y)] for i, x in enumerate(axes[0])
+                for j, y in enumerate(axes[1]) if (x, y) in runner.done}
+        steps = tuple((hi - lo) / max(setup.coarse - 1, 1) for lo, hi in allowed)
+        search.refine_2d(runner, sc, grid, steps, allowed, tol)
+    evals = tuple(sorted(runner.done.values(), key=lambda e: e.values))
+    if reached is not None:
+        hits = [e for e in evals if e.valid and reached(e)]
+        best = min(hits, key=lambda e: e.values) if hits else None
+        closest = None if hits else search.best_of(evals, sc)
+    else:
+        best, closest = search.best_of(evals, sc), None
+    reason = ""
+    spans = tuple(search.excluded_spans(evals, units, reached))
+    if best is None:
+        what = (f"no point reaches the THz cutoff target {common['target_thz']:g} THz within "
+                "the modelled limits" if reached is not None else
+                "no point meets the goal within the modelled limits")
+        reason = what + (": " + "; ".join(spans) if spans else "")
+        if bound_reason:
+            reason += f"; not searched: {bound_reason}"
+    elif len(keys) == 1 and bound_reason and abs(best.value - allowed[0][1]) <= tol[0]:
+        reason = f"on the edge of the allowed range: {bound_reason}"
+    binding = ()
+    if best is not None:
+        cap_pa = None if cap is None else cap * 1e5
+        binding = tuple(binding_constraints(best.record, cap_pa, fraction))
+    return Recommendation(**common, allowed=allowed, bound_reason=bound_reason, tolerance=tol,
+                          best=best, reason=reason, evaluations=evals, coarse=len(points),
+                          runs=runner.runs, binding=binding,
+                          excluded=tuple(search.exclusion_counts(evals, reached)),
+                          spans=spans, closest=closest)
 
 
 # ---------------------------------------------------------------------------------------------
 # front end
 
 
-def default_range(config) -> tuple[float, float]:
-    """Pressure range when none is given: a tenth of the fill up to the rating (or 3x). [bar]"""
-    p = config.gas.pressure / 1e5
-    hi = config.cell.rated_pressure / 1e5 if config.cell.rated_pressure else 3 * p
-    return p / 10, hi
-
-
-def _why_none(runner: _Runner, target: float | None) -> str:
-    beyond = sorted((e for e in runner.done.values() if not e.acceptable), key=lambda e: e.value)
-    unit, _ = _unit(runner.key)
-    if beyond and len(beyond) == len(runner.done):
-        first = beyond[0]
-        return (f"every evaluated point is beyond a modelled limit ({first.binding} at "
-                f"{first.value:.4g} {unit}, the lowest evaluated)")
-    if target is not None:
-        return f"no evaluated point reaches the THz cutoff target {target:g} THz"
-    return "no acceptable point found within the budget"
-
-
-def _search_one(raw, base_dir, overrides, gas_dirs, source, goal, key, span, target_thz,
-                budget, tolerance, gas) -> Recommendation:
-    runner = _Runner(raw, base_dir, overrides, gas_dirs, source, key, budget, goal)
-    lo, hi = span
-    bound, bound_reason = analytic_bound(runner.config, key, lo, hi)
-    unit, _ = _unit(key)
-    if bound < lo:
-        return Recommendation(goal, key, gas, span, None, bound_reason, 0.0, None,
-                              f"no allowed {key} in {lo:g}-{hi:g} {unit}: {bound_reason}", (),
-                              target_thz)
-    top = min(hi, bound)
-    tol = tolerance * (top - lo)
-    if target_thz is not None:
-        _reach_target(runner, lo, top, tol, target_thz * 1e12)
-    else:
-        _optimise(runner, lo, top, tol)
-    best, reason = _best(runner), ""
-    if target_thz is not None:
-        reached = [e for e in runner.done.values()
-                   if e.acceptable and e.objective >= target_thz * 1e12]
-        if reached:
-            best = min(reached, key=lambda e: e.value)
-        elif best is not None:
-            limit = bound_reason or f"the end of the requested range, {hi:g} {unit}"
-            reason = (f"THz cutoff {best.objective / 1e12:.4g} THz at {best.value:.4g} {unit} "
-                      f"(closest point; upper end set by {limit}) is below the target "
-                      f"{target_thz:g} THz")
-    if best is None:
-        reason = _why_none(runner, target_thz)
-    elif not reason and bound_reason and abs(best.value - top) <= tol:
-        reason = f"on the limit: {bound_reason}"
-    return Recommendation(goal, key, gas, span, (lo, top), bound_reason, tol, best, reason,
-                          tuple(sorted(runner.done.values(), key=lambda e: e.value)),
-                          target_thz)
-
-
-def recommend(config_path: str | Path, goal: Goal, *, search: str | None = None,
-              gases: tuple[str, ...] = (), target_thz: float | None = None, overrides=(),
-              extra_gas_dirs=(), budget: int = DEFAULT_BUDGET,
-              tolerance: float = DEFAULT_TOLERANCE) -> tuple[Recommendation, ...]:
-    """Best point for ``goal`` per gas (one entry without ``gases``).
-
-    ``search`` is ``"gas.pressure_bar=LO:HI"`` or ``"laser.energy_uj=LO:HI"``; default: the
-    pressure from a tenth of the fill up to the cell rating (or 3x the fill).
-    ``target_thz`` (goal ``thz_cutoff`` only) asks for the smallest value of the key whose
-    cutoff reaches it [THz]; ``budget`` caps the full runs per gas.
-    """
-    from hcfplan.io.tomlio import read_toml
-
+def _validate(goal, target_thz, coarse, budget, dims) -> tuple[int, int]:
     if goal not in GOALS:
         raise ConfigError(f"--goal = {goal!r}: must be one of {', '.join(GOALS)}")
     if target_thz is not None and (goal != "thz_cutoff" or not target_thz > 0):
         raise ConfigError(f"--target-thz = {target_thz}: needs --goal thz_cutoff and a value "
                           "> 0")
-    if budget < 2:
-        raise ConfigError(f"--budget = {budget}: must be >= 2")
+    if target_thz is not None and dims != 1:
+        raise ConfigError("--target-thz: searches one key (give one --vary)")
+    coarse = COARSE_POINTS[dims] if coarse is None else coarse
+    if coarse < 3:
+        raise ConfigError(f"--coarse = {coarse}: must be >= 3")
+    total = coarse ** dims
+    budget = total + REFINE_RUNS[dims] if budget is None else budget
+    if budget < total:
+        raise ConfigError(f"--budget = {budget}: must be at least the coarse pass "
+                          f"({total} runs)")
+    return coarse, budget
+
+
+def recommend(config_path: str | Path, goal: Goal, *,
+              search: str | Sequence[str] | None = None, gases: tuple[str, ...] = (),
+              target_thz: float | None = None, overrides=(), extra_gas_dirs=(),
+              budget: int | None = None, coarse: int | None = None,
+              tolerance: float = DEFAULT_TOLERANCE, workers: int = 1,
+              on_batch: Callable[[int, int], None] | None = None,
+              ) -> tuple[Recommendation, ...]:
+    """Best point for ``goal`` per gas (one entry without ``gases``).
+
+    ``search`` is one or two ranges ``"gas.pressure_bar=LO:HI"`` / ``"laser.energy_uj=LO:HI"``
+    (default: the pressure from a tenth of the fill up to the cell rating, or 3x the fill).
+    ``target_thz`` (goal ``thz_cutoff``, one key) asks for the smallest value whose cutoff
+    reaches it [THz]. ``coarse``: points of the coarse pass per key (default
+    :data:`COARSE_POINTS`); ``budget``: full runs per gas, at most (default: the coarse pass
+    plus :data:`REFINE_RUNS`); ``workers``: points run at a time (1: in this process).
+    ``on_batch(runs_done, batch_size)`` is called before each batch of runs.
+    """
+    from hcfplan.io.config import config_from_mapping
+    from hcfplan.io.tomlio import read_toml
+
+    texts = [search] if isinstance(search, str) else list(search or ())
+    ranges = parse_ranges(texts) if texts else None
+    coarse, budget = _validate(goal, target_thz, coarse, budget, len(ranges or [0]))
+    if workers < 1:
+        raise ConfigError(f"--workers = {workers}: must be >= 1")
     path = Path(config_path)
     raw = read_toml(path)
     runs = [(None, tuple(overrides))] if not gases else [
         (g, tuple(overrides) + (f"gas.species={g}",)) for g in gases]
     out = []
     for gas, over in runs:
-        config = _config(raw, path.parent, over, extra_gas_dirs, path)
+        config = config_from_mapping(raw, base_dir=path.parent, overrides=over,
+                                     extra_gas_dirs=extra_gas_dirs, source=path)
         if config.gas is None:
             raise ConfigError(f"recommend: fiber.kind = {config.fiber.kind!r} has no gas; "
                               "the search needs a gas-filled fiber")
-        key, span = parse_range(search) if search else ("gas.pressure_bar",
-                                                         default_range(config))
-        out.append(_search_one(raw, path.parent, over, extra_gas_dirs, path, goal, key, span,
-                               target_thz, budget, tolerance, gas))
+        spans = tuple(ranges) if ranges else (("gas.pressure_bar", default_range(config)),)
+        setup = _Setup((raw, path.parent, tuple(over), tuple(extra_gas_dirs), path), goal,
+                       spans, None if target_thz is None else target_thz * 1e12, coarse,
+                       budget, tolerance, workers)
+        out.append(_search(setup, gas, on_batch))
     return tuple(out)
 
 
-def overall_best(recs: tuple[Recommendation, ...]) -> Recommendation | None:
-    """The recommendation with the best acceptable point (goal order; reached targets first)."""
+def overall_best(recs: Sequence[Recommendation]) -> Recommendation | None:
+    """The recommendation with the best chosen point (with a target: the smallest value)."""
     found = [r for r in recs if r.best is not None]
     if not found:
         return None
     if found[0].target_thz is not None:
-        reached = [r for r in found if not r.reason.startswith("THz cutoff")]
-        if reached:
-            return min(reached, key=lambda r: r.best.value)
-        return max(found, key=lambda r: r.best.objective)
-    return min(found, key=lambda r: _score(r.best, r.goal))
+        return min(found, key=lambda r: r.best.values)
+    return min(found, key=lambda r: score(r.best, r.goal))

@@ -8,6 +8,8 @@ both margins over the corners, together with the nominal value; the limits use t
 corner. The corners of a box bound the band for outputs that change monotonically with each
 input, which is the usual case over a few percent (common practice, no source); the nominal
 point is run too, so a non-monotonic output shows up as a nominal value outside the range.
+Every corner carries its verdict (:mod:`hcfplan.planning.verdict`); a value that a corner's
+verdict voids is left out of the range (the margins never are: they bound the limits).
 """
 
 from __future__ import annotations
@@ -53,8 +55,10 @@ class SpreadResult:
 
     spec: SpreadSpec
     corners: tuple[dict, ...]  #: point records of :func:`hcfplan.planning.scan.compute_point`
-    ranges: dict  #: label -> {"low", "high", "nominal", "worst", "key"}
+    ranges: dict  #: label -> {"low", "high", "nominal", "worst", "key", "void_corners"}
     failed: tuple[str, ...]  #: messages of corners whose run did not complete
+    #: every corner's varied values and verdict: {"values", "verdict", "verdict_reasons"}
+    verdicts: tuple[dict, ...] = ()
 
 
 def parse_spread(text: str) -> SpreadSpec:
@@ -112,24 +116,54 @@ def corner_tasks(config, spec: SpreadSpec, overrides=(), extra_gas_dirs=()) -> l
     return tasks
 
 
-def _value(record: dict, section: str, key: str):
+def _raw_value(record: dict, section: str, key: str):
     from hcfplan.planning.scan import number_or_none
 
     holder = record["margins"] if section == "margins" else record["summary"].get(section, {})
     return number_or_none(holder.get(key) if isinstance(holder, dict) else None)
 
 
+def _void(record: dict, section: str, key: str) -> bool:
+    """Whether the record's verdict voids the summary value (margins never are)."""
+    from hcfplan.planning.verdict import verdict_of_record
+
+    return (section != "margins" and bool(record.get("summary"))
+            and verdict_of_record(record).void_reason(f"{section}.{key}") is not None)
+
+
+def _value(record: dict, section: str, key: str):
+    """A reported value of a record; None where its verdict voids it."""
+    return None if _void(record, section, key) else _raw_value(record, section, key)
+
+
 def _ranges(corners, nominal: dict) -> dict:
+    """Lowest and highest of each reported value over the corners whose verdict leaves it
+    standing (``void_corners`` counts the others)."""
     out = {}
     for label, section, key, worst in REPORTED:
         values = [v for v in (_value(r, section, key) for r in corners) if v is not None]
         if not values:
             continue
         low, high = min(values), max(values)
+        void = sum(1 for r in corners
+                   if _raw_value(r, section, key) is not None and _void(r, section, key))
         out[label] = {"key": f"{section}.{key}", "low": low, "high": high,
                       "nominal": _value(nominal, section, key),
-                      "worst": low if worst == "min" else high}
+                      "worst": low if worst == "min" else high, "void_corners": void}
     return out
+
+
+def corner_verdicts(records) -> tuple[dict, ...]:
+    """The varied values and the verdict of every corner record
+    (:func:`hcfplan.planning.verdict.verdict_of_record`)."""
+    from hcfplan.planning.verdict import verdict_of_record
+
+    out = []
+    for r in records:
+        verdict = verdict_of_record(r)
+        out.append({"values": r["values"], "verdict": verdict.status,
+                    "verdict_reasons": [x.as_dict() for x in verdict.reasons]})
+    return tuple(out)
 
 
 def run_spread(tasks: list[dict], spec: SpreadSpec, nominal: dict, *,
@@ -146,23 +180,38 @@ def run_spread(tasks: list[dict], spec: SpreadSpec, nominal: dict, *,
     runner(tasks, records.append, workers, None)
     ok = [r for r in records if r["status"] == "ok"]
     failed = tuple(f"{r['values']}: {r['message']}" for r in records if r["status"] != "ok")
-    return SpreadResult(spec=spec, corners=tuple(ok), ranges=_ranges(ok, nominal), failed=failed)
+    return SpreadResult(spec=spec, corners=tuple(ok), ranges=_ranges(ok, nominal), failed=failed,
+                        verdicts=corner_verdicts(records))
 
 
 def worst_case_limits(result: SpreadResult, limits_spec) -> dict:
-    """``limits.worst_case.*``: the margins at the worst corner against the configured limits."""
+    """``limits.worst_case.*``: the margins at the worst corner against the configured limits.
+
+    Margins as in :mod:`hcfplan.limits.margins`: the self-focusing margin is the lowest P_cr / P
+    over the corners (input and in the fiber), beside its required value
+    ``limits.self_focusing_margin``; the ionisation margin is limit / highest fraction
+    (required 1). ``worst_case.status`` is ``"exceeds"`` when either is not met.
+    """
+    from hcfplan.limits.margins import margin, margin_met
+
     out = {}
     sf = [result.ranges[k]["worst"] for k in ("self-focusing margin",
                                                "self-focusing margin in fiber")
           if k in result.ranges]
     ion = result.ranges.get("ionisation fraction")
+    met = []
     if sf:
         out["worst_case.self_focusing_margin"] = min(sf)
+        out["worst_case.self_focusing_required_margin"] = limits_spec.self_focusing_margin
+        met.append(margin_met(min(sf), limits_spec.self_focusing_margin))
     if ion is not None:
+        ion_margin = (margin(limits_spec.ionization_fraction_limit, ion["worst"])
+                      if ion["worst"] else None)  # no fraction: no finite margin to report
         out["worst_case.ionization_fraction"] = ion["worst"]
-    beyond = ((sf and min(sf) < limits_spec.self_focusing_margin)
-              or (ion is not None and ion["worst"] > limits_spec.ionization_fraction_limit))
-    out["worst_case.status"] = "exceeds" if beyond else "within"
+        out["worst_case.ionization_margin"] = ion_margin
+        out["worst_case.ionization_margin_required"] = 1.0
+        met.append(margin_met(ion_margin, 1.0))
+    out["worst_case.status"] = "exceeds" if False in met else "within"
     return out
 
 
@@ -174,6 +223,8 @@ def spread_summary(result: SpreadResult) -> dict:
         "failed": list(result.failed),
         "ranges": {r["key"]: {k: v for k, v in r.items() if k != "key"}
                    for r in result.ranges.values()},
+        "corners": list(result.verdicts),
+        "invalid_corners": sum(1 for v in result.verdicts if v["verdict"] == "invalid"),
         "method": ("full chain at the 2^k corners of the input box; the limits use the worst "
-                   "corner"),
+                   "corner; a value a corner's verdict voids is left out of its range"),
     }

@@ -1,7 +1,9 @@
 """Figure of the operating envelope (:class:`hcfplan.planning.envelope.EnvelopeResult`).
 
 Draws into the given ``ax`` and returns it; converts SI to display units (bar, uJ, fs, THz)
-here only, recomputes nothing.
+here only, recomputes nothing. The duration and THz contours are labelled SPM-only estimates;
+the points of a GNLSE check (:class:`hcfplan.planning.envelope_check.EnvelopeCheck`) are marked
+and annotated with their ratio, or the title says the estimates are unchecked.
 """
 
 from __future__ import annotations
@@ -16,6 +18,7 @@ if TYPE_CHECKING:
     from matplotlib.axes import Axes
 
     from hcfplan.planning.envelope import EnvelopeResult
+    from hcfplan.planning.envelope_check import EnvelopeCheck
 
 BAR = 1e-5  # Pa -> bar
 UJ = 1e6  # J -> uJ
@@ -39,7 +42,8 @@ def _shade_beyond(ax, p, energy_line, top, color, label, hatch=None):
                     hatch=hatch, lw=0, label=label)
 
 
-def plot_envelope(ax: Axes, result: EnvelopeResult, *, contours: str = "duration") -> Axes:
+def plot_envelope(ax: Axes, result: EnvelopeResult, *, contours: str = "duration",
+                  check: EnvelopeCheck | None = None) -> Axes:
     """Energy (log) vs fill pressure with the limit lines, regions and estimate contours.
 
     Parameters
@@ -51,6 +55,9 @@ def plot_envelope(ax: Axes, result: EnvelopeResult, *, contours: str = "duration
     contours : {"duration", "cutoff", "both"}
         Which estimate to contour: compressed duration (fs, solid grey), THz cutoff (THz,
         dotted), or both.
+    check : EnvelopeCheck, optional
+        GNLSE check of the estimates: its points are marked (white diamonds) and annotated with
+        chain/estimate; without it the title says the estimates are unchecked.
 
     Returns
     -------
@@ -74,7 +81,8 @@ def plot_envelope(ax: Axes, result: EnvelopeResult, *, contours: str = "duration
     _shade_beyond(ax, p, sf, top, "C3", None)
     _shade_beyond(ax, p, ion, top, "C1", None, hatch="//")
     ax.plot(p, sf, color="C3", lw=1.8,
-            label=f"self-focusing: P_cr / {result.self_focusing_margin:g} (estimate)")
+            label=f"self-focusing: P_cr/P = {result.self_focusing_margin:g} "
+                  "(the required margin; estimate)")
     ax.plot(p, ion, color="C1", lw=1.8, ls="--",
             label=f"ionisation fraction {result.ionization_fraction_limit:g} (PPT estimate)")
     if result.rated_pressure is not None and result.rated_pressure * BAR <= p.max():
@@ -92,8 +100,11 @@ def plot_envelope(ax: Axes, result: EnvelopeResult, *, contours: str = "duration
     ax.set_ylim(bottom, top)
     ax.set_xlabel("Fill pressure (bar)")
     ax.set_ylabel("Pulse energy before coupling (uJ)")
-    ax.set_title("Operating envelope (analytic estimates, no propagation)")
-    ax.legend(loc="lower left", fontsize="small", title="lines are model estimates",
+    _check_marks(ax, check)
+    ax.set_title("Operating envelope: analytic limits, SPM-only estimate contours\n"
+                 + _check_title(check), fontsize="medium")
+    ax.legend(loc="lower left", fontsize="small",
+              title="lines: model estimates; contours: SPM-only estimates",
               title_fontsize="small", framealpha=0.85)
     return ax
 
@@ -104,11 +115,53 @@ def _contours(ax, p, e, result, which: str) -> None:
         levels = _levels(values, DURATION_LEVELS_FS)
         if levels:
             cs = ax.contour(p, e, values, levels=levels, colors="0.35", linewidths=0.8)
-            ax.clabel(cs, fmt="%g fs", fontsize="x-small")
+            ax.clabel(cs, fmt="%g fs (SPM-only)", fontsize="x-small")
+            ax.plot([], [], color="0.35", lw=0.8,
+                    label="compressed FWHM, SPM-only estimate (fs)")
     if which in ("cutoff", "both"):
         values = np.asarray(result.thz_cutoff) * THZ
         levels = _levels(values, CUTOFF_LEVELS_THZ)
         if levels:
             cs = ax.contour(p, e, values, levels=levels, colors="C2", linewidths=0.8,
                             linestyles=":")
-            ax.clabel(cs, fmt="%g THz", fontsize="x-small")
+            ax.clabel(cs, fmt="%g THz (SPM-only)", fontsize="x-small")
+            ax.plot([], [], color="C2", lw=0.8, ls=":",
+                    label="THz cutoff, SPM-only thin-crystal estimate (THz)")
+
+
+def _check_title(check) -> str:
+    from hcfplan.planning.envelope_check import outside
+
+    if check is None:
+        return "contours unchecked (no GNLSE check run)"
+    if not check.points:
+        return "contours unchecked (no map point within the limits)"
+    flagged = sum(1 for pt in check.points if outside(pt.ratio, check.factor))
+    return (f"GNLSE check at {len(check.points)} points: "
+            f"{flagged} off by more than x{check.factor:g}")
+
+
+def _check_marks(ax, check) -> None:
+    """White diamonds at the check points; the ratio beside each, a sentence where it is off."""
+    from hcfplan.planning.envelope_check import disagreement
+
+    if check is None or not check.points:
+        return
+    for k, pt in enumerate(check.points):
+        x, y = pt.pressure * BAR, pt.energy * UJ
+        ax.plot([x], [y], marker="D", ms=7, mfc="white", mec="k", ls="none",
+                label="GNLSE check point (chain vs SPM-only estimate)" if k == 0 else None)
+        phrase = disagreement(pt.ratio, factor=check.factor)
+        if phrase:
+            text = phrase.replace(" than ", "\nthan ")
+        elif np.isfinite(pt.ratio):
+            text = f"GNLSE check: x{pt.ratio:.2g} (agrees)"
+        else:
+            text = "GNLSE check: void"
+        lo, hi = ax.get_xlim()  # keep the text inside the axes, rows alternating
+        third = min(int(3 * (x - lo) / (hi - lo)), 2)
+        ax.annotate(text, (x, y), xytext=((6, 0, -6)[third], -16 - 26 * (k % 2)),
+                    textcoords="offset points", ha=("left", "center", "right")[third],
+                    va="top",
+                    fontsize="x-small", color="k",
+                    bbox={"boxstyle": "round,pad=0.2", "fc": "white", "alpha": 0.8, "lw": 0})

@@ -4,6 +4,10 @@
 scale) and the main results against the key (compressed FWHM, compressed peak power, THz
 cutoff, self-focusing margin, ionisation margin), with the points beyond a modelled limit
 shaded. 2D scans: maps of the same results, points beyond a limit crossed out.
+A result that a point's verdict voids (:mod:`hcfplan.planning.verdict`: every result of an
+invalid point, and e.g. the THz cutoff beyond the crystal model) is not drawn as a result: it
+appears as a hollow grey marker off the line (1D) or as a blank cell with a grey circle (2D),
+and the title says how many points were left out and why. Margins are always drawn.
 Nothing here recomputes physics.
 """
 
@@ -38,6 +42,44 @@ def _axis(values: tuple):
     if all(isinstance(v, (int, float)) and not isinstance(v, bool) for v in values):
         return np.asarray(values, dtype=float), None
     return np.arange(len(values), dtype=float), [str(v) for v in values]
+
+
+def _void(record: dict, path: tuple[str, ...]) -> bool:
+    """Whether the point's verdict voids the summary value at ``path`` (margins never)."""
+    from hcfplan.planning.verdict import verdict_of_record
+
+    if path[0] != "summary":
+        return False
+    verdict = verdict_of_record(record)
+    return verdict.invalid or verdict.void_reason(".".join(path[1:])) is not None
+
+
+def void_note(records) -> str:
+    """How many points are left out as results and why, e.g. "hollow grey: void, 2 of 9
+    points invalid (no_transmission 2); THz cutoff void at 3 (thz_beyond_crystal_model)"."""
+    from hcfplan.planning.verdict import verdict_of_record
+
+    verdicts = [verdict_of_record(r) for r in records]
+    invalid = [v for v in verdicts if v.invalid]
+    parts = []
+    if invalid:
+        codes: dict[str, int] = {}
+        for v in invalid:
+            for code in dict.fromkeys(c for c in v.codes):
+                codes[code] = codes.get(code, 0) + 1
+        parts.append(f"{len(invalid)} of {len(records)} points invalid ("
+                     + ", ".join(f"{c} {n}" for c, n in codes.items()) + ")")
+    for label, path, _, _ in QUANTITIES:
+        if path[0] != "summary":
+            continue
+        key = ".".join(path[1:])
+        reasons = [v.void_reason(key) for v in verdicts if not v.invalid]
+        found = [r.code for r in reasons if r is not None]
+        if found:
+            name = label.rsplit(" (", 1)[0]
+            parts.append(f"{name} void at {len(found)} ("
+                         + ", ".join(dict.fromkeys(found)) + ")")
+    return ("hollow grey: void, " + "; ".join(parts)) if parts else ""
 
 
 def _outside(record: dict) -> str:
@@ -98,7 +140,10 @@ def draw_results_1d(fig, key: str, values: tuple, records):
     half = (np.min(np.diff(x)) / 2 if x.size > 1 else 0.5)
     for ax, (label, path, scale, log) in zip(axes, QUANTITIES, strict=True):
         y = np.array([_value(r, path) for r in records]) / scale
-        ax.plot(x, y, "o-", color="C0")
+        void = np.array([_void(r, path) for r in records], dtype=bool)
+        ax.plot(x[~void], y[~void], "o-", color="C0")
+        if np.any(void):
+            ax.plot(x[void], y[void], "o", mfc="none", color="0.6")
         if log and np.any(y > 0):
             ax.set_yscale("log")
         ax.set_ylabel(label, fontsize="small")
@@ -107,13 +152,17 @@ def draw_results_1d(fig, key: str, values: tuple, records):
                 ax.axvspan(xi - half, xi + half, color="C3", alpha=0.15, lw=0)
     required = records[0].get("margins", {}).get("self_focusing_required") if records else None
     if required:
-        axes[3].axhline(required, color="C3", ls="--", lw=1, label="required margin")
+        axes[3].axhline(required, color="C3", ls="--", lw=1,
+                        label=f"required margin P_cr/P >= {required:g}")
         axes[3].legend(fontsize="small")
-    axes[4].axhline(1.0, color="C3", ls="--", lw=1)
+    axes[4].axhline(1.0, color="C3", ls="--", lw=1, label="required margin >= 1")
+    axes[4].legend(fontsize="small")
     if labels:
         axes[-1].set_xticks(x, labels)
     axes[-1].set_xlabel(key)
-    axes[0].set_title("Scan results (shaded: beyond a modelled limit)")
+    note = void_note(records)
+    axes[0].set_title("Scan results (shaded: beyond a modelled limit)"
+                      + (f"\n{note}" if note else ""), fontsize="small" if note else None)
     return axes
 
 
@@ -128,17 +177,22 @@ def draw_results_2d(fig, keys: tuple[str, str], values: tuple[tuple, tuple], rec
     gx, gy = np.meshgrid(x, y, indexing="ij")
     for ax, (label, path, scale, log) in zip(axes, QUANTITIES, strict=True):
         z = np.array([_value(r, path) for r in records]).reshape(x.size, y.size) / scale
+        void = np.array([_void(r, path) for r in records], dtype=bool).reshape(x.size, y.size)
+        z = np.where(void, np.nan, z)
         if log:
             z = np.log10(np.where(z > 0, z, np.nan))
             label = f"log10 {label}"
         mesh = ax.pcolormesh(x, y, z.T, shading="nearest")
         fig.colorbar(mesh, ax=ax, label=label)
         ax.plot(gx[outside], gy[outside], "x", color="C3", ms=8)
+        ax.plot(gx[void], gy[void], "o", mfc="none", color="0.6", ms=8)
         if xlabels:
             ax.set_xticks(x, xlabels)
         if ylabels:
             ax.set_yticks(y, ylabels)
         ax.set_ylabel(keys[1])
     axes[-1].set_xlabel(keys[0])
-    axes[0].set_title("Scan results (x: beyond a modelled limit)")
+    note = void_note(records)
+    axes[0].set_title("Scan results (x: beyond a modelled limit)"
+                      + (f"\n{note}" if note else ""), fontsize="small" if note else None)
     return axes

@@ -1,5 +1,7 @@
 """THz figures: power spectrum with the cutoff, phase-matching map, driving optical spectrum.
 
+Frequencies above the crystal model's stated range are shaded (:func:`shade_beyond_model`).
+
 Each function takes an ``ax`` and a result object (:class:`hcfplan.thz.generation.ThzResult` or
 :class:`hcfplan.thz.detection.PhaseMatchingMap`), draws, and returns ``ax``. Unit conversion to
 display units happens here only; no physics is recomputed.
@@ -21,8 +23,35 @@ def _db(power: np.ndarray) -> np.ndarray:
     return decibels(power, np.max(power), _FLOOR_DB)
 
 
+def shade_beyond_model(ax: Any, result: Any, f_max_thz: float | None = None) -> Any:
+    """Shade the THz frequencies above ``result.model_limit``, where the crystal model is not
+    valid (the spectrum there is computed with the model extrapolated, and no cutoff, peak or
+    width is reported from it).
+
+    Parameters
+    ----------
+    ax : matplotlib.axes.Axes
+        Axes with THz frequency (THz) on x.
+    result : ThzResult
+        THz estimate.
+    f_max_thz : float or None
+        Right end of the shading; default the end of the frequency axis. [THz]
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+    """
+    limit = result.model_limit * 1e-12
+    end = result.frequency[-1] * 1e-12 if f_max_thz is None else f_max_thz
+    if end > limit:
+        ax.axvspan(limit, end, color="0.85", zorder=0,
+                   label=f"beyond the crystal model (> {limit:.3g} THz)")
+    return ax
+
+
 def plot_thz_spectrum(ax: Any, result: Any, *, log_scale: bool = True) -> Any:
-    """Generated (and, if present, detected) THz power spectrum with the cutoff marked.
+    """Generated (and, if present, detected) THz power spectrum with the cutoff marked and the
+    frequencies beyond the crystal model's range shaded.
 
     Parameters
     ----------
@@ -43,16 +72,20 @@ def plot_thz_spectrum(ax: Any, result: Any, *, log_scale: bool = True) -> Any:
             f"{result.thickness * 1e3:g} mm)")
     if result.detected_power is not None:
         ax.plot(f_thz, scale(result.detected_power), label="detected (EO response)")
-    ax.axvline(result.cutoff_frequency * 1e-12, color="k", linestyle="--",
-               label=f"cutoff {result.cutoff_frequency * 1e-12:.2f} THz")
+    if result.cutoff is not None:
+        ax.axvline(result.cutoff * 1e-12, color="k", linestyle="--",
+                   label=f"cutoff {result.cutoff * 1e-12:.2f} THz")
     ax.set_xlabel("Frequency (THz)")
     ax.set_ylabel("Power (dB rel. peak)" if log_scale else "Power (norm.)")
-    ax.set_title(f"Cutoff: {result.cutoff_definition}", fontsize="small", wrap=True)
+    title = (f"Cutoff: {result.cutoff_definition}" if result.cutoff is not None else
+             f"Cutoff above the model's range (> {result.model_limit * 1e-12:.3g} THz)")
+    ax.set_title(title, fontsize="small", wrap=True)
     if log_scale:
         ax.set_ylim(_FLOOR_DB, 3.0)
     visible = f_thz[_db(result.generated_power) > _FLOOR_DB]
-    if visible.size:
-        ax.set_xlim(0.0, visible.max() * 1.1)
+    right = visible.max() * 1.1 if visible.size else f_thz[-1]
+    ax.set_xlim(0.0, right)
+    shade_beyond_model(ax, result, right)
     ax.legend(fontsize="small", loc="upper right")
     return ax
 
@@ -104,6 +137,7 @@ def plot_coherence_length(ax: Any, result: Any) -> Any:
                 label=f"coherence length at {pump_nm:.0f} nm")
     ax.axhline(result.thickness * 1e3, color="k", linestyle="--",
                label=f"thickness {result.thickness * 1e3:g} mm")
+    shade_beyond_model(ax, result)
     ax.set_xlabel("THz frequency (THz)")
     ax.set_ylabel("Length (mm)")
     ax.legend(fontsize="small")

@@ -74,7 +74,7 @@ def ionizing_gas(grid: Grid, waveguide, gas, model: str | None) -> IonizingGas:
     Parameters
     ----------
     grid : Grid
-        The run's grid; its ``omega0`` sets the wavelength of the rate tables. [rad/s]
+        The run's grid; its ``omega_pump`` sets the wavelength of the rate tables. [rad/s]
     waveguide : Waveguide
         Fiber model; needs a finite ``peak_intensity_area`` [m^2] for ionisation to be modelled.
     gas : GasMedium or None
@@ -106,7 +106,7 @@ def ionizing_gas(grid: Grid, waveguide, gas, model: str | None) -> IonizingGas:
     if not (math.isfinite(area) and area > 0):
         return IonizingGas(model, (), ("ionisation ignored: the waveguide has no "
                                        "peak_intensity_area",))
-    wavelength = 2 * math.pi * c / grid.omega0
+    wavelength = 2 * math.pi * c / grid.omega_pump  # the rates at the pump (grid.py conv. 1)
     found = []
     for component in gas.components:
         ion = getattr(component.table, "ionization", None)

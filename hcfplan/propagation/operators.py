@@ -5,12 +5,12 @@ The equation (conventions of :mod:`hcfplan.numerics.grid`; :math:`\\tilde A` the
 
 .. math::
     \\partial_z\\tilde A = \\hat L(\\omega)\\tilde A + \\hat N(\\tilde A),\\qquad
-    \\hat L = i[\\beta(\\omega) - \\beta_0 - \\beta_1\\Delta\\omega] - \\alpha(\\omega)
+    \\hat L = i[\\beta(\\omega) - \\beta_0 - \\beta_1(\\omega-\\omega_p)] - \\alpha(\\omega)
               - \\alpha_{edge}(\\omega),
 
 .. math::
     \\hat N = i\\gamma(\\omega)\\,\\mathcal F\\{A\\,[f_i|A|^2 + (h * |A|^2)]\\}
-     + \\mathcal F\\Big\\{-i\\frac{e^2\\rho(t)}{2\\varepsilon_0 m_e c\\,\\omega_0}A
+     + \\mathcal F\\Big\\{-i\\frac{e^2\\rho(t)}{2\\varepsilon_0 m_e c\\,\\omega_p}A
      - \\frac{A_I}{2|A|^2}\\sum_k I_{p,k}\\,\\partial_t\\rho_k\\,A\\Big\\}.
 
 * **Dispersion and loss**: the full :math:`\\beta(\\omega)` and field loss :math:`\\alpha(\\omega)`
@@ -23,11 +23,13 @@ The equation (conventions of :mod:`hcfplan.numerics.grid`; :math:`\\tilde A` the
 * **Kerr and self-steepening**: :math:`\\gamma(\\omega) = n_2\\omega/(cA_{eff}(\\omega))` as the
   waveguide returns it (interface item 4), i.e. the frequency-domain form of the shock term
   with an :math:`\\omega`-dependent effective area, as in Kibler et al. [1]. It reduces to
-  :math:`\\gamma_0(1+\\Delta\\omega/\\omega_0)` for a constant area. For a ``TaylorFiber``, whose
-  gamma is constant, the factor :math:`\\omega/\\omega_0` is applied when its
-  ``self_steepening`` is set. With a constant area this form conserves the photon number
-  :math:`\\sum|\\tilde A|^2/\\omega` exactly, with or without Raman [2]; with a varying area it
-  does so only approximately (the pseudo-field of Lægsgaard [3] would make it exact).
+  :math:`\\gamma_p\\,\\omega/\\omega_p` for a constant area (:math:`\\omega` the true optical
+  frequency of the sample, so the term does not depend on the window's reference frequency).
+  For a ``TaylorFiber``, whose gamma is constant (given at the pump), the factor
+  :math:`\\omega/\\omega_p` is applied when its ``self_steepening`` is set. With a constant
+  area this form conserves the photon number :math:`\\sum|\\tilde A|^2/\\omega` exactly, with or
+  without Raman [2]; with a varying area it does so only approximately (the pseudo-field of
+  Lægsgaard [3] would make it exact).
 * **Raman**: :math:`f_i` and the causal response h; damped oscillator of Blow & Wood [2] for a
   ``TaylorFiber`` (:math:`f_i = 1-f_R`, :math:`h = f_R h_{BW}`), and for molecular gases the
   rotational response of :mod:`hcfplan.propagation.raman` divided by the waveguide's n2 (the
@@ -38,11 +40,11 @@ The equation (conventions of :mod:`hcfplan.numerics.grid`; :math:`\\tilde A` the
   component k with an ionisation table, the rate :math:`W_k(I)` at the on-axis intensity
   :math:`I = |A|^2/A_I` (``peak_intensity_area``; using the peak for the whole mode overestimates
   the mode-averaged ionisation) gives :math:`\\rho_k(t) = N_k[1-\\exp(-\\int_{-\\infty}^t W_k)]`.
-  The free electrons lower the index (first term, :math:`\\omega_p^2/(2\\omega_0^2)` at the pump
-  frequency, which conserves the energy), and the field loses :math:`I_p` per electron over the
-  area :math:`A_I` (second term), so the energy lost per length is exactly
-  :math:`A_I\\sum_k I_{p,k}\\rho_k(+\\infty)`. Cycle-averaged, single ionisation, no
-  collisional absorption or avalanche.
+  The free electrons lower the index (first term, :math:`\\omega_{pl}^2/(2\\omega_p^2)` at the
+  pump frequency :math:`\\omega_p`, which conserves the energy), and the field loses
+  :math:`I_p` per electron over the area :math:`A_I` (second term), so the energy lost per
+  length is exactly :math:`A_I\\sum_k I_{p,k}\\rho_k(+\\infty)`. Cycle-averaged, single
+  ionisation, no collisional absorption or avalanche.
 
 References
 ----------
@@ -105,7 +107,7 @@ def edge_absorber(grid: Grid, length: float) -> np.ndarray:
     ----------
     none: numerical helper (absorbing boundary; common practice, no source)
     """
-    x = np.abs(grid.domega) / (np.pi / grid.dt)  # 0 at the pump, 1 at the window edge
+    x = np.abs(grid.domega) / (np.pi / grid.dt)  # 0 at the window centre, 1 at its edge
     ramp = np.clip((x - (1 - 2 * EDGE_FRACTION)) / (2 * EDGE_FRACTION), 0.0, 1.0)
     return EDGE_ATTENUATION / length * np.sin(0.5 * np.pi * ramp) ** 2
 
@@ -121,13 +123,14 @@ def linear_terms(grid: Grid, waveguide, length: float) -> LinearTerms:
     with np.errstate(all="ignore"):
         beta = np.asarray(waveguide.propagation_constant(grid.omega), dtype=float)
         alpha = np.asarray(waveguide.attenuation(grid.omega), dtype=float)
-    beta0 = float(np.asarray(waveguide.propagation_constant(np.array([grid.omega0])))[0])
+    pump = grid.omega_pump  # the frame moves with the pump's group velocity (grid.py conv. 1)
+    beta0 = float(np.asarray(waveguide.propagation_constant(np.array([pump])))[0])
     beta1 = float(
-        derivative(waveguide.propagation_constant, grid.omega0, 1, rel_width=_BETA1_REL_WIDTH)
+        derivative(waveguide.propagation_constant, pump, 1, rel_width=_BETA1_REL_WIDTH)
     )
     valid = np.isfinite(beta) & np.isfinite(alpha)
     absorber = edge_absorber(grid, length)
-    phase = np.where(valid, beta - beta0 - beta1 * grid.domega, 0.0)
+    phase = np.where(valid, beta - beta0 - beta1 * grid.domega_pump, 0.0)
     loss = np.where(valid, alpha, EDGE_ATTENUATION / length) + absorber
     return LinearTerms(1j * phase - loss, valid, beta0, beta1)
 
@@ -142,8 +145,8 @@ def kerr_coefficient_spectrum(grid: Grid, waveguide, valid: np.ndarray) -> np.nd
     """
     gamma = np.asarray(waveguide.nonlinear_coefficient(grid.omega), dtype=float)
     shock = getattr(waveguide, "self_steepening", None)
-    if shock:  # TaylorFiber: constant gamma, shock term applied here
-        gamma = gamma * grid.omega / grid.omega0
+    if shock:  # TaylorFiber: constant gamma (given at the pump), shock term applied here
+        gamma = gamma * grid.omega / grid.omega_pump
     return np.where(valid & np.isfinite(gamma), gamma, 0.0)
 
 
@@ -262,7 +265,7 @@ class NonlinearTerms:
         self.species = species
         self.intensity_area = intensity_area
         self.dt = dt
-        self.refraction = plasma_refraction_coefficient(grid.omega0)
+        self.refraction = plasma_refraction_coefficient(grid.omega_pump)
         self.neutral_density = sum(s.number_density for s in species)
         self.ionization_fraction = 0.0
         self.electron_line_density = 0.0

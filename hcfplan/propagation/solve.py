@@ -199,6 +199,7 @@ def _run(u0, field, grid, waveguide, runner, nonlinear, run: _Run, notes) -> Pro
         n_rejected=counters.n_rejected,
         n_rhs_evals=nonlinear.n_calls,
         warnings=tuple(notes + recorder.edge_warnings()),
+        **recorder.edge_fractions(),
     )
 
 

@@ -103,12 +103,13 @@ def _check_positive(name: str, value: float, unit: str) -> None:
 
 
 def _apply_gdd(grid: Grid, spectrum: np.ndarray, gdd: float) -> np.ndarray:
-    """Multiply by exp(i gdd dw^2 / 2) (convention 4 of :mod:`hcfplan.numerics.grid`)."""
+    """Multiply by exp(i gdd dw^2 / 2), dw = omega - omega_pump (conventions 1 and 4 of
+    :mod:`hcfplan.numerics.grid`)."""
     if not np.isfinite(gdd):
         raise ConfigError(f"gdd = {gdd} s^2: must be finite")
     if gdd == 0.0:
         return spectrum
-    return spectrum * np.exp(0.5j * gdd * grid.domega**2)
+    return spectrum * np.exp(0.5j * gdd * grid.domega_pump**2)
 
 
 def pulse_field(
@@ -127,7 +128,8 @@ def pulse_field(
     energy : float
         Pulse energy; the discrete energy on the grid is set to it exactly. [J]
     gdd : float
-        Group-delay dispersion applied as the spectral phase exp(i gdd dw^2/2). [s^2]
+        Group-delay dispersion applied as the spectral phase exp(i gdd dw^2/2), dw = omega -
+        ``grid.omega_pump``. [s^2]
 
     Returns
     -------
@@ -137,7 +139,9 @@ def pulse_field(
     Notes
     -----
     The amplitude a(t/T0) comes from :func:`hcfplan.pulse.shapes.pulse_shape`, with
-    T0 = FWHM / (FWHM/T0) [1].
+    T0 = FWHM / (FWHM/T0) [1]; the pulse's carrier is the grid's pump, i.e. the envelope about
+    the grid's reference frequency carries exp(-i (omega_pump - omega0) t) (convention 1 of
+    :mod:`hcfplan.numerics.grid`).
 
     References
     ----------
@@ -148,7 +152,7 @@ def pulse_field(
     _check_positive("duration_fwhm", duration_fwhm, "s")
     _check_positive("energy", energy, "J")
     t0 = duration_fwhm / entry.fwhm_per_t0
-    field = entry.amplitude(grid.time / t0).astype(complex)
+    field = entry.amplitude(grid.time / t0) * grid.carrier()  # carrier at the pump (conv. 1)
     if gdd != 0.0:
         field = grid.to_time(_apply_gdd(grid, grid.to_spectrum(field), gdd))
     return field * np.sqrt(energy / grid.energy_t(field))
@@ -174,7 +178,7 @@ def field_from_measured_spectrum(
     energy : float
         Pulse energy the field is scaled to. [J]
     gdd : float
-        Group-delay dispersion added as a spectral phase. [s^2]
+        Group-delay dispersion added as a spectral phase about ``grid.omega_pump``. [s^2]
 
     Returns
     -------

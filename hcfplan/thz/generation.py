@@ -31,7 +31,14 @@ This is the frequency-domain difference-frequency model of optical rectification
 standard form, see also [2], [3]); the equation numbers of [1] were not checked.
 
 The sum over omega is done by :mod:`hcfplan.thz.mixing` (exact k(omega), or the group-velocity
-approximation); the cutoff, peak and widths by :mod:`hcfplan.thz.measures`; the set-up (crystal,
+approximation) on the samples of :mod:`hcfplan.thz.sampling` (a THz step of its own, at most
+``setup.frequency_step``, and a window that holds the pulse dispersed in the crystal); the
+cutoff, peak and widths by :mod:`hcfplan.thz.measures`. The spectrum is computed up to the
+optical bandwidth, also beyond the range the crystal tables state for their THz models: that
+part is needed to know whether the energy lies within the range, but a cutoff, peak or width
+that lies beyond it (``model_limit``, generation and detection crystal) is reported as ``None``
+and a note says why. The phase of the THz field is that of the continuous transforms
+(independent of the grid). The set-up (crystal,
 detector, levels, beam) arrives as one :class:`hcfplan.thz.setup.ThzSetup`. A measured spectrum
 enters through :mod:`hcfplan.thz.measured`.
 
@@ -50,6 +57,7 @@ References
 
 from __future__ import annotations
 
+import dataclasses
 import warnings
 from dataclasses import dataclass
 
@@ -70,8 +78,9 @@ from hcfplan.thz.detection import (
     probe_gate,
     spectral_autocorrelation,
 )
-from hcfplan.thz.measures import spectral_peak, thz_cutoff, width_above_level
+from hcfplan.thz.measures import band_above_level, model_limit, spectral_peak, thz_cutoff
 from hcfplan.thz.mixing import PHASE_MATCHING
+from hcfplan.thz.sampling import padded_spectrum, thz_sampling
 from hcfplan.thz.setup import ThzSetup
 
 #: Reference nonlinearity and flat-top beam area of :attr:`ThzResult.relative_efficiency`.
@@ -94,18 +103,29 @@ ENERGY_CAUTION = (
 class ThzResult:
     """THz estimate from one optical spectrum and one crystal (all SI).
 
+    A figure that lies beyond ``model_limit`` (the THz model's range stated by the generation
+    and, with a detector, the detection crystal table) is ``None``: it is not a result of the
+    model, and ``warnings`` says so.
+
     Attributes
     ----------
-    frequency : THz frequency axis, 0 ... optical bandwidth. [Hz]
+    frequency : THz frequency axis, 0 ... optical bandwidth, step ``frequency_step``. [Hz]
     generated_power : generated power spectrum at the crystal exit, peak = 1. [-]
     generated_field : complex spectral field for d_eff = 1 pm/V and a flat-top area of 1 mm^2,
         phase in the pump-group frame. [V s/m]
     detected_power : power spectrum after the EO detector response, peak = 1, or ``None``. [-]
-    peak_frequency, detected_peak_frequency : peak of the generated / detected spectrum. [Hz]
-    cutoff_frequency, detected_cutoff_frequency : see ``cutoff_definition``. [Hz]
-    cutoff_definition : text stating level, spectrum (power or field) and which spectrum.
+    peak_frequency, detected_peak_frequency : peak of the generated / detected spectrum, or
+        ``None`` (beyond ``model_limit``, or no detector). [Hz]
+    cutoff, detected_cutoff : cutoff of the generated / detected spectrum (definition in
+        ``cutoff_definition``), or ``None`` (beyond ``model_limit``, or no detector). [Hz]
+    cutoff_computed : the cutoff of the whole computed spectrum, also when it lies beyond
+        ``model_limit`` (for figures and axis ranges; not a result of the model there). [Hz]
+    cutoff_definition : text of the cutoff definition and the spectrum it applies to.
+    model_limit : upper end of the THz model's range: generation ∩ detection crystal. [Hz]
+    frequency_step : THz sample spacing (:mod:`hcfplan.thz.sampling`). [Hz]
     bandwidth_3db, bandwidth_10db : width of the region around the peak above -3 / -10 dB
-        of the generated power spectrum. [Hz]
+        of the generated power spectrum, or ``None`` when it reaches beyond ``model_limit``.
+        [Hz]
     relative_efficiency : THz energy / pump energy for d_eff = 1 pm/V and a 1 mm^2 flat-top
         beam: a RELATIVE figure of merit, proportional to int |E_T|^2 dOmega, comparable between
         configurations (it already contains the pump energy and crystal length). [-]
@@ -122,13 +142,16 @@ class ThzResult:
     generated_power: np.ndarray
     generated_field: np.ndarray
     detected_power: np.ndarray | None
-    peak_frequency: float
+    peak_frequency: float | None
     detected_peak_frequency: float | None
-    cutoff_frequency: float
-    detected_cutoff_frequency: float | None
+    cutoff: float | None
+    detected_cutoff: float | None
+    cutoff_computed: float
     cutoff_definition: str
-    bandwidth_3db: float
-    bandwidth_10db: float
+    model_limit: float
+    frequency_step: float
+    bandwidth_3db: float | None
+    bandwidth_10db: float | None
     relative_efficiency: float
     thz_energy: float | None
     thz_energy_caution: str
@@ -141,8 +164,6 @@ class ThzResult:
     optical_frequency: np.ndarray
     optical_spectrum: np.ndarray
     warnings: tuple[str, ...]
-
-
 
 
 # ----------------------------------------------------------------------------------------------
@@ -228,6 +249,17 @@ def _band(spectrum: np.ndarray, floor_db: float) -> tuple[int, int]:
     return int(above[0]), int(above[-1]) + 1
 
 
+def _band_edges(grid: Grid, spectrum: np.ndarray, floor_db: float) -> tuple[float, float]:
+    """Angular frequencies bounding the band above the floor on the optical grid, widened by
+    half a sample: the band of the THz samples is taken from the optical spectrum itself, so
+    the weak spectral leakage of a field that does not vanish at its window edges, once padded
+    (:mod:`hcfplan.thz.sampling`), is not mixed."""
+    lo, hi = _band(grid.shifted(spectrum), floor_db)
+    omega = grid.shifted(grid.omega)
+    half = np.pi * grid.dnu
+    return float(omega[lo] - half), float(omega[hi - 1] + half)
+
+
 def _check_spectrum(grid: Grid, spectrum: np.ndarray) -> None:
     if spectrum.shape != (grid.points,):
         raise ConfigError(f"spectrum shape {spectrum.shape}: must be ({grid.points},) (the grid)")
@@ -246,11 +278,13 @@ class _Generated:
     drive_peak: float  # peak of |Omega I~(Omega)|^2, the pump-limited (thin-crystal) spectrum [Hz]
 
 
-def _generated_field(grid: Grid, shifted: np.ndarray, setup: ThzSetup) -> _Generated:
-    """E_T(Omega) [V s/m] for d_eff = 1 pm/V and a 1 mm^2 flat-top beam (module docstring)."""
+def _generated_field(grid: Grid, shifted: np.ndarray, setup: ThzSetup,
+                     edges: tuple[float, float]) -> _Generated:
+    """E_T(Omega) [V s/m] for d_eff = 1 pm/V and a 1 mm^2 flat-top beam (module docstring);
+    the optical band is the part of ``grid`` within ``edges`` [rad/s]."""
     crystal = setup.crystal
     omega = grid.shifted(grid.omega)
-    lo, hi = _band(shifted, setup.band_floor_db)
+    lo, hi = np.searchsorted(omega, edges[0]), np.searchsorted(omega, edges[1], side="right")
     band, omega_band = shifted[lo:hi], omega[lo:hi]
     power_band = np.abs(band) ** 2
     omega_c = float(np.sum(omega_band * power_band) / np.sum(power_band))
@@ -268,13 +302,28 @@ def _generated_field(grid: Grid, shifted: np.ndarray, setup: ThzSetup) -> _Gener
                       spectral_peak(Omega / (2 * np.pi), drive))
 
 
-def _detected_power(detector: EoDetector, grid: Grid, shifted, gen: _Generated) -> np.ndarray:
+def _continuous_phase(Omega: np.ndarray, delay: float) -> np.ndarray:
+    """Factor that takes the THz field of a grid to the phase of the continuous transforms.
+
+    The grid spectrum is the continuous one times (-1)^j (centred time axis, convention 2 of
+    :mod:`hcfplan.numerics.grid`), so A~(w + W_m) A~*(w) carries (-1)^m; a field rotated by
+    ``delay`` before padding (:mod:`hcfplan.thz.sampling`) carries exp(i W delay).
+    """
+    sign = np.where(np.arange(len(Omega)) % 2 == 0, 1.0, -1.0)
+    return sign * np.exp(-1j * Omega * delay)
+
+
+def _detected_power(detector: EoDetector, grid: Grid, shifted, gen: _Generated,
+                    probe_grid: Grid) -> np.ndarray:
     """|E_T(Omega) R(Omega)|^2 with the EO response R of :func:`eo_response`."""
     if detector.probe_spectrum is None:
         probe = shifted[gen.band]
         omega = grid.shifted(grid.omega)[gen.band]
     else:
-        probe = grid.shifted(np.asarray(detector.probe_spectrum, dtype=complex))
+        probe_spectrum = np.asarray(detector.probe_spectrum, dtype=complex)
+        if grid.points > probe_grid.points:  # on the THz samples, as the pump
+            probe_spectrum = padded_spectrum(probe_grid, probe_spectrum, grid.points)[1]
+        probe = grid.shifted(probe_spectrum)
         omega = grid.shifted(grid.omega)
     power = np.abs(probe) ** 2
     omega_probe = float(np.sum(omega * power) / np.sum(power))
@@ -283,7 +332,7 @@ def _detected_power(detector: EoDetector, grid: Grid, shifted, gen: _Generated) 
     return np.abs(gen.field * response) ** 2
 
 
-def _coherence_notes(crystal, thickness, frequency, l_c, drive_peak, cutoff) -> list[str]:
+def _coherence_notes(crystal, thickness, frequency, l_c, drive_peak) -> list[str]:
     notes = []
     l_peak = float(np.interp(drive_peak, frequency, l_c))
     if thickness > l_peak:
@@ -291,9 +340,29 @@ def _coherence_notes(crystal, thickness, frequency, l_c, drive_peak, cutoff) -> 
                      f"length {l_peak * 1e3:.3g} mm at {drive_peak * 1e-12:.3g} THz, the peak "
                      "of the pump-limited (thin-crystal) spectrum: phase matching limits the "
                      "bandwidth")
-    if cutoff > crystal.thz.frequency_max:
-        notes.append(f"{crystal.name}: cutoff {cutoff * 1e-12:.3g} THz is above the THz model's "
-                     f"validity limit {crystal.thz.frequency_max * 1e-12:.3g} THz")
+    return notes
+
+
+def _within(value: float | None, limit: float) -> float | None:
+    """``value`` if it lies within the model's range, else ``None``."""
+    return None if value is None or not value <= limit else float(value)
+
+
+def _model_notes(names: str, limit: float, frequency, power, cutoff, peak) -> list[str]:
+    """What lies beyond the stated THz range of the crystal model(s)."""
+    beyond = frequency > limit
+    if not np.any(beyond):
+        return []
+    total = np.trapezoid(power, frequency)
+    share = float(np.trapezoid(np.where(beyond, power, 0.0), frequency) / total)
+    notes = []
+    if cutoff > limit:
+        notes.append(f"{names}: {100 * share:.3g} % of the THz energy lies above the range "
+                     f"of the THz model (> {limit * 1e-12:.3g} THz, the crystal table's stated "
+                     "limit): the cutoff is not reported")
+    if peak > limit:
+        notes.append(f"{names}: the THz spectrum peaks above the range of the THz model "
+                     f"(> {limit * 1e-12:.3g} THz): peak and widths are not reported")
     return notes
 
 
@@ -337,21 +406,40 @@ def thz_estimate(grid: Grid, spectrum: np.ndarray, setup: ThzSetup) -> ThzResult
     spectrum = np.asarray(spectrum, dtype=complex)
     _check_spectrum(grid, spectrum)
     crystal, thickness = setup.crystal, setup.thickness
-    shifted = grid.shifted(spectrum)
+    sampling = thz_sampling(grid, spectrum, crystal, thickness, setup.frequency_step)
+    fine = sampling.grid
+    shifted = fine.shifted(sampling.spectrum)
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
-        gen = _generated_field(grid, shifted, setup)
+        gen = _generated_field(fine, shifted, setup,
+                               _band_edges(grid, spectrum, setup.band_floor_db))
+        gen = dataclasses.replace(gen, field=gen.field * _continuous_phase(gen.Omega,
+                                                                            sampling.delay))
         l_c = coherence_length(crystal, gen.omega_c, gen.Omega)
         detected = (None if setup.detector is None
-                    else _detected_power(setup.detector, grid, shifted, gen))
-    notes = list(dict.fromkeys(str(w.message) for w in caught))
+                    else _detected_power(setup.detector, fine, shifted, gen, grid))
+    notes = list(dict.fromkeys(str(w.message) for w in caught)) + list(sampling.notes)
     frequency = gen.Omega / (2 * np.pi)
     power = np.abs(gen.field) ** 2
+    limit = model_limit(crystal, None if setup.detector is None else setup.detector.crystal)
+    names = crystal.name if setup.detector is None or setup.detector.crystal is crystal else (
+        f"{crystal.name} / {setup.detector.crystal.name}")
     cutoff, definition = thz_cutoff(frequency, power, setup.cutoff_db, setup.cutoff_level)
     peak = spectral_peak(frequency, power)
-    notes += _coherence_notes(crystal, thickness, frequency, l_c, gen.drive_peak, cutoff)
+    notes += _coherence_notes(crystal, thickness, frequency, l_c, gen.drive_peak)
+    notes += _model_notes(names, limit, frequency, power, cutoff, peak)
+    detected_cutoff = detected_peak = None
+    if detected is not None:
+        detected_cutoff = thz_cutoff(frequency, detected, setup.cutoff_db, setup.cutoff_level)[0]
+        detected_peak = spectral_peak(frequency, detected)
+        if detected_cutoff > limit and cutoff <= limit:
+            notes.append(f"{names}: the detected THz spectrum reaches above the range of the "
+                         f"THz model (> {limit * 1e-12:.3g} THz): its cutoff is not reported")
+    widths = [None if peak > limit else band_above_level(frequency, power, level)
+              for level in (-3.0, -10.0)]
     pump_energy = grid.energy_w(spectrum)
-    thz_ref = REFERENCE_AREA * epsilon_0 * c * 2 * np.sum(power) * grid.dnu  # A eps0 c int E^2 dt
+    # A eps0 c int E^2 dt, trapezoidal on the THz samples (2 int_0^inf |E(nu)|^2 dnu)
+    thz_ref = REFERENCE_AREA * epsilon_0 * c * 2 * float(np.trapezoid(power, frequency))
     energy, energy_notes = _absolute_energy(crystal, thz_ref, pump_energy, setup.beam_radius,
                                             setup.d_eff)
     notes += energy_notes + pump_crystal_warnings(
@@ -361,19 +449,23 @@ def thz_estimate(grid: Grid, spectrum: np.ndarray, setup: ThzSetup) -> ThzResult
     return ThzResult(
         frequency=frequency, generated_power=power / power.max(), generated_field=gen.field,
         detected_power=None if detected is None else detected / detected.max(),
-        peak_frequency=peak,
-        detected_peak_frequency=None if detected is None else spectral_peak(frequency, detected),
-        cutoff_frequency=cutoff,
-        detected_cutoff_frequency=None if detected is None else thz_cutoff(
-            frequency, detected, setup.cutoff_db, setup.cutoff_level)[0],
-        cutoff_definition=f"{definition} (generated spectrum; the detected cutoff uses the same)",
-        bandwidth_3db=width_above_level(frequency, power, -3.0),
-        bandwidth_10db=width_above_level(frequency, power, -10.0),
+        peak_frequency=_within(peak, limit),
+        detected_peak_frequency=_within(detected_peak, limit),
+        cutoff=_within(cutoff, limit),
+        detected_cutoff=_within(detected_cutoff, limit),
+        cutoff_computed=cutoff,
+        cutoff_definition=f"{definition}; generated spectrum (the detected cutoff uses the same)",
+        model_limit=limit, frequency_step=sampling.frequency_step,
+        bandwidth_3db=None if widths[0] is None or widths[0][1] > limit else (
+            widths[0][1] - widths[0][0]),
+        bandwidth_10db=None if widths[1] is None or widths[1][1] > limit else (
+            widths[1][1] - widths[1][0]),
         relative_efficiency=thz_ref / pump_energy, thz_energy=energy,
         thz_energy_caution=ENERGY_CAUTION, pump_energy=pump_energy,
         pump_frequency=gen.omega_c / (2 * np.pi), crystal=crystal.name, thickness=thickness,
         phase_matching=setup.phase_matching, coherence_length=l_c,
-        optical_frequency=grid.shifted(grid.frequency), optical_spectrum=np.abs(shifted) ** 2,
+        optical_frequency=grid.shifted(grid.frequency),
+        optical_spectrum=np.abs(grid.shifted(spectrum)) ** 2,
         warnings=tuple(notes))
 
 

@@ -17,6 +17,7 @@ from hcfplan.materials.crystals import CrystalTable
 from hcfplan.thz.detection import EoDetector
 from hcfplan.thz.measures import CUTOFF_LEVELS, CutoffLevelName
 from hcfplan.thz.mixing import PHASE_MATCHING, PhaseMatchingName
+from hcfplan.thz.sampling import DEFAULT_FREQUENCY_STEP
 
 
 def _positive_or_none(name: str, value: float | None, unit: str) -> None:
@@ -40,9 +41,10 @@ class ThzSetup:
     detector : EoDetector or None
         Electro-optic detector; gives the detected spectrum.
     cutoff_db : float
-        Cutoff level relative to the peak, < 0. [dB]
+        Share of the THz energy above the cutoff, < 0 (-20 dB: 99 % lies below the cutoff;
+        :func:`hcfplan.thz.measures.thz_cutoff`). [dB]
     cutoff_level : {"power", "field"}
-        Spectrum the level applies to (:func:`hcfplan.thz.measures.thz_cutoff`).
+        Spectrum whose integral the cutoff divides (:func:`hcfplan.thz.measures.thz_cutoff`).
     beam_radius : float or None
         Pump 1/e^2 intensity radius on the crystal; needed for the absolute energy and the
         fluence checks. [m]
@@ -55,6 +57,9 @@ class ThzSetup:
     max_frequency : float or None
         Highest THz frequency computed (at most half the grid window); default the optical
         bandwidth above the floor, beyond which the generated spectrum vanishes. [Hz]
+    frequency_step : float
+        Largest THz sample spacing (:mod:`hcfplan.thz.sampling`); the optical spectrum is
+        interpolated onto it when its own grid is coarser. [Hz]
     """
 
     crystal: CrystalTable
@@ -68,6 +73,7 @@ class ThzSetup:
     damage_fluence: float | None = None
     band_floor_db: float = -60.0
     max_frequency: float | None = None
+    frequency_step: float = DEFAULT_FREQUENCY_STEP
 
     def __post_init__(self) -> None:
         if not (math.isfinite(self.thickness) and self.thickness > 0):
@@ -86,3 +92,4 @@ class ThzSetup:
         _positive_or_none("d_eff", self.d_eff, "m/V")
         _positive_or_none("damage_fluence", self.damage_fluence, "J/m^2")
         _positive_or_none("max_frequency", self.max_frequency, "Hz")
+        _positive_or_none("frequency_step", self.frequency_step, "Hz")

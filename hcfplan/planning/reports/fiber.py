@@ -1,7 +1,8 @@
 """First-look numbers for a configured fiber, gas and laser (the ``fiber`` command).
 
 Everything here is analytic: no GNLSE run. The report is a flat dict of SI values whose keys
-carry their SI unit (``gvd_s2_per_m``), ready for ``--json``.
+carry their SI unit (``gvd_s2_per_m``), ready for ``--json``. The ``estimate.*`` keys are
+SPM-only estimates (``estimate.kind = "spm_only"``, explained by ``estimate.note``).
 """
 
 from __future__ import annotations
@@ -16,6 +17,13 @@ from hcfplan.planning.validity import quiet_validity, range_notes
 
 #: Wavelength range searched for zero-dispersion points. [m]
 ZDW_SEARCH_RANGE = (200e-9, 3000e-9)
+#: What the ``estimate.*`` keys are.
+ESTIMATE_KIND = "spm_only"
+ESTIMATE_NOTE = ("SPM-only estimate: peak nonlinear phase over the effective length and the "
+                 "Gaussian rms SPM broadening of the input spectrum; dispersion, soliton "
+                 "dynamics, self-steepening and plasma are neglected, so a run can broaden far "
+                 "less (normal dispersion, wave breaking; anomalous beyond the fission length) "
+                 "or compress further (soliton self-compression)")
 
 
 def _zdw_range(waveguide, config):
@@ -113,9 +121,12 @@ def _fiber_report(config) -> dict:
         "fiber.soliton_order": order,
         "fiber.fission_length_m": (derived.fission_length(t0, beta2, gamma, peak_power)
                                    if beta2 < 0 else None),
+        "estimate.kind": ESTIMATE_KIND,
+        "estimate.note": ESTIMATE_NOTE,
         "estimate.nonlinear_phase_rad": phi,
         "estimate.spm_broadening_factor": derived.spm_broadening_factor(phi),
         "estimate.output_bandwidth_hz": _bandwidth_estimate(laser, phi),
+        "estimate.dispersive_wave_m": _dispersive_wave(waveguide, omega0, peak_power, gamma),
     }
     report.update(_antiresonant_part(waveguide, config))
     notes = range_notes(config, medium, (laser.wavelength, laser.wavelength), "the pump")
@@ -124,6 +135,18 @@ def _fiber_report(config) -> dict:
         notes = list(medium.warnings) + notes
     report["warnings"] = notes
     return report
+
+
+def _dispersive_wave(waveguide, omega0: float, peak_power: float, gamma: float) -> float | None:
+    """Wavelength of the resonant dispersive wave phase-matched with a soliton of the input
+    peak power (:func:`hcfplan.fibers.derived.dispersive_wave_frequency`), None when the pump
+    is not anomalous or none lies below ``UPPER_EDGE_MULTIPLE`` times the pump. [m]"""
+    from hcfplan.fibers import derived
+    from hcfplan.numerics.grid import UPPER_EDGE_MULTIPLE
+
+    omega = derived.dispersive_wave_frequency(waveguide, omega0, peak_power, gamma,
+                                              UPPER_EDGE_MULTIPLE * omega0)
+    return None if omega is None else float(2 * math.pi * c / omega)
 
 
 def _bandwidth_estimate(laser, phi: float) -> float:

@@ -3,14 +3,19 @@
 ``limits_report(config, run=None)`` returns a flat dict of SI values whose keys carry their unit
 (``limits.self_focusing.critical_power_w``) plus ``limits.checks``, a list of entries
 
-    {name, value, limit, unit, limit_kind, margin, status, severity, source, assumption}
+    {name, value, limit, unit, limit_kind, ratio, margin, required, met, status, severity,
+     source, assumption}
 
-``limit_kind`` is ``"maximum"`` (value must not exceed limit; margin = limit / value) or
-``"minimum"`` (value must not fall below limit; margin = value / limit), so margin >= 1 is
-always on the within side. ``status`` is ``"within"``, ``"exceeds"`` (beyond the limit, in
-either direction) or ``"not checked"``. ``severity`` is ``"limit"`` (counts for
-``limits.acceptable``) or ``"warning"`` (shown, does not count). The words are neutral on
-purpose: the report never calls a setup safe. Non-finite numbers become ``None`` (JSON null).
+Margins follow :mod:`hcfplan.limits.margins`: ``limit_kind`` is ``"maximum"`` (value must not
+exceed limit; margin = limit / value) or ``"minimum"`` (value must not fall below limit;
+margin = value / limit); ``ratio`` says how the margin reads (``"P_cr/P"``), ``required`` is
+the margin asked for (``limits.self_focusing_margin`` for the self-focusing checks, where the
+limit is the critical power itself; 1 elsewhere) and ``met`` is margin >= required.
+``status`` is ``"within"`` (met), ``"exceeds"`` (not met) or ``"not checked"``. ``severity``
+is ``"limit"`` (counts for ``limits.acceptable``) or ``"warning"`` (shown, does not count). The
+words are neutral on purpose: the report never calls a setup safe. Non-finite numbers become
+``None`` (JSON null); an unbounded margin (zero value against a maximum) is null with
+``met`` true.
 """
 
 from __future__ import annotations
@@ -43,7 +48,8 @@ RESONANCE_HALF_WIDTH = 0.025
 
 ACCEPTABLE_NOTE = ("within the modelled limits (estimates; the maker's rating, local codes and "
                    "licensed practice come first)")
-NOT_ACCEPTABLE_NOTE = ("beyond at least one modelled limit (see the checks marked 'exceeds'); "
+NOT_ACCEPTABLE_NOTE = ("beyond at least one modelled limit (see the margins marked 'not met', "
+                       "status 'exceeds'); "
                        "the estimates do not replace the maker's rating, local codes and "
                        "licensed practice")
 
@@ -79,24 +85,24 @@ def _finite(x):
 
 
 def _check(name: str, value, limit, *, unit: str, source: str, assumption: str,
-           kind: str = "maximum", severity: str = "limit") -> dict:
+           kind: str = "maximum", severity: str = "limit", required: float = 1.0,
+           ratio: str = "") -> dict:
     """One entry of ``limits.checks`` (see the module docstring)."""
-    value, limit = _finite(value), _finite(limit)
-    margin = status = None
-    if value is None or limit is None:
-        status = "not checked"
-    else:
-        top, bottom = (limit, value) if kind == "maximum" else (value, limit)
-        margin = top / bottom if bottom > 0 else math.inf
-        status = "within" if margin >= 1 else "exceeds"
-    return {"name": name, "value": value, "limit": limit, "unit": unit, "limit_kind": kind,
-            "margin": _finite(margin), "status": status, "severity": severity,
-            "source": source, "assumption": assumption}
+    from hcfplan.limits.margins import margin_record
+
+    record = margin_record(name, limit=_finite(limit), value=_finite(value), required=required,
+                           unit=unit, kind=kind, ratio=ratio)
+    met = record["met"]
+    record.update({"margin": _finite(record["margin"]),
+                   "status": "not checked" if met is None else ("within" if met else "exceeds"),
+                   "severity": severity, "source": source, "assumption": assumption})
+    return record
 
 
 def _not_checked(name: str, unit: str, why: str, source: str = "",
-                 severity: str = "limit") -> dict:
-    return _check(name, None, None, unit=unit, source=source, assumption=why, severity=severity)
+                 severity: str = "limit", ratio: str = "", kind: str = "maximum") -> dict:
+    return _check(name, None, None, unit=unit, source=source, assumption=why, severity=severity,
+                  ratio=ratio, kind=kind)
 
 
 @dataclass(frozen=True)
@@ -150,13 +156,14 @@ def _run_value(run, name: str):
 
 def _self_focusing_part(s: _Setup, run) -> tuple[dict, list, list]:
     from hcfplan.limits import beam as limits
+    from hcfplan.limits.margins import margin as ratio_of
 
     name, unit = "self_focusing", "W"
     margin = s.config.limits.self_focusing_margin
     in_fiber = _run_value(run, "max_peak_power")
     if s.medium is None:
         why = "no gas (Taylor fiber): the gas self-focusing check does not apply"
-        return ({}, [_not_checked(f"{name}.input", unit, why)], [])
+        return ({}, [_not_checked(f"{name}.input", unit, why, ratio="P_cr/P")], [])
     laser, gas = s.config.laser, s.config.gas
     ceiling = condensation_ceiling(s.medium, gas.temperature, PRESSURE_SEARCH_MAX)
 
@@ -172,8 +179,7 @@ def _self_focusing_part(s: _Setup, run) -> tuple[dict, list, list]:
         "limits.self_focusing.critical_power_w": s.critical_power,
         "limits.self_focusing.required_margin": margin,
         "limits.self_focusing.peak_power_input_w": s.peak_power_coupled,
-        "limits.self_focusing.margin_input": limits.self_focusing_margin(
-            s.critical_power, s.peak_power_coupled),
+        "limits.self_focusing.margin_input": ratio_of(s.critical_power, s.peak_power_coupled),
         "limits.self_focusing.max_pressure_pa": p_max,
         "limits.self_focusing.max_energy_j": limits.max_energy_for_self_focusing(
             s.critical_power, laser.duration_fwhm, laser.shape, margin=margin,
@@ -182,16 +188,17 @@ def _self_focusing_part(s: _Setup, run) -> tuple[dict, list, list]:
     notes = [] if math.isfinite(p_max) else [
         f"self-focusing margin {margin:g} holds up to the search limit "
         f"{ceiling / 1e5:.4g} bar (condensation or 1000 bar)"]
-    assumption = (f"coupled input peak power (coupling {s.efficiency:.3f}) vs P_cr / {margin:g} "
-                  "of the fill at the pump wavelength")
-    checks = [_check(f"{name}.input", s.peak_power_coupled, s.critical_power / margin,
-                     unit=unit, source=SOURCES["critical_power"], assumption=assumption)]
+    assumption = (f"coupled input peak power P (coupling {s.efficiency:.3f}) vs the critical "
+                  "power P_cr of the fill at the pump wavelength")
+    checks = [_check(f"{name}.input", s.peak_power_coupled, s.critical_power, unit=unit,
+                     required=margin, ratio="P_cr/P", source=SOURCES["critical_power"],
+                     assumption=assumption)]
     if in_fiber is not None:
         values["limits.self_focusing.peak_power_in_fiber_w"] = in_fiber
-        values["limits.self_focusing.margin_in_fiber"] = s.critical_power / in_fiber
-        checks.append(_check(f"{name}.in_fiber", in_fiber, s.critical_power / margin, unit=unit,
-                             source=SOURCES["critical_power"],
-                             assumption="highest peak power along the fiber from the run"))
+        values["limits.self_focusing.margin_in_fiber"] = ratio_of(s.critical_power, in_fiber)
+        checks.append(_check(f"{name}.in_fiber", in_fiber, s.critical_power, unit=unit,
+                             required=margin, ratio="P_cr/P", source=SOURCES["critical_power"],
+                             assumption="highest peak power P along the fiber from the run"))
     return values, checks, notes
 
 
@@ -202,7 +209,7 @@ def _ionization_part(s: _Setup, run) -> tuple[dict, list, list]:
     name, unit = "ionization", ""
     if s.medium is None:
         why = "no gas (Taylor fiber): the gas ionisation check does not apply"
-        return ({}, [_not_checked(f"{name}.input", unit, why)], [])
+        return ({}, [_not_checked(f"{name}.input", unit, why, ratio="limit/fraction")], [])
     laser = s.config.laser
     level = s.config.limits.ionization_fraction_limit
     area = s.waveguide.peak_intensity_area
@@ -233,9 +240,10 @@ def _ionization_part(s: _Setup, run) -> tuple[dict, list, list]:
                   f"input pulse ({laser.shape}, {laser.duration_fwhm * 1e15:.4g} fs), "
                   "fraction left behind the pulse")
     checks = [_check(f"{name}.input", values["limits.ionization.fraction_input"], level,
-                     unit=unit, source=SOURCES["ionization"], assumption=assumption),
+                     unit=unit, ratio="limit/fraction", source=SOURCES["ionization"],
+                     assumption=assumption),
               _check(f"{name}.barrier_suppression", intensity, bsi, unit="W/m^2",
-                     source=SOURCES["bsi"], severity="warning",
+                     ratio="I_BSI/I", source=SOURCES["bsi"], severity="warning",
                      assumption="rate model validity: tunnelling rates overestimate above "
                                 "barrier suppression")]
     peak = _run_value(run, "max_peak_intensity")
@@ -243,7 +251,7 @@ def _ionization_part(s: _Setup, run) -> tuple[dict, list, list]:
         values["limits.ionization.peak_intensity_in_fiber_w_per_m2"] = peak
         values["limits.ionization.fraction_in_fiber"] = fraction(peak)
         checks.append(_check(f"{name}.in_fiber", fraction(peak), level, unit=unit,
-                             source=SOURCES["ionization"],
+                             ratio="limit/fraction", source=SOURCES["ionization"],
                              assumption="highest peak intensity along the fiber from the run, "
                                         "with the input duration (a shorter compressed pulse "
                                         "ionises less: an upper estimate)"))
@@ -252,20 +260,22 @@ def _ionization_part(s: _Setup, run) -> tuple[dict, list, list]:
 
 def _cell_part(s: _Setup) -> tuple[dict, list, list]:
     from hcfplan.limits.cell import pressure_rating_status
+    from hcfplan.limits.margins import margin as ratio_of
 
     rated = s.config.cell.rated_pressure
     if s.config.gas is None:
         return ({"limits.cell.status": "not checked"},
-                [_not_checked("cell.rating", "Pa", "no gas fill")], [])
+                [_not_checked("cell.rating", "Pa", "no gas fill", ratio="rating/pressure")], [])
     pressure = s.config.gas.pressure
     status = pressure_rating_status(pressure, rated)
     values = {"limits.cell.pressure_pa": pressure, "limits.cell.rated_pressure_pa": rated,
               "limits.cell.status": status,
-              "limits.cell.rating_margin": None if rated is None else rated / pressure}
+              "limits.cell.rating_margin": ratio_of(rated, pressure)}
     notes = [] if rated is not None else [
         "cell rating not given (cell.rated_pressure_bar): the fill pressure is not checked "
         "against the cell"]
-    check = _check("cell.rating", pressure, rated, unit="Pa", source=SOURCES["rating"],
+    check = _check("cell.rating", pressure, rated, unit="Pa", ratio="rating/pressure",
+                   source=SOURCES["rating"],
                    assumption="absolute fill pressure vs the lowest rating of cell, windows, "
                               "fittings and regulator (give that lowest value)")
     return values, [check], notes
@@ -278,7 +288,7 @@ def _window_pressure(s: _Setup) -> tuple[dict, list, list]:
     cell, lim = s.config.cell, s.config.limits
     name = "window.pressure"
     if s.config.gas is None:
-        return {}, [_not_checked(name, "m", "no gas fill")], []
+        return {}, [_not_checked(name, "m", "no gas fill", ratio="t/t_min", kind="minimum")], []
     material = solids.load_material(cell.window_material)
     strength = material.modulus_of_rupture.value
     load = lc.window_pressure_difference(s.config.gas.pressure, P_1ATM)
@@ -292,7 +302,8 @@ def _window_pressure(s: _Setup) -> tuple[dict, list, list]:
                   lim.window_mounting]}
     if cell.window_clear_aperture is None:
         why = "window clear aperture not given (cell.window_clear_aperture_mm)"
-        return values, [_not_checked(name, "m", why, SOURCES["window"])], [why]
+        return values, [_not_checked(name, "m", why, SOURCES["window"], ratio="t/t_min",
+                                         kind="minimum")], [why]
     t_min = lc.window_min_thickness(load, cell.window_clear_aperture, strength,
                                     safety_factor=lim.window_safety_factor,
                                     mounting=lim.window_mounting)
@@ -315,7 +326,7 @@ def _window_pressure(s: _Setup) -> tuple[dict, list, list]:
                   f"{s.config.gas.pressure / 1e5:.4g} bar), K = {k:g} ({lim.window_mounting}; "
                   "Roark's simply supported 3(3+nu)/8 gives 1.19-1.24 for nu = 0.16-0.3), "
                   f"SF = {lim.window_safety_factor:g}, strength: {strength_source}")
-    check = _check(name, cell.window_thickness, t_min, unit="m", kind="minimum",
+    check = _check(name, cell.window_thickness, t_min, unit="m", kind="minimum", ratio="t/t_min",
                    source=SOURCES["window"], assumption=assumption)
     return values, [check], notes
 
@@ -329,7 +340,7 @@ def _window_b_integral(s: _Setup, run) -> tuple[dict, list, list]:
     if s.optimum_waist is None or not cell.window_thickness:
         why = ("no core radius (Taylor fiber)" if s.optimum_waist is None
                else "window thickness not given (cell.window_thickness_mm)")
-        return {}, [_not_checked(name, "rad", why, SOURCES["b_integral"])], []
+        return {}, [_not_checked(name, "rad", why, SOURCES["b_integral"], ratio="limit/B")], []
     distance = lim.window_distance or DEFAULT_WINDOW_DISTANCE
     radius = limits.gaussian_beam_radius(s.optimum_waist, laser.wavelength, distance)
     out = _run_value(run, "output_peak_power")
@@ -346,18 +357,20 @@ def _window_b_integral(s: _Setup, run) -> tuple[dict, list, list]:
               f"input peak power x fiber transmission {s.transmission:.3f} (duration unchanged)")
     assumption = (f"Gaussian beam from the EH11-matched waist 0.64 a diverging over "
                   f"{distance:g} m{'' if lim.window_distance else ' (default)'}; {origin}")
-    return values, [_check(name, b, lim.b_integral_limit, unit="rad", source=SOURCES["b_integral"],
-                           assumption=assumption)], []
+    return values, [_check(name, b, lim.b_integral_limit, unit="rad", ratio="limit/B",
+                           source=SOURCES["b_integral"], assumption=assumption)], []
 
 
 def _static_fill_part(s: _Setup) -> tuple[dict, list, list]:
     from hcfplan.ionization.fraction import pulse_ionization_fraction
     from hcfplan.limits import beam as limits
+    from hcfplan.limits.margins import margin as ratio_of
 
     if s.medium is None or s.beam_waist is None:
         why = "no gas before the fiber entrance (Taylor fiber)"
-        return ({}, [_not_checked("static_fill.self_focusing", "W", why),
-                     _not_checked("static_fill.ionization", "", why)], [])
+        return ({}, [_not_checked("static_fill.self_focusing", "W", why, ratio="P_cr/P"),
+                     _not_checked("static_fill.ionization", "", why, ratio="limit/fraction")],
+                [])
     laser, lim = s.config.laser, s.config.limits
     w0 = s.beam_waist
     intensity = limits.gaussian_peak_intensity(s.peak_power_full, w0)
@@ -367,7 +380,8 @@ def _static_fill_part(s: _Setup) -> tuple[dict, list, list]:
     values = {"limits.static_fill.beam_waist_m": w0,
               "limits.static_fill.peak_power_w": s.peak_power_full,
               "limits.static_fill.peak_intensity_w_per_m2": intensity,
-              "limits.static_fill.self_focusing_margin": s.critical_power / s.peak_power_full,
+              "limits.static_fill.self_focusing_margin": ratio_of(s.critical_power,
+                                                                  s.peak_power_full),
               "limits.static_fill.ionization_fraction": fraction,
               "limits.static_fill.gas_path_m": path}
     notes = []
@@ -382,11 +396,11 @@ def _static_fill_part(s: _Setup) -> tuple[dict, list, list]:
                          f"entrance window, before the fiber ({path * 100:.3g} cm)")
     where = f"focus at the fiber entrance (w0 = {w0 * 1e6:.4g} um), full pulse energy in the gas"
     checks = [
-        _check("static_fill.self_focusing", s.peak_power_full,
-               s.critical_power / lim.self_focusing_margin, unit="W",
+        _check("static_fill.self_focusing", s.peak_power_full, s.critical_power, unit="W",
+               required=lim.self_focusing_margin, ratio="P_cr/P",
                source=SOURCES["critical_power"], assumption=where),
         _check("static_fill.ionization", fraction, lim.ionization_fraction_limit, unit="",
-               source=SOURCES["ionization"],
+               ratio="limit/fraction", source=SOURCES["ionization"],
                assumption=where + "; free-space Gaussian peak 2P/(pi w0^2)")]
     return values, checks, notes
 
@@ -401,7 +415,8 @@ def _gas_handling_part(s: _Setup) -> tuple[dict, list, list]:
     if s.medium is None or missing:
         why = ("no gas fill" if s.medium is None else
                "give limits." + ", limits.".join(missing) + " for the oxygen-depletion estimate")
-        return {}, [_not_checked(name, "", why, SOURCES["oxygen"])], []
+        return {}, [_not_checked(name, "", why, SOURCES["oxygen"], ratio="O2/action level",
+                                 kind="minimum")], []
     gas = s.config.gas
     room_gas = dataclasses.replace(gas, temperature=T_ROOM, equation_of_state="coolprop")
     try:
@@ -409,7 +424,8 @@ def _gas_handling_part(s: _Setup) -> tuple[dict, list, list]:
         outside = gas_density_at(room_gas, s.medium, P_1ATM)
     except ConfigError as exc:  # e.g. a mixture component that would condense in the cylinder
         return {}, [_not_checked(name, "", f"cylinder density not available: {exc}",
-                                 SOURCES["oxygen"])], []
+                                 SOURCES["oxygen"], ratio="O2/action level",
+                                 kind="minimum")], []
     released = lc.released_gas_volume(lim.cylinder_volume, inside, outside)
     own_o2 = sum(k.mole_fraction * lc.AIR_OXYGEN_FRACTION for k in s.medium.components
                  if k.table.name.lower() == "air")
@@ -428,7 +444,8 @@ def _gas_handling_part(s: _Setup) -> tuple[dict, list, list]:
                   "mixing in the closed room, the excess leaves as mixture; no ventilation; "
                   "heavy gases pool low, so local values can be lower")
     return values, [_check(name, o2, lc.OXYGEN_ACTION_LEVEL, unit="", kind="minimum",
-                           source=SOURCES["oxygen"], assumption=assumption)], []
+                           ratio="O2/action level", source=SOURCES["oxygen"],
+                           assumption=assumption)], []
 
 
 def _damage_fluence(config) -> tuple[float | None, str]:
@@ -448,7 +465,7 @@ def _entrance_part(s: _Setup) -> tuple[dict, list, list]:
     if s.beam_waist is None:
         why = "no core radius / launch model (Taylor fiber)"
         return {}, [_not_checked("entrance.core_edge_fluence", "J/m^2", why,
-                                 severity="warning")], []
+                                 severity="warning", ratio="damage/fluence")], []
     laser, a, w = s.config.laser, s.config.fiber.core_radius, s.beam_waist
     edge = limits.gaussian_fluence(laser.energy, w, a)
     axis = limits.gaussian_fluence(laser.energy, w, 0.0)
@@ -465,17 +482,19 @@ def _entrance_part(s: _Setup) -> tuple[dict, list, list]:
     note = "; damage fluence depends on pulse duration, surface and shot number"
     checks = [
         _check("entrance.core_edge_fluence", edge, damage, unit="J/m^2", severity="warning",
-               source=source, assumption="centred Gaussian focus: its fluence at r = a on the "
-                                         "facet around the bore" + note),
+               ratio="damage/fluence", source=source,
+               assumption="centred Gaussian focus: its fluence at r = a on the facet around "
+                          "the bore" + note),
         _check("entrance.misaligned_fluence", axis, damage, unit="J/m^2", severity="warning",
-               source=source, assumption="beam fully off the bore: the on-axis fluence on the "
-                                         "cladding glass" + note)]
+               ratio="damage/fluence", source=source,
+               assumption="beam fully off the bore: the on-axis fluence on the cladding "
+                          "glass" + note)]
     if hasattr(s.waveguide, "resonance_wavelengths"):
         values.update(_resonance_values(s))
         checks.append(_check("fiber.resonance_band",
                              values["limits.fiber.relative_distance_to_resonance"],
                              RESONANCE_HALF_WIDTH, unit="", kind="minimum", severity="warning",
-                             source=SOURCES["resonance"],
+                             ratio="distance/half-width", source=SOURCES["resonance"],
                              assumption="pump outside the +-2.5 % band around each wall "
                                         "resonance (high loss and strong dispersion inside)"))
     return values, checks, []

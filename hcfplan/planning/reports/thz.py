@@ -62,9 +62,10 @@ def thz_setup_from_options(*, crystal: str, thickness: float, cutoff_db: float,
     thickness, detector_thickness : float
         Crystal thicknesses. [m]
     cutoff_db : float
-        Cutoff level relative to the peak. [dB]
+        Share of the THz energy above the cutoff (:func:`hcfplan.thz.measures.thz_cutoff`).
+        [dB]
     cutoff_quantity : {"power", "field"}
-        Spectrum the level applies to.
+        Spectrum whose integral the cutoff divides.
     """
     spec = ThzSpec(crystal=crystal, thickness=thickness, cutoff_db=cutoff_db,
                    cutoff_quantity=cutoff_quantity, detector_crystal=detector_crystal,
@@ -89,7 +90,8 @@ def thz_report(spectrum_csv: Path, setup: ThzSetup, *, phase_csv: Path | None, e
     Returns
     -------
     (ThzResult, dict)
-        The result and its flat summary (SI, unit in the key names).
+        The result and its flat summary (SI, unit in the key names). A cutoff, peak or width
+        beyond the crystal model's range (``model_limit_hz``) is ``None``.
     """
     from hcfplan.io.csvdata import read_curve_csv, read_spectrum_csv
     from hcfplan.planning.validity import quiet_validity
@@ -107,13 +109,15 @@ def thz_report(spectrum_csv: Path, setup: ThzSetup, *, phase_csv: Path | None, e
         "thickness_m": result.thickness,
         "pump_energy_j": result.pump_energy,
         "peak_hz": result.peak_frequency,
-        "cutoff_hz": result.cutoff_frequency,
+        "cutoff_hz": result.cutoff,
         "cutoff_definition": result.cutoff_definition,
+        "model_limit_hz": result.model_limit,
+        "frequency_step_hz": result.frequency_step,
         "bandwidth_3db_hz": result.bandwidth_3db,
         "bandwidth_10db_hz": result.bandwidth_10db,
         "relative_efficiency": result.relative_efficiency,
         "detected_peak_hz": result.detected_peak_frequency,
-        "detected_cutoff_hz": result.detected_cutoff_frequency,
+        "detected_cutoff_hz": result.detected_cutoff,
         "assumption": ("compressed to the transform limit of the measured spectrum"
                        if phase is None else "measured spectral phase applied"),
         "warnings": list(result.warnings),

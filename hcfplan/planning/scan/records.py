@@ -83,8 +83,13 @@ def point_margins(config, report: dict) -> dict:
     """Self-focusing margin, ionisation fraction and pressure of one point against the limits.
 
     ``report`` is the flat :func:`limits_values`; ``binding`` lists every check of severity
-    "limit" with status "exceeds".
+    "limit" with status "exceeds". Margins follow :mod:`hcfplan.limits.margins`
+    (limit / value, met when >= the ``*_required`` value beside it): ``self_focusing`` is
+    P_cr / P of the coupled input pulse (``limits.self_focusing.margin_input``),
+    ``self_focusing_in_fiber`` P_cr / P at the highest peak power of the run.
     """
+    from hcfplan.limits.margins import margin
+
     lim = config.limits
     sf = _number(report, "limits.self_focusing.margin_input")
     sf_fiber = _number(report, "limits.self_focusing.margin_in_fiber")
@@ -93,14 +98,17 @@ def point_margins(config, report: dict) -> dict:
         ion = _number(report, "limits.ionization.fraction_input")
     binding = [c["name"] for c in report.get("limits.checks", [])
                if c.get("severity") == "limit" and c.get("status") == "exceeds"]
+    pressure = config.gas.pressure if config.gas is not None else None
     return {
         "self_focusing": sf, "self_focusing_in_fiber": sf_fiber,
         "self_focusing_required": lim.self_focusing_margin,
         "self_focusing_max_pressure_pa": _number(report, "limits.self_focusing.max_pressure_pa"),
         "ionization_fraction": ion, "ionization_limit": lim.ionization_fraction_limit,
-        "ionization_margin": (lim.ionization_fraction_limit / ion if ion else None),
-        "pressure_pa": config.gas.pressure if config.gas is not None else None,
-        "rated_pressure_pa": config.cell.rated_pressure,
+        "ionization_margin": margin(lim.ionization_fraction_limit, ion) if ion else None,
+        "ionization_margin_required": 1.0,
+        "pressure_pa": pressure, "rated_pressure_pa": config.cell.rated_pressure,
+        "rating_margin": margin(config.cell.rated_pressure, pressure),
+        "rating_margin_required": 1.0,
         "acceptable": not binding, "binding": ", ".join(binding),
     }
 
@@ -249,15 +257,23 @@ def read_point(path: Path, key: str) -> tuple[dict | None, str]:
 
 
 def point_row(plan: ScanPlan, record: dict) -> dict:
-    """One table row: point index, varied values, status, then every scalar of the summary."""
+    """One table row: point index, varied values, status, the verdict (``verdict``: status,
+    ``verdict_reasons``: "code: message; ..."; :mod:`hcfplan.planning.verdict`), then every
+    scalar of the summary."""
+    from hcfplan.planning.verdict import verdict_of_record
+
     index = next(p.index for p in plan.points if p.key == record["key"])
     row: dict[str, Any] = {"point": index, "key": record["key"]}
     row.update(record["values"])
     row["status"] = record["status"]
     row["message"] = record["message"]
+    verdict = verdict_of_record(record)
+    row["verdict"] = verdict.status
+    row["verdict_reasons"] = verdict.reasons_text()
     scalars = flatten(record["summary"])
     scalars.update(flatten(record["margins"], "margins."))
-    row.update({k: v for k, v in scalars.items() if not isinstance(v, (list, dict))})
+    row.update({k: v for k, v in scalars.items()
+                if not isinstance(v, (list, dict)) and not k.startswith("verdict.")})
     return row
 
 

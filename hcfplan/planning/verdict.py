@@ -1,0 +1,496 @@
+"""A verdict on every result: valid, caution or invalid, with the reasons and the void numbers.
+
+A planner is only as good as the numbers it prints. Every chain result gets a verdict:
+``status`` is ``"valid"``, ``"caution"`` or ``"invalid"``; ``reasons`` lists what was found,
+each a ``{code, message}`` pair whose message is one line with the numbers; ``void_fields`` lists
+the summary keys (flat, e.g. ``compressed.fwhm_s``) whose numbers must not be read as results.
+The JSON keeps those numbers; the terminal prints "void (code: message)" in their place, scan
+figures draw them hollow and grey, and ``compare`` and ``--spread`` leave them out of
+differences and ranges.
+
+Codes (:data:`CODES`; a result is invalid when any of its reasons is, caution when its reasons
+are all cautions, valid without reasons):
+
+=============================  ========  ==================================================
+code                           status    voids
+=============================  ========  ==================================================
+``run_failed``                 invalid   every result (the point produced no summary)
+``not_converged``              invalid   every result (the solver stopped before the fiber
+                                         end, or a convergence check without a code of its
+                                         own failed)
+``no_transmission``            invalid   ``compressed.*``, ``thz.*`` (fiber transmission
+                                         below :data:`TRANSMISSION_FLOOR`)
+``pump_in_resonance``          invalid   every result (anti-resonant fiber: the pump lies in
+                                         a wall-resonance band, where the model fails)
+``self_focusing_at_entrance``  invalid   every result (input peak power at or above the
+                                         critical power of the fill)
+``beyond_barrier_suppression`` invalid   every result (peak intensity in the fiber above the
+                                         barrier-suppression intensity: PPT/ADK fail)
+``window_edge_energy``         invalid   every result (a window-edge check of
+                                         :mod:`hcfplan.planning.convergence` failed: energy
+                                         or spectral level at the time or frequency edge)
+``unresolved_pulse``           invalid   compressed and transform-limited durations and
+                                         peak powers (fewer than
+                                         :data:`~hcfplan.planning.convergence.MIN_POINTS_PER_FWHM`
+                                         time steps per FWHM of the shortest pulse)
+``thz_beyond_crystal_model``   caution   ``thz.cutoff_hz``, ``thz.detected_cutoff_hz``
+                                         (THz peak or cutoff beyond the crystal model's
+                                         validity, or a cutoff the THz estimate already left
+                                         out for that reason; the rest of the result stands)
+``main_lobe_below_half``       caution   nothing (main lobe below half the compressed energy)
+``extrapolated_data``          caution   nothing (a material fit is used outside its range
+                                         where the output spectrum carries light)
+=============================  ========  ==================================================
+
+"Every result" is :data:`RESULT_FIELDS`: the output spectrum's width, transform limit and peak
+power, and every ``compressed.*`` and ``thz.*`` number. The margins, the limits and the input
+numbers are never voided: they say why a result is void.
+
+Why these statuses: a code is *invalid* when the printed numbers are not what the models would
+give for the setup — the model fails at the pump (resonance, self-focusing collapse, tunnelling
+rates beyond barrier suppression), the grid does not hold or resolve the light, the solver
+stopped, or no light is left. It is a *caution* when the numbers stand as computed but one
+void number is left out (the THz cutoff beyond the crystal model), a number needs reading with
+care (a spike on a pedestal) or rests on a fit used beyond its stated range. A verdict judges
+the numbers, never the setup: "valid" does not call an operating point safe.
+
+Entry points: :func:`verdict_fields` (from a ChainResult and its flat summary; called by
+:func:`hcfplan.planning.chain.summary_dict`, it stores ``verdict.status``, ``verdict.reasons``,
+``verdict.void_fields`` and ``verdict.measured``, the numbers the summary does not hold
+otherwise), :func:`verdict_of_chain` (the same as a :class:`Verdict`), :func:`verdict_of_summary`
+(recomputed from a stored summary, flat or nested), :func:`stored_verdict` (the verdict a summary
+was written with) and :func:`verdict_of_record` (a scan point, compare side, ``--spread`` corner
+or recommend candidate; ``run_failed`` for a point without a summary). All run the same checks
+on the same numbers, so a stored summary gives the verdict it was written with.
+"""
+
+from __future__ import annotations
+
+import fnmatch
+import math
+from dataclasses import dataclass
+from typing import Any
+
+from hcfplan.planning.convergence import EDGE_ENERGY_LIMIT, EDGE_LEVEL_DB, MIN_POINTS_PER_FWHM
+
+#: Verdict statuses from best to worst.
+STATUSES = ("valid", "caution", "invalid")
+
+#: Fiber transmission below which no light reaches the compressor. [1] Common practice, no
+#: source: 30 dB of loss leaves nothing a compressor or THz stage could use.
+TRANSMISSION_FLOOR = 1e-3
+#: Smallest main-lobe energy fraction of a compressed pulse that is not flagged. [1] The same
+#: level ``recommend`` requires for ``shortest`` (common practice, no source).
+MAIN_LOBE_FLOOR = 0.5
+
+#: The numbers a run produces (fnmatch patterns over flat summary keys).
+RESULT_FIELDS = ("output.bandwidth_hz", "output.transform_limit_fwhm_s", "output.peak_power_w",
+                 "compressed.*", "thz.*")
+#: Durations and peak powers of the compressed pulse and its references.
+DURATION_FIELDS = ("compressed.*fwhm_s", "compressed.*peak_power_w",
+                   "compressed.peak_to_transform_limit", "compressed.peak_power_gain",
+                   "compressed.main_lobe_energy_fraction", "output.transform_limit_fwhm_s")
+THZ_CUTOFF_FIELDS = ("thz.cutoff_hz", "thz.detected_cutoff_hz")
+
+
+@dataclass(frozen=True)
+class Code:
+    """What a reason code means, the status it gives and the summary keys it voids."""
+
+    status: str  #: "invalid" or "caution"
+    voids: tuple[str, ...]  #: fnmatch patterns over flat summary keys
+    meaning: str
+
+
+CODES: dict[str, Code] = {
+    "run_failed": Code("invalid", RESULT_FIELDS, "the run produced no result"),
+    "not_converged": Code("invalid", RESULT_FIELDS,
+                          "the solver did not reach the fiber end, or a convergence check "
+                          "failed"),
+    "no_transmission": Code("invalid", ("compressed.*", "thz.*"),
+                            f"fiber transmission below {TRANSMISSION_FLOOR:g}"),
+    "pump_in_resonance": Code("invalid", RESULT_FIELDS,
+                              "anti-resonant fiber: the pump lies in a wall-resonance band"),
+    "self_focusing_at_entrance": Code("invalid", RESULT_FIELDS,
+                                      "input peak power at or above the critical power of the "
+                                      "fill"),
+    "beyond_barrier_suppression": Code("invalid", RESULT_FIELDS,
+                                       "peak intensity above the barrier-suppression intensity"),
+    "window_edge_energy": Code("invalid", RESULT_FIELDS,
+                               f"more than {EDGE_ENERGY_LIMIT:g} of the energy, or a spectral "
+                               f"level above {EDGE_LEVEL_DB:g} dB, at the edge of the time or "
+                               "frequency window"),
+    "unresolved_pulse": Code("invalid", DURATION_FIELDS,
+                             f"fewer than {MIN_POINTS_PER_FWHM:g} time steps across the FWHM "
+                             "of the shortest pulse"),
+    "thz_beyond_crystal_model": Code("caution", THZ_CUTOFF_FIELDS,
+                                     "THz cutoff or band beyond the crystal model's validity"),
+    "main_lobe_below_half": Code("caution", (),
+                                 f"main lobe below {MAIN_LOBE_FLOOR:.0%} of the compressed "
+                                 "energy"),
+    "extrapolated_data": Code("caution", (),
+                              "a material fit is used outside its range where there is light"),
+}
+
+
+@dataclass(frozen=True)
+class Reason:
+    """One finding: its code (a key of :data:`CODES`) and one line with the numbers."""
+
+    code: str
+    message: str
+
+    def as_dict(self) -> dict:
+        return {"code": self.code, "message": self.message}
+
+    @property
+    def short(self) -> str:
+        """The message up to its first ": " or "; " (the first numbers, without what follows
+        from them)."""
+        return self.message.partition(": ")[0].partition("; ")[0]
+
+
+@dataclass(frozen=True)
+class Verdict:
+    """Status, reasons and void summary keys of one result (see the module docstring)."""
+
+    status: str
+    reasons: tuple[Reason, ...]
+    void_fields: tuple[str, ...]
+
+    @property
+    def codes(self) -> tuple[str, ...]:
+        return tuple(r.code for r in self.reasons)
+
+    @property
+    def invalid(self) -> bool:
+        return self.status == "invalid"
+
+    def void_reason(self, key: str) -> Reason | None:
+        """The first reason that voids the flat summary key ``key``, or None."""
+        for reason in self.reasons:
+            if any(fnmatch.fnmatchcase(key, p) for p in CODES[reason.code].voids):
+                return reason
+        return None
+
+    def as_dict(self) -> dict:
+        """``{"status", "reasons": [{code, message}], "void_fields"}`` (plain JSON types)."""
+        return {"status": self.status, "reasons": [r.as_dict() for r in self.reasons],
+                "void_fields": list(self.void_fields)}
+
+    def reasons_text(self) -> str:
+        """``"code: message; code: message"`` (empty for a valid result)."""
+        return "; ".join(f"{r.code}: {r.message}" for r in self.reasons)
+
+
+# ---------------------------------------------------------------------------------------------
+# reading summaries
+
+
+def flat_summary(summary: dict) -> dict:
+    """A summary as flat ``{"a.b": value}``, whether it is given nested or flat."""
+    out: dict[str, Any] = {}
+
+    def walk(node: dict, prefix: str) -> None:
+        for key, value in node.items():
+            name = f"{prefix}{key}"
+            if isinstance(value, dict) and name not in ("verdict.measured",):
+                walk(value, f"{name}.")
+            else:
+                out[name] = value
+
+    walk(summary, "")
+    return out
+
+
+def _num(flat: dict, key: str) -> float | None:
+    value = flat.get(key)
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        return None
+    return float(value) if math.isfinite(value) else None
+
+
+def _first(flat: dict, *keys: str) -> float | None:
+    return next((v for v in (_num(flat, k) for k in keys) if v is not None), None)
+
+
+# ---------------------------------------------------------------------------------------------
+# the checks: each takes the flat summary and the measured extras, returns reasons
+
+
+def _check_run(flat: dict, measured: dict) -> list[Reason]:
+    if flat.get("solver.success") is not False:
+        return []
+    status = flat.get("solver.status") or "fault"
+    message = " ".join(str(flat.get("solver.message") or "").split())
+    return [Reason("not_converged", f"solver stopped ({status})"
+                   + (f": {message}" if message else ""))]
+
+
+#: What a failed convergence check of each code means for the numbers.
+_CONSEQUENCE = {"window_edge_energy": "the grid does not hold the light",
+                "unresolved_pulse": "durations and peak powers are not resolved"}
+
+
+def _check_convergence(flat: dict, measured: dict) -> list[Reason]:
+    """The failed checks of ``grid.checks`` (:mod:`hcfplan.planning.convergence`), one reason
+    per code; a summary without them gets the sampling check from its own numbers."""
+    checks = flat.get("grid.checks")
+    if not isinstance(checks, list):
+        return _check_resolution(flat, measured)
+    found: dict[str, list[str]] = {}
+    for check in checks:
+        if not isinstance(check, dict) or check.get("passed") is not False:
+            continue
+        code = check.get("code") if check.get("code") in CODES else "not_converged"
+        limit = check.get("limit")
+        text = str(check.get("reason") or check.get("name") or "convergence check failed")
+        if isinstance(limit, (int, float)) and not isinstance(limit, bool):
+            text += f" (limit {limit:.3g})"
+        found.setdefault(code, []).append(text)
+    return [Reason(code, "; ".join(texts) + (f": {_CONSEQUENCE[code]}" if code in _CONSEQUENCE
+                                              else ""))
+            for code, texts in found.items()]
+
+
+def _check_transmission(flat: dict, measured: dict) -> list[Reason]:
+    t = _num(flat, "fiber.transmission")
+    if t is None or t >= TRANSMISSION_FLOOR:
+        return []
+    return [Reason("no_transmission", f"fiber transmission {t:.2g} (below "
+                   f"{TRANSMISSION_FLOOR:g}): no light reaches the compressor")]
+
+
+def _check_resonance(flat: dict, measured: dict) -> list[Reason]:
+    if flat.get("limits.fiber.pump_in_resonance_band") is not True:
+        return []
+    distance = _num(flat, "limits.fiber.relative_distance_to_resonance")
+    pump = _num(measured, "pump_wavelength_m")
+    resonances = [r for r in flat.get("limits.fiber.resonance_wavelengths_m") or []
+                  if isinstance(r, (int, float)) and r > 0]
+    where = "a wall resonance"
+    if pump is not None and resonances:
+        nearest = min(resonances, key=lambda r: abs(pump / r - 1))
+        where = f"the wall resonance at {nearest * 1e9:.0f} nm"
+    head = f"pump {pump * 1e9:.0f} nm" if pump is not None else "pump"
+    near = f" within {distance:.1%} of" if distance is not None else " in the band of"
+    return [Reason("pump_in_resonance", f"{head} lies{near} {where}: high loss and strong "
+                   "dispersion there, the fiber model does not hold")]
+
+
+def _check_self_focusing(flat: dict, measured: dict) -> list[Reason]:
+    critical = _num(flat, "limits.self_focusing.critical_power_w")
+    power = _first(flat, "limits.static_fill.peak_power_w",
+                   "limits.self_focusing.peak_power_input_w")
+    if critical is None or power is None or power < critical:
+        return []
+    return [Reason("self_focusing_at_entrance",
+                   f"input peak power {power / 1e9:.3g} GW >= critical power "
+                   f"{critical / 1e9:.3g} GW of the fill (P_cr/P = {critical / power:.2f}): "
+                   "the beam self-focuses at the fiber entrance")]
+
+
+def _check_barrier(flat: dict, measured: dict) -> list[Reason]:
+    bsi = _num(flat, "limits.ionization.barrier_suppression_intensity_w_per_m2")
+    peak = _first(flat, "output.max_peak_intensity_w_per_m2",
+                  "limits.ionization.peak_intensity_in_fiber_w_per_m2",
+                  "limits.ionization.peak_intensity_input_w_per_m2")
+    if bsi is None or peak is None or peak <= bsi:
+        return []
+    return [Reason("beyond_barrier_suppression",
+                   f"peak intensity {peak / 1e4:.3g} W/cm^2 is above the barrier-suppression "
+                   f"intensity {bsi / 1e4:.3g} W/cm^2 ({peak / bsi:.2g}x): the tunnelling "
+                   "rates do not hold there")]
+
+
+#: How the durations of :func:`_check_resolution` are named in its message.
+_DURATION_NAMES = {"compressed.fwhm_s": "compressed FWHM",
+                   "compressed.transform_limit_fwhm_s": "transform-limited FWHM",
+                   "output.transform_limit_fwhm_s": "transform-limited FWHM of the output"}
+
+
+def _check_resolution(flat: dict, measured: dict) -> list[Reason]:
+    dt = _num(flat, "grid.dt_s")
+    found = {k: v for k, v in ((k, _num(flat, k)) for k in _DURATION_NAMES)
+             if v is not None and v > 0}
+    if dt is None or dt <= 0 or not found:
+        return []
+    key = min(found, key=found.__getitem__)
+    samples = found[key] / dt
+    if samples >= MIN_POINTS_PER_FWHM:
+        return []
+    return [Reason("unresolved_pulse",
+                   f"{_DURATION_NAMES[key]} {found[key] * 1e15:.3g} fs spans {samples:.1f} grid "
+                   f"steps of {dt * 1e15:.3g} fs (at least {MIN_POINTS_PER_FWHM:g} needed)")]
+
+
+def _check_thz(flat: dict, measured: dict) -> list[Reason]:
+    if "thz.crystal" not in flat:
+        return []
+    crystal = flat.get("thz.crystal")
+    limit_keys = [k for k in flat if k.startswith("thz.") and k.endswith("model_limit_hz")]
+    limit = _first(flat, *limit_keys)
+    if limit_keys and "thz.cutoff_hz" in flat and flat["thz.cutoff_hz"] is None:
+        shown = f" ({limit / 1e12:.3g} THz)" if limit is not None else ""
+        return [Reason("thz_beyond_crystal_model",
+                       f"THz cutoff not given: the spectrum reaches beyond the {crystal} model's "
+                       f"validity{shown}")]
+    if limit is None:
+        limit = _num(measured, "thz_model_limit_hz")
+    if limit is None:
+        limit = _crystal_limit(crystal)
+    if limit is None:
+        return []
+    beyond = [(name, v) for name, v in (("peak", _num(flat, "thz.peak_hz")),
+                                        ("cutoff", _num(flat, "thz.cutoff_hz")))
+              if v is not None and v > limit]
+    if not beyond:
+        return []
+    what = " and ".join(f"{name} {value / 1e12:.3g} THz" for name, value in beyond)
+    verb = "are" if len(beyond) > 1 else "is"
+    return [Reason("thz_beyond_crystal_model",
+                   f"THz {what} {verb} beyond the {crystal} model's validity "
+                   f"({limit / 1e12:.3g} THz): the cutoff is void")]
+
+
+def _crystal_limit(name) -> float | None:
+    """Upper validity frequency of the THz model of a shipped crystal table. [Hz]"""
+    if not isinstance(name, str):
+        return None
+    from hcfplan.errors import HcfplanError
+    from hcfplan.materials import crystals
+
+    try:
+        return float(crystals.load_crystal(name).thz.frequency_max)
+    except HcfplanError:
+        return None
+
+
+def _check_main_lobe(flat: dict, measured: dict) -> list[Reason]:
+    fraction = _num(flat, "compressed.main_lobe_energy_fraction")
+    if fraction is None or fraction >= MAIN_LOBE_FLOOR:
+        return []
+    return [Reason("main_lobe_below_half",
+                   f"main lobe holds {fraction:.0%} of the compressed energy (below "
+                   f"{MAIN_LOBE_FLOOR:.0%}): FWHM and peak power describe a spike on a pedestal")]
+
+
+def _check_extrapolated(flat: dict, measured: dict) -> list[Reason]:
+    return [Reason("extrapolated_data", str(note))
+            for note in measured.get("extrapolated") or []]
+
+
+#: The checks in the order their reasons are listed: the physical causes before the numerical
+#: ones (without light at the fiber end, the grid checks see only numerical noise).
+CHECKS = (_check_run, _check_transmission, _check_resonance, _check_self_focusing,
+          _check_barrier, _check_convergence, _check_thz, _check_main_lobe, _check_extrapolated)
+
+
+def _verdict(flat: dict, measured: dict) -> Verdict:
+    reasons: list[Reason] = []
+    for check in CHECKS:
+        reasons += check(flat, measured)
+    return verdict_from_reasons(reasons, flat)
+
+
+def verdict_from_reasons(reasons, summary: dict | None = None) -> Verdict:
+    """The verdict of a list of :class:`Reason` (status from :data:`CODES`).
+
+    ``void_fields`` are the keys of ``summary`` (flat or nested; numbers and nulls only) that
+    the reasons void; without a summary they are empty.
+    """
+    reasons = tuple(reasons)
+    unknown = [r.code for r in reasons if r.code not in CODES]
+    if unknown:
+        raise ValueError(f"unknown verdict codes: {', '.join(unknown)}")
+    levels = [STATUSES.index(CODES[r.code].status) for r in reasons]
+    status = STATUSES[max(levels, default=0)]
+    flat = flat_summary(summary) if summary else {}
+    patterns = [p for r in reasons for p in CODES[r.code].voids]
+    void = tuple(k for k, v in flat.items()
+                 if (v is None or (isinstance(v, (int, float)) and not isinstance(v, bool)))
+                 and any(fnmatch.fnmatchcase(k, p) for p in patterns))
+    return Verdict(status, reasons, void)
+
+
+def verdict_of_summary(summary: dict) -> Verdict:
+    """The verdict of a chain summary, nested (``summary.json``) or flat.
+
+    Reads the summary's numbers and, when present, ``verdict.measured`` (written by
+    :func:`verdict_fields`); a summary without them (an older record) gets every check that its
+    numbers allow. An empty summary (a point that did not run) is invalid, ``run_failed``.
+    """
+    flat = flat_summary(summary or {})
+    if not flat:
+        return verdict_from_reasons([Reason("run_failed", "the run produced no summary")])
+    measured = flat.get("verdict.measured")
+    return _verdict(flat, measured if isinstance(measured, dict) else {})
+
+
+def stored_verdict(summary: dict) -> Verdict:
+    """The verdict a summary was written with (``verdict.reasons``), void fields included; a
+    summary without one gets :func:`verdict_of_summary`."""
+    flat = flat_summary(summary or {})
+    stored = flat.get("verdict.reasons")
+    if isinstance(stored, list) and all(isinstance(r, dict) and r.get("code") in CODES
+                                        for r in stored):
+        return verdict_from_reasons([Reason(r["code"], str(r.get("message", "")))
+                                     for r in stored], flat)
+    return verdict_of_summary(summary)
+
+
+def verdict_of_record(record: dict) -> Verdict:
+    """The verdict of a scan point record (:mod:`hcfplan.planning.scan.records`)."""
+    summary = record.get("summary") or {}
+    if not summary:
+        message = " ".join(str(record.get("message") or "the run produced no summary").split())
+        return verdict_from_reasons([Reason("run_failed", message)])
+    return stored_verdict(summary)
+
+
+# ---------------------------------------------------------------------------------------------
+# from a chain result
+
+
+def measured_of_chain(chain) -> dict:
+    """The numbers a verdict needs that the summary does not hold (``verdict.measured``).
+
+    ``pump_wavelength_m``; ``thz_model_limit_hz`` (upper validity of the THz model of the
+    generation crystal, with a ``[thz]`` section); ``extrapolated`` (the range notes of the
+    material fits against the output spectrum above
+    :data:`hcfplan.planning.validity.LIGHT_LEVEL_DB`, as in the run's warnings).
+    """
+    import numpy as np
+
+    from hcfplan.planning.validity import light_band, quiet_validity, range_notes
+
+    config, grid, prop = chain.config, chain.grid, chain.propagation
+    measured: dict[str, Any] = {"pump_wavelength_m": float(config.laser.wavelength)}
+    power = np.abs(np.asarray(prop.field_out_spectrum)) ** 2
+    notes: list[str] = []
+    if np.any(power > 0):
+        band = light_band(grid.frequency, power)
+        with quiet_validity():
+            notes = range_notes(config, chain.medium, band, "the output spectrum at -40 dB")
+    measured["extrapolated"] = notes
+    if chain.thz is not None:
+        measured["thz_model_limit_hz"] = _crystal_limit(config.thz.crystal)
+    return measured
+
+
+def verdict_of_chain(chain, summary: dict) -> Verdict:
+    """The verdict of a ChainResult, with its summary (flat or nested) at hand."""
+    return _verdict(flat_summary(summary), measured_of_chain(chain))
+
+
+def verdict_fields(chain, summary: dict) -> dict:
+    """The flat ``verdict.*`` keys of ``summary.json``: status, reasons, void_fields, measured.
+
+    ``summary`` is the flat summary built so far (every other section).
+    """
+    measured = measured_of_chain(chain)
+    verdict = _verdict(flat_summary(summary), measured)
+    return {"verdict.status": verdict.status,
+            "verdict.reasons": [r.as_dict() for r in verdict.reasons],
+            "verdict.void_fields": list(verdict.void_fields),
+            "verdict.measured": measured}
