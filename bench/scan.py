@@ -37,7 +37,7 @@ from pathlib import Path
 
 from hcfplan.planning.scan import compute_point, parse_vary, plan_scan, release_workers, run_scan
 
-#: The tests folder (for the invented fast config of tests/test_scan.py). It is imported inside
+#: The tests folder (for the invented fast config of tests/fast_cases.py). It is imported inside
 #: main() only: a pool process runs this script again at its start (multiprocessing does so for
 #: a script run by path), and importing pytest there cost 0.2 s per process.
 TESTS = Path(__file__).resolve().parents[1] / "tests"
@@ -161,7 +161,7 @@ def main(grid_points: int = 1024, config: Path | None = None, key: str = "gas.pr
     folder = Path(tempfile.mkdtemp(prefix="hcfplan-bench-scan-"))
     if config is None:
         sys.path.insert(0, str(TESTS))
-        from test_scan import write_fast_config
+        from fast_cases import write_fast_config
 
         config = write_fast_config(folder, energy_uj=300.0)
     over = (f"grid.points={grid_points}",)

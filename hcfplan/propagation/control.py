@@ -82,7 +82,7 @@ def scaled_rms_norm(
 
 
 #: Error-norm registry: key -> reference implementation (the steppers use fused kernels that
-#: compute the same numbers, checked in tests/test_propagation_solver.py).
+#: compute the same numbers, checked in tests/propagation/test_propagation_solver.py).
 ERROR_NORMS: dict[str, Callable[..., float]] = {
     "relative_l2": relative_l2_norm,
     "scaled_rms": scaled_rms_norm,

@@ -12,7 +12,7 @@ Two models, both as functions of the delay ``t`` >= 0 (zero for t < 0):
   is :math:`\\delta n_{rot}(t) = \\int_0^\\infty R(\\tau)\\, I(t-\\tau)\\, d\\tau` with R in
   m^2/(W s), i.e. directly comparable with the electronic Kerr term :math:`n_2 I`.
 
-Derivation of the rotational prefactor (checked numerically in ``tests/test_raman.py``)
+Derivation of the rotational prefactor (checked numerically in ``tests/propagation/test_raman.py``)
 -------------------------------------------------------------------------------------
 A linearly polarised field of cycle-averaged intensity I couples to the molecular axis through
 :math:`V = -\\tfrac14\\Delta\\alpha_{SI}|E_0|^2\\cos^2\\theta

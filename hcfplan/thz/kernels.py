@@ -36,7 +36,7 @@ def mixing_sums(band, k_opt, k_thz, thickness, count, out):  # pragma: no cover 
     1 mm of GaP), so exp(i delta_k L) - 1 is taken from delta_k itself. The numpy form, with two
     exponentials and temporaries per term, took 64 % of a scan point (profile of
     bench/scan.py's config, 8192 points). Checked against :func:`phase_matching_integral` in
-    tests/test_thz.py.
+    tests/thz/test_thz.py.
 
     References
     ----------

@@ -20,7 +20,7 @@ frequency, so its quantile moves continuously; it can only jump across a band wh
 spectrum is zero over a finite width (e.g. the reststrahlen band between a crystal's TO and LO
 phonons, where the crystal absorbs and reflects), and then by the width of that empty band.
 Integrals over the sampled spectrum are trapezoidal; with a spectrum sampled finely enough to
-resolve it the quantile does not depend on the sampling (checked in tests/test_thz_cutoff.py).
+resolve it the quantile does not depend on the sampling (checked in tests/thz/test_thz_cutoff.py).
 
 References
 ----------

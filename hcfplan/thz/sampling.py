@@ -38,7 +38,7 @@ from hcfplan.materials.crystals import CrystalTable, optical_group_index
 from hcfplan.numerics.grid import Grid, fft_friendly_size
 
 #: Default THz sample spacing of the estimate (50 GHz): the -20 dB cutoff of the demo cases
-#: changes by < 0.5 % when it is halved (tests/test_thz_cutoff.py). [Hz]
+#: changes by < 0.5 % when it is halved (tests/thz/test_thz_cutoff.py). [Hz]
 DEFAULT_FREQUENCY_STEP = 50e9
 #: Largest padded grid (points); beyond it the window stays short and a note says so.
 MAX_POINTS = 1 << 17

@@ -1,0 +1,186 @@
+"""The command line: commands run on every demo config, JSON keys, exit codes, one-line errors.
+
+Contract and error tests (no physics values are checked here; those live beside each model).
+"""
+
+from __future__ import annotations
+
+import json
+import re
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+from hcfplan.cli.app import main
+
+ROOT = Path(__file__).resolve().parents[2]
+DEMOS = sorted((ROOT / "configs").glob("*.toml"))
+
+
+def run(capsys, *argv):
+    code = main(list(argv))
+    out, err = capsys.readouterr()
+    return code, out, err
+
+
+@pytest.mark.parametrize("path", DEMOS, ids=[p.name for p in DEMOS])
+def test_check_every_demo(capsys, path):
+    code, out, err = run(capsys, "check", str(path))
+    assert code == 0, err
+    assert "[laser]" in out and "wavelength_nm" in out
+
+
+@pytest.mark.parametrize("path", DEMOS, ids=[p.name for p in DEMOS])
+def test_fiber_every_demo_json_and_plot(capsys, tmp_path, path):
+    figure = tmp_path / "fiber.png"
+    code, out, err = run(capsys, "fiber", str(path), "--json", "--plot", str(figure))
+    assert code == 0, err
+    report = json.loads(out)
+    for key in ("fiber.beta2_s2_per_m", "fiber.transmission", "fiber.soliton_order",
+                "fiber.zdw_m", "coupling.efficiency", "estimate.nonlinear_phase_rad"):
+        assert key in report
+    assert figure.stat().st_size > 10_000
+
+
+def test_fiber_text_shows_cautions(capsys):
+    code, out, _ = run(capsys, "fiber", str(ROOT / "configs" / "yb_capillary_mixture.toml"))
+    assert code == 0
+    assert "Cautions:" in out and "Class 4" in out and "rated pressure" in out
+
+
+def test_gas_json(capsys):
+    code, out, err = run(capsys, "gas", "Ar", "--pressure-bar", "2", "--wavelength-nm", "800",
+                         "--json")
+    assert code == 0, err
+    report = json.loads(out)
+    row = report["wavelengths"][0]
+    assert {"refractive_index", "group_index", "gvd_s2_per_m", "critical_power_w"} <= set(row)
+    assert report["number_density_real_per_m3"] > 0
+    assert report["sources"]["dispersion"]
+
+
+def test_gas_text_has_sources_and_cautions(capsys):
+    code, out, _ = run(capsys, "gas", "Ne")
+    assert code == 0
+    assert "Sources:" in out and "Cautions:" in out
+
+
+@pytest.mark.parametrize("argv,fragment", [
+    (["gas", "Unobtainium"], "Unobtainium"),
+    (["gas", "Ar", "--pressure-bar", "-1"], "--pressure-bar = -1.0"),
+    (["gas", "Ar", "--eos", "vdw"], "--eos = 'vdw'"),
+    (["check", "missing.toml"], "missing.toml: file not found"),
+    (["fiber", str(ROOT / "configs" / "yb_arf_argon.toml"), "--set", "gas.pressure_bar=abc"],
+     "gas.pressure_bar = 'abc': must be a number"),
+    (["check", str(ROOT / "configs" / "yb_arf_argon.toml"), "--set", "fiber.core=3"],
+     "fiber.core: unknown key"),
+])
+def test_bad_input_exit_2_one_line(capsys, argv, fragment):
+    code, out, err = run(capsys, *argv)
+    assert code == 2
+    lines = [ln for ln in err.splitlines() if ln.strip()]
+    assert len(lines) == 1, err
+    assert fragment in lines[0]
+    assert "Traceback" not in err
+
+
+def test_bad_config_subprocess_no_traceback(tmp_path):
+    # the real console path: a separate interpreter, stderr captured as the user sees it
+    bad = tmp_path / "bad.toml"
+    bad.write_text('[laser]\nwavelength_nm = "x"\n')
+    proc = subprocess.run([sys.executable, "-m", "hcfplan", "check", str(bad)],
+                          capture_output=True, text=True, timeout=120)
+    assert proc.returncode == 2
+    assert "Traceback" not in proc.stderr
+    assert proc.stderr.strip().count("\n") == 0
+    assert "laser.wavelength_nm" in proc.stderr
+
+
+def test_cli_import_is_light():
+    # start-up rule: importing the CLI must not pull in the heavy modules (they are imported
+    # inside the commands); checked structurally rather than by timing.
+    code = ("import sys, hcfplan.cli.app; heavy = [m for m in ('matplotlib', 'numba', 'CoolProp', "
+            "'scipy') if m in sys.modules]; print(','.join(heavy))")
+    proc = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                          timeout=120)
+    assert proc.returncode == 0, proc.stderr
+    assert proc.stdout.strip() == ""
+
+
+@pytest.mark.parametrize("path", DEMOS, ids=[p.name for p in DEMOS])
+def test_limits_every_demo(capsys, path):
+    code, out, err = run(capsys, "limits", str(path), "--json")
+    assert code == 0, err
+    report = json.loads(out)
+    assert report["limits.cautions"]
+    statuses = {c["status"] for c in report["limits.checks"]}
+    assert statuses <= {"within", "exceeds", "not checked"}
+    # never calls an operating point "safe" (house rule); "safety" in the cautions is fine
+    assert re.search(r"\bsafe\b", out.lower()) is None
+
+
+def test_limits_text_has_table_and_cautions(capsys):
+    code, out, _ = run(capsys, "limits", str(ROOT / "configs" / "yb_capillary_mixture.toml"))
+    assert code == 0
+    assert "self_focusing.input" in out and "gas_handling.oxygen" in out
+    assert "Cautions:" in out
+
+
+def test_envelope_json_and_plot(capsys, tmp_path):
+    figure = tmp_path / "env.png"
+    code, out, err = run(capsys, "envelope", str(ROOT / "configs" / "tisa_capillary_neon.toml"),
+                         "--json", "--plot", str(figure))
+    assert code == 0, err
+    data = json.loads(out)
+    assert len(data["envelope.energies_j"]) == 100 and len(data["envelope.pressures_pa"]) == 100
+    assert len(data["envelope.self_focusing_max_energy_j"]) == 100
+    assert figure.stat().st_size > 10_000
+
+
+def test_envelope_refuses_taylor(capsys):
+    code, _, err = run(capsys, "envelope", str(ROOT / "configs" / "taylor_pcf_check.toml"))
+    assert code == 2 and "Traceback" not in err
+
+
+def test_interrupt_inside_a_command_exit_130_one_line(capsys, monkeypatch):
+    # contract: Ctrl-C (KeyboardInterrupt) inside any command ends it with exit 130 and one
+    # stderr line, no traceback. No external source is needed for this check.
+    from hcfplan.io import config as io_config
+
+    def interrupted(*args, **kwargs):
+        raise KeyboardInterrupt
+
+    monkeypatch.setattr(io_config, "load_config", interrupted)
+    code, out, err = run(capsys, "check", str(DEMOS[0]))
+    assert code == 130
+    assert err.strip() == "hcfplan: interrupted; nothing written", err
+    assert out == ""
+
+
+def test_interrupted_message_names_only_what_was_written(tmp_path):
+    # contract of hcfplan.cli.common.WrittenFiles: files present before the command started
+    # are not listed, temporary files (".name.xxx") are not listed, files in a subfolder are
+    # counted. No external source is needed for this check.
+    from hcfplan.cli.common import WRITTEN, interrupted_message
+
+    folder = tmp_path / "scan"
+    folder.mkdir()
+    (folder / "old.csv").write_text("old\n")
+    figure = tmp_path / "fig.png"
+    WRITTEN.clear()
+    try:
+        WRITTEN.watch(folder, "resumable")
+        WRITTEN.watch(figure)
+        assert interrupted_message() == "interrupted; nothing written"
+        (folder / "points").mkdir()
+        for name in ("a.json", "b.json"):
+            (folder / "points" / name).write_text("{}\n")
+        (folder / "table.csv").write_text("x\n")
+        (folder / ".table.csv.tmp123").write_text("half")
+        message = interrupted_message()
+    finally:
+        WRITTEN.clear()
+    assert message == (f"interrupted; kept {folder}/: table.csv, points/ with 2 files "
+                       "(complete files only); resumable")

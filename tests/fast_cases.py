@@ -1,0 +1,94 @@
+"""Small, fast invented configs shared by the workflow tests (not a test module).
+
+Both are test scenarios of our own, not measured setups: they keep the chain cheap (short
+fibers, small fixed grids) so the command tests run in seconds.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+FAST_CONFIG = """
+# Test scenario (invented): 1030 nm, 200 fs into a 20 cm, 150 um argon capillary.
+[laser]
+wavelength_nm = 1030.0
+fwhm_fs = 200.0
+shape = "gaussian"
+energy_uj = {energy_uj}
+
+[fiber]
+kind = "capillary"
+core_diameter_um = 150.0
+length_m = 0.2
+
+[gas]
+species = "Ar"
+pressure_bar = 2.0
+ionization_model = "adk"
+
+[cell]
+rated_pressure_bar = {rated_bar}
+
+[compressor]
+mirror_gdd_fs2 = -100.0
+max_bounces = 30
+
+[thz]
+crystal = "GaP"
+thickness_mm = 0.1
+
+[limits]
+ionization_fraction_limit = 0.01
+
+[grid]
+points = 1024
+z_samples = 10
+"""
+
+
+def write_fast_config(folder: Path, name: str = "fast.toml", energy_uj: float = 200.0,
+                      rated_bar: float = 20.0) -> Path:
+    """The fast test config (shared by the workflow test files)."""
+    path = Path(folder) / name
+    path.write_text(FAST_CONFIG.format(energy_uj=energy_uj, rated_bar=rated_bar),
+                    encoding="utf-8")
+    return path
+
+
+#: A fast Ti:sapphire capillary config (text) for the simulate and spread tests.
+FAST = """
+[laser]
+wavelength_nm = 800.0
+fwhm_fs = 60.0
+shape = "gaussian"
+energy_uj = 300.0
+
+[fiber]
+kind = "capillary"
+core_diameter_um = 250.0
+length_m = 0.3
+
+[gas]
+species = "Ar"
+pressure_bar = 0.6
+
+[cell]
+window_material = "fused_silica"
+window_thickness_mm = 1.0
+
+[compressor]
+air_path_m = 0.5
+mirror_gdd_fs2 = -40.0
+max_bounces = 16
+bounces_in_pairs = true
+
+[thz]
+crystal = "ZnTe"
+thickness_mm = 0.1
+detector_crystal = "ZnTe"
+detector_thickness_mm = 0.2
+
+[grid]
+points = 2048
+z_samples = 12
+"""
