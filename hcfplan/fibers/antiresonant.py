@@ -36,11 +36,12 @@ from hcfplan.errors import ConfigError
 from hcfplan.fibers.base import GasLike
 from hcfplan.fibers.capillary import (
     ATTENUATION_CONVENTION,
+    GasFilledCore,
     capillary_propagation_constant,
     check_gas_filled_fiber,
 )
-from hcfplan.fibers.modes import U11, effective_area_j0, peak_intensity_area
-from hcfplan.materials.solids import SolidMaterial, load_material
+from hcfplan.fibers.modes import U11
+from hcfplan.materials.solids import SolidMaterial
 from hcfplan.materials.solids import refractive_index as solid_index
 
 _RESONANCE_ITERATIONS = 60  # most fixed-point steps for lambda_m = (2d/m) sqrt(n_glass^2 - n_gas^2)
@@ -141,7 +142,7 @@ def arf_wall_index_zeisberger2017(
 
 
 @dataclass(frozen=True)
-class AntiresonantFiber:
+class AntiresonantFiber(GasFilledCore):
     """Gas-filled tube-type anti-resonant fiber (Zeisberger & Schmidt model [1]).
 
     Parameters
@@ -182,20 +183,15 @@ class AntiresonantFiber:
             )
         self._material()
 
-    def _material(self) -> SolidMaterial:
-        if isinstance(self.cladding, SolidMaterial):
-            return self.cladding
-        return load_material(self.cladding)
-
     @property
-    def kerr_n2(self) -> float:
-        """n2 of the filling gas used in gamma. [m^2/W]
+    def u(self) -> float:
+        """Eigenvalue of the J0 core mode, u11 (first zero of J0). [-]
 
         References
         ----------
-        none: the n2 of the fill (the gas table cites its source)
+        J0 mode of E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
         """
-        return float(self.gas.n2)
+        return U11
 
     def _wall_index(self, omega: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         omega = np.asarray(omega, dtype=float)
@@ -228,35 +224,6 @@ class AntiresonantFiber:
         """
         omega = np.asarray(omega, dtype=float)
         return omega / c * self._wall_index(omega)[1].imag
-
-    def effective_area(self, omega: np.ndarray) -> np.ndarray:
-        """A_eff of the J0 mode of radius R (frequency independent). [m^2]
-
-        References
-        ----------
-        J0 mode of E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
-        """
-        return np.full(np.shape(omega), effective_area_j0(self.core_radius))
-
-    def nonlinear_coefficient(self, omega: np.ndarray) -> np.ndarray:
-        """gamma(omega) = n2 omega / (c A_eff). [1/(W m)]
-
-        References
-        ----------
-        none: definition of gamma (common practice, no source)
-        """
-        omega = np.asarray(omega, dtype=float)
-        return self.kerr_n2 * omega / (c * self.effective_area(omega))
-
-    @property
-    def peak_intensity_area(self) -> float:
-        """A_I = pi R^2 J1(u11)^2 (J0 mode). [m^2]
-
-        References
-        ----------
-        J0 mode of E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
-        """
-        return peak_intensity_area(self.core_radius)
 
     def resonance_wavelengths(self, m_max: int) -> np.ndarray:
         """ARROW resonance wavelengths lambda_m, m = 1..m_max, with the dispersive indices. [m]

@@ -192,8 +192,64 @@ def check_gas_filled_fiber(core_radius: float, length: float, gas) -> None:
         )
 
 
+class GasFilledCore:
+    """Methods shared by the gas-filled hollow-core models (capillary, anti-resonant).
+
+    A base for frozen dataclasses with the fields ``core_radius`` [m], ``gas``
+    (:class:`~hcfplan.fibers.base.GasLike`) and ``cladding`` (name or
+    :class:`~hcfplan.materials.solids.SolidMaterial`) and the property ``u``, the eigenvalue of
+    the J0 core mode [-]. It gives them the wall material, the Kerr coefficient of the fill, and
+    the mode area, nonlinear coefficient and peak-intensity area of the J0 mode of radius
+    ``core_radius`` (items 3-6 of :mod:`hcfplan.fibers.base`).
+    """
+
+    def _material(self) -> SolidMaterial:
+        if isinstance(self.cladding, SolidMaterial):
+            return self.cladding
+        return load_material(self.cladding)
+
+    @property
+    def kerr_n2(self) -> float:
+        """n2 of the filling gas used in gamma. [m^2/W]
+
+        References
+        ----------
+        none: the n2 of the fill (the gas table cites its source)
+        """
+        return float(self.gas.n2)
+
+    def effective_area(self, omega: np.ndarray) -> np.ndarray:
+        """A_eff of the J0 mode of radius ``core_radius`` (frequency independent). [m^2]
+
+        References
+        ----------
+        J0 mode of E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
+        """
+        return np.full(np.shape(omega), effective_area_j0(self.core_radius, self.u))
+
+    def nonlinear_coefficient(self, omega: np.ndarray) -> np.ndarray:
+        """gamma(omega) = n2 omega / (c A_eff). [1/(W m)]
+
+        References
+        ----------
+        none: definition of gamma (common practice, no source)
+        """
+        omega = np.asarray(omega, dtype=float)
+        return self.kerr_n2 * omega / (c * self.effective_area(omega))
+
+    @property
+    def peak_intensity_area(self) -> float:
+        """A_I = pi a^2 J1(u)^2 so that the on-axis intensity is P / A_I (J0 mode). [m^2]
+
+        References
+        ----------
+        J0 mode of E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
+        """
+        return peak_intensity_area(self.core_radius, self.u)
+
+
 @dataclass(frozen=True)
-class CapillaryFiber:
+class CapillaryFiber(GasFilledCore):
     """Gas-filled dielectric capillary, EH1m mode of Marcatili & Schmeltzer [1].
 
     Parameters
@@ -235,11 +291,6 @@ class CapillaryFiber:
             raise ConfigError(f"fiber bend_radius = {self.bend_radius} m: must be > 0 or None")
         self._material()
 
-    def _material(self) -> SolidMaterial:
-        if isinstance(self.cladding, SolidMaterial):
-            return self.cladding
-        return load_material(self.cladding)
-
     @property
     def u(self) -> float:
         """Mode eigenvalue u_1m (m-th zero of J0). [-]
@@ -249,16 +300,6 @@ class CapillaryFiber:
         E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
         """
         return eh_eigenvalue(self.mode[1])
-
-    @property
-    def kerr_n2(self) -> float:
-        """n2 of the filling gas used in gamma. [m^2/W]
-
-        References
-        ----------
-        none: the n2 of the fill (the gas table cites its source)
-        """
-        return float(self.gas.n2)
 
     def _indices(self, omega: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         omega = np.asarray(omega, dtype=float)
@@ -297,35 +338,6 @@ class CapillaryFiber:
                 omega, self.core_radius, self.bend_radius, n_gas, n_clad, self.u
             )
         return alpha
-
-    def effective_area(self, omega: np.ndarray) -> np.ndarray:
-        """A_eff of the J0 mode (frequency independent). [m^2]
-
-        References
-        ----------
-        J0 mode of E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
-        """
-        return np.full(np.shape(omega), effective_area_j0(self.core_radius, self.u))
-
-    def nonlinear_coefficient(self, omega: np.ndarray) -> np.ndarray:
-        """gamma(omega) = n2 omega / (c A_eff). [1/(W m)]
-
-        References
-        ----------
-        none: definition of gamma (common practice, no source)
-        """
-        omega = np.asarray(omega, dtype=float)
-        return self.kerr_n2 * omega / (c * self.effective_area(omega))
-
-    @property
-    def peak_intensity_area(self) -> float:
-        """A_I = pi a^2 J1(u)^2 so that the on-axis intensity is P / A_I. [m^2]
-
-        References
-        ----------
-        J0 mode of E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
-        """
-        return peak_intensity_area(self.core_radius, self.u)
 
     def describe(self) -> dict:
         """Defining SI parameters of the model.

@@ -216,7 +216,8 @@ def _build_specs(r: dict, present: set[str], base: Path, extra_gas_dirs) -> dict
         spread=SpreadDefaults(**r["spread"]),
         grid=GridSpec(points=grid["points"], time_window=_si(grid["time_window_fs"], "fs"),
                       z_samples=grid["z_samples"], rtol=grid["rtol"],
-                      stop_ionization_fraction=grid["stop_ionization_fraction"]),
+                      stop_ionization_fraction=grid["stop_ionization_fraction"],
+                      center_wavelength=_si(grid["center_wavelength_nm"], "nm")),
     )
 
 

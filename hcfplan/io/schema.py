@@ -185,6 +185,10 @@ SCHEMA: dict[str, dict[str, Key]] = {
         "points": Key("int", None, "Number of grid points (power of two recommended).",
                       64, 2**22, low_open=False),
         "time_window_fs": Key(F, None, "Total time window.", 1.0, 1.0e7),
+        "center_wavelength_nm": Key(F, None, "Centre of the frequency window, as a vacuum "
+                                    "wavelength (default: the window is placed on the band the "
+                                    "run needs). With points and time_window_fs it fixes the "
+                                    "whole grid.", 10.0, 1.0e5),
         "z_samples": Key("int", 100, "Number of saved z positions.", 2, 10000, low_open=False),
         "rtol": Key(F, 1.0e-6, "Relative tolerance of the step control (relative L2 norm of "
                     "the local error).", 0.0, 0.1),

@@ -139,6 +139,7 @@ class GridSpec:
     z_samples: int
     rtol: float
     stop_ionization_fraction: float
+    center_wavelength: float | None = None  #: window centre as a vacuum wavelength [m]
 
 
 @dataclass(frozen=True)

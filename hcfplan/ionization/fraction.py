@@ -35,8 +35,8 @@ WeightedRates = Sequence[tuple[float, Callable[[np.ndarray], np.ndarray]]]
 
 #: Half-width of the time window of :func:`pulse_ionization_fraction`, in FWHM. At ±3 FWHM a
 #: Gaussian is at 2^-36 = 1.5e-11 and a sech^2 at 1.0e-4 of its peak intensity; with rates that
-#: rise as a high power of the intensity (order > 6 near the onset, tests/ionization/test_ionization.py)
-#: the part outside the window is negligible.
+#: rise as a high power of the intensity (order > 6 near the onset,
+#: tests/ionization/test_ionization.py) the part outside the window is negligible.
 PULSE_HALF_WINDOW = 3.0
 #: Number of samples over that window (133 per FWHM).
 PULSE_SAMPLES = 801

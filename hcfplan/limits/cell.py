@@ -80,6 +80,18 @@ def _scalar(value: np.ndarray):
     return float(value) if np.ndim(value) == 0 else value
 
 
+def _check_plate_strength(clear_aperture, modulus_of_rupture: float, safety_factor: float) -> None:
+    _positive("clear_aperture", clear_aperture, "m")
+    _positive("modulus_of_rupture", modulus_of_rupture, "Pa")
+    if not safety_factor >= 1:
+        raise ConfigError(f"window safety factor = {safety_factor}: must be >= 1")
+
+
+def _check_poisson_ratio(poisson_ratio: float) -> None:
+    if not 0 <= poisson_ratio < 0.5:
+        raise ConfigError(f"poisson_ratio = {poisson_ratio}: must be in [0, 0.5)")
+
+
 # ----------------------------------------------------------------------------- cell rating
 def pressure_rating_status(pressure: float, rated_pressure: float | None) -> RatingStatus:
     """Planned fill pressure against the cell maker's rated pressure (neutral wording).
@@ -152,8 +164,7 @@ def simply_supported_stress_coefficient(poisson_ratio: float) -> float:
            McGraw-Hill, 1959, Secs. 15-16 (uniformly loaded circular plates; the same formulas,
            derived from D nabla^4 w = q).
     """
-    if not 0 <= poisson_ratio < 0.5:
-        raise ConfigError(f"poisson_ratio = {poisson_ratio}: must be in [0, 0.5)")
+    _check_poisson_ratio(poisson_ratio)
     return 3.0 * (3.0 + poisson_ratio) / 8.0
 
 
@@ -204,10 +215,7 @@ def window_min_thickness(
            derived from D nabla^4 w = q).
     """
     _positive("pressure_difference", pressure_difference, "Pa", allow_zero=True)
-    _positive("clear_aperture", clear_aperture, "m")
-    _positive("modulus_of_rupture", modulus_of_rupture, "Pa")
-    if not safety_factor >= 1:
-        raise ConfigError(f"window safety factor = {safety_factor}: must be >= 1")
+    _check_plate_strength(clear_aperture, modulus_of_rupture, safety_factor)
     radius = 0.5 * np.asarray(clear_aperture, dtype=float)
     load = np.asarray(pressure_difference, dtype=float)
     return _scalar(radius * np.sqrt(_coefficient(mounting) * load * safety_factor
@@ -237,10 +245,7 @@ def window_max_pressure_difference(
            derived from D nabla^4 w = q).
     """
     _positive("thickness", thickness, "m")
-    _positive("clear_aperture", clear_aperture, "m")
-    _positive("modulus_of_rupture", modulus_of_rupture, "Pa")
-    if not safety_factor >= 1:
-        raise ConfigError(f"window safety factor = {safety_factor}: must be >= 1")
+    _check_plate_strength(clear_aperture, modulus_of_rupture, safety_factor)
     radius = 0.5 * clear_aperture
     return modulus_of_rupture * thickness**2 / (_coefficient(mounting) * safety_factor * radius**2)
 
@@ -310,8 +315,7 @@ def window_center_deflection(
                               ("youngs_modulus", youngs_modulus, "Pa")):
         _positive(name, value, unit)
     _positive("pressure_difference", pressure_difference, "Pa", allow_zero=True)
-    if not 0 <= poisson_ratio < 0.5:
-        raise ConfigError(f"poisson_ratio = {poisson_ratio}: must be in [0, 0.5)")
+    _check_poisson_ratio(poisson_ratio)
     _coefficient(mounting)
     factor = _DEFLECTION_FACTORS[mounting](poisson_ratio)
     radius = 0.5 * clear_aperture

@@ -240,11 +240,16 @@ def _range(section: dict, path: str, where: str, lo_key: str, hi_key: str) -> tu
     return lo, hi
 
 
+def _model_name(section: dict, path: str, where: str, names) -> str:
+    model = _require(section, "model", path, where)
+    if not isinstance(model, str) or model not in names:
+        raise _fail(path, f"{where}.model", f"= {model!r}: valid: {', '.join(names)}")
+    return model
+
+
 def _optical_from_dict(sec: dict, path: str) -> OpticalIndexModel:
     where = "optical_index"
-    model = _require(sec, "model", path, where)
-    if not isinstance(model, str) or model not in OPTICAL_MODEL_NAMES:
-        raise _fail(path, f"{where}.model", f"= {model!r}: valid: {', '.join(OPTICAL_MODEL_NAMES)}")
+    model = _model_name(sec, path, where, OPTICAL_MODEL_NAMES)
     source = _source(sec, path, where)
     lo, hi = _range(sec, path, where, "valid_min_um", "valid_max_um")
     fields: dict[str, Any] = {"constant": 0.0, "b": (), "poles": (), "table_wavelength": (),
@@ -283,9 +288,7 @@ def _oscillator_from_dict(sec: dict, path: str, where: str) -> LorentzOscillator
 
 def _thz_from_dict(sec: dict, path: str) -> ThzDielectricModel:
     where = "thz_permittivity"
-    model = _require(sec, "model", path, where)
-    if not isinstance(model, str) or model not in THZ_MODEL_NAMES:
-        raise _fail(path, f"{where}.model", f"= {model!r}: valid: {', '.join(THZ_MODEL_NAMES)}")
+    model = _model_name(sec, path, where, THZ_MODEL_NAMES)
     source = _source(sec, path, where)
     fmax = _number(sec, "valid_max_thz", path, where, positive=True) * 1e12
     _source(sec, path, where, "range_source")

@@ -19,7 +19,8 @@ three-rung consistency rule). A fixed relative half-width can be given
 instead. ValidityWarnings raised by ``func`` at the outer sampling nodes are suppressed; ``func``
 is evaluated once more at the requested points so that their own warnings are issued.
 
-Measured accuracy (degree 14, 400-3000 nm, ``tests/numerics/test_derivatives.py``): for a Sellmeier-like
+Measured accuracy (degree 14, 400-3000 nm, ``tests/numerics/test_derivatives.py``): for a
+Sellmeier-like
 :math:`\\beta = \\omega\\,\\varepsilon(\\omega)/c` with the fused-silica poles of Malitson 1965
 the worst relative errors were 1e-11 (order 2), 2e-9 (order 3), 3e-8 (order 4), 2e-7 (order 5),
 2e-6 (order 6); for a sine plus a large linear term below 1e-9 up to order 4. For an empty

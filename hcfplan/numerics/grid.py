@@ -277,6 +277,22 @@ def estimated_band(omega_pump: float, duration_fwhm: float,
     return omega_pump - half, omega_pump + half
 
 
+def _centred_grid(omega_pump: float, center: float, half: float, time_window: float,
+                  points: int | None = None) -> Grid:
+    """Grid centred on ``center`` with the half window ``half`` (``points`` samples, or enough
+    for ``time_window``); its window must stay above zero frequency and hold the pump."""
+    if not (center - half > 0 and center - half < omega_pump < center + half):
+        raise ConfigError(
+            f"grid centre {center:.4e} rad/s with a half window of {half:.4e} rad/s: the window "
+            f"must stay above zero frequency and hold the pump ({omega_pump:.4e} rad/s); move "
+            "grid.center_wavelength_nm or change grid.points / grid.time_window_fs")
+    if points is None:
+        dt = np.pi / half
+        points = fft_friendly_size(int(np.ceil(time_window / dt * (1 - 1e-12))))
+    return Grid(points=int(points), dt=float(np.pi / half), omega0=float(center),
+                omega_pump=float(omega_pump))
+
+
 def choose_grid(
     omega_pump: float,
     duration_fwhm: float,
@@ -285,6 +301,7 @@ def choose_grid(
     band: tuple[float, float] | None = None,
     points: int | None = None,
     time_window: float | None = None,
+    center: float | None = None,
 ) -> Grid:
     """Time/frequency grid sized for a pulse and the spectral band the run needs.
 
@@ -306,6 +323,10 @@ def choose_grid(
     time_window : float, optional
         Total time window. Default ``TIME_WINDOW_PER_FWHM * duration_fwhm``; when neither
         override is given the window is rounded *up* to ``points * dt``. [s]
+    center : float, optional
+        Centre of the frequency window (the reference frequency ``omega0``). Default: placed
+        on the needed band (Notes). Given, the window is centred there: with ``points`` and/or
+        ``time_window`` as they fix dt, otherwise wide enough to hold the needed band. [rad/s]
 
     Returns
     -------
@@ -359,8 +380,13 @@ def choose_grid(
             )
         lo, hi = max(lo, floor), min(hi, ceiling)
     window = TIME_WINDOW_PER_FWHM * duration_fwhm if time_window is None else time_window
+    if center is not None and not (np.isfinite(center) and center > 0):
+        raise ConfigError(f"grid centre = {center} rad/s: must be > 0")
     if points is None and time_window is None:
-        return window_grid(omega_pump, lo, hi, window)
+        if center is None:
+            return window_grid(omega_pump, lo, hi, window)
+        half = max(center - lo, hi - center, 1.05 * abs(center - omega_pump))
+        return _centred_grid(omega_pump, center, half, window)
     if points is not None and time_window is not None:
         n, dt = points, time_window / points
     elif points is not None:
@@ -372,6 +398,8 @@ def choose_grid(
             n //= 2
         dt = window / n
     half = np.pi / dt
+    if center is not None:
+        return _centred_grid(omega_pump, center, half, n * dt, points=n)
     # a window as wide as the band is centred on it, a narrower one on the pump; either moves
     # up as far as its lower edge needs
     centre = max(0.5 * (lo + hi) if half >= 0.5 * (hi - lo) else omega_pump, floor + half)

@@ -16,6 +16,7 @@ from typing import Any
 import numpy as np
 
 from hcfplan.constants import P_1ATM, T_ROOM
+from hcfplan.constants import c as C_LIGHT
 from hcfplan.planning.build import (
     build_medium,
     build_waveguide,
@@ -124,7 +125,13 @@ def _first_grid(config, report: dict, omega0: float):
     return choose_grid(omega0, config.laser.duration_fwhm,
                        broadening_factor=_broadening_estimate(report),
                        band=dispersive_wave_band(report, omega0),
-                       points=config.grid.points, time_window=config.grid.time_window)
+                       points=config.grid.points, time_window=config.grid.time_window,
+                       center=_center_omega(config.grid.center_wavelength))
+
+
+def _center_omega(wavelength: float | None) -> float | None:
+    """Angular frequency of a vacuum wavelength [m], or None. [rad/s]"""
+    return None if wavelength is None else 2 * math.pi * C_LIGHT / wavelength
 
 
 def _run_chain(config, progress, workers, grid=None) -> ChainResult:

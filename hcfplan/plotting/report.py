@@ -19,32 +19,35 @@ from hcfplan.plotting.propagation import (
 )
 
 
+def _propagation_figure(fig, chain, plot: Callable, title: str):
+    """One axes of ``fig`` with ``plot(ax, chain.propagation)`` and ``title``."""
+    ax = plot(fig.subplots(), chain.propagation)
+    ax.set_title(title)
+    return ax
+
+
 def draw_spectra(fig, chain):
     """Input and output spectral energy density per wavelength, dB."""
-    ax = plot_spectra_in_out(fig.subplots(), chain.propagation)
-    ax.set_title("Spectrum before and after the fiber")
-    return ax
+    return _propagation_figure(fig, chain, plot_spectra_in_out,
+                               "Spectrum before and after the fiber")
 
 
 def draw_spectral_evolution(fig, chain):
     """Spectrum along z as an image (dB relative to the overall peak)."""
-    ax = plot_spectral_evolution(fig.subplots(), chain.propagation)
-    ax.set_title("Spectral evolution along the fiber")
-    return ax
+    return _propagation_figure(fig, chain, plot_spectral_evolution,
+                               "Spectral evolution along the fiber")
 
 
 def draw_temporal(fig, chain):
     """Temporal power at the fiber input and output."""
-    ax = plot_temporal_in_out(fig.subplots(), chain.propagation)
-    ax.set_title("Temporal power before and after the fiber (uncompressed)")
-    return ax
+    return _propagation_figure(fig, chain, plot_temporal_in_out,
+                               "Temporal power before and after the fiber (uncompressed)")
 
 
 def draw_energy_ionization(fig, chain):
     """Pulse energy and peak ionisation fraction along z."""
-    ax = plot_energy_and_ionization(fig.subplots(), chain.propagation)
-    ax.set_title("Energy and ionisation along the fiber")
-    return ax
+    return _propagation_figure(fig, chain, plot_energy_and_ionization,
+                               "Energy and ionisation along the fiber")
 
 
 def draw_compressed(fig, chain):

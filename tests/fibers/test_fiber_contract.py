@@ -6,6 +6,7 @@ import warnings
 
 import numpy as np
 import pytest
+from fiber_cases import BorzsonyiArgon
 
 from hcfplan.fibers import (
     FIBER_MODELS,
@@ -19,25 +20,6 @@ from hcfplan.fibers import (
 C = 299792458.0
 OMEGA0 = 2 * np.pi * C / 800e-9
 REQUIRED_KEYS = {"model", "length", "kerr_n2", "attenuation"}
-
-
-@dataclasses.dataclass(frozen=True)
-class BorzsonyiArgon:
-    """Test-local argon, A. Borzsonyi et al., Appl. Opt. 47, 4856 (2008) (273 K, 1000 mbar
-    reference, density scaling p/T); n2 = 9.7e-24 m^2/W per bar, Wahlstrand et al., PRA 85,
-    043820 (2012)."""
-
-    pressure: float
-    temperature: float = 293.15
-
-    @property
-    def n2(self):
-        return 9.7e-24 * self.pressure / 1e5
-
-    def refractive_index(self, omega):
-        lam2 = (2 * np.pi * C / np.asarray(omega, dtype=float) / 1e-6) ** 2
-        s = 20332.29e-8 * lam2 / (lam2 - 206.12e-6) + 34458.31e-8 * lam2 / (lam2 - 8.066e-3)
-        return np.sqrt(1 + self.pressure / 1e5 * 273.0 / self.temperature * s)
 
 
 GAS = BorzsonyiArgon(1.5e5)

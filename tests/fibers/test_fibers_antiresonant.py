@@ -2,29 +2,17 @@
 
 import numpy as np
 import pytest
+from fiber_cases import Vacuum, constant_glass, omega_of
 from scipy import optimize
 
 from hcfplan.errors import ConfigError
 from hcfplan.fibers import AntiresonantFiber, CapillaryFiber, derived
 from hcfplan.fibers.antiresonant import arf_wall_index_zeisberger2017
 from hcfplan.fibers.modes import U11
-from hcfplan.materials.solids import QuotedValue, SellmeierFit, SolidMaterial, refractive_index
+from hcfplan.materials.solids import refractive_index
 from hcfplan.numerics.derivatives import derivative
 
 C = 299792458.0
-
-
-def omega_of(wavelength):
-    return 2 * np.pi * C / np.asarray(wavelength, dtype=float)
-
-
-class Vacuum:
-    """Gas of index 1 without Kerr effect."""
-
-    n2 = 0.0
-
-    def refractive_index(self, omega):
-        return np.ones_like(np.asarray(omega, dtype=float))
 
 
 class DiluteGas:
@@ -34,13 +22,6 @@ class DiluteGas:
 
     def refractive_index(self, omega):
         return np.full(np.shape(omega), 1.0001)
-
-
-def constant_glass(n):
-    fit = SellmeierFit("sellmeier_wavelength_um", n * n - 1, (0.0,), (0.1,), 1e-8, 1e-3, 293.15,
-                       "test: constant index", False)
-    return SolidMaterial("constant", "", fit, QuotedValue(0.0, "test", False),
-                         QuotedValue(1.0, "test", False))
 
 
 GLASS = constant_glass(1.45)

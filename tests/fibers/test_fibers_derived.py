@@ -1,37 +1,14 @@
 """Tests of hcfplan.fibers.derived (pulse scales and quantities derived from a Waveguide)."""
 
-import dataclasses
 
 import numpy as np
 import pytest
+from fiber_cases import BorzsonyiArgon, omega_of
 
 from hcfplan.errors import ConfigError
 from hcfplan.fibers import CapillaryFiber, TaylorFiber, derived
 
 C = 299792458.0
-
-
-def omega_of(wavelength):
-    return 2 * np.pi * C / np.asarray(wavelength, dtype=float)
-
-
-@dataclasses.dataclass(frozen=True)
-class BorzsonyiArgon:
-    """Test-local argon, A. Borzsonyi et al., Appl. Opt. 47, 4856 (2008) (273 K, 1000 mbar
-    reference, density scaling p/T); n2 = 9.7e-24 m^2/W per bar, Wahlstrand et al., PRA 85,
-    043820 (2012)."""
-
-    pressure: float
-    temperature: float = 293.15
-
-    @property
-    def n2(self):
-        return 9.7e-24 * self.pressure / 1e5
-
-    def refractive_index(self, omega):
-        lam2 = (2 * np.pi * C / np.asarray(omega, dtype=float) / 1e-6) ** 2
-        s = 20332.29e-8 * lam2 / (lam2 - 206.12e-6) + 34458.31e-8 * lam2 / (lam2 - 8.066e-3)
-        return np.sqrt(1 + self.pressure / 1e5 * 273.0 / self.temperature * s)
 
 
 # Benchmark of J. M. Dudley, G. Genty, S. Coen, Rev. Mod. Phys. 78, 1135 (2006) [from memory]:

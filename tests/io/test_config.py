@@ -268,10 +268,11 @@ CROSS = [
     ("limits.ionization_fraction_limit=1.0",
      "limits.ionization_fraction_limit = 1.0: must be < 1"),
     ("grid.points=4097", "grid.points = 4097: must be an even number"),
-    ("grid.time_window_fs=20.0", "grid.time_window_fs = 20.0: the frequency window reaches "
-     "zero frequency at laser.wavelength_nm = 1030.0; 16 points need a time window > 27.49 fs"),
+    ("grid.time_window_fs=5.0", "grid.time_window_fs = 5.0: the frequency window is wider "
+     "than the grid may span at laser.wavelength_nm = 1030.0 (0.25 to 6 times the pump "
+     "frequency); 16 points need a time window > 9.56 fs"),
     (["grid.points=65536", "grid.time_window_fs=1000.0"], "grid.points = 65536, "
-     "grid.time_window_fs = 1000.0: the frequency window reaches zero frequency at "
+     "grid.time_window_fs = 1000.0: the frequency window is wider than the grid may span at "
      "laser.wavelength_nm = 1030.0"),
     ("compressor.mirror_band_nm=[600.0, 1000.0]", "compressor.mirror_band_nm = [600.0, 1000.0]: "
      "must contain the pump, laser.wavelength_nm = 1030.0"),

@@ -200,3 +200,21 @@ def test_default_run_agrees_with_a_finer_longer_grid(tmp_path):
     a, b = default.compression.metrics, finer.compression.metrics
     assert a.fwhm == pytest.approx(b.fwhm, rel=0.01)
     assert a.transform_limited_fwhm == pytest.approx(b.transform_limited_fwhm, rel=0.01)
+
+
+def test_center_wavelength_fixes_the_window_centre():
+    """Contract: ``grid.center_wavelength_nm`` with points and time window fixes the whole grid
+    (centre, step, count); a centre whose window would reach zero frequency is refused naming
+    the key. Analytic: omega0 = 2 pi c / lambda_c."""
+    from hcfplan.constants import c
+    from hcfplan.errors import ConfigError
+    from hcfplan.numerics.grid import choose_grid
+
+    pump = 2 * np.pi * c / 800e-9
+    centre = 2 * np.pi * c / 600e-9
+    grid = choose_grid(pump, 30e-15, points=4096, time_window=8e-12, center=centre)
+    assert grid.omega0 == pytest.approx(centre, rel=1e-12)
+    assert grid.points == 4096 and grid.dt == pytest.approx(8e-12 / 4096, rel=1e-12)
+    assert grid.omega_pump == pytest.approx(pump, rel=1e-12)
+    with pytest.raises(ConfigError, match="grid.center_wavelength_nm"):
+        choose_grid(pump, 30e-15, points=4096, time_window=0.5e-12, center=centre)

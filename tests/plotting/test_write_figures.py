@@ -109,8 +109,8 @@ def test_sigterm_during_the_figures_leaves_complete_files_and_no_helper(tmp_path
     env = dict(os.environ, PYTHONPATH=str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", ""))
     folder = tmp_path / "figs"
     proc = subprocess.run([sys.executable, "-c", _SIGTERM_SCRIPT, str(folder),
-                           str(ROOT / "tests" / "plotting"), who], env=env, capture_output=True, text=True,
-                          timeout=120)
+                           str(ROOT / "tests" / "plotting"), who], env=env, capture_output=True,
+                          text=True, timeout=120)
     time.sleep(1.0)  # a helper left running would write more files meanwhile
     names = sorted(p.name for p in folder.iterdir())
     assert not [n for n in names if n.startswith(".")], names
