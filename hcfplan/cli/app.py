@@ -33,17 +33,15 @@ from hcfplan.cli.common import (
 from hcfplan.cli.output import (
     TerminalBar,
     echo,
-    fmt,
     print_cautions,
     print_envelope,
     print_fiber,
     print_gas,
     print_json,
     print_limits,
-    print_rows,
     print_simulation,
+    print_thz_report,
     print_warnings,
-    thz_cutoff_text,
 )
 from hcfplan.cli.workflows import register as register_workflows
 from hcfplan.errors import ConfigError, HcfplanError
@@ -105,16 +103,76 @@ def check_command(
     set_: list[str] | None = typer.Option(None, "--set", help=SET_HELP),
     as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
 ) -> None:
-    """Validate a config and print what it resolves to, all defaults filled in."""
+    """Validate a config (keys, ranges and the gas phase of the fill) and print what it resolves
+    to, all defaults filled in; notes where the fill pressure exceeds the cell rating."""
     from hcfplan.io.tomlio import dump_toml
 
     cfg = load_cli_config(config, set_ or [])
+    warnings = _check_gas_phase(cfg)  # a liquid or two-phase fill: one-line error, exit 2
+    notes = pressure_notes(cfg)
     if as_json:
         print_json(cfg.resolved)
+        for line in notes + warnings:  # stdout stays the resolved config
+            print(f"hcfplan: note: {line}", file=sys.stderr)
         return
-    echo(f"# {config}: valid. Resolved values (defaults filled in; units in the key names):")
+    echo(f"# {config}: valid{' (see the notes below)' if notes else ''}. Resolved values "
+         "(defaults filled in; units in the key names):")
     echo(dump_toml(cfg.resolved).rstrip())
+    if notes:
+        echo()
+        echo("Notes (limits to report, not errors):")
+        for line in notes:
+            echo(f"  ! {line}")
+    print_warnings(warnings)
     print_cautions()
+
+
+#: A fill at or above this pressure is far beyond hollow-core fiber practice: hint at a unit
+#: slip (mbar written as bar). [Pa]
+IMPLAUSIBLE_FILL = 100e5
+
+
+def _check_gas_phase(cfg) -> list[str]:
+    """The phase check of the fill, as ``limits`` runs it: a refused phase raises the
+    ConfigError naming gas.pressure_bar and gas.temperature_k; returns the fill's warnings."""
+    if cfg.gas is None:
+        return []
+    from hcfplan.planning.build import build_medium
+
+    return list(build_medium(cfg.gas).warnings)
+
+
+def pressure_notes(cfg) -> list[str]:
+    """Notes on the fill pressure against the cell rating and on implausible magnitudes.
+
+    Not errors: a pressure above ``cell.rated_pressure_bar`` or above
+    ``limits.rating_fraction`` x that rating is a limit to report (the cautions follow), and a
+    fill of hundreds of bar is hinted as a possible unit slip.
+    """
+    if cfg.gas is None:
+        return []
+    notes = []
+    p, rated = cfg.gas.pressure, cfg.cell.rated_pressure
+    fraction = cfg.limits.rating_fraction
+    if rated is not None and p > rated:
+        notes.append(
+            f"gas.pressure_bar = {p / 1e5:.4g} exceeds cell.rated_pressure_bar = "
+            f"{rated / 1e5:.4g}: the fill is above the cell maker's rating; the maker's rating "
+            "of every part and the local pressure-equipment codes come first (see the "
+            "cautions)")
+    elif rated is not None and p > fraction * rated:
+        notes.append(
+            f"gas.pressure_bar = {p / 1e5:.4g} is above limits.rating_fraction x "
+            f"cell.rated_pressure_bar = {fraction:g} x {rated / 1e5:.4g} = "
+            f"{fraction * rated / 1e5:.4g} bar: less margin below the cell maker's rating than "
+            "the limits ask; the maker's rating and the local pressure-equipment codes come "
+            "first (see the cautions)")
+    if p >= IMPLAUSIBLE_FILL:
+        notes.append(
+            f"gas.pressure_bar = {p / 1e5:.4g}: a fill of hundreds of bar is far beyond "
+            f"gas-filled hollow-core fiber practice; did you mean mbar "
+            f"(gas.pressure_bar = {p / 1e8:.4g})?")
+    return notes
 
 
 # ---------------------------------------------------------------------------------------------
@@ -351,23 +409,7 @@ def thz_command(
     if as_json:
         print_json(report)
         return
-    rows = [
-        ("crystal", f"{report['crystal']} {report['thickness_m'] * 1e3:g} mm", ""),
-        ("THz peak", thz_cutoff_text(report, "peak_hz"), ""),
-        ("THz cutoff", thz_cutoff_text(report), report["cutoff_definition"]),
-        ("-3 dB / -10 dB width", f"{fmt(report['bandwidth_3db_hz'], 1e12)} / "
-         f"{fmt(report['bandwidth_10db_hz'], 1e12)} THz", ""),
-        ("relative efficiency", f"{report['relative_efficiency']:.3g}",
-         "for d_eff = 1 pm/V and 1 mm^2: compares spectra, not an absolute yield"),
-    ]
-    if detector_crystal is not None:
-        rows.append(("detected cutoff", thz_cutoff_text(report, "detected_cutoff_hz"),
-                     f"EO detection in {detector_crystal}"))
-    print_rows(rows)
-    if "figure" in report:
-        echo(f"\nFigure written: {report['figure']}")
-    print_warnings(report["warnings"])
-    print_cautions(("estimates", "laser"))
+    print_thz_report(report, detector_crystal)
 
 
 # ---------------------------------------------------------------------------------------------

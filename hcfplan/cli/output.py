@@ -231,7 +231,21 @@ def print_spread(s: dict) -> None:
 
 
 def print_simulation(s: dict, out_dir: Path) -> None:
+    """The headline of a run: every result number, or "void (code: message)" where the
+    verdict voids it; the verdict with its reasons; one block of warnings; limits; cautions."""
+    from hcfplan.planning.verdict import stored_verdict
+
+    verdict = stored_verdict(s)
     inp, fib, outp = s["input"], s["fiber"], s["output"]
+
+    def shown(key: str, text: str, row_code: str | None = None) -> str:
+        return void_text(verdict, key, text, row_code)
+
+    def code(key: str) -> str | None:
+        reason = verdict.void_reason(key)
+        return reason.code if reason else None
+
+    width = code("output.bandwidth_hz")
     rows = [
         ("input", f"{fmt(inp['energy_j'], 1e-6)} uJ, FWHM {fmt(inp['fwhm_s'], 1e-15)} fs",
          f"launched {fmt(inp['launched_energy_j'], 1e-6)} uJ (coupling "
@@ -240,44 +254,41 @@ def print_simulation(s: dict, out_dir: Path) -> None:
         ("fiber", f"{fib['kind']}, {fib['length_m']:g} m",
          f"transmission {fmt(fib['transmission'], 0.01, 3)} %, {fib['regime']} dispersion, "
          f"soliton order {fmt(fib['soliton_order'], 1, 3)}"),
-        ("output spectrum", f"{fmt(outp['bandwidth_hz'], 1e12)} THz at -20 dB",
-         f"transform limit {fmt(outp['transform_limit_fwhm_s'], 1e-15)} fs"),
+        ("output spectrum", shown("output.bandwidth_hz",
+                                  f"{fmt(outp['bandwidth_hz'], 1e12)} THz at -20 dB"),
+         "transform limit " + shown("output.transform_limit_fwhm_s",
+                                    f"{fmt(outp['transform_limit_fwhm_s'], 1e-15)} fs", width)),
         ("peak intensity in fiber", f"{fmt(outp['max_peak_intensity_w_per_m2'], 1e4)} W/cm^2",
          f"max ionisation fraction {fmt(outp['max_ionization_fraction'], 1, 3)}"),
         ("solver", f"{s['solver']['steps']} steps ({s['solver']['rejected_steps']} rejected)",
          f"grid {s['grid']['points']} points"),
     ]
-    from hcfplan.planning.verdict import stored_verdict
-
-    verdict = stored_verdict(s)
-    rows[2] = ("output spectrum", _shown(verdict, "output.bandwidth_hz",
-                                         f"{fmt(outp['bandwidth_hz'], 1e12)} THz at -20 dB"),
-               "transform limit " + _shown(verdict, "output.transform_limit_fwhm_s",
-                                           f"{fmt(outp['transform_limit_fwhm_s'], 1e-15)} fs",
-                                           brief=True))
     comp = s.get("compressed")
     if comp:
-        rows.append(("compressed FWHM",
-                     _shown(verdict, "compressed.fwhm_s", f"{fmt(comp['fwhm_s'], 1e-15)} fs"),
-                     _unless_void(verdict, "compressed.transform_limit_fwhm_s",
-                                  f"TL {fmt(comp['transform_limit_fwhm_s'], 1e-15)} fs, main lobe "
-                                  f"{fmt(comp['main_lobe_energy_fraction'], 0.01, 3)} %")))
+        row = code("compressed.fwhm_s")
+        rows.append(("compressed FWHM", shown("compressed.fwhm_s",
+                                              f"{fmt(comp['fwhm_s'], 1e-15)} fs"),
+                     "TL " + shown("compressed.transform_limit_fwhm_s",
+                                   f"{fmt(comp['transform_limit_fwhm_s'], 1e-15)} fs", row)
+                     + ", main lobe " + shown("compressed.main_lobe_energy_fraction",
+                                              f"{fmt(comp['main_lobe_energy_fraction'], 0.01, 3)}"
+                                              " %", row)))
+        row = code("compressed.peak_power_w")
         rows.append(("compressed peak power",
-                     _shown(verdict, "compressed.peak_power_w",
-                            f"{fmt(comp['peak_power_w'], 1e9)} GW"),
-                     _unless_void(verdict, "compressed.gdd_s2",
-                                  f"{comp['bounces']} bounces, total GDD "
-                                  f"{fmt(comp['gdd_s2'], 1e-30)} fs^2")))
+                     shown("compressed.peak_power_w", f"{fmt(comp['peak_power_w'], 1e9)} GW"),
+                     "bounces " + shown("compressed.bounces", f"{comp['bounces']}", row)
+                     + ", total GDD " + shown("compressed.gdd_s2",
+                                              f"{fmt(comp['gdd_s2'], 1e-30)} fs^2", row)))
     thz = s.get("thz")
     if thz:
-        rows.append(("THz cutoff",
-                     thz_cutoff_text(thz) if thz.get("cutoff_hz") is None else
-                     _shown(verdict, "thz.cutoff_hz", thz_cutoff_text(thz)),
-                     f"{thz['crystal']} {thz['thickness_m'] * 1e3:g} mm"
-                     + _unless_void(verdict, "thz.peak_hz",
-                                    ", peak " + thz_cutoff_text(thz, "peak_hz"))
-                     + _unless_void(verdict, "thz.cutoff_hz",
-                                    f"; cutoff = {thz['cutoff_definition']}")))
+        rows.append(("THz peak", thz_shown(verdict, thz, "peak_hz"),
+                     f"{thz['crystal']} {thz['thickness_m'] * 1e3:g} mm"))
+        cutoff = thz_shown(verdict, thz, "cutoff_hz")
+        rows.append(("THz cutoff", cutoff, "" if cutoff.startswith(("void", "above"))
+                     else f"cutoff = {thz['cutoff_definition']}"))
+        if "detected_cutoff_hz" in thz:
+            rows.append(("detected THz cutoff", thz_shown(verdict, thz, "detected_cutoff_hz"),
+                         "EO detection"))
     print_rows(rows)
     grid = s["grid"]
     if grid.get("refinements"):
@@ -286,11 +297,47 @@ def print_simulation(s: dict, out_dir: Path) -> None:
     echo(f"\nWritten to {out_dir}/: summary.json, fields.npz"
          + (" and figures" if any(out_dir.glob("*.png")) else ""))
     print_spread(s)
-    print_warnings(s["warnings"])
-    if "limits" in s:
+    limits = _flat_limits(s["limits"]) if "limits" in s else None
+    if limits is not None:
         echo()
-        print_limits(_flat_limits(s["limits"]))
+        print_limits(limits, warnings=False)
+    print_warnings(unlisted_warnings(
+        list(s["warnings"]) + list((limits or {}).get("limits.warnings", [])), verdict))
     print_cautions()
+
+
+def print_thz_report(report: dict, detector_crystal: str | None = None) -> None:
+    """The ``thz`` command's text: pump energy, crystal, THz numbers (void ones with their
+    reason), the verdict, one block of warnings and the cautions."""
+    from hcfplan.planning.verdict import verdict_of_thz_report
+
+    verdict = verdict_of_thz_report(report, detector=detector_crystal is not None)
+    rows = [
+        ("pump energy", f"{fmt(report['pump_energy_j'], 1e-6)} uJ",
+         "on the crystal (--energy-uj; default 1 uJ)"),
+        ("crystal", f"{report['crystal']} {report['thickness_m'] * 1e3:g} mm", ""),
+        ("THz peak", thz_shown(verdict, report, "peak_hz"), ""),
+        ("THz cutoff", thz_shown(verdict, report, "cutoff_hz"), report["cutoff_definition"]),
+        ("-3 dB / -10 dB width", f"{fmt(report['bandwidth_3db_hz'], 1e12)} / "
+         f"{fmt(report['bandwidth_10db_hz'], 1e12)} THz", ""),
+        ("relative efficiency", f"{report['relative_efficiency']:.3g}",
+         "for d_eff = 1 pm/V and 1 mm^2: compares spectra, not an absolute yield"),
+    ]
+    if detector_crystal is not None:
+        rows.append(("detected cutoff", thz_shown(verdict, report, "detected_cutoff_hz"),
+                     f"EO detection in {detector_crystal}"))
+    print_rows(rows)
+    print_verdict(verdict)
+    if "figure" in report:
+        echo(f"\nFigure written: {report['figure']}")
+    print_warnings(unlisted_warnings(report["warnings"], verdict))
+    print_cautions(("estimates", "laser"))
+
+
+def unlisted_warnings(warnings, verdict) -> list[str]:
+    """``warnings`` without repeats and without those a verdict reason already states."""
+    said = [r.message for r in verdict.reasons]
+    return [w for w in dict.fromkeys(warnings) if not any(w in m for m in said)]
 
 
 def thz_cutoff_text(thz: dict, key: str = "cutoff_hz") -> str:
@@ -305,30 +352,68 @@ def thz_cutoff_text(thz: dict, key: str = "cutoff_hz") -> str:
     return f"above the model's range (> {fmt(limit, 1e12, 3)} THz)"
 
 
-def _shown(verdict, key: str, text: str, brief: bool = False) -> str:
-    """``text``, or "void (code: numbers)" when the verdict voids the summary key ``key``
-    (``brief``: "void (code)")."""
+#: The verdict code of a THz number left out because it lies beyond the crystal model.
+BEYOND_MODEL = "thz_beyond_crystal_model"
+
+
+def thz_shown(verdict, thz: dict, key: str) -> str:
+    """A THz number of a summary or report (unprefixed ``key``, e.g. ``cutoff_hz``) as printed:
+    the value; "void (code: message)" when a reason voids it; or, when it is null because it
+    lies beyond the crystal model and nothing else voids it, "above the model's range
+    (> 20 THz; thz_beyond_crystal_model)"."""
+    reason = verdict.void_reason(f"thz.{key}")
+    beyond = thz.get(key) is None and thz.get("model_limit_hz") is not None
+    if beyond and (reason is None or reason.code == BEYOND_MODEL):
+        return f"{thz_cutoff_text(thz, key)[:-1]}; {BEYOND_MODEL})"
+    return void_text(verdict, f"thz.{key}", thz_cutoff_text(thz, key))
+
+
+def void_text(verdict, key: str, text: str, row_code: str | None = None) -> str:
+    """``text``, or "void (code: message)" when the verdict voids the flat summary key ``key``
+    (the message up to its first ": "); "void (code)" when ``row_code`` names the same code,
+    i.e. the same line already gives that reason in full."""
     reason = verdict.void_reason(key)
     if reason is None:
         return text
-    return f"void ({reason.code})" if brief else f"void ({reason.code}: {reason.short})"
+    if reason.code == row_code:
+        return f"void ({reason.code})"
+    return f"void ({reason.code}: {reason.short})"
 
 
-def _unless_void(verdict, key: str, text: str) -> str:
-    """``text``, or nothing when the verdict voids ``key`` (its reason is shown elsewhere)."""
-    return "" if verdict.void_reason(key) is not None else text
+#: The verdict line's text after "Verdict: <status>".
+_VERDICT_HEAD = {"valid": "", "caution": " (read the reasons below)",
+                 "invalid": " (the numbers marked void are not results)"}
+
+
+def verdict_lines(verdict, indent: str = "") -> list[str]:
+    """"Verdict: <status> (...)" and one "! <status>  <code>: <message>" line per reason."""
+    from hcfplan.planning.verdict import CODES
+
+    lines = [f"{indent}Verdict: {verdict.status}{_VERDICT_HEAD[verdict.status]}"]
+    lines += [f"{indent}  ! {CODES[r.code].status:<7}  {r.code}: {r.message}"
+              for r in verdict.reasons]
+    return lines
+
+
+def print_void_legend(codes) -> None:
+    """Under a table: each verdict code of its "void (code)" cells once, with its meaning."""
+    from hcfplan.planning.verdict import CODES
+
+    codes = list(dict.fromkeys(codes))
+    if not codes:
+        return
+    echo("  void (code): the number is not a result; the codes:")
+    for code in codes:
+        echo(f"    {code} ({CODES[code].status}): {CODES[code].meaning}")
 
 
 def print_verdict(verdict) -> None:
     """The verdict line and one line per reason (see :mod:`hcfplan.planning.verdict`)."""
-    head = {"valid": "valid", "caution": "caution: read the reasons below",
-            "invalid": "INVALID: the numbers marked void are not results"}[verdict.status]
     echo()
-    echo(f"Verdict: {head}")
-    for reason in verdict.reasons:
-        echo(f"  ! {reason.code}: {reason.message}")
+    for line in verdict_lines(verdict):
+        echo(line)
     if verdict.void_fields:
-        echo("  (summary.json keeps the void numbers; verdict.void_fields lists them)")
+        echo("  (the JSON keeps the void numbers; verdict.void_fields lists them)")
 
 
 def _flat_limits(nested: dict) -> dict:
@@ -347,7 +432,8 @@ def _fmt_check_value(value, unit: str) -> str:
     return f"{value / scale[0]:.4g} {scale[1]}"
 
 
-def print_limits(report: dict) -> None:
+def print_limits(report: dict, warnings: bool = True) -> None:
+    """The limit checks with their margins; ``warnings``: also the limits' warnings."""
     from hcfplan.limits.margins import margin_text
 
     echo("Limits (estimates; margin = limit/value or value/limit, met when >= required):")
@@ -363,11 +449,15 @@ def print_limits(report: dict) -> None:
     print_rows(rows)
     echo()
     echo(f"  {report['limits.acceptable_note']}")
-    print_warnings(report.get("limits.warnings", []))
+    if warnings:
+        print_warnings(report.get("limits.warnings", []))
 
 
-def _print_envelope_check(check) -> None:
+def _print_envelope_check(check, result=None) -> None:
+    from hcfplan.planning.envelope import estimate_cutoff_text
     from hcfplan.planning.envelope_check import UNCHECKED_NOTE, point_phrases
+
+    limit = math.inf if result is None else result.thz_model_limit
 
     echo()
     if check is None:
@@ -380,13 +470,34 @@ def _print_envelope_check(check) -> None:
     for pt in check.points:
         echo(f"  {pt.energy * 1e6:.4g} uJ, {pt.pressure / 1e5:.4g} bar: compressed FWHM "
              f"{fmt(pt.estimate_duration, 1e-15, 3)} fs estimated, "
-             f"{fmt(pt.gnlse_duration, 1e-15, 3)} fs GNLSE (ratio {fmt(pt.ratio, 1, 2)}); "
-             f"THz cutoff {fmt(pt.estimate_cutoff, 1e12, 3)} THz estimated, "
-             f"{fmt(pt.gnlse_cutoff, 1e12, 3)} THz chain (ratio {fmt(pt.cutoff_ratio, 1, 2)})")
+             f"{_void_or(pt.void_code, fmt(pt.gnlse_duration, 1e-15, 3) + ' fs')} GNLSE "
+             f"(ratio {_void_or(pt.void_code, fmt(pt.ratio, 1, 2))}); "
+             f"THz cutoff {estimate_cutoff_text(pt.estimate_cutoff, limit)} estimated, "
+             f"{_void_or(pt.cutoff_void_code, estimate_cutoff_text(pt.gnlse_cutoff, limit))} chain "
+             f"(ratio {_void_or(pt.cutoff_void_code, fmt(pt.cutoff_ratio, 1, 2))})")
         for phrase in point_phrases(pt, check.factor):
             echo(f"    ! {phrase}")
         if pt.note:
             echo(f"    {pt.note}")
+
+
+def _void_or(code: str, text: str) -> str:
+    """``text``, or "void (code)" when a verdict code voids the number."""
+    return f"void ({code})" if code else text
+
+
+def _dispersion_regime(beta2, zdp: float) -> str:
+    """Where the pump sees anomalous and normal dispersion on the map's pressure axis."""
+    import numpy as np
+
+    beta2 = np.asarray(beta2, dtype=float)
+    if np.isfinite(zdp):
+        return "anomalous below, normal above"
+    if np.all(beta2 < 0):
+        return "anomalous dispersion at the pump over the whole map"
+    if np.all(beta2 > 0):
+        return "normal dispersion at the pump over the whole map"
+    return "no sign change of beta2 found on the map"
 
 
 def print_envelope(result, plot: Path | None, check=None) -> None:
@@ -403,7 +514,7 @@ def print_envelope(result, plot: Path | None, check=None) -> None:
         ("ionisation limit", f"{result.ionization_max_energy[k] * 1e6:.4g} uJ",
          f"fraction {result.ionization_fraction_limit:g}"),
         ("zero-dispersion pressure", "none on the map" if not np.isfinite(zdp)
-         else f"{zdp / 1e5:.4g} bar", "anomalous below, normal above"),
+         else f"{zdp / 1e5:.4g} bar", _dispersion_regime(result.beta2, zdp)),
         ("cell rating", "not given" if result.rated_pressure is None
          else f"{result.rated_pressure / 1e5:.4g} bar", ""),
         ("map", f"{len(result.energies)} energies x {len(p)} pressures",
@@ -412,7 +523,7 @@ def print_envelope(result, plot: Path | None, check=None) -> None:
     print_rows(rows)
     for note in result.notes:
         echo(f"  note: {note}")
-    _print_envelope_check(check)
+    _print_envelope_check(check, result)
     if plot is not None:
         echo(f"\nFigure written: {plot}")
     print_cautions()

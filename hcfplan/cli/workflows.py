@@ -33,6 +33,8 @@ from hcfplan.cli.output import (
     print_json,
     print_spread,
     print_table,
+    print_void_legend,
+    verdict_lines,
 )
 from hcfplan.errors import ConfigError
 
@@ -93,7 +95,23 @@ def scan_figures(out_dir: Path, plan, records) -> list[str]:
     return [path.name for path, _, _ in jobs]
 
 
-def _scan_rows(plan, records) -> tuple[list[str], list[list[str]]]:
+def void_code(verdict, key: str, value) -> str | None:
+    """The code that voids a table cell: the number, or a null the verdict lists as void (e.g.
+    a THz cutoff left out beyond the crystal model); None where the cell stands."""
+    reason = verdict.void_reason(key)
+    if reason is None or (value is None and key not in verdict.void_fields):
+        return None
+    return reason.code
+
+
+def _void_codes(rows) -> list[str]:
+    """The codes of the "void (code)" cells of table rows, in order of appearance."""
+    import re
+
+    return [m for row in rows for cell in row for m in re.findall(r"void \((\w+)\)", cell)]
+
+
+def scan_rows(plan, records) -> tuple[list[str], list[list[str]]]:
     keys = [v.key for v in plan.varies]
     required = records[0]["margins"].get("self_focusing_required") if records else None
     header = keys + ["status", "verdict", "FWHM (fs)", "peak (GW)", "THz cutoff",
@@ -108,7 +126,8 @@ def _scan_rows(plan, records) -> tuple[list[str], list[list[str]]]:
         verdict = verdict_of_record(r)
 
         def shown(key, value, scale, verdict=verdict):
-            return "void" if value is not None and verdict.void_reason(key) else fmt(value, scale)
+            code = void_code(verdict, key, value)
+            return f"void ({code})" if code else fmt(value, scale)
 
         rows.append([str(r["values"][k]) for k in keys] + [
             r["status"], " ".join([verdict.status, *verdict.codes]),
@@ -191,8 +210,9 @@ def _cautions() -> list[str]:
 
 
 def _print_scan(outcome, figures, failed) -> None:
-    header, rows = _scan_rows(outcome.plan, outcome.records)
+    header, rows = scan_rows(outcome.plan, outcome.records)
     print_table(header, rows)
+    print_void_legend(_void_codes(rows))
     damaged = f", {len(outcome.damaged)} damaged point files recomputed" if outcome.damaged \
         else ""
     typer.echo(f"\n{len(outcome.computed)} points computed ({outcome.executor}), "
@@ -337,8 +357,8 @@ def _print_recommendation(rec, chosen: bool) -> None:
         typer.echo(f"  compressed {shown('compressed', 'fwhm_s', 1e-15)} fs, "
                    f"{shown('compressed', 'peak_power_w', 1e9)} GW; THz cutoff "
                    f"{shown('thz', 'cutoff_hz', 1e12)} THz")
-        if verdict.reasons:
-            typer.echo(f"  verdict {verdict.status}: {verdict.reasons_text()}")
+        for line in verdict_lines(verdict, "  ")[1:] if verdict.reasons else ():
+            typer.echo(line)
         for i, c in enumerate(rec.binding):
             typer.echo(f"  {'binding:' if i == 0 else '        '} {c['text']}")
     elif rec.closest is not None:
@@ -407,7 +427,7 @@ def compare_command(
                                 "b": comparison.b.verdict.as_dict()},
                     "spread": spreads, "figures": figures, "cautions": _cautions()})
     else:
-        _print_comparison(comparison, figures, out)
+        print_comparison(comparison, figures, out)
         for name, side in zip(("A", "B"), (spreads or {}).values(), strict=False):
             typer.echo(f"\n{name}:", nl=False)
             print_spread({"spread": side})
@@ -445,16 +465,21 @@ def _compare_outputs(out: Path, comparison, force: bool, spreads=None) -> list[s
     return names
 
 
-def _print_comparison(comparison, figures, out) -> None:
+def print_comparison(comparison, figures, out) -> None:
     rows = []
+    verdicts = (comparison.a.verdict, comparison.b.verdict)
     for r in comparison.rows:
         scale, unit = r["scale"], r["unit"]
-        a = f"void ({r['a_void']})" if r.get("a_void") else fmt(r["a"], scale)
-        b = f"void ({r['b_void']})" if r.get("b_void") else fmt(r["b"], scale)
+        cells = []
+        for side, verdict in zip(("a", "b"), verdicts, strict=True):
+            code = r.get(f"{side}_void") or void_code(verdict, r["key"], r[side])
+            cells.append(f"void ({code})" if code else fmt(r[side], scale))
+        a, b = cells
         rows.append([r["label"] + (f" ({unit})" if unit else ""), a, b,
                      fmt(r["difference"], scale), fmt(r["ratio"], 1, 3)])
     typer.echo(f"A = {comparison.a.label}\nB = {comparison.b.label}\n")
     print_table(["quantity", "A", "B", "B - A", "B / A"], rows)
+    print_void_legend(_void_codes(rows))
     from hcfplan.limits.margins import margin_text
 
     for side in (comparison.a, comparison.b):
@@ -464,9 +489,8 @@ def _print_comparison(comparison, figures, out) -> None:
         typer.echo(f"\n{side.label}: {state}")
         typer.echo("  " + margin_text("self-focusing margin", m.get("self_focusing"),
                                       m.get("self_focusing_required", 1.0), "P_cr/P"))
-        typer.echo(f"  verdict: {side.verdict.status}")
-        for reason in side.verdict.reasons:
-            typer.echo(f"  ! {reason.code}: {reason.message}")
+        for line in verdict_lines(side.verdict, "  "):
+            typer.echo(line)
     if figures:
         typer.echo(f"\nFigures written to {out}/: {', '.join(figures)}")
 

@@ -13,7 +13,7 @@ from pathlib import Path
 from hcfplan.constants import c
 from hcfplan.errors import ConfigError
 from hcfplan.io.checks import describe, suggest
-from hcfplan.numerics.grid import LOWER_EDGE_FRACTION, UPPER_EDGE_MULTIPLE
+from hcfplan.numerics.grid import UPPER_EDGE_MULTIPLE
 
 #: Largest radial order m of an EH1m mode accepted in ``fiber.mode``.
 MAX_MODE_ORDER = 1000
@@ -98,11 +98,12 @@ def check_grid(resolved: dict) -> None:
     """An even point count, and a frequency window that fits where the grid may place it.
 
     The grid's frequency window has the full width ``2 pi N / T`` (``N`` points over the time
-    window ``T``); :func:`hcfplan.numerics.grid.choose_grid` places it between
-    ``LOWER_EDGE_FRACTION`` and ``UPPER_EDGE_MULTIPLE`` times the pump angular frequency
-    ``2 pi c / lambda`` (at the most), so ``T > N lambda / ((UPPER_EDGE_MULTIPLE -
-    LOWER_EDGE_FRACTION) c)``. Without ``points`` the grid shrinks to :data:`MIN_GRID_POINTS` at
-    the least; without ``time_window_fs`` the window is chosen to fit.
+    window ``T``); it lies above zero frequency and, placed by
+    :func:`hcfplan.numerics.grid.choose_grid`, below ``UPPER_EDGE_MULTIPLE`` times the pump
+    angular frequency ``2 pi c / lambda``, so it can be no wider than that:
+    ``T > N lambda / (UPPER_EDGE_MULTIPLE c)`` (``choose_grid`` checks the exact placement).
+    Without ``points`` the grid shrinks to :data:`MIN_GRID_POINTS` at the least; without
+    ``time_window_fs`` the window is chosen to fit.
     """
     grid = resolved["grid"]
     points, window_fs = grid["points"], grid["time_window_fs"]
@@ -113,15 +114,15 @@ def check_grid(resolved: dict) -> None:
         return
     wavelength_nm = resolved["laser"]["wavelength_nm"]
     count = MIN_GRID_POINTS if points is None else points
-    span = UPPER_EDGE_MULTIPLE - LOWER_EDGE_FRACTION
+    span = UPPER_EDGE_MULTIPLE
     shortest_fs = count * wavelength_nm * 1e-9 / (span * c) * 1e15
     if not window_fs > shortest_fs:
         given = (f"grid.time_window_fs = {describe(window_fs)}" if points is None else
                  f"grid.points = {points}, grid.time_window_fs = {describe(window_fs)}")
         raise ConfigError(f"{given}: the frequency window is wider than the grid may span at "
                           f"laser.wavelength_nm = {describe(wavelength_nm)} "
-                          f"({LOWER_EDGE_FRACTION:g} to {UPPER_EDGE_MULTIPLE:g} times the pump "
-                          f"frequency); {count} points "
+                          f"(0 to {UPPER_EDGE_MULTIPLE:g} times the pump frequency); {count} "
+                          "points "
                           f"need a time window > {shortest_fs:.4g} fs "
                           f"(points x wavelength / ({span:g} c))")
 

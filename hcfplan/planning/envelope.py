@@ -16,7 +16,11 @@ the soliton order, the SPM-only estimate of the compressed duration (input trans
 SPM broadening factor, Pinault-Potasek estimate, dispersion neglected) and the thin-crystal THz
 cutoff of that duration (:func:`thz_cutoff_gaussian_estimate`). Both contours are labelled
 ``ESTIMATE_KIND`` wherever they are shown: soliton self-compression, wave breaking, plasma and
-the crystal's phase matching can move the real values far from them.
+the crystal's phase matching can move the real values far from them. The THz cutoff is a
+cutoff only within the crystal model's range (``thz_model_limit``: the generation and detection
+crystal tables' stated THz validity, as :func:`hcfplan.thz.measures.model_limit`); above it an
+estimate is reported as "above the model's range (> X THz)" (:func:`estimate_cutoff_text`),
+null in the JSON, and not drawn as a contour.
 """
 
 from __future__ import annotations
@@ -37,6 +41,7 @@ from hcfplan.planning.reports.limits_gas import (
     gas_density_at,
     weighted_rates,
 )
+from hcfplan.planning.thz_range import beyond_model_text, estimate_cutoff_text, within_model
 from hcfplan.planning.validity import quiet_validity
 
 #: Default energy axis: this range around the configured energy, log-spaced.
@@ -52,6 +57,9 @@ RATING_OVERSHOOT = 1.2
 BETA2_REL_WIDTH = 1e-2
 #: Chebyshev nodes at which a mixture's density is evaluated along the pressure axis.
 MIXTURE_NODES = 16
+__all__ = ["ESTIMATE_KIND", "ESTIMATE_NOTE", "EnvelopeResult", "beyond_model_text",
+           "envelope_json", "envelope_map", "estimate_cutoff_text", "thz_cutoff_gaussian_estimate",
+           "thz_model_range", "within_model"]
 #: What the duration and THz contours are (JSON ``envelope.estimate_kind``).
 ESTIMATE_KIND = "spm_only"
 ESTIMATE_NOTE = ("SPM-only estimates: compressed duration = input FWHM / SPM broadening factor "
@@ -129,6 +137,30 @@ class EnvelopeResult:
     thz_cutoff_db: float
     thz_cutoff_quantity: str
     notes: tuple[str, ...]
+    #: upper end of the crystal model's THz range (generation ∩ detection crystal) [Hz]
+    thz_model_limit: float = math.inf
+    thz_model: str = ""  #: crystal(s) whose table sets ``thz_model_limit``, e.g. "GaP"
+
+    def thz_cutoff_within_model(self) -> np.ndarray:
+        """``thz_cutoff`` with nan wherever it lies above ``thz_model_limit`` (no cutoff of
+        the model there). [Hz]"""
+        return within_model(self.thz_cutoff, self.thz_model_limit)
+
+
+def thz_model_range(config) -> tuple[float, str]:
+    """(upper end of the THz model's range [Hz], crystal name(s) setting it) for the config's
+    generation and detection crystals, as the chain's THz estimate uses
+    (:func:`hcfplan.thz.measures.model_limit`)."""
+    from hcfplan.materials.crystals import load_crystal
+    from hcfplan.thz.measures import model_limit
+
+    crystal = load_crystal(config.thz.crystal)
+    name = config.thz.detector_crystal
+    detector = None if name is None else load_crystal(name)
+    limit = model_limit(crystal, detector)
+    owners = [t.name for t in (crystal, detector)
+              if t is not None and t.thz.frequency_max == limit]
+    return limit, "/".join(dict.fromkeys(owners))
 
 
 def _readonly(a) -> np.ndarray:
@@ -314,10 +346,14 @@ def _envelope_map(config, energies, pressures, points) -> EnvelopeResult:
     ion_energy = limits.energy_from_peak_intensity(i_lim, area, laser.duration_fwhm, laser.shape,
                                                    efficiency)
     order, duration, cutoff = _map_estimates(config, energies, efficiency, beta2, gamma, alpha)
+    thz_limit, thz_model = thz_model_range(config)
     notes = tuple(medium.warnings) + (
         "lines are analytic estimates (no propagation): self-focusing from Fibich & Gaeta's "
         "P_cr, ionisation from the PPT fraction of the input pulse",
         "duration and THz contours are " + ESTIMATE_NOTE)
+    if np.nanmax(cutoff) > thz_limit:
+        notes += (f"THz cutoff estimates {beyond_model_text(thz_limit, thz_model)} are no "
+                  "cutoffs of the model: not drawn as contours, null in the JSON",)
     return EnvelopeResult(
         energies=_readonly(energies), pressures=_readonly(pressures),
         self_focusing_max_energy=_readonly(sf_energy),
@@ -332,7 +368,7 @@ def _envelope_map(config, energies, pressures, points) -> EnvelopeResult:
         self_focusing_margin=lim.self_focusing_margin,
         ionization_fraction_limit=lim.ionization_fraction_limit,
         thz_cutoff_db=config.thz.cutoff_db, thz_cutoff_quantity=config.thz.cutoff_quantity,
-        notes=notes)
+        notes=notes, thz_model_limit=thz_limit, thz_model=thz_model)
 
 
 def _listed(a) -> list:
@@ -349,7 +385,8 @@ def _maybe(x):
 
 def envelope_json(result: EnvelopeResult, check=None) -> dict:
     """The map as a JSON-ready dict (SI, unit in the key names; 2-D arrays as [energy][pressure],
-    non-finite values as null), with the ``check.*`` keys of ``check`` (an
+    non-finite values as null; THz cutoffs above the crystal model's range as null), with the
+    ``check.*`` keys of ``check`` (an
     :class:`~hcfplan.planning.envelope_check.EnvelopeCheck`; None: ``check.status =
     "unchecked"``)."""
     from hcfplan.planning.envelope_check import check_json
@@ -368,7 +405,13 @@ def envelope_json(result: EnvelopeResult, check=None) -> dict:
         "envelope.estimate_kind": ESTIMATE_KIND,
         "envelope.estimate_note": ESTIMATE_NOTE,
         "envelope.compressed_duration_s": _nested(result.compressed_duration),
-        "envelope.thz_cutoff_hz": _nested(result.thz_cutoff),
+        "envelope.thz_cutoff_hz": _nested(result.thz_cutoff_within_model()),
+        "envelope.thz_model_limit_hz": _maybe(result.thz_model_limit),
+        "envelope.thz_model": result.thz_model or None,
+        "envelope.thz_cutoff_note": (
+            "null where the estimate lies "
+            f"{beyond_model_text(result.thz_model_limit, result.thz_model)}: no cutoff of "
+            "the crystal model there"),
         "envelope.config_energy_j": result.config_energy,
         "envelope.config_pressure_pa": result.config_pressure,
         "envelope.self_focusing_required_margin": result.self_focusing_margin,

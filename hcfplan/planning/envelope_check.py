@@ -16,8 +16,10 @@ Each point runs on the grid the chain chooses and refines for it (as ``hcfplan r
 no ``[grid]`` keys), so a point costs what a run there costs: under a second to a few seconds
 for most points of the demo maps, up to minutes where the spectrum reaches far (the refinement
 stops at the convergence module's largest grid). A point whose ratio (chain / estimate) lies
-outside [1/:data:`CHECK_FACTOR`, :data:`CHECK_FACTOR`] is flagged. A point whose run failed,
-gave no compressed pulse or did not pass the convergence checks is void, with the reason.
+outside [1/:data:`CHECK_FACTOR`, :data:`CHECK_FACTOR`] is flagged. A point whose run failed or
+gave no compressed pulse (``run_failed``), whose solver stopped early (``not_converged``) or
+that did not pass the convergence checks (``window_edge_energy``, ``unresolved_pulse``) is void,
+with the code and wording of :mod:`hcfplan.planning.verdict`.
 """
 
 from __future__ import annotations
@@ -55,6 +57,10 @@ class CheckPoint:
     estimate_cutoff: float  #: THz cutoff estimate of the map [Hz]
     gnlse_cutoff: float  #: THz cutoff of the chain [Hz] (nan if void or no THz result)
     note: str  #: why the point is void, or the first warning of the run; "" if none
+    #: verdict code (:mod:`hcfplan.planning.verdict`) that voids the chain's FWHM; "" if none
+    void_code: str = ""
+    #: verdict code that voids the chain's THz cutoff; "" if none (or no THz result)
+    cutoff_void_code: str = ""
 
     @property
     def ratio(self) -> float:
@@ -156,35 +162,46 @@ def _point_config(config, energy: float, pressure: float):
 
 def _check_point(config, result, i: int, j: int) -> CheckPoint:
     from hcfplan.planning.chain import run_chain
+    from hcfplan.planning.thz_range import beyond_model_text
+    from hcfplan.planning.verdict import Reason, convergence_reasons, solver_reason
 
     energy, pressure = float(result.energies[i]), float(result.pressures[j])
     duration = cutoff = math.nan
+    code = cutoff_code = ""
     try:
         chain = run_chain(_point_config(config, energy, pressure))
     except HcfplanError as exc:
-        note = f"void: the chain stopped: {exc}"
+        reasons = [Reason("run_failed", f"the chain stopped: {exc}")]
     else:
         prop = chain.propagation
-        if not prop.success:
-            note = f"void: the GNLSE run failed: {prop.message}"
+        found = solver_reason(prop.success, prop.status, prop.message)
+        if found is not None:
+            reasons = [found]
         elif chain.compression is None:
-            note = "void: no compressed pulse"
+            reasons = [Reason("run_failed", "no compressed pulse")]
         elif chain.convergence is not None and not chain.convergence.converged:
-            note = "void: not converged: " + "; ".join(c.reason for c in chain.convergence.failed)
+            reasons = convergence_reasons([c.as_dict() for c in chain.convergence.checks])
         else:
-            duration = float(chain.compression.metrics.fwhm)
-            notes = list(prop.warnings[:1])
-            if chain.thz is not None and chain.thz.cutoff is not None:
-                cutoff = float(chain.thz.cutoff)
-            elif chain.thz is not None:
-                notes.append("THz cutoff void: beyond the crystal model's range "
-                             f"({chain.thz.model_limit * 1e-12:.3g} THz)")
-            note = "; ".join(notes)
+            reasons = []
+    if reasons:
+        code = cutoff_code = reasons[0].code
+        note = "; ".join(f"void ({r.code}: {r.message})" for r in reasons)
+    else:
+        duration = float(chain.compression.metrics.fwhm)
+        notes = list(prop.warnings[:1])
+        if chain.thz is not None and chain.thz.cutoff is not None:
+            cutoff = float(chain.thz.cutoff)
+        elif chain.thz is not None:
+            cutoff_code = "thz_beyond_crystal_model"
+            notes.append("THz cutoff void (thz_beyond_crystal_model: "
+                         + beyond_model_text(chain.thz.model_limit) + ")")
+        note = "; ".join(notes)
     return CheckPoint(energy=energy, pressure=pressure, index=(i, j),
                       estimate_duration=float(result.compressed_duration[i, j]),
                       gnlse_duration=duration,
                       estimate_cutoff=float(result.thz_cutoff[i, j]),
-                      gnlse_cutoff=cutoff, note=note)
+                      gnlse_cutoff=cutoff, note=note, void_code=code,
+                      cutoff_void_code=cutoff_code)
 
 
 def point_phrases(point: CheckPoint, factor: float = CHECK_FACTOR) -> list[str]:
@@ -211,6 +228,7 @@ def check_json(check: EnvelopeCheck | None) -> dict:
         "gnlse_cutoff_thz": _finite(p.gnlse_cutoff, 1e-12),
         "cutoff_ratio": _finite(p.cutoff_ratio),
         "flags": point_phrases(p, check.factor), "note": p.note or None,
+        "void_code": p.void_code or None, "cutoff_void_code": p.cutoff_void_code or None,
     } for p in check.points]
     return {
         "check.status": "checked",

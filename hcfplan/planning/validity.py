@@ -139,8 +139,14 @@ def _note(what: str, lo: float, hi: float, band: tuple[float, float], where: str
     b_lo, b_hi = band
     if b_lo >= lo and b_hi <= hi:
         return None
-    return (f"{what} is valid for {lo * 1e9:.0f}-{hi * 1e9:.0f} nm; {where} "
-            f"({b_lo * 1e9:.0f}-{b_hi * 1e9:.0f} nm) is extrapolated")
+    return (f"{what} is valid for {_span_nm(lo, hi)}; {where} "
+            f"({_span_nm(b_lo, b_hi)}) is extrapolated")
+
+
+def _span_nm(lo: float, hi: float) -> str:
+    """"800-1100 nm", or "1030 nm" when both ends round to the same nanometre."""
+    a, b = f"{lo * 1e9:.0f}", f"{hi * 1e9:.0f}"
+    return f"{a} nm" if a == b else f"{a}-{b} nm"
 
 
 def range_notes(config, medium, band: tuple[float, float], where: str) -> list[str]:

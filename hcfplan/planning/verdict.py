@@ -3,7 +3,8 @@
 A planner is only as good as the numbers it prints. Every chain result gets a verdict:
 ``status`` is ``"valid"``, ``"caution"`` or ``"invalid"``; ``reasons`` lists what was found,
 each a ``{code, message}`` pair whose message is one line with the numbers; ``void_fields`` lists
-the summary keys (flat, e.g. ``compressed.fwhm_s``) whose numbers must not be read as results.
+the result keys (flat, e.g. ``compressed.fwhm_s``; never an input or setting) whose numbers must
+not be read as results.
 The JSON keeps those numbers; the terminal prints "void (code: message)" in their place, scan
 figures draw them hollow and grey, and ``compare`` and ``--spread`` leave them out of
 differences and ranges.
@@ -18,7 +19,7 @@ code                           status    voids
 ``not_converged``              invalid   every result (the solver stopped before the fiber
                                          end, or a convergence check without a code of its
                                          own failed)
-``no_transmission``            invalid   ``compressed.*``, ``thz.*`` (fiber transmission
+``no_transmission``            invalid   the compressed and THz results (fiber transmission
                                          below :data:`TRANSMISSION_FLOOR`)
 ``pump_in_resonance``          invalid   every result (anti-resonant fiber: the pump lies in
                                          a wall-resonance band, where the model fails)
@@ -42,9 +43,12 @@ code                           status    voids
                                          where the output spectrum carries light)
 =============================  ========  ==================================================
 
-"Every result" is :data:`RESULT_FIELDS`: the output spectrum's width, transform limit and peak
-power, and every ``compressed.*`` and ``thz.*`` number. The margins, the limits and the input
-numbers are never voided: they say why a result is void.
+"Every result" is :data:`RESULT_FIELDS`, an explicit list of result keys: the output
+spectrum's width, transform limit and peak power, the compressed pulse and the mirror set chosen
+for it, and the THz peak, cutoffs, widths, efficiency and energy. Inputs and settings are never
+void, even where they sit in a result section (:data:`NOT_RESULT_FIELDS`: e.g. the crystal
+thickness, the crystal model's limit, the THz frequency step); nor are the margins and limits:
+they say why a result is void.
 
 Why these statuses: a code is *invalid* when the printed numbers are not what the models would
 give for the setup — the model fails at the pump (resonance, self-focusing collapse, tunnelling
@@ -59,14 +63,15 @@ Entry points: :func:`verdict_fields` (from a ChainResult and its flat summary; c
 ``verdict.void_fields`` and ``verdict.measured``, the numbers the summary does not hold
 otherwise), :func:`verdict_of_chain` (the same as a :class:`Verdict`), :func:`verdict_of_summary`
 (recomputed from a stored summary, flat or nested), :func:`stored_verdict` (the verdict a summary
-was written with) and :func:`verdict_of_record` (a scan point, compare side, ``--spread`` corner
-or recommend candidate; ``run_failed`` for a point without a summary). All run the same checks
-on the same numbers, so a stored summary gives the verdict it was written with.
+was written with), :func:`verdict_of_record` (a scan point, compare side, ``--spread`` corner
+or recommend candidate; ``run_failed`` for a point without a summary) and
+:func:`verdict_of_thz_report` (the ``thz`` command's estimate from a measured spectrum). All
+run the same checks on the same numbers, so a stored summary gives the verdict it was written
+with.
 """
 
 from __future__ import annotations
 
-import fnmatch
 import math
 from dataclasses import dataclass
 from typing import Any
@@ -83,11 +88,43 @@ TRANSMISSION_FLOOR = 1e-3
 #: level ``recommend`` requires for ``shortest`` (common practice, no source).
 MAIN_LOBE_FLOOR = 0.5
 
-#: The numbers a run produces (fnmatch patterns over flat summary keys).
-RESULT_FIELDS = ("output.bandwidth_hz", "output.transform_limit_fwhm_s", "output.peak_power_w",
-                 "compressed.*", "thz.*")
+#: The numbers the fiber stage produces that a reason can void (flat summary keys).
+OUTPUT_RESULT_FIELDS = ("output.bandwidth_hz", "output.transform_limit_fwhm_s",
+                        "output.peak_power_w")
+#: The numbers of the compressor stage (flat summary keys): the pulse it gives and the mirror
+#: set its search chose for that pulse.
+COMPRESSED_RESULT_FIELDS = (
+    "compressed.fwhm_s", "compressed.peak_power_w", "compressed.energy_j", "compressed.bounces",
+    "compressed.gdd_s2", "compressed.tod_s3", "compressed.trim_insertion_m",
+    "compressed.band_loss_fraction", "compressed.main_lobe_energy_fraction",
+    "compressed.transform_limit_fwhm_s", "compressed.peak_to_transform_limit",
+    "compressed.peak_power_gain", "compressed.pre_pulse_energy_j",
+    "compressed.post_pulse_energy_j", "compressed.best_quadratic_fwhm_s",
+    "compressed.best_quadratic_gdd_s2", "compressed.best_quadratic_cubic_fwhm_s",
+    "compressed.best_quadratic_cubic_peak_power_w", "compressed.transform_limit_peak_power_w")
+#: The numbers of the THz stage (flat summary keys).
+THZ_RESULT_FIELDS = ("thz.peak_hz", "thz.cutoff_hz", "thz.bandwidth_3db_hz",
+                     "thz.bandwidth_10db_hz", "thz.relative_efficiency",
+                     "thz.detected_peak_hz", "thz.detected_cutoff_hz",
+                     "thz.energy_estimate_j")
+#: Every number a run produces: the only keys a reason can void.
+RESULT_FIELDS = OUTPUT_RESULT_FIELDS + COMPRESSED_RESULT_FIELDS + THZ_RESULT_FIELDS
+#: Keys of the ``output``, ``compressed`` and ``thz`` sections that are inputs, settings or
+#: texts, never results, so never void: the crystal and its thickness (config), the crystal
+#: model's upper limit (crystal table), the THz frequency step (sampling setting), the
+#: definitions and cautions (texts), the energy left at the fiber end and the peaks inside the
+#: fiber (the margins and limits read them; they say why a result is void).
+NOT_RESULT_FIELDS = ("output.energy_j", "output.bandwidth_definition",
+                     "output.max_ionization_fraction", "output.max_peak_intensity_w_per_m2",
+                     "output.max_peak_power_w", "thz.crystal", "thz.thickness_m",
+                     "thz.cutoff_definition", "thz.model_limit_hz", "thz.frequency_step_hz",
+                     "thz.energy_estimate_caution")
 #: Durations and peak powers of the compressed pulse and its references.
-DURATION_FIELDS = ("compressed.*fwhm_s", "compressed.*peak_power_w",
+DURATION_FIELDS = ("compressed.fwhm_s", "compressed.peak_power_w",
+                   "compressed.transform_limit_fwhm_s", "compressed.best_quadratic_fwhm_s",
+                   "compressed.best_quadratic_cubic_fwhm_s",
+                   "compressed.best_quadratic_cubic_peak_power_w",
+                   "compressed.transform_limit_peak_power_w",
                    "compressed.peak_to_transform_limit", "compressed.peak_power_gain",
                    "compressed.main_lobe_energy_fraction", "output.transform_limit_fwhm_s")
 THZ_CUTOFF_FIELDS = ("thz.cutoff_hz", "thz.detected_cutoff_hz")
@@ -98,7 +135,7 @@ class Code:
     """What a reason code means, the status it gives and the summary keys it voids."""
 
     status: str  #: "invalid" or "caution"
-    voids: tuple[str, ...]  #: fnmatch patterns over flat summary keys
+    voids: tuple[str, ...]  #: flat summary keys, all of them in :data:`RESULT_FIELDS`
     meaning: str
 
 
@@ -107,7 +144,7 @@ CODES: dict[str, Code] = {
     "not_converged": Code("invalid", RESULT_FIELDS,
                           "the solver did not reach the fiber end, or a convergence check "
                           "failed"),
-    "no_transmission": Code("invalid", ("compressed.*", "thz.*"),
+    "no_transmission": Code("invalid", COMPRESSED_RESULT_FIELDS + THZ_RESULT_FIELDS,
                             f"fiber transmission below {TRANSMISSION_FLOOR:g}"),
     "pump_in_resonance": Code("invalid", RESULT_FIELDS,
                               "anti-resonant fiber: the pump lies in a wall-resonance band"),
@@ -169,7 +206,7 @@ class Verdict:
     def void_reason(self, key: str) -> Reason | None:
         """The first reason that voids the flat summary key ``key``, or None."""
         for reason in self.reasons:
-            if any(fnmatch.fnmatchcase(key, p) for p in CODES[reason.code].voids):
+            if key in CODES[reason.code].voids:
                 return reason
         return None
 
@@ -218,13 +255,20 @@ def _first(flat: dict, *keys: str) -> float | None:
 # the checks: each takes the flat summary and the measured extras, returns reasons
 
 
+def solver_reason(success, status=None, message=None) -> Reason | None:
+    """``not_converged`` when the solver stopped before the fiber end (``success`` False), with
+    its status and message; None otherwise."""
+    if success is not False:
+        return None
+    message = " ".join(str(message or "").split())
+    return Reason("not_converged", f"solver stopped ({status or 'fault'})"
+                  + (f": {message}" if message else ""))
+
+
 def _check_run(flat: dict, measured: dict) -> list[Reason]:
-    if flat.get("solver.success") is not False:
-        return []
-    status = flat.get("solver.status") or "fault"
-    message = " ".join(str(flat.get("solver.message") or "").split())
-    return [Reason("not_converged", f"solver stopped ({status})"
-                   + (f": {message}" if message else ""))]
+    found = solver_reason(flat.get("solver.success"), flat.get("solver.status"),
+                          flat.get("solver.message"))
+    return [] if found is None else [found]
 
 
 #: What a failed convergence check of each code means for the numbers.
@@ -232,12 +276,10 @@ _CONSEQUENCE = {"window_edge_energy": "the grid does not hold the light",
                 "unresolved_pulse": "durations and peak powers are not resolved"}
 
 
-def _check_convergence(flat: dict, measured: dict) -> list[Reason]:
-    """The failed checks of ``grid.checks`` (:mod:`hcfplan.planning.convergence`), one reason
-    per code; a summary without them gets the sampling check from its own numbers."""
-    checks = flat.get("grid.checks")
-    if not isinstance(checks, list):
-        return _check_resolution(flat, measured)
+def convergence_reasons(checks) -> list[Reason]:
+    """One reason per code of the failed convergence checks (``Check.as_dict()`` of
+    :mod:`hcfplan.planning.convergence`, as stored in ``grid.checks``): ``window_edge_energy``,
+    ``unresolved_pulse``, or ``not_converged`` for a check without a code of its own."""
     found: dict[str, list[str]] = {}
     for check in checks:
         if not isinstance(check, dict) or check.get("passed") is not False:
@@ -251,6 +293,15 @@ def _check_convergence(flat: dict, measured: dict) -> list[Reason]:
     return [Reason(code, "; ".join(texts) + (f": {_CONSEQUENCE[code]}" if code in _CONSEQUENCE
                                               else ""))
             for code, texts in found.items()]
+
+
+def _check_convergence(flat: dict, measured: dict) -> list[Reason]:
+    """The failed checks of ``grid.checks`` (:func:`convergence_reasons`); a summary without
+    them gets the sampling check from its own numbers."""
+    checks = flat.get("grid.checks")
+    if not isinstance(checks, list):
+        return _check_resolution(flat, measured)
+    return convergence_reasons(checks)
 
 
 def _check_transmission(flat: dict, measured: dict) -> list[Reason]:
@@ -406,10 +457,10 @@ def verdict_from_reasons(reasons, summary: dict | None = None) -> Verdict:
     levels = [STATUSES.index(CODES[r.code].status) for r in reasons]
     status = STATUSES[max(levels, default=0)]
     flat = flat_summary(summary) if summary else {}
-    patterns = [p for r in reasons for p in CODES[r.code].voids]
+    voided = {k for r in reasons for k in CODES[r.code].voids}
     void = tuple(k for k, v in flat.items()
                  if (v is None or (isinstance(v, (int, float)) and not isinstance(v, bool)))
-                 and any(fnmatch.fnmatchcase(k, p) for p in patterns))
+                 and k in voided)
     return Verdict(status, reasons, void)
 
 
@@ -446,6 +497,27 @@ def verdict_of_record(record: dict) -> Verdict:
         message = " ".join(str(record.get("message") or "the run produced no summary").split())
         return verdict_from_reasons([Reason("run_failed", message)])
     return stored_verdict(summary)
+
+
+def verdict_of_thz_report(report: dict, detector: bool | None = None) -> Verdict:
+    """The verdict of a THz estimate from a measured spectrum (the ``thz`` command's report:
+    unprefixed keys ``crystal``, ``peak_hz``, ``cutoff_hz``, ``model_limit_hz``, ...).
+
+    Only the THz check applies (there is no fiber run): ``thz_beyond_crystal_model`` when the
+    cutoff is left out or lies beyond the crystal model. ``void_fields`` names the report's own
+    keys (e.g. ``cutoff_hz``). ``detector``: whether an EO detector was given (default: a
+    detected number is present); without one the ``detected_*`` keys are no results at all.
+    """
+    if detector is None:
+        detector = any(report.get(k) is not None
+                       for k in ("detected_peak_hz", "detected_cutoff_hz"))
+    flat = {f"thz.{k}": v for k, v in report.items()
+            if not isinstance(v, (dict, list)) and k != "verdict"
+            and (detector or not k.startswith("detected_"))}
+    measured = {"thz_model_limit_hz": report.get("model_limit_hz")}
+    verdict = verdict_from_reasons(_check_thz(flat, measured), flat)
+    return Verdict(verdict.status, verdict.reasons,
+                   tuple(k.removeprefix("thz.") for k in verdict.void_fields))
 
 
 # ---------------------------------------------------------------------------------------------

@@ -2,6 +2,8 @@
 
 Draws into the given ``ax`` and returns it; converts SI to display units (bar, uJ, fs, THz)
 here only, recomputes nothing. The duration and THz contours are labelled SPM-only estimates;
+THz cutoff contours are drawn only below the crystal model's limit (``thz_model_limit``), the
+region beyond it is hatched and labelled;
 the points of a GNLSE check (:class:`hcfplan.planning.envelope_check.EnvelopeCheck`) are marked
 and annotated with their ratio, or the title says the estimates are unchecked.
 """
@@ -120,13 +122,35 @@ def _contours(ax, p, e, result, which: str) -> None:
                     label="compressed FWHM, SPM-only estimate (fs)")
     if which in ("cutoff", "both"):
         values = np.asarray(result.thz_cutoff) * THZ
-        levels = _levels(values, CUTOFF_LEVELS_THZ)
+        limit = result.thz_model_limit * THZ
+        levels = [v for v in _levels(values, CUTOFF_LEVELS_THZ) if v < limit]
         if levels:
             cs = ax.contour(p, e, values, levels=levels, colors="C2", linewidths=0.8,
                             linestyles=":")
             ax.clabel(cs, fmt="%g THz (SPM-only)", fontsize="x-small")
             ax.plot([], [], color="C2", lw=0.8, ls=":",
                     label="THz cutoff, SPM-only thin-crystal estimate (THz)")
+        _beyond_model(ax, p, e, values, limit, result.thz_model)
+
+
+def _beyond_model(ax, p, e, values, limit: float, model: str) -> None:
+    """Hatch the map where the THz cutoff estimate lies above the crystal model's range: no
+    cutoff contour is drawn there (the model says nothing about those frequencies)."""
+    finite = values[np.isfinite(values)]
+    if not np.isfinite(limit) or finite.size == 0 or finite.max() <= limit:
+        return
+    top = max(float(finite.max()), limit) * 2.0
+    filled = ax.contourf(p, e, np.where(np.isfinite(values), values, -1.0),
+                         levels=[limit, top], colors="none", hatches=["x"])
+    filled.set_edgecolor("0.45")  # the hatch colour
+    filled.set_linewidth(0)
+    owner = f"the {model} model" if model else "the crystal model"
+    if finite.min() < limit:
+        cs = ax.contour(p, e, values, levels=[limit], colors="C2", linewidths=1.0)
+        ax.clabel(cs, fmt=f"%g THz: {model or 'crystal'} model limit", fontsize="x-small")
+    ax.fill_between([], [], [], facecolor="none", edgecolor="0.45", hatch="x", lw=0,
+                    label=f"THz cutoff estimate beyond {owner} (> {limit:.3g} THz): "
+                          "no cutoff drawn")
 
 
 def _check_title(check) -> str:

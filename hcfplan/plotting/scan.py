@@ -6,8 +6,10 @@ cutoff, self-focusing margin, ionisation margin), with the points beyond a model
 shaded. 2D scans: maps of the same results, points beyond a limit crossed out.
 A result that a point's verdict voids (:mod:`hcfplan.planning.verdict`: every result of an
 invalid point, and e.g. the THz cutoff beyond the crystal model) is not drawn as a result: it
-appears as a hollow grey marker off the line (1D) or as a blank cell with a grey circle (2D),
-and the title says how many points were left out and why. Margins are always drawn.
+appears as a hollow grey marker off the line (1D: at its value, or at the foot of the panel
+when there is no number, e.g. a cutoff left out) or as a blank cell with a grey circle (2D),
+and the title says in words how many points are void and why (each code with its meaning).
+Margins are always drawn.
 Nothing here recomputes physics.
 """
 
@@ -46,40 +48,48 @@ def _axis(values: tuple):
 
 def _void(record: dict, path: tuple[str, ...]) -> bool:
     """Whether the point's verdict voids the summary value at ``path`` (margins never)."""
-    from hcfplan.planning.verdict import verdict_of_record
+    return _void_code(record, path) is not None
+
+
+def _void_code(record: dict, path: tuple[str, ...], verdict=None) -> str | None:
+    """The verdict code that voids the summary value at ``path``: its own reason, or for an
+    invalid point whose reasons do not name this value, the first invalid code (every result
+    of an invalid point is void); None where it stands (margins always)."""
+    from hcfplan.planning.verdict import CODES, verdict_of_record
 
     if path[0] != "summary":
-        return False
-    verdict = verdict_of_record(record)
-    return verdict.invalid or verdict.void_reason(".".join(path[1:])) is not None
+        return None
+    verdict = verdict if verdict is not None else verdict_of_record(record)
+    reason = verdict.void_reason(".".join(path[1:]))
+    if reason is not None:
+        return reason.code
+    if verdict.invalid:
+        return next(r.code for r in verdict.reasons if CODES[r.code].status == "invalid")
+    return None
 
 
 def void_note(records) -> str:
-    """How many points are left out as results and why, e.g. "hollow grey: void, 2 of 9
-    points invalid (no_transmission 2); THz cutoff void at 3 (thz_beyond_crystal_model)"."""
-    from hcfplan.planning.verdict import verdict_of_record
+    """How many points have void results and why, in plain words, e.g. "hollow grey: void;
+    2 of 5 points void: 2 thz_beyond_crystal_model (THz cutoff or band beyond the crystal
+    model's validity)". Each code is counted once per point; "" when nothing is void."""
+    from hcfplan.planning.verdict import CODES, verdict_of_record
 
-    verdicts = [verdict_of_record(r) for r in records]
-    invalid = [v for v in verdicts if v.invalid]
-    parts = []
-    if invalid:
-        codes: dict[str, int] = {}
-        for v in invalid:
-            for code in dict.fromkeys(c for c in v.codes):
-                codes[code] = codes.get(code, 0) + 1
-        parts.append(f"{len(invalid)} of {len(records)} points invalid ("
-                     + ", ".join(f"{c} {n}" for c, n in codes.items()) + ")")
-    for label, path, _, _ in QUANTITIES:
-        if path[0] != "summary":
-            continue
-        key = ".".join(path[1:])
-        reasons = [v.void_reason(key) for v in verdicts if not v.invalid]
-        found = [r.code for r in reasons if r is not None]
-        if found:
-            name = label.rsplit(" (", 1)[0]
-            parts.append(f"{name} void at {len(found)} ("
-                         + ", ".join(dict.fromkeys(found)) + ")")
-    return ("hollow grey: void, " + "; ".join(parts)) if parts else ""
+    counts: dict[str, int] = {}
+    void_points = 0
+    for record in records:
+        verdict = verdict_of_record(record)
+        codes = dict.fromkeys(code for _, path, _, _ in QUANTITIES
+                              if (code := _void_code(record, path, verdict)) is not None)
+        void_points += bool(codes)
+        for code in codes:
+            counts[code] = counts.get(code, 0) + 1
+    if not counts:
+        return ""
+    whys = [f"{n} {code} ({CODES[code].meaning})" if len(counts) > 1 or n != void_points
+            else f"{code} ({CODES[code].meaning})" for code, n in counts.items()]
+    point_word = "point" if len(records) == 1 else "points"
+    return (f"hollow grey: void; {void_points} of {len(records)} {point_word} void:\n"
+            + ";\n".join(whys))
 
 
 def _outside(record: dict) -> str:
@@ -143,7 +153,14 @@ def draw_results_1d(fig, key: str, values: tuple, records):
         void = np.array([_void(r, path) for r in records], dtype=bool)
         ax.plot(x[~void], y[~void], "o-", color="C0")
         if np.any(void):
-            ax.plot(x[void], y[void], "o", mfc="none", color="0.6")
+            # a void number is drawn where it lies, a void point without a number (a cutoff
+            # left out, a failed run) at the foot of the panel: never left out silently
+            at = void & np.isfinite(y)
+            ax.plot(x[at], y[at], "o", mfc="none", color="0.6", label="void")
+            if np.any(void & ~at):
+                ax.plot(x[void & ~at], np.full(int(np.sum(void & ~at)), 0.04), "o",
+                        mfc="none", color="0.6", transform=ax.get_xaxis_transform(),
+                        clip_on=False)
         if log and np.any(y > 0):
             ax.set_yscale("log")
         ax.set_ylabel(label, fontsize="small")

@@ -253,20 +253,48 @@ class Recorder:
     def _resonance_warning(self) -> str:
         r = self.resonance
         pump = 2 * np.pi * c / self.grid.omega_pump
-        orders = np.arange(1, self._resonances.size + 1)
-        k = int(np.argmin(np.abs(self._resonances - r.where))) if np.isfinite(r.where) else 0
-        lam = float(self._resonances[k])
+        lam, order = self._resonance_named(r.where)
+        if lam is None:
+            # the band's own wavelength is not known (non-finite: outside the material tables)
+            side = pump if not np.isfinite(r.where) else float(r.where)
+            band = (f"a wall-resonance band{order} (its resonance wavelength lies outside the "
+                    "material tables' range)")
+        else:
+            side = lam
+            band = (f"the wall-resonance band of order m = {order} around {lam * 1e9:.0f} nm "
+                    f"(+-{RESONANCE_BAND_WIDTH / 2:.1%})")
         direction = ("a thinner wall moves it to shorter wavelengths, away from the spectrum"
-                     if lam < pump else
+                     if side < pump else
                      "a thicker wall moves it to longer wavelengths, away from the spectrum")
         return (
-            f"{r.largest:.2e} of the energy lies in the wall-resonance band of order m = "
-            f"{orders[k]} around {lam * 1e9:.0f} nm (+-{RESONANCE_BAND_WIDTH / 2:.1%}), first "
+            f"{r.largest:.2e} of the energy lies in {band}, first "
             f"above {RESONANCE_ENERGY_LIMIT:g} at z = {r.first_z:.4g} m: the fiber model is "
             "not valid there (high loss and strong dispersion near the resonance); remedy: "
             f"change the wall thickness ({direction}) or lower the broadening (energy, "
             "pressure or fiber length)"
         )
+
+    def _resonance_named(self, where: float) -> tuple[float | None, str | int]:
+        """(wavelength [m], order) of the resonance band nearest ``where`` [m]; ``(None,
+        text)`` when that band's wavelength is not finite (never a nan in a message)."""
+        res = self._resonances
+        finite = np.flatnonzero(np.isfinite(res))
+        unknown = np.flatnonzero(~np.isfinite(res))
+        if finite.size == 0:
+            return None, ""
+        if not np.isfinite(where):
+            k = int(finite[0])
+            return float(res[k]), k + 1
+        k = int(finite[np.argmin(np.abs(res[finite] - where))])
+        near = abs(where - res[k]) <= RESONANCE_BAND_WIDTH * res[k]
+        if near or unknown.size == 0:
+            return float(res[k]), k + 1
+        # energy away from every known band: it sits in an order whose wavelength is unknown
+        beyond = [int(m) + 1 for m in unknown if (res[k] > where) == (int(m) > k)]
+        if not beyond:
+            return float(res[k]), k + 1
+        return None, f" of order m >= {min(beyond)}" if res[k] > where else \
+            f" of order m <= {max(beyond)}"
 
     def edge_fractions(self) -> dict:
         """Largest energy fractions seen in the time- and frequency-window edge zones.

@@ -215,7 +215,7 @@ def pump_crystal_warnings(
     gap, gap_ind = crystal.band_gap_direct, crystal.band_gap_indirect
     intensity = None if beam_radius is None else 2 * peak_power / (np.pi * beam_radius**2)
     if gap is not None and two_photon > gap:
-        text = (f"{crystal.name}: 2 photon energies {two_photon / eV:.2f} eV exceed "
+        text = (f"{crystal.name}: the two-photon energy {two_photon / eV:.2f} eV exceeds "
                 f"the direct gap {gap / eV:.2f} eV: two-photon absorption and free "
                 "carriers absorb pump and THz")
         beta = crystal.two_photon_coefficient
@@ -223,10 +223,12 @@ def pump_crystal_warnings(
             text += f" (beta I L = {beta * intensity * thickness:.2g}, beta from the table)"
         out.append(text)
     elif gap_ind is not None and two_photon > gap_ind:
-        out.append(f"{crystal.name}: 2 photon energies exceed the indirect gap only: weak "
+        out.append(f"{crystal.name}: the two-photon energy {two_photon / eV:.2f} eV exceeds "
+                   f"the indirect gap {gap_ind / eV:.2f} eV only (not the direct gap): weak "
                    "phonon-assisted two-photon absorption")
     if beam_radius is None:
-        out.append("beam radius not given: fluence, intensity and damage checks skipped")
+        out.append("thz.beam_waist_um not given: fluence, intensity and damage checks of the "
+                   "crystal skipped")
         return out
     fluence = 2 * pump_energy / (np.pi * beam_radius**2)
     limit = damage_fluence if damage_fluence is not None else crystal.damage_fluence
@@ -473,7 +475,10 @@ def _absolute_energy(crystal, thz_ref, pump_energy, beam_radius, d_eff):
     """THz energy for a Gaussian beam (A_eff = pi w^2) and d_eff; scales as d_eff^2 / A_eff."""
     d = d_eff if d_eff is not None else crystal.d_eff
     if beam_radius is None or d is None:
-        return None, ["absolute THz energy not estimated: needs beam_radius and d_eff"]
+        missing = ["thz.beam_waist_um"] if beam_radius is None else []
+        if d is None:
+            missing.append(f"thz.d_eff_pm_per_v (the {crystal.name} table gives none)")
+        return None, ["absolute THz energy not estimated: set " + " and ".join(missing)]
     energy = thz_ref * (d / REFERENCE_D_EFF) ** 2 * REFERENCE_AREA / (np.pi * beam_radius**2)
     notes = []
     if energy > TYPICAL_EFFICIENCY[1] * pump_energy:

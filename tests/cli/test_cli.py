@@ -139,6 +139,68 @@ def test_envelope_json_and_plot(capsys, tmp_path):
     assert figure.stat().st_size > 10_000
 
 
+def test_envelope_names_the_regime_without_zero_dispersion(capsys):
+    code, out, err = run(capsys, "envelope", str(ROOT / "configs" / "yb_arf_argon.toml"))
+    assert code == 0, err
+    (line,) = [x for x in out.splitlines() if "zero-dispersion pressure" in x]
+    assert "none on the map" in line
+    assert "anomalous dispersion at the pump over the whole map" in line
+    assert "below" not in line and "above" not in line
+
+
+def test_envelope_regime_words():
+    from hcfplan.cli.output import _dispersion_regime
+
+    assert _dispersion_regime([1e-27, 2e-27], float("nan")).startswith("normal dispersion")
+    assert _dispersion_regime([-1e-27, -2e-27], float("nan")).startswith("anomalous")
+    assert _dispersion_regime([-1e-27, 2e-27], 3e5) == "anomalous below, normal above"
+
+
+def test_check_refuses_a_liquid_fill_like_limits(capsys):
+    keys = ["--set", "gas.species=Xe", "--set", "gas.pressure_bar=60",
+            "--set", "gas.temperature_k=288.15"]
+    path = str(ROOT / "configs" / "yb_arf_argon.toml")
+    code, out, err = run(capsys, "check", path, *keys)
+    assert code == 2 and "valid" not in out and "Traceback" not in err
+    assert len(err.strip().splitlines()) == 1
+    assert "gas.pressure_bar = 60" in err and "gas.temperature_k = 288.15" in err
+    assert "liquid" in err
+    code_limits, _, err_limits = run(capsys, "limits", path, *keys)
+    assert code_limits == 2 and err_limits == err
+
+
+@pytest.mark.parametrize(("pressure", "expected"), [
+    ("25", "exceeds cell.rated_pressure_bar = 20"),
+    ("19", "above limits.rating_fraction x cell.rated_pressure_bar = 0.9 x 20 = 18 bar"),
+])
+def test_check_notes_a_fill_above_the_rating(capsys, pressure, expected):
+    code, out, err = run(capsys, "check", str(ROOT / "configs" / "yb_arf_argon.toml"),
+                         "--set", f"gas.pressure_bar={pressure}")
+    assert code == 0, err
+    notes = out[out.index("Notes (limits to report, not errors):"):out.index("Cautions:")]
+    assert expected in notes and "cell maker's rating" in notes
+    assert "local pressure-equipment codes" in notes and "mbar" not in notes
+    assert "Cautions:" in out and "rated pressure" in out
+    assert re.search(r"\bsafe\b", out.lower()) is None
+
+
+def test_check_hints_mbar_for_hundreds_of_bar(capsys):
+    code, out, err = run(capsys, "check", str(ROOT / "configs" / "yb_capillary_mixture.toml"),
+                         "--set", "gas.pressure_bar=500")
+    assert code == 0, err
+    assert "did you mean mbar (gas.pressure_bar = 0.5)?" in out
+    assert "exceeds cell.rated_pressure_bar = 5" in out
+    code, out, err = run(capsys, "check", str(ROOT / "configs" / "yb_capillary_mixture.toml"),
+                         "--json", "--set", "gas.pressure_bar=500")
+    assert code == 0 and json.loads(out)["gas"]["pressure_bar"] == 500
+    assert "did you mean mbar" in err
+
+
+def test_check_without_notes_on_a_demo(capsys):
+    code, out, _ = run(capsys, "check", str(ROOT / "configs" / "yb_arf_argon.toml"))
+    assert code == 0 and "Notes" not in out and ": valid. Resolved" in out
+
+
 def test_envelope_refuses_taylor(capsys):
     code, _, err = run(capsys, "envelope", str(ROOT / "configs" / "taylor_pcf_check.toml"))
     assert code == 2 and "Traceback" not in err
@@ -184,3 +246,19 @@ def test_interrupted_message_names_only_what_was_written(tmp_path):
         WRITTEN.clear()
     assert message == (f"interrupted; kept {folder}/: table.csv, points/ with 2 files "
                        "(complete files only); resumable")
+
+
+def test_envelope_check_text_says_above_the_model_range(capsys):
+    from types import SimpleNamespace
+
+    from hcfplan.cli.output import _print_envelope_check
+    from hcfplan.planning.envelope_check import CheckPoint, EnvelopeCheck
+
+    point = CheckPoint(energy=1e-3, pressure=2e5, index=(0, 0), estimate_duration=10e-15,
+                       gnlse_duration=12e-15, estimate_cutoff=50e12, gnlse_cutoff=float("nan"),
+                       note="")
+    check = EnvelopeCheck(points=(point,), factor=1.5, sweet_spot="s", notes=())
+    _print_envelope_check(check, SimpleNamespace(thz_model_limit=20e12))
+    out = capsys.readouterr().out
+    assert "THz cutoff above the model's range (> 20 THz) estimated, void chain" in out
+    assert "50 THz" not in out and "n/a THz" not in out

@@ -177,6 +177,23 @@ def test_thz_command_json(capsys):
     # the -20 dB (1 %) of the cutoff: the cutoff is null and the range is given
     assert report["cutoff_hz"] is None and report["model_limit_hz"] == 20e12
     assert "-20 dB" in report["cutoff_definition"]
+    # the null cutoff carries its reason
+    assert report["pump_energy_j"] == pytest.approx(5e-6)
+    assert report["verdict"]["status"] == "caution"
+    assert [r["code"] for r in report["verdict"]["reasons"]] == ["thz_beyond_crystal_model"]
+    assert report["verdict"]["void_fields"] == ["cutoff_hz"]
+
+
+def test_thz_command_text_shows_pump_energy_and_verdict(capsys):
+    code = main(["thz", str(ROOT / "configs" / "demo_broadened_spectrum.csv"), "--crystal",
+                 "GaP", "--thickness-mm", "0.3"])
+    out = capsys.readouterr().out
+    assert code == 0
+    assert "  pump energy           1 uJ" in out  # the default
+    line = next(x for x in out.splitlines() if x.strip().startswith("THz cutoff"))
+    assert "above the model's range (> 20 THz; thz_beyond_crystal_model)" in line
+    assert "Verdict: caution (read the reasons below)" in out
+    assert "  ! caution  thz_beyond_crystal_model: THz cutoff not given" in out
 
 
 def test_thz_command_bad_csv(tmp_path, capsys):

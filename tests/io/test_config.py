@@ -269,8 +269,8 @@ CROSS = [
      "limits.ionization_fraction_limit = 1.0: must be < 1"),
     ("grid.points=4097", "grid.points = 4097: must be an even number"),
     ("grid.time_window_fs=5.0", "grid.time_window_fs = 5.0: the frequency window is wider "
-     "than the grid may span at laser.wavelength_nm = 1030.0 (0.25 to 6 times the pump "
-     "frequency); 16 points need a time window > 9.56 fs"),
+     "than the grid may span at laser.wavelength_nm = 1030.0 (0 to 6 times the pump "
+     "frequency); 16 points need a time window > 9.162 fs"),
     (["grid.points=65536", "grid.time_window_fs=1000.0"], "grid.points = 65536, "
      "grid.time_window_fs = 1000.0: the frequency window is wider than the grid may span at "
      "laser.wavelength_nm = 1030.0"),

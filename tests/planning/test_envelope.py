@@ -144,3 +144,48 @@ def test_plot_envelope_draws(mapped):
     assert ax.get_yscale() == "log"
     assert "estimates" in ax.get_legend().get_title().get_text()
     plt.close(fig)
+
+
+def test_thz_cutoff_only_within_the_crystal_model():
+    """Issue #18: the GaP model stops at 20 THz (its crystal table); estimates above are no
+    cutoffs: null in the JSON, printed as "above the model's range", no contour drawn."""
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    from hcfplan.planning.envelope import estimate_cutoff_text
+    from hcfplan.plotting.envelope import plot_envelope
+
+    config = load_config(CONFIGS["yb_capillary_mixture"])
+    result = envelope_map(config, points=(30, 30))
+    assert result.thz_model_limit == pytest.approx(20e12) and result.thz_model == "GaP"
+    assert np.nanmax(result.thz_cutoff) > 20e12  # the map reaches beyond the model
+    data = envelope_json(result)
+    assert data["envelope.thz_model_limit_hz"] == pytest.approx(20e12)
+    cut = np.array([[np.nan if v is None else v for v in row]
+                    for row in data["envelope.thz_cutoff_hz"]])
+    beyond = np.asarray(result.thz_cutoff) > 20e12
+    assert np.all(np.isnan(cut[beyond])) and np.all(cut[~beyond] <= 20e12)
+    assert "above the GaP model's range (> 20 THz)" in data["envelope.thz_cutoff_note"]
+    assert any("above the GaP model's range (> 20 THz)" in n for n in result.notes)
+    fig, ax = plt.subplots()
+    plot_envelope(ax, result, contours="cutoff")
+    labels = [t.get_text() for t in ax.texts]
+    drawn = [float(t.split()[0]) for t in labels if "THz (SPM-only)" in t]
+    assert drawn and max(drawn) < 20
+    legend = [t.get_text() for t in ax.get_legend().get_texts()]
+    assert any("beyond the GaP model (> 20 THz)" in t for t in legend)
+    plt.close(fig)
+    assert estimate_cutoff_text(50e12, 20e12) == "above the model's range (> 20 THz)"
+    assert estimate_cutoff_text(12.34e12, 20e12) == "12.3 THz"
+    assert estimate_cutoff_text(math.nan, 20e12) == "void"
+
+
+def test_single_wavelength_range_note_prints_once():
+    from hcfplan.planning import validity
+
+    note = validity._note("argon fit", 400e-9, 1000e-9, (1030e-9, 1030e-9), "the pump")
+    assert note.endswith("the pump (1030 nm) is extrapolated") and "1030-1030" not in note
+    band = validity._note("argon fit", 400e-9, 1000e-9, (300e-9, 1030e-9), "the spectrum")
+    assert "the spectrum (300-1030 nm) is extrapolated" in band

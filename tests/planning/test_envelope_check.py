@@ -215,3 +215,54 @@ def test_fiber_report_labels_its_estimates(capsys):
     out, _ = capsys.readouterr()
     assert code == 0
     assert "SPM-only estimate, Gaussian rms" in out and "note: SPM-only estimate" in out
+
+
+def test_void_check_point_uses_the_verdict_codes(capsys, monkeypatch):
+    """A check point whose grid check failed is void with the verdict's own code and wording
+    (``unresolved_pulse``, not "not converged"), and its ratios print as "void (code)"."""
+    from types import SimpleNamespace
+
+    import hcfplan.planning.chain as chain_module
+
+    failed = {"name": "pulse_sampling", "code": "unresolved_pulse", "passed": False,
+              "value": 1.4, "limit": 4.0,
+              "reason": "shortest pulse (compressed) sampled by 1.4 points per FWHM"}
+    fake = SimpleNamespace(
+        propagation=SimpleNamespace(success=True, status="completed", message="", warnings=[]),
+        compression=object(), thz=None,
+        convergence=SimpleNamespace(converged=False,
+                                    checks=[SimpleNamespace(as_dict=lambda: failed)]))
+    monkeypatch.setattr(chain_module, "run_chain", lambda config: fake)
+    config = load_config(CONFIGS / "yb_capillary_mixture.toml")
+    result = envelope_map(config, energies=[112e-6, 224e-6], pressures=[6e5, 6.3e5])
+    check = check_envelope(config, result, indices=[(1, 0)])
+    point = check.points[0]
+    assert point.void_code == "unresolved_pulse"
+    assert point.note.startswith("void (unresolved_pulse: shortest pulse (compressed) sampled "
+                                 "by 1.4 points per FWHM (limit 4): durations and peak powers "
+                                 "are not resolved)")
+    assert "not converged" not in point.note
+    assert check_json(check)["check.points"][0]["void_code"] == "unresolved_pulse"
+    print_envelope(result, None, check)
+    out = capsys.readouterr().out
+    assert "void (unresolved_pulse) GNLSE (ratio void (unresolved_pulse))" in out
+    assert "(ratio void (unresolved_pulse))" in out.split("THz cutoff", 1)[1]
+    assert "n/a" not in out
+
+
+def test_solver_stop_is_not_converged(monkeypatch):
+    from types import SimpleNamespace
+
+    import hcfplan.planning.chain as chain_module
+
+    fake = SimpleNamespace(
+        propagation=SimpleNamespace(success=False, status="step_collapse",
+                                    message="step below 1e-9 m", warnings=[]),
+        compression=None, thz=None, convergence=None)
+    monkeypatch.setattr(chain_module, "run_chain", lambda config: fake)
+    config = load_config(CONFIGS / "yb_capillary_mixture.toml")
+    result = envelope_map(config, energies=[112e-6, 224e-6], pressures=[6e5, 6.3e5])
+    point = check_envelope(config, result, indices=[(1, 0)]).points[0]
+    assert point.void_code == "not_converged"
+    assert point.note == ("void (not_converged: solver stopped (step_collapse): step below "
+                          "1e-9 m)")

@@ -292,7 +292,67 @@ def test_simulate_headline_shows_void_with_its_reason(tmp_path, capsys):
     assert code == 3
     line = next(x for x in out.splitlines() if x.strip().startswith("compressed FWHM"))
     assert "void (no_transmission: fiber transmission" in line
-    assert "Verdict: INVALID" in out
+    assert "Verdict: invalid (the numbers marked void are not results)" in out
+    assert "  ! invalid  no_transmission: fiber transmission" in out
+
+
+def _headline(summary: dict, tmp_path: Path, capsys) -> str:
+    from hcfplan.cli.output import print_simulation
+
+    print_simulation(summary, tmp_path)
+    return capsys.readouterr().out
+
+
+def _row(out: str, label: str) -> str:
+    return next(x for x in out.splitlines() if x.strip().startswith(label))
+
+
+SELF_FOCUSING = ("laser.energy_uj=100", "gas.pressure_bar=10", "fiber.length_m=0.01")
+THZ_WITH_DETECTOR = ('[thz]\ncrystal = "ZnTe"\nthickness_mm = 0.1\n'
+                     'detector_crystal = "ZnTe"\ndetector_thickness_mm = 0.1\n')
+
+
+def test_void_fields_are_results_never_inputs_and_the_headline_voids_thz(tmp_path, capsys):
+    from hcfplan.planning.verdict import NOT_RESULT_FIELDS, RESULT_FIELDS
+
+    _, summary, verdict = run_case(tmp_path, *SELF_FOCUSING, extra=THZ_WITH_DETECTOR)
+    assert verdict.invalid and verdict.codes[0] == "self_focusing_at_entrance"
+    flat = flat_summary(summary)
+    # every number of the result sections is either a result or a listed input/setting
+    sections = [k for k, v in flat.items() if k.split(".")[0] in ("output", "compressed", "thz")
+                and (v is None or isinstance(v, (int, float)))]
+    assert set(sections) <= set(RESULT_FIELDS) | set(NOT_RESULT_FIELDS)
+    assert set(verdict.void_fields) <= set(RESULT_FIELDS)
+    assert set(summary["verdict"]["void_fields"]) == set(verdict.void_fields)
+    for key in ("thz.thickness_m", "thz.model_limit_hz", "thz.frequency_step_hz",
+                "input.energy_j", "fiber.length_m"):
+        assert key not in verdict.void_fields
+    assert {"thz.peak_hz", "thz.cutoff_hz", "thz.detected_cutoff_hz"} <= set(verdict.void_fields)
+    out = _headline(summary, tmp_path, capsys)
+    for label in ("THz peak", "THz cutoff", "detected THz cutoff", "compressed FWHM"):
+        assert "void (self_focusing_at_entrance: input peak power" in _row(out, label), label
+    assert "above the model's range" not in _row(out, "THz cutoff")
+
+
+def test_headline_names_the_code_of_a_cutoff_beyond_the_crystal_model(tmp_path, capsys):
+    _, summary, verdict = run_case(tmp_path, extra='[thz]\ncrystal = "ZnTe"\nthickness_mm = 0.1\n')
+    assert verdict.codes == ("thz_beyond_crystal_model",)
+    line = _row(_headline(summary, tmp_path, capsys), "THz cutoff")
+    if summary["thz"]["cutoff_hz"] is None:
+        assert "above the model's range (> 4.5 THz; thz_beyond_crystal_model)" in line
+    else:
+        assert "void (thz_beyond_crystal_model: THz cutoff" in line
+
+
+def test_headline_warnings_are_one_block_without_the_verdict_reasons(tmp_path, capsys):
+    _, summary, verdict = run_case(tmp_path, "laser.wavelength_nm=1030")
+    message = reason(verdict, "extrapolated_data").message
+    assert message in summary["warnings"]  # the run warns with the same text
+    out = _headline(summary, tmp_path, capsys)
+    assert "Verdict: caution (read the reasons below)" in out
+    assert f"  ! caution  extrapolated_data: {message}" in out
+    assert out.count(message) == 1
+    assert out.count("Warnings:") <= 1
 
 
 # ---------------------------------------------------------------------------------------------
@@ -332,13 +392,13 @@ def test_scan_figure_leaves_invalid_points_off_the_line(scan_records):
     from hcfplan.plotting.scan import draw_results_1d, void_note
 
     records, _ = scan_records
-    assert void_note(records).startswith("hollow grey: void, 1 of 2 points invalid "
-                                         "(no_transmission")
+    assert void_note(records) == ("hollow grey: void; 1 of 2 points void:\n"
+                                  "no_transmission (fiber transmission below 0.001)")
     axes = draw_results_1d(Figure(), "fiber.core_diameter_um", (50, 250), records)
     result_line, void_marks = axes[0].lines[:2]  # compressed FWHM
     assert list(result_line.get_xdata()) == [250]
     assert list(void_marks.get_xdata()) == [50] and void_marks.get_markerfacecolor() == "none"
-    assert "1 of 2 points invalid" in axes[0].get_title()
+    assert "1 of 2 points void:\nno_transmission (fiber transmission" in axes[0].get_title()
     # margins are drawn for every point
     assert len(axes[3].lines[0].get_xdata()) == 2
 
@@ -377,3 +437,87 @@ def test_spread_corners_carry_the_verdict_and_void_values_leave_the_range(tmp_pa
     assert fwhm["void_corners"] == 1 and fwhm["low"] == fwhm["high"]  # one corner left
     summary = spread_summary(result)
     assert summary["invalid_corners"] == 1 and len(summary["corners"]) == 2
+
+
+# ---------------------------------------------------------------------------------------------
+# tables and figures of a THz cutoff left out beyond the crystal model
+
+
+def _beyond_record(value: float, cutoff) -> dict:
+    """A scan point record whose THz cutoff is null beyond the ZnTe model (or a number)."""
+    summary = {"fiber": {"transmission": 0.9},
+               "compressed": {"fwhm_s": 30e-15, "peak_power_w": 1e9},
+               "thz": {"crystal": "ZnTe", "thickness_m": 1e-4, "peak_hz": 2e12,
+                       "cutoff_hz": cutoff, "model_limit_hz": 4.5e12}}
+    return {"key": str(value), "values": {"gas.pressure_bar": value}, "status": "ok",
+            "message": "", "summary": summary,
+            "margins": {"self_focusing": 5.0, "ionization_fraction": 1e-6,
+                        "ionization_margin": 100.0, "binding": ""}}
+
+
+def test_scan_table_prints_void_code_and_a_legend(capsys):
+    from types import SimpleNamespace
+
+    from hcfplan.cli import workflows
+    from hcfplan.cli.output import print_void_legend
+
+    records = [_beyond_record(1.0, 3e12), _beyond_record(2.0, None)]
+    plan = SimpleNamespace(varies=[SimpleNamespace(key="gas.pressure_bar")])
+    header, rows = workflows.scan_rows(plan, records)
+    cutoff = header.index("THz cutoff")
+    assert [r[cutoff] for r in rows] == ["3", "void (thz_beyond_crystal_model)"]
+    print_void_legend(["thz_beyond_crystal_model", "thz_beyond_crystal_model"])
+    out = capsys.readouterr().out
+    assert out.count("thz_beyond_crystal_model") == 1
+    assert ("    thz_beyond_crystal_model (caution): THz cutoff or band beyond the crystal "
+            "model's validity") in out
+
+
+def test_scan_figure_draws_a_void_cutoff_hollow_and_says_why():
+    import matplotlib
+
+    matplotlib.use("Agg")
+    from matplotlib.figure import Figure
+
+    from hcfplan.plotting.scan import draw_results_1d, void_note
+
+    records = [_beyond_record(p, None if p > 3 else 3e12) for p in (1.0, 2.0, 3.0, 4.0, 5.0)]
+    note = void_note(records)
+    assert note == ("hollow grey: void; 2 of 5 points void:\nthz_beyond_crystal_model (THz "
+                    "cutoff or band beyond the crystal model's validity)")
+    axes = draw_results_1d(Figure(), "gas.pressure_bar", (1.0, 2.0, 3.0, 4.0, 5.0), records)
+    cutoff_axis = axes[2]
+    hollow = [line for line in cutoff_axis.lines if line.get_markerfacecolor() == "none"]
+    assert sorted(x for line in hollow for x in line.get_xdata()) == [4.0, 5.0]
+    assert "2 of 5 points void" in axes[0].get_title()
+    assert "void at" not in axes[0].get_title()
+
+
+def test_compare_table_prints_void_code_for_a_null_cutoff_and_a_legend(capsys):
+    from hcfplan.cli import workflows
+    from hcfplan.planning.compare import Comparison, Side, comparison_rows
+
+    margins = {"acceptable": True, "binding": "", "self_focusing": 5.0,
+               "self_focusing_required": 2.0}
+    a, b = (Side(name, None, _beyond_record(1.0, cutoff)["summary"], margins)
+            for name, cutoff in (("A", 3e12), ("B", None)))
+    comparison = Comparison(a, b, comparison_rows(a, b))
+    workflows.print_comparison(comparison, [], None)
+    out = capsys.readouterr().out
+    line = next(x for x in out.splitlines() if x.strip().startswith("THz cutoff"))
+    assert line.split()[-4:] == ["void", "(thz_beyond_crystal_model)", "-", "-"]  # B - A, B / A
+    assert "    thz_beyond_crystal_model (caution): THz cutoff or band" in out
+    assert "Verdict: caution (read the reasons below)" in out
+    assert "  ! caution  thz_beyond_crystal_model:" in out
+
+
+def test_thz_report_verdict_names_void_report_keys():
+    from hcfplan.planning.verdict import verdict_of_thz_report
+
+    report = {"crystal": "ZnTe", "peak_hz": 2e12, "cutoff_hz": None, "model_limit_hz": 4.5e12,
+              "thickness_m": 1e-4, "frequency_step_hz": 1e10, "detected_peak_hz": None,
+              "detected_cutoff_hz": None, "relative_efficiency": 1e-9}
+    verdict = verdict_of_thz_report(report)
+    assert verdict.status == "caution" and verdict.codes == ("thz_beyond_crystal_model",)
+    assert verdict.void_fields == ("cutoff_hz",)  # no detector: detected_* are no results
+    assert verdict_of_thz_report(report | {"cutoff_hz": 3e12}).status == "valid"

@@ -7,6 +7,7 @@ module docstring); no numbers against outside sources.
 
 from __future__ import annotations
 
+import re
 import warnings
 
 import numpy as np
@@ -214,6 +215,39 @@ def test_resonance_band_warning(argon):
     assert "first above 0.001 at z = 0 m" in note
     assert "a thinner wall moves it to shorter wavelengths" in note
     assert "lower the broadening" in note
+
+
+def _recorder_with_resonances(argon, resonances, where):
+    # a recorder whose resonance wavelengths are given (nan: outside the material tables, as
+    # the glass fit returns far below its range) and whose band threshold was crossed
+    from hcfplan.propagation.result import Recorder
+
+    grid = Grid(points=2**8, dt=2e-15, omega0=OMEGA_1030)
+    fiber = AntiresonantFiber(core_radius=25e-6, wall_thickness=0.93e-6, length=0.1, gas=argon)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityWarning)
+        recorder = Recorder(grid, 2, 1e-9, None, fiber)
+    recorder._resonances = np.asarray(resonances, dtype=float)
+    recorder.resonance.update(0.01, 0.05, where)
+    return recorder
+
+
+@pytest.mark.parametrize(("resonances", "where", "expected"), [
+    # energy near a band whose wavelength is nan: no order or wavelength invented, no nan
+    ([1294e-9, 647e-9, np.nan, np.nan], 300e-9, "a wall-resonance band of order m >= 3 (its"),
+    # energy in a known band beside unknown ones: that band, by its order and wavelength
+    ([1294e-9, 647e-9, np.nan, np.nan], 650e-9, "order m = 2 around 647 nm"),
+    # no finite resonance at all
+    ([np.nan, np.nan], 500e-9, "a wall-resonance band (its resonance wavelength lies outside"),
+    # no centre recorded: the first finite band, never the first (nan) entry
+    ([np.nan, 647e-9], np.nan, "order m = 2 around 647 nm"),
+])
+def test_resonance_warning_never_prints_nan(argon, resonances, where, expected):
+    recorder = _recorder_with_resonances(argon, resonances, where)
+    (note,) = [w for w in recorder.edge_warnings() if "resonance band" in w]
+    assert re.search(r"\bnan\b", note.lower()) is None
+    assert expected in note
+    assert "first above 0.001 at z = 0.05 m" in note and "remedy" in note
 
 
 def test_no_resonance_warning_in_the_window(argon):

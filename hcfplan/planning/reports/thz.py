@@ -91,10 +91,13 @@ def thz_report(spectrum_csv: Path, setup: ThzSetup, *, phase_csv: Path | None, e
     -------
     (ThzResult, dict)
         The result and its flat summary (SI, unit in the key names). A cutoff, peak or width
-        beyond the crystal model's range (``model_limit_hz``) is ``None``.
+        beyond the crystal model's range (``model_limit_hz``) is ``None``; ``verdict`` holds
+        the status, reasons and void keys of :func:`hcfplan.planning.verdict.verdict_of_thz_report`
+        (``thz_beyond_crystal_model`` for such a cutoff).
     """
     from hcfplan.io.csvdata import read_curve_csv, read_spectrum_csv
     from hcfplan.planning.validity import quiet_validity
+    from hcfplan.planning.verdict import verdict_of_thz_report
     from hcfplan.thz.measured import thz_from_measured_spectrum
 
     wavelength, intensity = read_spectrum_csv(spectrum_csv)
@@ -122,4 +125,6 @@ def thz_report(spectrum_csv: Path, setup: ThzSetup, *, phase_csv: Path | None, e
                        if phase is None else "measured spectral phase applied"),
         "warnings": list(result.warnings),
     }
+    report["verdict"] = verdict_of_thz_report(
+        report, detector=result.detected_power is not None).as_dict()
     return result, report
