@@ -48,12 +48,6 @@ from hcfplan.pulse.fields import pulse_field
 BETAS_PS_KM = (-11.830, 8.1038e-2, -9.5205e-5, 2.0737e-7, -5.3943e-10, 1.3486e-12,
                -2.5495e-15, 3.0524e-18, -1.7140e-21)
 OMEGA0 = 2 * np.pi * c / 835e-9
-#: Figures of the solver before this work (same machine, 2 shared cores, scipy back end).
-BEFORE = {"ratio 2^13": 2.40, "ratio 2^14": 2.20, "wall 2^13": 14.14, "wall 2^14": 25.40,
-          "soliton fission": 1.010, "wave breaking": 0.870,
-          # ionising gas case (before the fused plasma kernel, best of two runs)
-          "gas 2^13 fftw": 7.10, "gas 2^14 fftw": 5.84, "gas 2^13 scipy": 3.40,
-          "gas 2^14 scipy": 3.73}
 
 
 def _time(fn, number: int = 200) -> float:
@@ -143,13 +137,10 @@ def overhead(points: int, backend: str, norm: str = "relative_l2") -> None:
     floor = ffts * t["c2c"]
     t_scipy = _scipy_fft_time(points)
     key = f"2^{int(math.log2(points))}"
-    # the "before" figures were taken with the scaled-RMS norm (more, shorter steps)
-    was = (f" (before {BEFORE['wall ' + key]:.2f} s)", f", before {BEFORE['ratio ' + key]:.2f}") \
-        if norm == "scaled_rms" else ("", "")
-    print(f"[{backend}, {norm}] N = {key}: wall {wall:.2f} s{was[0]}, "
+    print(f"[{backend}, {norm}] N = {key}: wall {wall:.2f} s, "
           f"steps {result.n_steps} (+{result.n_rejected} rejected), FFTs {ffts}, one FFT "
           f"{t['c2c'] * 1e6:.1f} us ({backend}) / {t_scipy * 1e6:.1f} us (scipy); ratio "
-          f"wall/(FFTs x t_FFT) = {wall / floor:.2f} (target <= 1.3{was[1]}); "
+          f"wall/(FFTs x t_FFT) = {wall / floor:.2f} (target <= 1.3); "
           f"wall/(FFTs x t_FFT,scipy) = {wall / (ffts * t_scipy):.2f}; per step "
           f"{wall / (result.n_steps + result.n_rejected) * 1e3:.2f} ms; {result.status}")
     attempts = result.n_steps + result.n_rejected
@@ -188,12 +179,10 @@ def overhead_gas(points: int, backend: str) -> None:
     t = transform_times(backend, points)
     ffts = 3 * result.n_rhs_evals + result.z.size
     key = f"2^{int(math.log2(points))}"
-    before = BEFORE.get(f"gas {key} {backend}")
-    was = "" if before is None else f" (before {before:.2f})"
     print(f"[{backend}] ionising gas, N = {key}: wall {wall:.2f} s, steps {result.n_steps} "
           f"(+{result.n_rejected} rejected), FFTs {ffts}, final ionisation "
           f"{result.ionization_fraction_z.max():.2e}; ratio wall/(FFTs x t_FFT) = "
-          f"{wall / (ffts * t['c2c']):.2f}{was} (target <= 1.3); {result.status}")
+          f"{wall / (ffts * t['c2c']):.2f} (target <= 1.3); {result.status}")
 
 
 def _fission_case(points: int = 2**13):
@@ -250,14 +239,15 @@ def _error(result, reference) -> float:
                  / np.max(np.abs(reference)))
 
 
-def _run_case(case, **options):
-    """propagate() on a case (grid, field0, fiber[, gas]) with two records and the given
-    :class:`SolverOptions` fields; the gas cases ignore fit-range warnings (window edges)."""
+def _run_case(case, progress=None, **options):
+    """propagate() on a case (grid, field0, fiber[, gas]) with two records, the given
+    :class:`SolverOptions` fields and an optional progress callback; the gas cases ignore
+    fit-range warnings (window edges)."""
     grid, field0, fiber, *gas = case
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         return propagate(field0, grid, fiber, gas=gas[0] if gas else None,
-                         options=SolverOptions(z_samples=2, **options))
+                         options=SolverOptions(z_samples=2, **options), progress=progress)
 
 
 def _fixed_error(case, n: int, reference) -> float:
@@ -304,11 +294,10 @@ def adaptive_vs_fixed(name: str, case, rtols: dict[str, float]) -> None:
         target = _error(adaptive, reference)
         attempts = adaptive.n_steps + adaptive.n_rejected
         n, err = fixed_steps_for(case, target, reference, attempts)
-        before = f", before {BEFORE[name]:.0%}" if name in BEFORE and norm == "scaled_rms" else ""
         print(f"{name}, N = 2^{int(math.log2(case[0].points))} [{norm}, rtol {rtol:g}]: adaptive "
               f"{adaptive.n_steps} steps (+{adaptive.n_rejected} rejected), error {target:.2e}; "
               f"fixed RK4IP at the same error: {n} steps (error {err:.2e}); adaptive attempts / "
-              f"fixed steps = {attempts / n:.1%} (target <= 20 %{before}); estimate for an ideal "
+              f"fixed steps = {attempts / n:.1%} (target <= 20 %); estimate for an ideal "
               f"local controller from the step-length profile: {distribution_bound(ends):.0%}")
 
 
