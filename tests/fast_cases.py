@@ -92,3 +92,26 @@ detector_thickness_mm = 0.2
 points = 2048
 z_samples = 12
 """
+
+#: An invented scenario that runs in well under a second (interrupt, --force and writing
+#: checks).
+TINY = """
+[laser]
+wavelength_nm = 800.0
+fwhm_fs = 60.0
+shape = "gaussian"
+energy_uj = 50.0
+
+[fiber]
+kind = "capillary"
+core_diameter_um = 250.0
+length_m = 0.1
+
+[gas]
+species = "Ar"
+pressure_bar = 0.5
+
+[grid]
+points = 1024
+z_samples = 5
+"""

@@ -19,6 +19,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from fast_cases import TINY
 
 from hcfplan.cli.app import main
 from hcfplan.io.tomlio import parse_toml
@@ -47,27 +48,7 @@ points = 4096
 z_samples = 50
 """
 
-#: Invented small scenario (well under a second of propagation): --force and writing checks.
-FAST = """
-[laser]
-wavelength_nm = 800.0
-fwhm_fs = 60.0
-shape = "gaussian"
-energy_uj = 50.0
 
-[fiber]
-kind = "capillary"
-core_diameter_um = 250.0
-length_m = 0.1
-
-[gas]
-species = "Ar"
-pressure_bar = 0.5
-
-[grid]
-points = 1024
-z_samples = 5
-"""
 
 PNG_START = b"\x89PNG\r\n\x1a\n"
 PNG_END = b"IEND\xaeB`\x82"
@@ -169,7 +150,7 @@ def test_signal_during_propagation(slow_config, tmp_path, signum):
 @pytest.mark.parametrize("signum", [signal.SIGINT, signal.SIGTERM], ids=["SIGINT", "SIGTERM"])
 def test_signal_while_writing(tmp_path, signum):
     config = tmp_path / "fast.toml"  # only the writing is interrupted: a short run will do
-    config.write_text(FAST, encoding="utf-8")
+    config.write_text(TINY, encoding="utf-8")
     out = tmp_path / "run"
     proc = _start(config, out)
     # the folder appears with the first (temporary) file of the results
@@ -211,7 +192,7 @@ def test_sigterm_is_held_until_the_file_is_complete(tmp_path):
 
 def test_existing_out_refused_without_force(tmp_path, capsys):
     config = tmp_path / "fast.toml"
-    config.write_text(FAST, encoding="utf-8")
+    config.write_text(TINY, encoding="utf-8")
     out = tmp_path / "run"
     argv = ["simulate", str(config), "--out", str(out), "--quiet", "--no-figures"]
     assert main(argv) == 0, capsys.readouterr().err
@@ -233,7 +214,7 @@ def test_existing_out_refused_without_force(tmp_path, capsys):
 
 def test_out_that_is_a_file_refused(tmp_path, capsys):
     config = tmp_path / "fast.toml"
-    config.write_text(FAST, encoding="utf-8")
+    config.write_text(TINY, encoding="utf-8")
     out = tmp_path / "run"
     out.write_text("not a folder")
     assert main(["simulate", str(config), "--out", str(out), "--quiet"]) == 2

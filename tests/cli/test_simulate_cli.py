@@ -13,7 +13,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-from fast_cases import FAST
+from fast_cases import FAST, TINY
 
 from hcfplan.cli.app import main
 
@@ -102,27 +102,7 @@ def test_existing_out_refused(run_dir, capsys):
     assert "--force" in err
 
 
-#: Invented scenario that runs in well under a second (interrupt tests).
-TINY = """
-[laser]
-wavelength_nm = 800.0
-fwhm_fs = 60.0
-shape = "gaussian"
-energy_uj = 50.0
 
-[fiber]
-kind = "capillary"
-core_diameter_um = 250.0
-length_m = 0.1
-
-[gas]
-species = "Ar"
-pressure_bar = 0.5
-
-[grid]
-points = 1024
-z_samples = 5
-"""
 
 
 def _interrupt(*args, **kwargs):
