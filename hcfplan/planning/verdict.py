@@ -30,10 +30,13 @@ code                           status    voids
 ``window_edge_energy``         invalid   every result (a window-edge check of
                                          :mod:`hcfplan.planning.convergence` failed: energy
                                          or spectral level at the time or frequency edge)
-``unresolved_pulse``           invalid   compressed and transform-limited durations and
-                                         peak powers (fewer than
+``unresolved_pulse``           invalid   the durations and peak powers of each pulse that
+                                         is sampled by fewer than
                                          :data:`~hcfplan.planning.convergence.MIN_POINTS_PER_FWHM`
-                                         time steps per FWHM of the shortest pulse)
+                                         time steps per FWHM (the compressed pulse, its
+                                         transform limit, the output's transform limit;
+                                         :data:`UNRESOLVED_GROUPS`); all of them where the
+                                         summary does not say which
 ``thz_beyond_crystal_model``   caution   ``thz.cutoff_hz``, ``thz.detected_cutoff_hz``
                                          (THz peak or cutoff beyond the crystal model's
                                          validity, or a cutoff the THz estimate already left
@@ -128,6 +131,13 @@ DURATION_FIELDS = ("compressed.fwhm_s", "compressed.peak_power_w",
                    "compressed.peak_to_transform_limit", "compressed.peak_power_gain",
                    "compressed.main_lobe_energy_fraction", "output.transform_limit_fwhm_s")
 THZ_CUTOFF_FIELDS = ("thz.cutoff_hz", "thz.detected_cutoff_hz")
+#: ``unresolved_pulse`` voids the numbers of each pulse whose FWHM (the key) is under-sampled.
+UNRESOLVED_GROUPS = {
+    "compressed.fwhm_s": tuple(k for k in DURATION_FIELDS if "transform_limit_" not in k),
+    "compressed.transform_limit_fwhm_s": (
+        "compressed.transform_limit_fwhm_s", "compressed.transform_limit_peak_power_w",
+        "compressed.peak_to_transform_limit"),
+    "output.transform_limit_fwhm_s": ("output.transform_limit_fwhm_s",)}
 
 
 @dataclass(frozen=True)
@@ -205,6 +215,8 @@ class Verdict:
 
     def void_reason(self, key: str) -> Reason | None:
         """The first reason that voids the flat summary key ``key``, or None."""
+        if key not in self.void_fields and self.void_fields:
+            return None
         for reason in self.reasons:
             if key in CODES[reason.code].voids:
                 return reason
@@ -444,6 +456,26 @@ def _verdict(flat: dict, measured: dict) -> Verdict:
     return verdict_from_reasons(reasons, flat)
 
 
+def unresolved_fields(flat: dict) -> tuple[str, ...] | None:
+    """The keys ``unresolved_pulse`` voids in the flat summary ``flat``: the groups of
+    :data:`UNRESOLVED_GROUPS` whose FWHM spans fewer than ``MIN_POINTS_PER_FWHM`` steps of
+    ``grid.dt_s``; None where the summary does not tell (no step, or no pulse found short)."""
+    dt = _num(flat, "grid.dt_s")
+    if dt is None or dt <= 0:
+        return None
+    short = [key for key in UNRESOLVED_GROUPS
+             if (fwhm := _num(flat, key)) is not None and 0 < fwhm < MIN_POINTS_PER_FWHM * dt]
+    if not short:
+        return None
+    return tuple(dict.fromkeys(k for key in short for k in UNRESOLVED_GROUPS[key]))
+
+
+def _voids(code: str, flat: dict) -> tuple[str, ...]:
+    """The keys a reason of ``code`` voids in ``flat`` (per pulse for ``unresolved_pulse``)."""
+    found = unresolved_fields(flat) if code == "unresolved_pulse" else None
+    return found or CODES[code].voids
+
+
 def verdict_from_reasons(reasons, summary: dict | None = None) -> Verdict:
     """The verdict of a list of :class:`Reason` (status from :data:`CODES`).
 
@@ -457,7 +489,7 @@ def verdict_from_reasons(reasons, summary: dict | None = None) -> Verdict:
     levels = [STATUSES.index(CODES[r.code].status) for r in reasons]
     status = STATUSES[max(levels, default=0)]
     flat = flat_summary(summary) if summary else {}
-    voided = {k for r in reasons for k in CODES[r.code].voids}
+    voided = {k for r in reasons for k in _voids(r.code, flat)}
     void = tuple(k for k, v in flat.items()
                  if (v is None or (isinstance(v, (int, float)) and not isinstance(v, bool)))
                  and k in voided)

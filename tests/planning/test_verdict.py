@@ -521,3 +521,27 @@ def test_thz_report_verdict_names_void_report_keys():
     assert verdict.status == "caution" and verdict.codes == ("thz_beyond_crystal_model",)
     assert verdict.void_fields == ("cutoff_hz",)  # no detector: detected_* are no results
     assert verdict_of_thz_report(report | {"cutoff_hz": 3e12}).status == "valid"
+
+
+def test_unresolved_pulse_voids_only_the_pulse_that_is_under_sampled():
+    """Contract: ``unresolved_pulse`` voids the numbers of the under-sampled pulse only (here the
+    fiber output's sub-cycle transform limit, 0.49 fs on 0.45 fs steps), not a compressed pulse
+    the same grid resolves (4.3 fs, 9.5 steps); with both short, both groups are void; a summary
+    that does not say which pulse is short voids every duration."""
+    from hcfplan.planning.verdict import CODES, UNRESOLVED_GROUPS, Reason, verdict_from_reasons
+
+    reason = [Reason("unresolved_pulse", "shortest pulse 0.489 fs sampled by 1.1 points")]
+    summary = {"grid.dt_s": 0.454e-15, "output.transform_limit_fwhm_s": 0.489e-15,
+               "compressed.fwhm_s": 4.3e-15, "compressed.peak_power_w": 1e9,
+               "compressed.transform_limit_fwhm_s": 2.2e-15,
+               "compressed.transform_limit_peak_power_w": 2e9}
+    verdict = verdict_from_reasons(reason, summary)
+    assert verdict.status == "invalid"
+    assert verdict.void_fields == ("output.transform_limit_fwhm_s",)
+    assert verdict.void_reason("compressed.fwhm_s") is None
+    assert verdict.void_reason("output.transform_limit_fwhm_s").code == "unresolved_pulse"
+    both = verdict_from_reasons(reason, {**summary, "compressed.fwhm_s": 1.0e-15})
+    assert set(UNRESOLVED_GROUPS["compressed.fwhm_s"]) & set(summary) <= set(both.void_fields)
+    assert "compressed.peak_power_w" in both.void_fields
+    unknown = verdict_from_reasons(reason, {k: v for k, v in summary.items() if k != "grid.dt_s"})
+    assert set(unknown.void_fields) == set(CODES["unresolved_pulse"].voids) & set(summary)
