@@ -48,6 +48,11 @@ def known_key(section: str, key: str, prefix: str = "") -> Key:
     return SCHEMA[section][key]
 
 
+#: Most entries of a list or table value (``fiber.betas_fs_n_per_mm``, ``gas.mixture``): a
+#: Taylor expansion or a mixture longer than this is a slip, not a model (common practice, no
+#: source).
+MAX_LIST_ITEMS = 64
+
 #: Longest rendering of a received value in a message. [characters]
 _MAX_SHOWN = 120
 
@@ -95,6 +100,8 @@ def _check_fractions(path: str, value: Any) -> dict[str, float]:
     if not isinstance(value, dict) or not value:
         raise ConfigError(f"{path}: must be a table of gas = mole fraction, e.g. "
                           "{ He = 0.7, Ar = 0.3 }")
+    if len(value) > MAX_LIST_ITEMS:
+        raise ConfigError(f"{path}: {len(value)} gases; at most {MAX_LIST_ITEMS}")
     out = {}
     for name, frac in value.items():
         where = f"{path}.{display_name(name)}"
@@ -144,6 +151,8 @@ def _check_value(path: str, value: Any, spec: Key) -> Any:
     if kind == "float_list":
         if not isinstance(value, list) or not value:
             raise ConfigError(f"{path}: must be a non-empty list of numbers")
+        if len(value) > MAX_LIST_ITEMS:
+            raise ConfigError(f"{path}: {len(value)} entries; at most {MAX_LIST_ITEMS}")
         return [_finite_float(f"{path}[{i}]", v) for i, v in enumerate(value)]
     if kind == "band":
         if (not isinstance(value, list) or len(value) != 2

@@ -20,6 +20,10 @@ MAX_MODE_ORDER = 1000
 _MODE_PATTERN = re.compile(r"EH1([1-9][0-9]{0,3})", re.ASCII | re.IGNORECASE)
 #: Fewest grid points the solver's grid accepts (``hcfplan.numerics.grid.Grid``).
 MIN_GRID_POINTS = 16
+#: Most values the saved spectra of a run may hold, ``grid.points`` x ``grid.z_samples``
+#: (stored as float32, so 2 GiB); the schema bounds each key alone, this bounds the product
+#: (common practice, no source).
+MAX_SAVED_VALUES = 2**29
 
 
 def mode_order(text: str) -> int:
@@ -110,6 +114,10 @@ def check_grid(resolved: dict) -> None:
     if points is not None and points % 2:
         raise ConfigError(f"grid.points = {points}: must be an even number (a power of two "
                           "is fastest)")
+    if points is not None and points * grid["z_samples"] > MAX_SAVED_VALUES:
+        raise ConfigError(f"grid.points = {points}, grid.z_samples = {grid['z_samples']}: "
+                          f"the saved spectra would hold {points * grid['z_samples']:.3g} "
+                          f"values; at most {MAX_SAVED_VALUES:.3g} (lower grid.z_samples)")
     if window_fs is None:
         return
     wavelength_nm = resolved["laser"]["wavelength_nm"]

@@ -4,7 +4,19 @@ Format (our own): one sample per line, comma-separated (whitespace or ';' also a
 starting with ``#`` and blank lines ignored. The first non-comment line may be a header naming
 the columns; then the columns ``wavelength_nm`` and the value column are found by name,
 otherwise the first two columns are used. Wavelengths are in nanometres and must increase
-strictly. Every problem raises :class:`~hcfplan.errors.ConfigError` naming ``file:line``.
+strictly. Every problem raises :class:`~hcfplan.errors.ConfigError` naming the file (and the
+line, where one line is at fault).
+
+A first column that is plainly not nm is refused with the suspected unit named:
+
+- a header without ``wavelength_nm`` whose names carry a unit word (``thz``, ``hz``,
+  ``frequency``, ``cm-1``, ``wavenumber``, ``ev``, ``energy``, ``um``, ``micron``) names that
+  unit;
+- without a header, all values below :data:`MICROMETRE_SUSPICION` look like micrometres (or eV);
+  otherwise the position of the intensity's peak (of a curve: its median wavelength) must lie
+  in :data:`PLAUSIBLE_NM`, the pump range of ``laser.wavelength_nm``; if it does not, the
+  message names the units (Hz, THz, cm^-1, eV, um) in which that position would lie inside.
+  A file in THz or cm^-1 whose peak reads as a plausible nm value cannot be told apart here.
 """
 
 from __future__ import annotations
@@ -14,6 +26,7 @@ from pathlib import Path
 
 import numpy as np
 
+from hcfplan.constants import c, e, h
 from hcfplan.errors import ConfigError
 from hcfplan.units import SUFFIXES, suffix_of
 
@@ -24,12 +37,33 @@ MIN_SPECTRUM_SAMPLES = 3
 #: Fewest samples of a curve versus wavelength (two points define a line).
 MIN_CURVE_SAMPLES = 2
 WAVELENGTH_COLUMN = "wavelength_nm"
+#: Largest file read: spectrometer exports are far smaller. [bytes]
+MAX_CSV_BYTES = 50_000_000
+#: Where the peak of a spectrum in nm may lie: the range of ``laser.wavelength_nm``. [nm]
+PLAUSIBLE_NM = (150.0, 20000.0)
 _SPLIT = re.compile(r"[,;\s]+")
+_HC_NM_EV = h * c / e * 1e9  # photon energy 1 eV <-> 1239.84 nm (CODATA via scipy)
+_C_NM = c * 1e9  # [nm/s]
+#: Units a first column may be in by mistake: (name, header words, wavelength in nm of x).
+_UNITS = (
+    ("frequency in THz", {"thz", "terahertz"}, lambda x: _C_NM / (x * 1e12)),
+    ("wavenumber in cm^-1", {"cm", "wavenumber", "wavenumbers", "kayser"},
+     lambda x: 1e7 / x),
+    ("photon energy in eV", {"ev", "electronvolt", "electronvolts", "energy"},
+     lambda x: _HC_NM_EV / x),
+    ("micrometres", {"um", "\u00b5m", "micron", "microns", "micrometre", "micrometres",
+                     "micrometer", "micrometers"}, lambda x: x * 1e3),
+    ("frequency in Hz", {"hz", "frequency", "freq", "omega", "nu"}, lambda x: _C_NM / x),
+)
 
 
 def _rows(path: Path) -> list[tuple[int, list[str]]]:
     """Non-comment, non-blank lines as (line number, fields)."""
     try:
+        size = path.stat().st_size
+        if size > MAX_CSV_BYTES:
+            raise ConfigError(f"{path}: {size} bytes; a CSV file holds at most "
+                              f"{MAX_CSV_BYTES} bytes")
         text = path.read_text(encoding="utf-8-sig")
     except OSError as exc:
         raise ConfigError(f"{path}: cannot read ({exc.strerror})") from None
@@ -59,6 +93,15 @@ def _columns(path: Path, rows: list, value_name: str) -> tuple[int, int, list]:
         return 0, 1, rows
     names = [f.strip().lower() for f in first]
     missing = [n for n in (WAVELENGTH_COLUMN, value_name) if n not in names]
+    if WAVELENGTH_COLUMN in missing:
+        for name in names:
+            words = set(re.findall(r"[a-z\u00b5]+", name))
+            for unit, hints, _ in _UNITS:
+                if words & hints:
+                    raise ConfigError(
+                        f"{path}:{number}: column {name!r} looks like {unit}, not wavelength "
+                        f"in nm; convert it to a column '{WAVELENGTH_COLUMN}' (a spectrum also to "
+                        "intensity per unit wavelength)")
     if missing:
         raise ConfigError(
             f"{path}:{number}: header {first} lacks column(s) {missing}; "
@@ -109,9 +152,24 @@ def _read(path: str | Path, value_name: str) -> tuple[np.ndarray, np.ndarray, Pa
     if wavelength_nm[-1] < MICROMETRE_SUSPICION:
         raise ConfigError(
             f"{path}: all wavelengths are < {MICROMETRE_SUSPICION:g} (largest "
-            f"{wavelength_nm[-1]:g}): they look like micrometres; the column must be in nm"
+            f"{wavelength_nm[-1]:g}): they look like micrometres (or photon energies in eV); "
+            "the column must be in nm"
         )
     return wavelength_nm * 1e-9, values, path, data
+
+
+def _check_unit(path: Path, x: float, what: str) -> None:
+    """Refuse a first column whose ``x`` (the peak or the median) is no plausible nm value."""
+    lo, hi = PLAUSIBLE_NM
+    if lo <= x <= hi:
+        return
+    fits = [f"{unit} ({to_nm(x):.4g} nm)" for unit, _, to_nm in _UNITS
+            if lo <= to_nm(x) <= hi]
+    guess = f"it looks like {' or '.join(fits)}" if fits else "the column is not in nm"
+    raise ConfigError(
+        f"{path}: {what} lies at {x:.6g} in the first column, outside {lo:g}-{hi:g} nm "
+        f"(the range of laser.wavelength_nm); {guess}; the column must be wavelength in nm"
+    )
 
 
 def _check_count(path: Path, values: np.ndarray, min_samples: int) -> None:
@@ -138,8 +196,9 @@ def read_spectrum_csv(path: str | Path) -> tuple[np.ndarray, np.ndarray]:
     ------
     ConfigError
         Empty or non-UTF-8 file, fewer than 3 samples, one column, non-numeric entries,
-        unsorted or duplicated wavelengths, negative or all-zero intensity, or wavelengths that
-        look like micrometres; the message names ``file:line``.
+        unsorted or duplicated wavelengths, negative, all-zero or denormal intensity, or a
+        first column that looks like another unit (module docstring); the message names the
+        file.
     """
     wavelength, intensity, path, data = _read(path, "intensity")
     negative = np.flatnonzero(intensity < 0)
@@ -151,7 +210,12 @@ def read_spectrum_csv(path: str | Path) -> tuple[np.ndarray, np.ndarray]:
         )
     if not np.any(intensity > 0):
         raise ConfigError(f"{path}: every intensity is 0; the spectrum holds no light")
+    tiny = np.finfo(float).tiny
+    if not np.max(intensity) >= tiny:
+        raise ConfigError(f"{path}: the largest intensity is {np.max(intensity):g}, below "
+                          f"{tiny:g} (denormal); the spectrum holds no usable signal")
     _check_count(path, intensity, MIN_SPECTRUM_SAMPLES)
+    _check_unit(path, float(wavelength[np.argmax(intensity)]) * 1e9, "the intensity's peak")
     return wavelength, intensity
 
 
@@ -181,6 +245,7 @@ def read_curve_csv(path: str | Path, value_name: str) -> tuple[np.ndarray, np.nd
     """
     wavelength, values, path, _ = _read(path, value_name)
     _check_count(path, values, MIN_CURVE_SAMPLES)
+    _check_unit(path, float(np.median(wavelength)) * 1e9, "the median wavelength")
     suffix = suffix_of(value_name.lower())
     if suffix is not None and np.isfinite(SUFFIXES[suffix][0]):
         values = values * SUFFIXES[suffix][0]

@@ -16,11 +16,23 @@ else:  # pragma: no cover - exercised on Python 3.10 only
 
 TOMLDecodeError = _toml.TOMLDecodeError
 
+#: Largest TOML file read: configs are a few kB, so a larger file is not a config. [bytes]
+MAX_TOML_BYTES = 1_000_000
+#: Longest single ``--set``/``--vary`` value. [characters]
+MAX_VALUE_CHARS = 10_000
+#: Deepest nesting of arrays and inline tables accepted; configs need 2 (a list, a table).
+#: Deeper input is refused before the parser's recursion can fail. [levels]
+MAX_NESTING = 32
+
 
 def read_toml(path: str | Path) -> dict[str, Any]:
     """Parse a TOML file; a missing file or a syntax error becomes one ConfigError line."""
     path = Path(path)
     try:
+        size = path.stat().st_size
+        if size > MAX_TOML_BYTES:
+            raise ConfigError(f"{path}: {size} bytes; a config holds at most "
+                              f"{MAX_TOML_BYTES} bytes")
         text = path.read_text(encoding="utf-8")
     except FileNotFoundError:
         raise ConfigError(f"{path}: file not found") from None
@@ -35,13 +47,57 @@ def read_toml(path: str | Path) -> dict[str, Any]:
 
 def parse_toml(text: str, origin: str) -> dict[str, Any]:
     """Parse TOML text; ``origin`` names the file in the error message."""
+    depth = _bracket_depth(text)
+    if depth > MAX_NESTING:
+        raise ConfigError(f"{origin}: arrays or inline tables nested {depth} deep; at most "
+                          f"{MAX_NESTING}")
     try:
         return _toml.loads(text)
+    except RecursionError:  # a fallback: _bracket_depth bounds the nesting first
+        raise ConfigError(f"{origin}: nested too deeply") from None
     except _toml.TOMLDecodeError as exc:
         message = str(exc).splitlines()[0] if str(exc) else "syntax error"
         raise ConfigError(f"{origin}: TOML syntax error: {message}") from None
     except ValueError as exc:  # e.g. an integer literal longer than Python converts
         raise ConfigError(f"{origin}: TOML value error: {_first_line(exc)}") from None
+
+
+def _bracket_depth(text: str) -> int:
+    """Deepest nesting of ``[`` and ``{`` in ``text``, counted outside strings and comments.
+
+    Brackets inside strings are skipped by tracking quotes (basic, literal and multi-line);
+    an escaped quote in a basic string is honoured. Table headers (``[a]``, ``[[a]]``) count
+    1-2 levels and never reach the limit. Text with at most :data:`MAX_NESTING` brackets in
+    all is not scanned: their count, an upper bound of the depth, is returned.
+    """
+    if text.count("[") + text.count("{") <= MAX_NESTING:
+        return text.count("[") + text.count("{")
+    depth = deepest = 0
+    i, n = 0, len(text)
+    while i < n:
+        ch = text[i]
+        if ch in "\"'":
+            quote = ch * 3 if text.startswith(ch * 3, i) else ch
+            i += len(quote)
+            while i < n and not text.startswith(quote, i):
+                if ch == '"' and text[i] == "\\":
+                    i += 1
+                elif len(quote) == 1 and text[i] == "\n":
+                    break
+                i += 1
+            i += len(quote)
+            continue
+        if ch == "#":
+            end = text.find("\n", i)
+            i = n if end < 0 else end
+            continue
+        if ch in "[{":
+            depth += 1
+            deepest = max(deepest, depth)
+        elif ch in "]}":
+            depth = max(depth - 1, 0)
+        i += 1
+    return deepest
 
 
 def _first_line(exc: Exception) -> str:
@@ -59,10 +115,19 @@ def parse_toml_value(text: str) -> Any:
     stripped = text.strip()
     if stripped == "":
         raise ConfigError("empty value")
+    if len(stripped) > MAX_VALUE_CHARS:
+        raise ConfigError(f"{stripped[:40]!r}...: {len(stripped)} characters; a value holds "
+                          f"at most {MAX_VALUE_CHARS}")
     if any(ch in stripped for ch in "\r\n"):
         raise ConfigError(f"{stripped!r}: the value must be on one line")
+    depth = _bracket_depth(stripped)
+    if depth > MAX_NESTING:
+        raise ConfigError(f"{stripped[:40]!r}...: arrays or inline tables nested {depth} deep; "
+                          f"at most {MAX_NESTING}")
     try:
         return _toml.loads(f"v = {stripped}")["v"]
+    except RecursionError:  # a fallback: _bracket_depth bounds the nesting first
+        raise ConfigError(f"{stripped[:40]!r}...: nested too deeply") from None
     except _toml.TOMLDecodeError:
         if stripped[0] in "[{\"'" or any(ch in stripped for ch in "=[]{}\"'"):
             raise ConfigError(f"cannot parse {stripped!r} as a TOML value") from None

@@ -198,8 +198,9 @@ def eo_response(
     Returns
     -------
     ndarray of complex
-        Response multiplying the incident THz field spectrum; 1 for a thin, matched,
-        loss-free crystal and a delta probe. [-]
+        Response multiplying the incident THz field spectrum. For a thin, matched,
+        loss-free crystal and a delta probe G = 1 and the response is the input transmission
+        t_in = 2 / (1 + n_T), e.g. 0.5 for n_T = 3, not 1. [-]
 
     Notes
     -----

@@ -210,3 +210,48 @@ def test_plot_envelope_contours_is_a_config_error():
 
     with pytest.raises(ConfigError, match=r"contours = 'lines': use 'duration', 'cutoff'"):
         plot_envelope(Figure().subplots(), None, contours="lines")
+
+
+# ---------------------------------------------------------------------------------------------
+# Resource bombs: refused at the boundary at once, never run
+
+
+def test_huge_set_value_is_refused_fast(capsys):
+    import time
+
+    start = time.perf_counter()
+    code = main(["check", str(HERE / "base.toml"), "--set", "laser.energy_uj=" + "1" * 10**7])
+    captured = capsys.readouterr()
+    assert code == 2
+    _check_stderr({"fragment": ["--set laser.energy_uj:", "10000000 characters"]}, captured.err)
+    assert time.perf_counter() - start < 5.0
+
+
+def test_set_nested_10000_deep_is_refused(capsys):
+    deep = "[" * 10000 + "]" * 10000
+    code = main(["check", str(HERE / "base.toml"), "--set", f"laser.energy_uj={deep}"])
+    captured = capsys.readouterr()
+    assert code == 2
+    _check_stderr({"fragment": "--set laser.energy_uj:"}, captured.err)
+    # below the length limit, the nesting is refused by depth
+    deep = "[" * 4000 + "]" * 4000
+    with pytest.raises(ConfigError, match="nested 4000 deep; at most 32"):
+        parse_toml_value(deep)
+
+
+def test_toml_text_nested_deeply_is_refused():
+    with pytest.raises(ConfigError, match=r"x\.toml: arrays or inline tables nested 10000 deep"):
+        parse_toml("a = " + "{ b = " * 10000 + "1" + " }" * 10000, "x.toml")
+    # brackets inside strings and comments are not nesting
+    text = 'a = "' + "[" * 100 + '"  # ' + "{" * 100 + "\nb = '''" + "[" * 100 + "'''\n"
+    assert parse_toml(text, "x.toml")["b"] == "[" * 100
+
+
+def test_toml_file_above_size_limit(tmp_path, monkeypatch):
+    from hcfplan.io import tomlio
+
+    monkeypatch.setattr(tomlio, "MAX_TOML_BYTES", 100)
+    path = tmp_path / "big.toml"
+    path.write_text("# " + "x" * 200 + "\n")
+    with pytest.raises(ConfigError, match=r"big\.toml: 203 bytes; a config holds at most 100"):
+        tomlio.read_toml(path)

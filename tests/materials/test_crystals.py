@@ -282,3 +282,56 @@ def test_every_model_name_of_the_tables_has_an_evaluator():
     """Contract between the loader and the evaluators: the same model names, in order."""
     assert tuple(crystals.OPTICAL_MODELS) == crystal_tables.OPTICAL_MODEL_NAMES
     assert tuple(crystals.THZ_MODELS) == crystal_tables.THZ_MODEL_NAMES
+
+
+# ------------------------------------------------------------------------------------ GaAs
+
+# Published: T. Skauli et al., J. Appl. Phys. 94, 6447 (2003), 22 degC, 0.97-17 um, in the form
+# printed there: n^2 = g0 + sum_j g_j / (lambda_j^-2 - lambda^-2), lambda in um.
+SKAULI_G0 = 5.372514
+SKAULI_TERMS = ((27.83972, 0.4431307), (0.031764, 0.8746453), (0.00143636, 36.9166))
+
+
+def _skauli_index(wavelength_um: np.ndarray) -> np.ndarray:
+    inv2 = wavelength_um ** -2.0
+    return np.sqrt(SKAULI_G0 + sum(g / (pole ** -2.0 - inv2) for g, pole in SKAULI_TERMS))
+
+
+def test_gaas_optical_index_is_skauli_2003():
+    """Published: the Skauli et al. (2003) fit in its printed form; the table holds the same fit
+    in pole form (b_j = g_j lambda_j^2, rounded to 7 digits), so they agree to ~1e-7."""
+    wavelength_um = np.array([0.97, 1.03, 1.55, 2.0, 3.0, 5.0, 10.0, 17.0])
+    n = optical_index(load_crystal("gaas"), _omega(wavelength_um * 1e-6))
+    assert np.allclose(n, _skauli_index(wavelength_um), rtol=2e-7, atol=0)
+    # the value named in the issue: n(1.55 um) = 3.3702 (printed 4 decimals)
+    assert n[2] == pytest.approx(3.3702, abs=5e-5)
+
+
+def test_gaas_fit_range_is_published_range():
+    """Published: validity 0.97-17 um (Skauli et al. 2003); no warning inside, one outside."""
+    gaas = load_crystal("gaas")
+    with warnings.catch_warnings():
+        warnings.simplefilter("error", ValidityWarning)
+        optical_index(gaas, _omega(np.array([0.98e-6, 16.9e-6])))
+    with pytest.warns(ValidityWarning, match="GaAs optical index"):
+        optical_index(gaas, _omega(0.9e-6))
+
+
+def test_gaas_thz_permittivity_limits_of_the_fit():
+    """Derived [C] from Skauli et al. (2003): lambda -> infinity gives eps_s = 12.82, the same
+    limit without the lattice term eps_inf = 10.86, lattice pole 36.9166 um = 8.12 THz (two
+    printed decimals: +-0.005). Room-temperature eps_s ~ 12.9, eps_inf ~ 10.9 are from memory
+    (Blakemore, J. Appl. Phys. 53, R123 (1982)) and not tested."""
+    gaas = load_crystal("gaas")
+    assert gaas.thz.eps_inf == pytest.approx(10.86, abs=0.005)
+    assert thz_permittivity(gaas, TWO_PI * 1e9).real == pytest.approx(12.82, abs=0.005)
+    assert gaas.thz.oscillators[0].omega / TWO_PI / 1e12 == pytest.approx(8.12, abs=0.005)
+
+
+def test_gaas_to_frequency_against_hass_henvis():
+    """Published: GaAs TO 273.3 +- 3 /cm (8.19 THz) at liquid-He temperature, M. Hass and
+    B. W. Henvis, J. Phys. Chem. Solids 23, 1099 (1962) (journal from memory); the model's
+    absorption peak lies within the stated +-3 /cm (it is a room-temperature fit, 270.9 /cm)."""
+    peaks = _absorption_maxima("gaas", 7e12, 9e12)
+    assert peaks.size == 1
+    assert abs(peaks[0] / (100 * c) - 273.3) <= 3.0

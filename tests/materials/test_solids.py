@@ -94,9 +94,37 @@ def test_kerr_values_as_published(name, n2, wavelength):
 
 def test_strength_in_pascal_and_marked():
     silica = solids.load_material("fused_silica")
-    # from memory: ~49 MPa for fused silica; the table flags it as not verified
-    assert silica.modulus_of_rupture.value == pytest.approx(49e6)
-    assert silica.modulus_of_rupture.from_memory
+    # published value: modulus of rupture 7,000 psi = 48.3 MPa (fused-quartz maker design data,
+    # h-baumbachglass.co.uk quartz-properties page), the lowest of the published values read
+    # (48.3-67 MPa). Moved from 49 MPa (from memory) by the data correction: the conservative
+    # verified value is used for window thickness, so the table no longer flags it from memory.
+    # Tolerance: half a unit of the printed last digit (0.05 MPa).
+    assert silica.modulus_of_rupture.value == pytest.approx(48.3e6, abs=0.05e6)
+    assert not silica.modulus_of_rupture.from_memory
+    assert "48.3" in silica.modulus_of_rupture.source
+
+
+def test_strength_is_not_above_the_published_values():
+    # published values: 48.3 MPa (7,000 psi, fused-quartz maker design data) and 48.9 MPa
+    # (P. J. MacQueen, "Windows thickness", CCD-world mailing list, 1996), flexural strength
+    # 67 MPa (materials compilation, makeitfrom.com): the window check uses the lowest
+    strength = solids.load_material("fused_silica").modulus_of_rupture.value
+    assert strength <= min(48.3e6, 48.9e6, 67e6)
+
+
+@pytest.mark.parametrize(
+    ("name", "n2", "tolerance"),
+    [("mgf2_ordinary", 7.6e-21, 0.05e-21), ("sapphire_ordinary", 2.9e-20, 0.05e-20)],
+)
+def test_crystal_window_kerr_values_as_published(name, n2, tolerance):
+    # published value: R. Adair, L. L. Chase, S. A. Payne, Phys. Rev. B 39, 3337 (1989),
+    # ordinary ray, 1.064 um, 3 ns, three-wave mixing: MgF2 7.6e-21, sapphire 2.9e-20 m^2/W
+    # (two printed digits: tolerance half a unit of the last digit)
+    material = solids.load_material(name)
+    assert material.n2.value == pytest.approx(n2, abs=tolerance)
+    assert material.n2.wavelength == pytest.approx(1064e-9)
+    assert material.n2.pulse_duration == pytest.approx(3e-9)
+    assert not material.n2.from_memory
 
 
 def test_names_and_records():

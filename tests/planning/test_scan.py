@@ -531,3 +531,19 @@ def test_worker_server_starts_early_with_the_worker_environment(workers, expecte
     out = subprocess.run([sys.executable, "-c", _SERVER_CHECK, str(workers)], env=env,
                          check=True, capture_output=True, text=True, timeout=120).stdout.split()
     assert out == expected
+
+
+def test_scan_above_point_limit_is_refused_fast(fast):
+    from hcfplan.planning.scan.plan import MAX_SCAN_POINTS
+
+    start = time.perf_counter()
+    over = MAX_SCAN_POINTS + 1
+    with pytest.raises(ConfigError, match=rf"--vary gas.pressure_bar=1:2:{over}: COUNT = {over}"):
+        parse_vary(f"gas.pressure_bar=1:2:{over}")
+    values = ",".join(str(1 + i * 1e-4) for i in range(over))
+    with pytest.raises(ConfigError, match=rf"{over} values exceed the limit"):
+        parse_vary(f"gas.pressure_bar={values}")
+    with pytest.raises(ConfigError, match=r"\(101\) x laser.energy_uj \(100\): 10100 points"):
+        plan_scan(fast, [parse_vary("gas.pressure_bar=1:2:101"),
+                         parse_vary("laser.energy_uj=100:200:100")])
+    assert time.perf_counter() - start < 5.0

@@ -12,7 +12,12 @@ from hcfplan.constants import c, epsilon_0
 from hcfplan.errors import ConfigError
 from hcfplan.materials.crystals import load_crystal
 from hcfplan.numerics.grid import Grid
-from hcfplan.thz.detection import EoDetector, phase_matching_integral, phase_matching_map
+from hcfplan.thz.detection import (
+    EoDetector,
+    eo_response,
+    phase_matching_integral,
+    phase_matching_map,
+)
 from hcfplan.thz.generation import REFERENCE_AREA, REFERENCE_D_EFF, thz_estimate
 from hcfplan.thz.measured import thz_from_measured_spectrum
 from hcfplan.thz.measures import thz_cutoff
@@ -305,6 +310,15 @@ def test_thick_mismatched_crystal_lowers_cutoff():
 
 
 # -------------------------------------------------------------------------------- detection
+
+
+def test_eo_response_of_thin_matched_crystal_is_input_transmission(thin):
+    """Analytic: a thin, velocity-matched, loss-free crystal (n_T = n_g = 3) and a delta probe
+    give G = 1, so the EO response is the input Fresnel transmission t_in = 2 / (1 + n_T) = 0.5
+    (normal-incidence amplitude transmission), not 1."""
+    Omega = TWO_PI * np.array([0.5e12, 2e12, 5e12])
+    response = eo_response(thin, 10e-6, Omega, TWO_PI * c / 1.03e-6)
+    assert np.allclose(response, 0.5, rtol=1e-12, atol=1e-12)
 
 
 def test_detection_with_ideal_detector_applies_probe_gate(thin):

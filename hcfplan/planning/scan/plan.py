@@ -18,6 +18,14 @@ from typing import Any
 from hcfplan.errors import ConfigError
 from hcfplan.io.results import json_ready
 
+#: Most points one scan may hold: a COUNT, a value list, or the product of two of them. Each
+#: point is validated and keyed before anything runs and each runs a full chain, so a larger
+#: scan is a typing slip (``1:2:1000000000``) rather than a plan; it is refused at once
+#: (common practice, no source).
+MAX_SCAN_POINTS = 10_000
+#: Longest ``--vary`` argument. [characters]
+MAX_VARY_CHARS = 100_000
+
 
 @dataclass(frozen=True)
 class Vary:
@@ -82,6 +90,9 @@ def _range_values(path: str, text: str, kind: str, option: str) -> tuple:
     if len(parts) != 3 or count < 1 or not (math.isfinite(start) and math.isfinite(stop)):
         raise ConfigError(f"{option} {path}={text}: expected START:STOP:COUNT with finite "
                           "START, STOP and COUNT >= 1")
+    if count > MAX_SCAN_POINTS:
+        raise ConfigError(f"{option} {path}={text}: COUNT = {count} exceeds the limit of "
+                          f"{MAX_SCAN_POINTS} points per scan")
     if kind not in ("float", "int"):
         raise ConfigError(f"{option} {path}: a START:STOP:COUNT range needs a numeric key "
                           f"({path} is {kind}); give a comma list instead")
@@ -103,6 +114,9 @@ def parse_vary(text: str, option: str = "--vary") -> Vary:
     ``section.key=a,b,c`` (any key). Values are parsed as TOML, like ``--set``."""
     from hcfplan.io.tomlio import parse_toml_value
 
+    if len(text) > MAX_VARY_CHARS:
+        raise ConfigError(f"{option} {text[:40]!r}...: {len(text)} characters; at most "
+                          f"{MAX_VARY_CHARS}")
     if "=" not in text:
         raise ConfigError(f"{option} {text!r}: expected section.key=START:STOP:COUNT or "
                           "section.key=a,b,c")
@@ -114,6 +128,9 @@ def parse_vary(text: str, option: str = "--vary") -> Vary:
     items = [s.strip() for s in spec.split(",")]
     if not spec or any(not s for s in items):
         raise ConfigError(f"{option} {path}={spec!r}: empty value in the list")
+    if len(items) > MAX_SCAN_POINTS:
+        raise ConfigError(f"{option} {path}=...: {len(items)} values exceed the limit of "
+                          f"{MAX_SCAN_POINTS} points per scan")
     try:
         return Vary(path, tuple(parse_toml_value(s) for s in items))
     except ValueError as exc:
@@ -153,6 +170,11 @@ def plan_scan(config_path: str | Path, varies: list[Vary] | tuple[Vary, ...],
         raise ConfigError(f"--vary: give one or two keys, got {len(varies)}")
     if len(varies) == 2 and varies[0].key == varies[1].key:
         raise ConfigError(f"--vary {varies[0].key}: the same key is given twice")
+    total = math.prod(len(v.values) for v in varies)
+    if total > MAX_SCAN_POINTS:
+        counts = " x ".join(f"{v.key} ({len(v.values)})" for v in varies)
+        raise ConfigError(f"--vary {counts}: {total} points exceed the limit of "
+                          f"{MAX_SCAN_POINTS} points per scan")
     path = Path(config_path)
     raw = read_toml(path)
     config_from_mapping(raw, base_dir=path.parent, overrides=overrides,
