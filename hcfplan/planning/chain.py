@@ -97,6 +97,9 @@ def run_chain(config, *, progress: Callable[[float, float, int], None] | None = 
 
     fixed = config.grid.points is not None or config.grid.time_window is not None
     chain, convergence = refine_until_converged(run_once, fixed)
+    with collect_warnings() as lines, quiet_validity_of_materials():
+        chain = _with_thz(config, chain)  # on the accepted grid only, not on each attempt
+    caught += lines
     extra = _grid_notes(chain, caught)
     grid, prop = chain.grid, chain.propagation
     band = light_band(grid.frequency, np.abs(prop.field_out_spectrum) ** 2)
@@ -158,19 +161,28 @@ def _run_chain(config, progress, workers, grid=None) -> ChainResult:
                             workers=workers)
     result = propagate(field0, grid, waveguide, gas=medium, options=options, progress=progress)
     warnings = list(report["warnings"]) + list(result.warnings)
-    compression = thz = pm_map = None
+    compression = None
     if result.success:
         compression = compress_output(config, grid, result.field_out_spectrum, peak_in)
         warnings += _compression_warnings(compression)
-        thz = thz_output(config, grid, compression)
-        if thz is not None:
-            warnings += list(thz.warnings)
-            pm_map = phase_matching_output(config, thz)
     return ChainResult(config=config, grid=grid, waveguide=waveguide, medium=medium,
                        coupling_efficiency=efficiency, launched_energy=energy,
                        input_peak_power=peak_in, propagation=result, compression=compression,
-                       thz=thz, phase_matching=pm_map, fiber_report=report,
+                       thz=None, phase_matching=None, fiber_report=report,
                        warnings=tuple(dict.fromkeys(warnings)))
+
+
+def _with_thz(config, chain: ChainResult) -> ChainResult:
+    """``chain`` with its THz estimate and phase-matching map (none without a compressed
+    pulse or a ``[thz]`` section); the THz warnings join the chain's."""
+    if chain.compression is None:
+        return chain
+    thz = thz_output(config, chain.grid, chain.compression)
+    if thz is None:
+        return chain
+    return dataclasses.replace(chain, thz=thz, phase_matching=phase_matching_output(config, thz),
+                               warnings=tuple(dict.fromkeys(list(chain.warnings)
+                                                            + list(thz.warnings))))
 
 
 # ---------------------------------------------------------------------------------------------
