@@ -349,7 +349,9 @@ def thz_cutoff_text(thz: dict, key: str = "cutoff_hz") -> str:
     limit = thz.get("model_limit_hz")
     if limit is None:
         return "-"
-    return f"above the model's range (> {fmt(limit, 1e12, 3)} THz)"
+    from hcfplan.planning.thz_range import beyond_model_text
+
+    return beyond_model_text(limit)
 
 
 #: The verdict code of a THz number left out because it lies beyond the crystal model.
@@ -454,8 +456,8 @@ def print_limits(report: dict, warnings: bool = True) -> None:
 
 
 def _print_envelope_check(check, result=None) -> None:
-    from hcfplan.planning.envelope import estimate_cutoff_text
     from hcfplan.planning.envelope_check import UNCHECKED_NOTE, point_phrases
+    from hcfplan.planning.thz_range import estimate_cutoff_text
 
     limit = math.inf if result is None else result.thz_model_limit
 

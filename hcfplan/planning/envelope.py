@@ -19,8 +19,9 @@ cutoff of that duration (:func:`thz_cutoff_gaussian_estimate`). Both contours ar
 the crystal's phase matching can move the real values far from them. The THz cutoff is a
 cutoff only within the crystal model's range (``thz_model_limit``: the generation and detection
 crystal tables' stated THz validity, as :func:`hcfplan.thz.measures.model_limit`); above it an
-estimate is reported as "above the model's range (> X THz)" (:func:`estimate_cutoff_text`),
-null in the JSON, and not drawn as a contour.
+estimate is reported as "above the model's range (> X THz)"
+(:func:`hcfplan.planning.thz_range.estimate_cutoff_text`), null in the JSON, and not drawn as a
+contour.
 """
 
 from __future__ import annotations
@@ -41,7 +42,7 @@ from hcfplan.planning.reports.limits_gas import (
     gas_density_at,
     weighted_rates,
 )
-from hcfplan.planning.thz_range import beyond_model_text, estimate_cutoff_text, within_model
+from hcfplan.planning.thz_range import beyond_model_text, within_model
 from hcfplan.planning.validity import quiet_validity
 
 #: Default energy axis: this range around the configured energy, log-spaced.
@@ -57,9 +58,8 @@ RATING_OVERSHOOT = 1.2
 BETA2_REL_WIDTH = 1e-2
 #: Chebyshev nodes at which a mixture's density is evaluated along the pressure axis.
 MIXTURE_NODES = 16
-__all__ = ["ESTIMATE_KIND", "ESTIMATE_NOTE", "EnvelopeResult", "beyond_model_text",
-           "envelope_json", "envelope_map", "estimate_cutoff_text", "thz_cutoff_gaussian_estimate",
-           "thz_model_range", "within_model"]
+__all__ = ["ESTIMATE_KIND", "ESTIMATE_NOTE", "EnvelopeResult", "envelope_json",
+           "envelope_map", "thz_cutoff_gaussian_estimate", "thz_model_range"]
 #: What the duration and THz contours are (JSON ``envelope.estimate_kind``).
 ESTIMATE_KIND = "spm_only"
 ESTIMATE_NOTE = ("SPM-only estimates: compressed duration = input FWHM / SPM broadening factor "

@@ -1,4 +1,4 @@
-"""Texts and masks for THz cutoffs against the crystal model's range (issue #18).
+"""Texts and masks for THz cutoffs against the crystal model's range.
 
 A THz cutoff is a result only within the range the crystal tables state for their THz model
 (:func:`hcfplan.thz.measures.model_limit`); beyond it the text says "above the model's range

@@ -147,14 +147,14 @@ def test_plot_envelope_draws(mapped):
 
 
 def test_thz_cutoff_only_within_the_crystal_model():
-    """Issue #18: the GaP model stops at 20 THz (its crystal table); estimates above are no
+    """The GaP model stops at 20 THz (its crystal table); estimates above are no
     cutoffs: null in the JSON, printed as "above the model's range", no contour drawn."""
     import matplotlib
 
     matplotlib.use("Agg")
     import matplotlib.pyplot as plt
 
-    from hcfplan.planning.envelope import estimate_cutoff_text
+    from hcfplan.planning.thz_range import estimate_cutoff_text
     from hcfplan.plotting.envelope import plot_envelope
 
     config = load_config(CONFIGS["yb_capillary_mixture"])
