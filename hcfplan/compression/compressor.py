@@ -18,7 +18,7 @@ Definitions used throughout
   and the trim by an ideal polynomial phase; the fixed phase and the band clipping stay. Their
   reported GDD/TOD, like those of the chirped-mirror result, are the totals of the applied
   phase (fixed + compressor) at the pump (``grid.omega_pump``).
-* Main lobe, pre- and post-pulse follow :func:`hcfplan.pulse.metrics.main_lobe`; every metric
+* Main lobe, pre- and post-pulse follow :func:`hcfplan.pulse.lobes.main_lobe`; every metric
   is measured on the band-limited interpolant of the envelope (:mod:`hcfplan.pulse.metrics`),
   and the peak-power search uses the band-limited peak too.
 

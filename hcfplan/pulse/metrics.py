@@ -50,11 +50,7 @@ import numpy as np
 from hcfplan.errors import ConfigError
 from hcfplan.numerics.grid import Grid
 from hcfplan.pulse import bandlimited
-from hcfplan.pulse.lobes import (  # noqa: F401 - re-exported: metrics is their usual home
-    MAIN_LOBE_FLOOR,
-    main_lobe,
-    pre_post_pulse_energy,
-)
+from hcfplan.pulse.lobes import main_lobe, pre_post_pulse_energy
 
 Extent = Literal["contiguous", "outermost"]
 

@@ -9,7 +9,7 @@ from scipy.special import erf, erfc
 from hcfplan.constants import c
 from hcfplan.errors import ConfigError
 from hcfplan.numerics.grid import Grid
-from hcfplan.pulse import metrics
+from hcfplan.pulse import lobes, metrics
 from hcfplan.pulse.fields import pulse_field
 from hcfplan.pulse.shapes import pulse_shape
 
@@ -162,10 +162,10 @@ def test_main_lobe_clean_gaussian() -> None:
     # analytic: the lobe ends at the 1e-3 floor, leaving erfc(sqrt(ln 1000)) outside
     grid = _grid()
     power = _gaussian_power(grid.time, 60e-15)
-    t_lo, t_hi, fraction = metrics.main_lobe(grid.time, power)
+    t_lo, t_hi, fraction = lobes.main_lobe(grid.time, power)
     assert fraction > 0.999
     # one boundary sample at <= 1e-3 of the peak: tolerance floor * dt / energy per side
-    sample_bound = 2 * metrics.MAIN_LOBE_FLOOR * grid.dt / (np.sum(power) * grid.dt)
+    sample_bound = 2 * lobes.MAIN_LOBE_FLOOR * grid.dt / (np.sum(power) * grid.dt)
     assert abs(fraction - erf(np.sqrt(np.log(1000.0)))) <= sample_bound
     assert t_lo == pytest.approx(-t_hi, abs=grid.dt / 2)
 
@@ -180,10 +180,10 @@ def test_main_lobe_with_satellite() -> None:
     energy_main = np.sum(main) * grid.dt
     energy_total = np.sum(power) * grid.dt
     inside = erf(np.sqrt(np.log(1000.0)))
-    _, _, fraction = metrics.main_lobe(grid.time, power)
-    pre, post = metrics.pre_post_pulse_energy(grid.time, power)
+    _, _, fraction = lobes.main_lobe(grid.time, power)
+    pre, post = lobes.pre_post_pulse_energy(grid.time, power)
     # tolerance: one boundary sample at <= floor * peak on each side
-    tol = metrics.MAIN_LOBE_FLOOR * 1e9 * grid.dt
+    tol = lobes.MAIN_LOBE_FLOOR * 1e9 * grid.dt
     assert fraction * energy_total == pytest.approx(inside * energy_main, abs=2 * tol)
     assert pre == pytest.approx(0.5 * erfc(np.sqrt(np.log(1000.0))) * energy_main, abs=tol)
     expected_post = 0.5 * erfc(np.sqrt(np.log(1000.0))) * energy_main + np.sum(satellite) * grid.dt
@@ -196,7 +196,7 @@ def test_main_lobe_stops_at_minimum() -> None:
     # invariant: overlapping peaks, the lobe ends at the sample of the local minimum between them
     x = np.linspace(-100, 100, 2001)
     y = _gaussian_power(x, 20.0, -10.0) + 0.5 * _gaussian_power(x, 20.0, 15.0)
-    _, t_hi, _ = metrics.main_lobe(x, y)
+    _, t_hi, _ = lobes.main_lobe(x, y)
     i_min = 900 + int(np.argmin(y[900:1150]))
     assert t_hi == pytest.approx(x[i_min])
 
