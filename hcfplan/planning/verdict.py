@@ -69,8 +69,7 @@ otherwise), :func:`verdict_of_chain` (the same as a :class:`Verdict`), :func:`ve
 was written with), :func:`verdict_of_record` (a scan point, compare side, ``--spread`` corner
 or recommend candidate; ``run_failed`` for a point without a summary) and
 :func:`verdict_of_thz_report` (the ``thz`` command's estimate from a measured spectrum). All
-run the same checks on the same numbers, so a stored summary gives the verdict it was written
-with.
+run the same checks on the same numbers: a stored summary gives the verdict it was written with.
 """
 
 from __future__ import annotations
@@ -372,19 +371,25 @@ _DURATION_NAMES = {"compressed.fwhm_s": "compressed FWHM",
                    "output.transform_limit_fwhm_s": "transform-limited FWHM of the output"}
 
 
-def _check_resolution(flat: dict, measured: dict) -> list[Reason]:
+def _under_sampled(flat: dict) -> tuple[float, dict[str, float]]:
+    """``grid.dt_s`` and the FWHMs (:data:`UNRESOLVED_GROUPS` keys) spanning fewer than
+    ``MIN_POINTS_PER_FWHM`` steps of it (none without a step)."""
     dt = _num(flat, "grid.dt_s")
-    found = {k: v for k, v in ((k, _num(flat, k)) for k in _DURATION_NAMES)
-             if v is not None and v > 0}
-    if dt is None or dt <= 0 or not found:
+    if dt is None or dt <= 0:
+        return math.nan, {}
+    return dt, {k: f for k in UNRESOLVED_GROUPS
+                if (f := _num(flat, k)) is not None and 0 < f < MIN_POINTS_PER_FWHM * dt}
+
+
+def _check_resolution(flat: dict, measured: dict) -> list[Reason]:
+    dt, short = _under_sampled(flat)
+    if not short:
         return []
-    key = min(found, key=found.__getitem__)
-    samples = found[key] / dt
-    if samples >= MIN_POINTS_PER_FWHM:
-        return []
+    key = min(short, key=short.__getitem__)
     return [Reason("unresolved_pulse",
-                   f"{_DURATION_NAMES[key]} {found[key] * 1e15:.3g} fs spans {samples:.1f} grid "
-                   f"steps of {dt * 1e15:.3g} fs (at least {MIN_POINTS_PER_FWHM:g} needed)")]
+                   f"{_DURATION_NAMES[key]} {short[key] * 1e15:.3g} fs spans "
+                   f"{short[key] / dt:.1f} grid steps of {dt * 1e15:.3g} fs (at least "
+                   f"{MIN_POINTS_PER_FWHM:g} needed)")]
 
 
 def _check_thz(flat: dict, measured: dict) -> list[Reason]:
@@ -457,14 +462,9 @@ def _verdict(flat: dict, measured: dict) -> Verdict:
 
 
 def unresolved_fields(flat: dict) -> tuple[str, ...] | None:
-    """The keys ``unresolved_pulse`` voids in the flat summary ``flat``: the groups of
-    :data:`UNRESOLVED_GROUPS` whose FWHM spans fewer than ``MIN_POINTS_PER_FWHM`` steps of
-    ``grid.dt_s``; None where the summary does not tell (no step, or no pulse found short)."""
-    dt = _num(flat, "grid.dt_s")
-    if dt is None or dt <= 0:
-        return None
-    short = [key for key in UNRESOLVED_GROUPS
-             if (fwhm := _num(flat, key)) is not None and 0 < fwhm < MIN_POINTS_PER_FWHM * dt]
+    """The keys ``unresolved_pulse`` voids in ``flat``: the :data:`UNRESOLVED_GROUPS` of the
+    under-sampled pulses; None where the summary does not tell (no step, no short pulse)."""
+    short = _under_sampled(flat)[1]
     if not short:
         return None
     return tuple(dict.fromkeys(k for key in short for k in UNRESOLVED_GROUPS[key]))
