@@ -152,26 +152,30 @@ def pressure_notes(cfg) -> list[str]:
     if cfg.gas is None:
         return []
     notes = []
-    p, rated = cfg.gas.pressure, cfg.cell.rated_pressure
+    gas = cfg.gas  # a gradient: its higher end
+    p, rated = gas.highest_pressure, cfg.cell.rated_pressure
+    key = "gas.pressure_bar" if not gas.is_gradient else (
+        "gas.exit_pressure_bar" if gas.exit_pressure >= gas.entrance_pressure
+        else "gas.entrance_pressure_bar")
     fraction = cfg.limits.rating_fraction
     if rated is not None and p > rated:
         notes.append(
-            f"gas.pressure_bar = {p / 1e5:.4g} exceeds cell.rated_pressure_bar = "
+            f"{key} = {p / 1e5:.4g} exceeds cell.rated_pressure_bar = "
             f"{rated / 1e5:.4g}: the fill is above the cell maker's rating; the maker's rating "
             "of every part and the local pressure-equipment codes come first (see the "
             "cautions)")
     elif rated is not None and p > fraction * rated:
         notes.append(
-            f"gas.pressure_bar = {p / 1e5:.4g} is above limits.rating_fraction x "
+            f"{key} = {p / 1e5:.4g} is above limits.rating_fraction x "
             f"cell.rated_pressure_bar = {fraction:g} x {rated / 1e5:.4g} = "
             f"{fraction * rated / 1e5:.4g} bar: less margin below the cell maker's rating than "
             "the limits ask; the maker's rating and the local pressure-equipment codes come "
             "first (see the cautions)")
     if p >= IMPLAUSIBLE_FILL:
         notes.append(
-            f"gas.pressure_bar = {p / 1e5:.4g}: a fill of hundreds of bar is far beyond "
+            f"{key} = {p / 1e5:.4g}: a fill of hundreds of bar is far beyond "
             f"gas-filled hollow-core fiber practice; did you mean mbar "
-            f"(gas.pressure_bar = {p / 1e8:.4g})?")
+            f"({key} = {p / 1e8:.4g})?")
     return notes
 
 

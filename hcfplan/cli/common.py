@@ -45,7 +45,7 @@ def spread_plan(cfg, text: str | None, overrides: list[str]):
     """(spec, corner tasks) for ``--spread``, validated before any run; None without it."""
     if text is None:
         return None
-    from hcfplan.planning.spread import corner_tasks, parse_spread
+    from hcfplan.planning.spread import corner_tasks, for_fill, parse_spread
 
     if text.strip() == "default":
         s = cfg.spread
@@ -53,7 +53,7 @@ def spread_plan(cfg, text: str | None, overrides: list[str]):
         if cfg.gas is not None:
             items.append(f"pressure={s.pressure_percent}%")
         text = ",".join(items)
-    spec = parse_spread(text)
+    spec = for_fill(parse_spread(text), cfg)  # a gradient: its exit pressure
     return spec, corner_tasks(cfg, spec, overrides, gas_dirs())
 
 

@@ -150,7 +150,12 @@ def print_fiber(r: dict) -> None:
                      "PUMP IN A RESONANCE BAND" if r["fiber.pump_in_resonance_band"] else ""))
     if "gas.pressure_pa" in r:
         comps = " + ".join(f"{frac:g} {name}" for name, frac in r["gas.components"])
-        rows.insert(1, ("gas", f"{comps} at {r['gas.pressure_pa'] / 1e5:g} bar",
+        fill = f"{comps} at {r['gas.pressure_pa'] / 1e5:g} bar"
+        if r.get("gas.fill") == "gradient":
+            fill = (f"{comps}, gradient {r['gas.entrance_pressure_pa'] / 1e5:g} -> "
+                    f"{r['gas.exit_pressure_pa'] / 1e5:g} bar (mean "
+                    f"{r['gas.pressure_pa'] / 1e5:.4g} bar, used by the numbers below)")
+        rows.insert(1, ("gas", fill,
                         f"{r['gas.temperature_k']:g} K, n2 {r['gas.n2_m2_per_w']:.3g} m^2/W"))
     print_rows(rows)
     echo(f"  note: {r['estimate.note']}")
@@ -510,7 +515,7 @@ def print_envelope(result, plot: Path | None, check=None) -> None:
     zdp = result.zero_dispersion_pressure
     rows = [
         ("configured point", f"{result.config_energy * 1e6:.4g} uJ at "
-         f"{result.config_pressure / 1e5:.4g} bar", ""),
+         f"{result.config_pressure / 1e5:.4g} bar", result.pressure_axis),
         ("self-focusing limit", f"{result.self_focusing_max_energy[k] * 1e6:.4g} uJ at this "
          "pressure", f"where P_cr/P = {result.self_focusing_margin:g} (the required margin)"),
         ("ionisation limit", f"{result.ionization_max_energy[k] * 1e6:.4g} uJ",

@@ -234,7 +234,8 @@ def recommend_command(
         None, "--target-thz", help="With --goal thz_cutoff: the smallest pressure (or energy) "
         "whose THz cutoff reaches this value."),
     vary: Optional[list[str]] = typer.Option(  # noqa: UP007, UP045
-        None, "--vary", help="Searched range: gas.pressure_bar=LO:HI or laser.energy_uj=LO:HI; "
+        None, "--vary", help="Searched range: gas.pressure_bar=LO:HI (a gradient fill: "
+        "gas.exit_pressure_bar=LO:HI, entrance fixed) or laser.energy_uj=LO:HI; "
         "give both for a joint search (default: pressure from a tenth of the fill to the cell "
         "rating, or 3x the fill; the pressure stays at or below limits.rating_fraction of the "
         "rating)."),

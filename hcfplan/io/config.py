@@ -155,9 +155,19 @@ def _build_gas(g: dict, present: set[str], table_dirs: tuple[Path, ...]) -> GasS
         components = ((g["species"], 1.0),)
     else:
         components = tuple(g["mixture"].items())
-    return GasSpec(components=components, pressure=units.to_si(g["pressure_bar"], "bar"),
+    ends: tuple[float | None, float | None] = (None, None)
+    if g["pressure_bar"] is not None:
+        pressure = units.to_si(g["pressure_bar"], "bar")
+    else:  # a gradient (crosschecks.check_fill_pressure); the mean is the equivalent fill
+        from hcfplan.propagation.profile import mean_pressure
+
+        ends = (units.to_si(g["entrance_pressure_bar"], "bar"),
+                units.to_si(g["exit_pressure_bar"], "bar"))
+        pressure = mean_pressure(*ends)
+    return GasSpec(components=components, pressure=pressure,
                    temperature=g["temperature_k"], equation_of_state=g["equation_of_state"],
-                   ionization_model=g["ionization_model"], table_dirs=table_dirs)
+                   ionization_model=g["ionization_model"], table_dirs=table_dirs,
+                   entrance_pressure=ends[0], exit_pressure=ends[1])
 
 
 def _build_specs(r: dict, present: set[str], base: Path, extra_gas_dirs) -> dict:

@@ -76,6 +76,32 @@ def check_gas(resolved: dict, present: set[str]) -> None:
         raise ConfigError("gas.species and gas.mixture: give one of them, not both")
     if gas["species"] is None and gas["mixture"] is None:
         raise ConfigError("gas.species: required (or gas.mixture)")
+    check_fill_pressure(gas)
+
+
+def check_fill_pressure(gas: dict) -> None:
+    """A static fill (``pressure_bar``) or a gradient (``entrance_pressure_bar`` and
+    ``exit_pressure_bar``, not both ends 0), never both."""
+    static, ends = gas["pressure_bar"], (gas["entrance_pressure_bar"], gas["exit_pressure_bar"])
+    given = [f"gas.{key}" for key, value in zip(("entrance_pressure_bar", "exit_pressure_bar"),
+                                                ends, strict=True) if value is not None]
+    if static is not None and given:
+        raise ConfigError(f"gas.pressure_bar and {' and '.join(given)}: give a static fill "
+                          "(pressure_bar) or a gradient (entrance_pressure_bar and "
+                          "exit_pressure_bar), not both")
+    if static is not None:
+        return
+    if not given:
+        raise ConfigError("gas.pressure_bar: required key is missing (or give "
+                          "gas.entrance_pressure_bar and gas.exit_pressure_bar for a "
+                          "gradient fill)")
+    if len(given) == 1:
+        other = "exit" if given[0].endswith("entrance_pressure_bar") else "entrance"
+        raise ConfigError(f"gas.{other}_pressure_bar: required with {given[0]} (a gradient "
+                          "fill needs the pressure at both ends)")
+    if ends[0] == 0 and ends[1] == 0:
+        raise ConfigError("gas.entrance_pressure_bar = 0, gas.exit_pressure_bar = 0: a "
+                          "gradient fill needs gas at one end at least (> 0)")
 
 
 def check_compressor(resolved: dict) -> None:

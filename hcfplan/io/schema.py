@@ -91,7 +91,17 @@ SCHEMA: dict[str, dict[str, Key]] = {
         "species": Key("str", None, "Fill gas (a table name such as Ar); or use mixture."),
         "mixture": Key("fractions", None, "Gas mixture by mole fraction, e.g. { He = 0.7, "
                        "Ar = 0.3 }; fractions sum to 1."),
-        "pressure_bar": Key(F, REQUIRED, "Static fill pressure (absolute).", 0.0, 1000.0),
+        "pressure_bar": Key(F, None, "Static fill pressure (absolute); required unless the "
+                            "fill is a gradient (entrance_pressure_bar and exit_pressure_bar).",
+                            0.0, 1000.0),
+        "entrance_pressure_bar": Key(F, None, "Gradient fill: absolute pressure at the fiber "
+                                     "entrance (0: evacuated); give with exit_pressure_bar, "
+                                     "instead of pressure_bar. Profile p(z) = sqrt(p0^2 + "
+                                     "(pL^2 - p0^2) z/L) (viscous flow).", 0.0, 1000.0,
+                                     low_open=False),
+        "exit_pressure_bar": Key(F, None, "Gradient fill: absolute pressure at the fiber exit "
+                                 "(0: evacuated); give with entrance_pressure_bar.", 0.0,
+                                 1000.0, low_open=False),
         "temperature_k": Key(F, 293.15, "Gas temperature.", 1.0, 2000.0),
         "equation_of_state": Key("choice", "coolprop", "Density model.",
                                  choices=("coolprop", "ideal")),

@@ -7,7 +7,7 @@ loading and travel here as arrays (:class:`MeasuredCurve`), so a run needs no fi
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import Any
 
@@ -65,12 +65,51 @@ class FiberSpec:
 
 @dataclass(frozen=True)
 class GasSpec:
+    """The fill: a static pressure, or a gradient between the entrance and exit pressures.
+
+    For a gradient ``pressure`` is the mean of the viscous-flow profile over the fiber
+    (:func:`hcfplan.propagation.profile.mean_pressure`), the equivalent static fill of the
+    first-look estimates; the solver follows the profile itself.
+    """
+
     components: tuple[tuple[str, float], ...]  #: (table name, mole fraction)
-    pressure: float  #: [Pa]
+    pressure: float  #: static fill, or the mean of the gradient's profile [Pa]
     temperature: float  #: [K]
     equation_of_state: str
     ionization_model: str
     table_dirs: tuple[Path, ...]
+    entrance_pressure: float | None = None  #: gradient only: at the fiber entrance [Pa]
+    exit_pressure: float | None = None  #: gradient only: at the fiber exit [Pa]
+
+    @property
+    def is_gradient(self) -> bool:
+        return self.entrance_pressure is not None
+
+    @property
+    def highest_pressure(self) -> float:
+        """Highest pressure anywhere in the cell (the rating and window loads). [Pa]"""
+        if not self.is_gradient:
+            return self.pressure
+        return max(self.entrance_pressure, self.exit_pressure)
+
+    @property
+    def entrance_side_pressure(self) -> float:
+        """Pressure at the fiber entrance and in the gas path before it. [Pa]"""
+        return self.entrance_pressure if self.is_gradient else self.pressure
+
+    def with_exit_pressure(self, exit_pressure: float) -> GasSpec:
+        """The same gradient with another exit pressure (the mean follows). [Pa]"""
+        from hcfplan.propagation.profile import mean_pressure
+
+        mean = mean_pressure(self.entrance_pressure, exit_pressure)
+        return replace(self, exit_pressure=exit_pressure, pressure=mean)
+
+    def with_pressure(self, pressure: float) -> GasSpec:
+        """The fill at another pressure: a static fill's pressure, or a gradient's exit
+        pressure (entrance fixed). [Pa]"""
+        if self.is_gradient:
+            return self.with_exit_pressure(pressure)
+        return replace(self, pressure=pressure)
 
 
 @dataclass(frozen=True)

@@ -64,6 +64,44 @@ def build_waveguide(fiber, medium, omega0: float):
                               raman_tau2=fiber.raman_tau2, mode_area=fiber.effective_area)
 
 
+def build_fill_segments(config, omega0: float, step: float | None = None):
+    """The stretches of uniform fill of a gradient (None for a static fill or no gas).
+
+    Each stretch of :func:`hcfplan.propagation.profile.pressure_segments` gets the real gas at
+    its mean pressure (:func:`build_medium`) and a waveguide filled with it.
+
+    Parameters
+    ----------
+    config : PlanConfig
+        The validated config.
+    omega0 : float
+        Pump angular frequency. [rad/s]
+    step : float, optional
+        Largest pressure change per stretch as a share of the highest pressure; None: the
+        default :data:`hcfplan.propagation.profile.SEGMENT_PRESSURE_STEP`.
+
+    Returns
+    -------
+    tuple of FillSegment or None
+    """
+    gas = config.gas
+    if gas is None or not gas.is_gradient:
+        return None
+    import dataclasses
+
+    from hcfplan.propagation.profile import SEGMENT_PRESSURE_STEP, pressure_segments
+    from hcfplan.propagation.solve import FillSegment
+
+    parts = pressure_segments(config.fiber.length, gas.entrance_pressure, gas.exit_pressure,
+                              SEGMENT_PRESSURE_STEP if step is None else step)
+    out = []
+    for k, pressure in enumerate(parts.pressures):
+        medium = build_medium(dataclasses.replace(gas, pressure=float(pressure)))
+        out.append(FillSegment(float(parts.edges[k]), float(parts.edges[k + 1]),
+                               build_waveguide(config.fiber, medium, omega0), medium))
+    return tuple(out)
+
+
 def coupling(config) -> tuple[float, float | None, float | None]:
     """(efficiency, beam waist used [m], optimum waist [m]) of the launch into the fundamental mode.
 

@@ -18,6 +18,7 @@ import numpy as np
 from hcfplan.constants import P_1ATM, T_ROOM
 from hcfplan.constants import c as C_LIGHT
 from hcfplan.planning.build import (
+    build_fill_segments,
     build_medium,
     build_waveguide,
     check_transmission,
@@ -159,7 +160,8 @@ def _run_chain(config, progress, workers, grid=None) -> ChainResult:
                                               else None),
                             stop_ionization_fraction=config.grid.stop_ionization_fraction,
                             workers=workers)
-    result = propagate(field0, grid, waveguide, gas=medium, options=options, progress=progress)
+    result = propagate(field0, grid, waveguide, gas=medium, options=options, progress=progress,
+                       segments=build_fill_segments(config, omega0))
     warnings = list(report["warnings"]) + list(result.warnings)
     compression = None
     if result.success:
@@ -350,9 +352,12 @@ def _finite_max(values: np.ndarray) -> float | None:
 
 
 def _fiber_part(chain: ChainResult, report: dict) -> dict:
+    from hcfplan.planning.reports.fiber import fill_part
+
     prop = chain.propagation
     transmission = float(prop.energy_z[-1] / prop.energy_z[0]) if prop.energy_z[0] > 0 else 0.0
     return {
+        **fill_part(chain.config.gas),
         "fiber.kind": chain.config.fiber.kind,
         "fiber.length_m": chain.config.fiber.length,
         "fiber.transmission": transmission,
@@ -422,6 +427,8 @@ class RunPeaks:
     max_peak_power: float  #: highest peak power along the fiber [W]
     max_peak_intensity: float | None  #: highest on-axis peak intensity [W/m^2]
     output_peak_power: float  #: peak power at the fiber exit [W]
+    z: Any = None  #: record positions of the run [m] (the limits along a gradient)
+    peak_power_z: Any = None  #: peak power at each record [W]
 
 
 def limits_part(chain: ChainResult) -> dict:
@@ -432,7 +439,8 @@ def limits_part(chain: ChainResult) -> dict:
     prop = chain.propagation
     peaks = RunPeaks(max_peak_power=float(np.nanmax(prop.peak_power_z)),
                      max_peak_intensity=_finite_max(prop.peak_intensity_z),
-                     output_peak_power=peak_power(prop.field_out_t))
+                     output_peak_power=peak_power(prop.field_out_t),
+                     z=prop.z, peak_power_z=prop.peak_power_z)
     with quiet_validity_of_materials():
         return limits_report(chain.config, run=peaks)
 

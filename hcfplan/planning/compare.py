@@ -29,7 +29,7 @@ ROWS: tuple[tuple[str, str, float, str], ...] = (
     ("required self-focusing margin", "margins.self_focusing_required", 1.0, ""),
     ("ionisation fraction", "margins.ionization_fraction", 1.0, ""),
     ("ionisation margin limit/fraction (required 1)", "margins.ionization_margin", 1.0, ""),
-    ("fill pressure", "margins.pressure_pa", 1e5, "bar"),
+    ("fill pressure (highest)", "margins.pressure_pa", 1e5, "bar"),
 )
 
 

@@ -22,6 +22,13 @@ crystal tables' stated THz validity, as :func:`hcfplan.thz.measures.model_limit`
 estimate is reported as "above the model's range (> X THz)"
 (:func:`hcfplan.planning.thz_range.estimate_cutoff_text`), null in the JSON, and not drawn as a
 contour.
+
+Gradient fills (``gas.entrance_pressure_bar`` -> ``gas.exit_pressure_bar``): the pressure axis
+is the exit pressure, the entrance pressure staying as configured. At each axis value the
+first-look estimates (beta2, soliton order, duration, THz) are those of the profile's mean
+pressure (:func:`hcfplan.propagation.profile.mean_pressure`), the self-focusing line that of the
+highest pressure in the fiber, and the zero-dispersion pressure is the exit pressure at which
+beta2 at the mean pressure changes sign.
 """
 
 from __future__ import annotations
@@ -140,6 +147,7 @@ class EnvelopeResult:
     #: upper end of the crystal model's THz range (generation ∩ detection crystal) [Hz]
     thz_model_limit: float = math.inf
     thz_model: str = ""  #: crystal(s) whose table sets ``thz_model_limit``, e.g. "GaP"
+    pressure_axis: str = "fill pressure"  #: what the pressures are (a gradient: exit pressure)
 
     def thz_cutoff_within_model(self) -> np.ndarray:
         """``thz_cutoff`` with nan wherever it lies above ``thz_model_limit`` (no cutoff of
@@ -169,12 +177,27 @@ def _readonly(a) -> np.ndarray:
     return a
 
 
+def axis_pressure(gas) -> float:
+    """The configured value of the map's pressure axis: the fill pressure, or a gradient's exit
+    pressure (its entrance pressure when the exit is evacuated). [Pa]"""
+    if not gas.is_gradient:
+        return gas.pressure
+    return gas.exit_pressure if gas.exit_pressure > 0 else gas.entrance_pressure
+
+
 def _default_pressures(config, ceiling: float, count: int) -> np.ndarray:
-    gas = config.gas
-    top = PRESSURE_HIGH * gas.pressure
+    base = axis_pressure(config.gas)
+    top = PRESSURE_HIGH * base
     if config.cell.rated_pressure is not None:
         top = min(top, RATING_OVERSHOOT * config.cell.rated_pressure)
-    return np.linspace(PRESSURE_LOW * gas.pressure, min(top, ceiling), count)
+    return np.linspace(PRESSURE_LOW * base, min(top, ceiling), count)
+
+
+def _fill_pressures(gas, pressures: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """(pressure of the estimates, highest pressure in the fiber) at each axis value [Pa]: both
+    the axis value for a static fill; the profile's mean and its higher end for a gradient."""
+    fills = [gas.with_pressure(float(p)) for p in pressures]
+    return (np.array([f.pressure for f in fills]), np.array([f.highest_pressure for f in fills]))
 
 
 def _axes(config, medium, energies, pressures, points):
@@ -251,7 +274,8 @@ def _beta2_at(config, medium, omega0: float, pressure: float) -> float:
     """beta2 [s^2/m] at one pressure, same stencil as :func:`_pressure_axis`."""
     from hcfplan.numerics.derivatives import derivative_table
 
-    gas = ScaledGas(medium, gas_density_at(config.gas, medium, float(pressure)))
+    fill = config.gas.with_pressure(float(pressure)).pressure  # a gradient: the mean
+    gas = ScaledGas(medium, gas_density_at(config.gas, medium, fill))
     wg = build_waveguide(config.fiber, gas, omega0)
     return float(derivative_table(wg.propagation_constant, omega0, 2,
                                   rel_width=BETA2_REL_WIDTH)[2])
@@ -265,8 +289,16 @@ def _zero_dispersion_pressure(config, medium, omega0, pressures, beta2) -> float
     if change.size == 0:
         return math.nan
     i = int(change[0])
-    return float(brentq(lambda p: _beta2_at(config, medium, omega0, p), pressures[i],
-                        pressures[i + 1], rtol=1e-10))
+
+    def beta2(p: float) -> float:
+        return _beta2_at(config, medium, omega0, p)
+
+    lo, hi = pressures[i], pressures[i + 1]
+    if beta2(lo) * beta2(hi) > 0:  # a zero within rounding of an axis point: one more each side
+        lo, hi = pressures[max(i - 1, 0)], pressures[min(i + 2, pressures.size - 1)]
+        if beta2(lo) * beta2(hi) > 0:
+            return math.nan
+    return float(brentq(beta2, lo, hi, rtol=1e-10))
 
 
 def _map_estimates(config, energies, efficiency, beta2, gamma, alpha):
@@ -334,7 +366,10 @@ def _envelope_map(config, energies, pressures, points) -> EnvelopeResult:
     medium = build_medium(config.gas)
     energies, pressures, ceiling = _axes(config, medium, energies, pressures, points)
     efficiency, _, _ = coupling(config)
-    n0, _n2, beta2, gamma, alpha = _pressure_axis(config, medium, pressures, omega0)
+    means, tops = _fill_pressures(config.gas, pressures)
+    n0, _n2, beta2, gamma, alpha = _pressure_axis(config, medium, means, omega0)
+    if not np.array_equal(tops, means):  # a gradient: self-focusing at its highest pressure
+        n0, _n2 = _pressure_axis(config, medium, tops, omega0)[:2]
     critical = limits.self_focusing_power(laser.wavelength, n0, _n2)
     sf_energy = limits.max_energy_for_self_focusing(
         critical, laser.duration_fwhm, laser.shape, margin=lim.self_focusing_margin,
@@ -351,6 +386,10 @@ def _envelope_map(config, energies, pressures, points) -> EnvelopeResult:
         "lines are analytic estimates (no propagation): self-focusing from Fibich & Gaeta's "
         "P_cr, ionisation from the PPT fraction of the input pulse",
         "duration and THz contours are " + ESTIMATE_NOTE)
+    if config.gas.is_gradient:
+        notes += (f"gradient fill: the pressure axis is the exit pressure, the entrance fixed at "
+                  f"{config.gas.entrance_pressure / 1e5:.4g} bar; estimates at the profile's "
+                  "mean pressure, the self-focusing line at the highest pressure in the fiber",)
     if np.nanmax(cutoff) > thz_limit:
         notes += (f"THz cutoff estimates {beyond_model_text(thz_limit, thz_model)} are no "
                   "cutoffs of the model: not drawn as contours, null in the JSON",)
@@ -364,11 +403,13 @@ def _envelope_map(config, energies, pressures, points) -> EnvelopeResult:
         zero_dispersion_pressure=_zero_dispersion_pressure(config, medium, omega0, pressures,
                                                            beta2),
         rated_pressure=config.cell.rated_pressure, pressure_ceiling=ceiling,
-        config_energy=laser.energy, config_pressure=config.gas.pressure,
+        config_energy=laser.energy, config_pressure=axis_pressure(config.gas),
         self_focusing_margin=lim.self_focusing_margin,
         ionization_fraction_limit=lim.ionization_fraction_limit,
         thz_cutoff_db=config.thz.cutoff_db, thz_cutoff_quantity=config.thz.cutoff_quantity,
-        notes=notes, thz_model_limit=thz_limit, thz_model=thz_model)
+        notes=notes, thz_model_limit=thz_limit, thz_model=thz_model,
+        pressure_axis=("exit pressure (gradient, entrance fixed)" if config.gas.is_gradient
+                       else "fill pressure"))
 
 
 def _listed(a) -> list:
@@ -420,6 +461,7 @@ def envelope_json(result: EnvelopeResult, check=None) -> dict:
         "envelope.thz_cutoff_db": result.thz_cutoff_db,
         "envelope.thz_cutoff_quantity": result.thz_cutoff_quantity,
         "envelope.array_layout": "2-D arrays are [energy index][pressure index]",
+        "envelope.pressure_axis": result.pressure_axis,
         "envelope.notes": list(result.notes),
         **check_json(check),
     }

@@ -157,7 +157,7 @@ def _point_config(config, energy: float, pressure: float):
                                z_samples=min(config.grid.z_samples, CHECK_Z_SAMPLES))
     return dataclasses.replace(
         config, laser=dataclasses.replace(config.laser, energy=energy),
-        gas=dataclasses.replace(config.gas, pressure=pressure), grid=grid)
+        gas=config.gas.with_pressure(pressure), grid=grid)  # a gradient: its exit
 
 
 def _check_point(config, result, i: int, j: int) -> CheckPoint:

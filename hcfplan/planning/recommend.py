@@ -39,7 +39,10 @@ from hcfplan.planning.recommend_points import (
 )
 
 Goal = Literal["shortest", "peak_power", "thz_cutoff"]
-SEARCH_KEYS = ("gas.pressure_bar", "laser.energy_uj")
+SEARCH_KEYS = ("gas.pressure_bar", "gas.exit_pressure_bar", "laser.energy_uj")
+#: The pressure keys of :data:`SEARCH_KEYS`: a static fill's pressure, or a gradient's exit
+#: pressure (its entrance pressure stays as configured).
+PRESSURE_KEYS = ("gas.pressure_bar", "gas.exit_pressure_bar")
 #: Default coarse pass: points for one key, points per key for two keys.
 COARSE_POINTS = {1: 12, 2: 6}
 #: Default refinement runs after the coarse pass, for one and two keys.
@@ -50,7 +53,8 @@ DEFAULT_TOLERANCE = 0.01
 EDGE_RTOL = 1e-5
 
 __all__ = ["COARSE_POINTS", "DEFAULT_TOLERANCE", "GOALS", "MIN_MAIN_LOBE_FRACTION",
-           "REFINE_RUNS", "SEARCH_KEYS", "Evaluation", "Recommendation", "default_range",
+           "PRESSURE_KEYS", "REFINE_RUNS", "SEARCH_KEYS", "Evaluation", "Recommendation",
+           "default_key", "default_range",
            "overall_best", "parse_range", "parse_ranges", "recommend"]
 
 
@@ -89,11 +93,11 @@ class Recommendation:
 
 def unit(key: str) -> str:
     """Display unit of a search key."""
-    return "bar" if key == "gas.pressure_bar" else "uJ"
+    return "bar" if key in PRESSURE_KEYS else "uJ"
 
 
 def _si(key: str) -> float:
-    return 1e5 if key == "gas.pressure_bar" else 1e-6
+    return 1e5 if key in PRESSURE_KEYS else 1e-6
 
 
 def parse_range(text: str) -> tuple[str, tuple[float, float]]:
@@ -118,15 +122,29 @@ def parse_ranges(texts: Sequence[str]) -> list[tuple[str, tuple[float, float]]]:
     out = [parse_range(t) for t in texts]
     if len(out) == 2 and out[0][0] == out[1][0]:
         raise ConfigError(f"--vary {out[0][0]}: the same key is given twice")
+    if len(out) == 2 and out[0][0] in PRESSURE_KEYS and out[1][0] in PRESSURE_KEYS:
+        raise ConfigError(f"--vary {out[0][0]} and {out[1][0]}: give one pressure range and "
+                          "one energy range")
     return out
 
 
 def default_range(config) -> tuple[float, float]:
     """Pressure range when none is given: a tenth of the fill up to the cell rating (the
-    search itself stops at ``limits.rating_fraction`` of it), or 3x the fill. [bar]"""
-    p = config.gas.pressure / 1e5
+    search itself stops at ``limits.rating_fraction`` of it), or 3x the fill; for a gradient
+    the same around its exit pressure (:func:`default_key`). [bar]"""
+    gas = config.gas
+    p = (gas.exit_pressure if gas.is_gradient else gas.pressure) / 1e5
+    if not p > 0:
+        raise ConfigError("recommend: gas.exit_pressure_bar = 0 gives no default range; give "
+                          "--vary gas.exit_pressure_bar=LO:HI")
     hi = config.cell.rated_pressure / 1e5 if config.cell.rated_pressure else 3 * p
     return p / 10, hi
+
+
+def default_key(config) -> str:
+    """The key searched when none is given: the fill pressure, or a gradient's exit pressure
+    (entrance fixed)."""
+    return "gas.exit_pressure_bar" if config.gas.is_gradient else "gas.pressure_bar"
 
 
 # ---------------------------------------------------------------------------------------------
@@ -175,7 +193,7 @@ def analytic_bound(make_config, key: str, lo: float, hi: float) -> tuple[float, 
     report = limits_values(config)
     lim, u, si = config.limits, unit(key), _si(key)
     candidates = [(hi, "")]
-    if key == "gas.pressure_bar":
+    if key in PRESSURE_KEYS:  # a gradient: the highest pressure, its exit when rising
         sf = report.get("limits.self_focusing.max_pressure_pa")
     else:
         sf = report.get("limits.self_focusing.max_energy_j")
@@ -225,13 +243,14 @@ def _allowed(runner: PointRunner, setup: _Setup, config):
     allowed, reasons = [], []
     for key, (lo, hi) in setup.spans:
         top = hi
-        if key == "gas.pressure_bar" and cap is not None and cap < hi:
+        if key in PRESSURE_KEYS and cap is not None and cap < hi:
             top = cap
             reasons.append(f"{key} up to {cap:.4g} bar: {cap_reason}")
         allowed.append((lo, top))
-    if not any(k == "gas.pressure_bar" for k, _ in setup.spans) and cap is not None \
-            and config.gas.pressure / 1e5 > cap * (1 + 1e-12):
-        return None, (f"fill pressure {config.gas.pressure / 1e5:g} bar is above "
+    top_fill = config.gas.highest_pressure / 1e5  # a gradient: its higher end
+    if not any(k in PRESSURE_KEYS for k, _ in setup.spans) and cap is not None \
+            and top_fill > cap * (1 + 1e-12):
+        return None, (f"fill pressure {top_fill:g} bar is above "
                       f"{cap_reason} = {cap:.4g} bar"), cap
     if len(setup.spans) == 1:
         key = setup.spans[0][0]
@@ -349,8 +368,9 @@ def recommend(config_path: str | Path, goal: Goal, *,
               ) -> tuple[Recommendation, ...]:
     """Best point for ``goal`` per gas (one entry without ``gases``).
 
-    ``search`` is one or two ranges ``"gas.pressure_bar=LO:HI"`` / ``"laser.energy_uj=LO:HI"``
-    (default: the pressure from a tenth of the fill up to the cell rating, or 3x the fill).
+    ``search`` is one or two ranges ``"gas.pressure_bar=LO:HI"`` (a gradient:
+    ``"gas.exit_pressure_bar=LO:HI"``, entrance fixed) / ``"laser.energy_uj=LO:HI"`` (default:
+    the pressure from a tenth of the fill up to the cell rating, or 3x the fill).
     ``target_thz`` (goal ``thz_cutoff``, one key) asks for the smallest value whose cutoff
     reaches it [THz]. ``coarse``: points of the coarse pass per key (default
     :data:`COARSE_POINTS`); ``budget``: full runs per gas, at most (default: the coarse pass
@@ -376,7 +396,7 @@ def recommend(config_path: str | Path, goal: Goal, *,
         if config.gas is None:
             raise ConfigError(f"recommend: fiber.kind = {config.fiber.kind!r} has no gas; "
                               "the search needs a gas-filled fiber")
-        spans = tuple(ranges) if ranges else (("gas.pressure_bar", default_range(config)),)
+        spans = tuple(ranges) if ranges else ((default_key(config), default_range(config)),)
         setup = _Setup((raw, path.parent, tuple(over), tuple(extra_gas_dirs), path), goal,
                        spans, None if target_thz is None else target_thz * 1e12, coarse,
                        budget, tolerance, workers)

@@ -86,6 +86,15 @@ def parse_spread(text: str) -> SpreadSpec:
     return SpreadSpec(tuple(items))
 
 
+def for_fill(spec: SpreadSpec, config) -> SpreadSpec:
+    """``spec`` for the config's fill: a gradient's ``pressure`` spread varies its exit
+    pressure (``gas.exit_pressure_bar``), the entrance pressure staying as configured."""
+    if config.gas is None or not config.gas.is_gradient:
+        return spec
+    return SpreadSpec(tuple(("gas.exit_pressure_bar" if key == "gas.pressure_bar" else key, f)
+                            for key, f in spec.items))
+
+
 def corner_tasks(config, spec: SpreadSpec, overrides=(), extra_gas_dirs=()) -> list[dict]:
     """The worker tasks of every corner, each validated through the config machinery."""
     if config.source is None:

@@ -100,7 +100,7 @@ def plot_envelope(ax: Axes, result: EnvelopeResult, *, contours: str = "duration
     ax.set_yscale("log")
     ax.set_xlim(p.min(), p.max())
     ax.set_ylim(bottom, top)
-    ax.set_xlabel("Fill pressure (bar)")
+    ax.set_xlabel(f"{result.pressure_axis.capitalize()} (bar)")
     ax.set_ylabel("Pulse energy before coupling (uJ)")
     _check_marks(ax, check)
     ax.set_title("Operating envelope: analytic limits, SPM-only estimate contours\n"

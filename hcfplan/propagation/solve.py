@@ -12,6 +12,12 @@ Within an interval the step stays the same unless the controller asks for a shor
 one at least ``REPLAN_GROWTH`` times longer, so the stepper reuses its propagators exp(L h/2)
 (a complex exp over the grid costs about three FFTs).
 
+Gradient fills: ``segments`` (one :class:`FillSegment` per stretch of uniform fill, e.g. from
+:func:`~.profile.pressure_segments`) give each stretch its own waveguide and gas; dispersion,
+loss, Kerr, Raman and ionisation then follow the local density. At each boundary the stepper
+is rebuilt on that stretch's terms and restarted from the field reached (the step length
+carries over). Without segments (a static fill) the run is one stretch, as before.
+
 Faults end the run with ``success=False`` and keep what was computed (the records so far plus
 one at the position reached, and the last good field): a non-finite field, a step below
 ``MIN_STEP_FRACTION`` of the length, the step budget ``max_steps`` used up, or an ionisation
@@ -55,6 +61,18 @@ DEFAULT_OPTIONS = SolverOptions()
 Progress = Callable[[float, float, int], None]
 
 
+@dataclass(frozen=True)
+class FillSegment:
+    """One stretch of uniform fill of a gradient (``start`` to ``end`` [m] along the fiber):
+    the waveguide and gas that hold there (dispersion, loss, Kerr from the waveguide; Raman and
+    ionisation from the gas)."""
+
+    start: float  #: [m]
+    end: float  #: [m]
+    waveguide: Waveguide
+    gas: object
+
+
 @dataclass
 class _Counters:
     n_steps: int = 0
@@ -91,8 +109,27 @@ def _check_inputs(field0, grid, waveguide, options, progress) -> np.ndarray:
     return field.astype(complex)
 
 
-def _build(grid, waveguide, gas, options: SolverOptions):
-    length = float(waveguide.length)
+def _check_segments(segments, length: float) -> tuple[FillSegment, ...] | None:
+    if segments is None:
+        return None
+    segments = tuple(segments)
+    ends = [0.0] + [float(s.end) for s in segments]
+    starts = [float(s.start) for s in segments]
+    ok = (segments and all(isinstance(s, FillSegment) for s in segments)
+          and np.allclose(starts, ends[:-1], rtol=0, atol=1e-12 * length)
+          and abs(ends[-1] - length) <= 1e-12 * length and all(np.diff(ends) > 0))
+    if not ok:
+        raise ConfigError("segments: must be FillSegments covering 0 to waveguide.length "
+                          "without gaps, in order")
+    for s in segments:
+        if not isinstance(s.waveguide, Waveguide):
+            raise ConfigError(f"segments: waveguide {type(s.waveguide).__name__} lacks the "
+                              "Waveguide interface")
+    return segments
+
+
+def _build(grid, waveguide, gas, options: SolverOptions, length: float | None = None):
+    length = float(waveguide.length) if length is None else length
     lin = linear_terms(grid, waveguide, length)
     gamma = kerr_coefficient_spectrum(grid, waveguide, lin.valid)
     f_inst, response, notes = delayed_response(grid, waveguide, gas)
@@ -120,6 +157,7 @@ def propagate(
     gas=None,
     options: SolverOptions | None = None,
     progress: Progress | None = None,
+    segments=None,
 ) -> PropagationResult:
     """Propagate a pulse through a waveguide (single-mode envelope GNLSE, see :mod:`.operators`).
 
@@ -140,6 +178,10 @@ def propagate(
         defaults (:data:`DEFAULT_OPTIONS`).
     progress : callable, optional
         Called as ``progress(z, length, n_steps)`` after every accepted step.
+    segments : sequence of FillSegment, optional
+        A fill that varies along z (gradient): consecutive stretches from 0 to the length, each
+        with its own waveguide and gas, used there instead of ``waveguide`` and ``gas`` (which
+        still give the length and the resonance bands). None: one uniform fill.
 
     Returns
     -------
@@ -158,34 +200,78 @@ def propagate(
     """
     options = DEFAULT_OPTIONS if options is None else options
     field = _check_inputs(field0, grid, waveguide, options, progress)
-    lin, nonlinear, notes = _build(grid, waveguide, gas, options)
+    segments = _check_segments(segments, float(waveguide.length))
+    if segments is None:
+        segments = (FillSegment(0.0, float(waveguide.length), waveguide, gas),)
+    stages = _Stages(grid, segments, options, float(waveguide.length))
+    lin = stages.lin
     u0 = grid.to_spectrum(field)
     removed = grid.energy_w(np.where(lin.valid, 0, u0)) / grid.energy_w(u0)
     if removed > INVALID_BAND_LIMIT:
-        notes.append(f"{removed:.2e} of the input energy lies where the waveguide model gives no "
-                     "valid beta/alpha and was removed")
+        stages.notes.append(f"{removed:.2e} of the input energy lies where the waveguide model "
+                            "gives no valid beta/alpha and was removed")
     u0 = np.where(lin.valid, u0, 0)
-    atol = options.absolute_tolerance(float(np.max(np.abs(u0))))
-    runner = STEPPERS[options.stepper](lin.operator, nonlinear, options.rtol, atol,
-                                       options.error_norm)
-    return _run(u0, field, grid, waveguide, runner, nonlinear, _Run(options, progress), notes)
+    stages.atol = options.absolute_tolerance(float(np.max(np.abs(u0))))
+    return _run(u0, field, grid, waveguide, stages, _Run(options, progress))
 
 
-def _run(u0, field, grid, waveguide, runner, nonlinear, run: _Run, notes) -> PropagationResult:
+class _Stages:
+    """The stepper of each stretch of uniform fill, built when the run reaches it."""
+
+    def __init__(self, grid, segments, options: SolverOptions, length: float) -> None:
+        self.grid, self.segments, self.options, self.length = grid, segments, options, length
+        self.index, self.atol, self.notes, self.rhs_before = 0, 0.0, [], 0
+        self._make(0)
+
+    def _make(self, index: int) -> None:
+        seg = self.segments[index]
+        self.lin, self.nonlinear, notes = _build(self.grid, seg.waveguide, seg.gas,
+                                                 self.options, self.length)
+        self.notes += [n for n in notes if n not in self.notes]
+        self.end = float(seg.end)
+
+    def runner(self):
+        o = self.options
+        return STEPPERS[o.stepper](self.lin.operator, self.nonlinear, o.rtol, self.atol,
+                                   o.error_norm)
+
+    @property
+    def boundaries(self) -> np.ndarray:
+        return np.array([float(s.end) for s in self.segments[:-1]])
+
+    def advance(self):
+        """Move to the next stretch; returns its runner (not started)."""
+        self.rhs_before += self.nonlinear.n_calls
+        self.index += 1
+        self._make(self.index)
+        return self.runner()
+
+    @property
+    def n_rhs_evals(self) -> int:
+        return self.rhs_before + self.nonlinear.n_calls
+
+
+def _run(u0, field, grid, waveguide, stages: _Stages, run: _Run) -> PropagationResult:
     length = float(waveguide.length)
     samples = run.options.z_samples
-    targets = np.linspace(0.0, length, samples)
+    records = np.linspace(0.0, length, samples)
+    targets = np.union1d(records, stages.boundaries)
+    is_record = np.isin(targets, records)
+    nonlinear = stages.nonlinear
     plasma = nonlinear if nonlinear.species else None
     recorder = Recorder(grid, samples + 1, nonlinear.intensity_area, plasma, waveguide,
                         transforms=nonlinear.fft)  # its buffers are free between steps
     recorder.record(0.0, u0)
+    runner = stages.runner()
     runner.start(u0)
     h0 = run.options.step or _first_step(u0, nonlinear, targets[1])
     state = StepState(u=u0.copy(), z=0.0, h=h0)
     counters = _Counters()
-    status, message = _advance(state, runner, nonlinear, targets, recorder, counters, run)
+    status, message = _advance(state, runner, stages, (targets, is_record), recorder, counters,
+                               run)
     if status != "completed" and state.z > recorder.z[recorder.count - 1]:
         recorder.record(state.z, state.u)
+    notes = stages.notes
     return PropagationResult(
         grid=grid,
         **recorder.arrays(),
@@ -197,7 +283,7 @@ def _run(u0, field, grid, waveguide, runner, nonlinear, run: _Run, notes) -> Pro
         success=status == "completed",
         n_steps=counters.n_steps,
         n_rejected=counters.n_rejected,
-        n_rhs_evals=nonlinear.n_calls,
+        n_rhs_evals=stages.n_rhs_evals,
         warnings=tuple(notes + recorder.edge_warnings()),
         **recorder.edge_fractions(),
     )
@@ -212,10 +298,13 @@ def _next_step(state, target: float, current: float | None) -> float:
     return remaining / max(1, round(remaining / current))
 
 
-def _advance(state, runner, nonlinear, targets, recorder, counters,
+def _advance(state, runner, stages: _Stages, positions, recorder, counters,
              run: _Run) -> tuple[str, str]:
-    """The stepping loop; returns (status, message)."""
+    """The stepping loop; returns (status, message). ``positions`` = (targets, is_record):
+    the step ends (record positions and stretch boundaries) and which of them are records."""
     options, progress = run.options, run.progress
+    targets, is_record = positions
+    nonlinear = stages.nonlinear
     stop = options.stop_ionization_fraction
     length, floor = targets[-1], control.MIN_STEP_FRACTION * targets[-1]
     index, attempts, h = 1, 0, None
@@ -230,7 +319,10 @@ def _advance(state, runner, nonlinear, targets, recorder, counters,
                 state.h = max(state.h, proposal)  # a shortened step says little about the next
             if targets[index] - state.z <= 1e-9 * length:
                 state.z = float(targets[index])
-                recorder.record(state.z, state.u)
+                if is_record[index]:
+                    recorder.record(state.z, state.u)
+                if state.z >= stages.end and index + 1 < targets.size:
+                    runner, nonlinear = _next_stretch(stages, state, recorder)
                 index, h = index + 1, None
             if nonlinear.species and nonlinear.ionization_fraction > stop:
                 return "ionization_stop", _stop_message(state, h, nonlinear, stop)
@@ -247,6 +339,16 @@ def _advance(state, runner, nonlinear, targets, recorder, counters,
         if attempts >= options.max_steps:
             return "step_budget", _budget_message(state, proposal, options)
     return "completed", ""
+
+
+def _next_stretch(stages: _Stages, state, recorder):
+    """Runner and nonlinear terms of the next stretch of fill, started from ``state.u``."""
+    runner = stages.advance()
+    runner.start(state.u)
+    nonlinear = stages.nonlinear
+    if recorder.plasma is not None or nonlinear.species:
+        recorder.plasma = nonlinear if nonlinear.species else None
+    return runner, nonlinear
 
 
 def _nonfinite_message(state, h) -> str:

@@ -41,11 +41,33 @@ def _zdw_range(waveguide, config):
     return lo, hi
 
 
+#: What the first-look numbers of a gradient fill stand for.
+GRADIENT_NOTE = ("gradient fill: the first-look numbers (gas, beta2, gamma, soliton order, "
+                 "estimates) are those of a static fill at the mean pressure of the profile "
+                 "p(z) = sqrt(p0^2 + (pL^2 - p0^2) z/L); a run follows the profile")
+
+
+def fill_part(gas) -> dict:
+    """``gas.fill`` ("static" or "gradient") and its pressures [Pa]: the static pressure, or
+    the entrance, exit and mean pressure of a gradient (``gas.pressure_pa`` is then the mean).
+    """
+    if gas is None:
+        return {}
+    out = {"gas.fill": "gradient" if gas.is_gradient else "static",
+           "gas.pressure_pa": gas.pressure}
+    if gas.is_gradient:
+        out.update({"gas.entrance_pressure_pa": gas.entrance_pressure,
+                    "gas.exit_pressure_pa": gas.exit_pressure,
+                    "gas.mean_pressure_pa": gas.pressure,
+                    "gas.profile": "viscous flow, p(z) = sqrt(p0^2 + (pL^2 - p0^2) z/L)"})
+    return out
+
+
 def _gas_part(medium, config) -> dict:
     gas = config.gas
     return {
         "gas.components": [[name, frac] for name, frac in gas.components],
-        "gas.pressure_pa": gas.pressure,
+        **fill_part(gas),
         "gas.temperature_k": gas.temperature,
         "gas.equation_of_state": gas.equation_of_state,
         "gas.number_density_per_m3": medium.number_density,
@@ -133,6 +155,8 @@ def _fiber_report(config) -> dict:
     if medium is not None:
         report.update(_gas_part(medium, config))
         notes = list(medium.warnings) + notes
+        if config.gas.is_gradient:
+            notes.append(GRADIENT_NOTE)
     report["warnings"] = notes
     return report
 

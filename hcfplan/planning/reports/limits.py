@@ -39,6 +39,11 @@ from hcfplan.planning.reports.limits_gas import (
     lowest_barrier_suppression,
     weighted_rates,
 )
+from hcfplan.planning.reports.limits_gradient import (
+    critical_power_at,
+    entrance_gas,
+    gradient_self_focusing,
+)
 from hcfplan.planning.validity import quiet_validity
 
 #: Fiber exit to exit window distance when limits.window_distance_m is not given. [m]
@@ -122,6 +127,7 @@ class _Setup:
     rates: list | None
     critical_power: float | None  #: [W]
     n0: float | None
+    entrance: Any = None  #: EntranceGas: the fill at the entrance (limits_gradient)
 
 
 def _setup(config) -> _Setup:
@@ -135,14 +141,18 @@ def _setup(config) -> _Setup:
     efficiency, waist, optimum = coupling(config)
     full = pulse.peak_power_from_energy(laser.energy, laser.duration_fwhm, laser.shape)
     alpha = float(waveguide.attenuation(np.array([omega0]))[0])
-    critical = n0 = rates = None
+    critical = n0 = rates = entrance = None
     if medium is not None:
+        entrance = entrance_gas(config.gas, medium, laser.wavelength, omega0)
         n0 = float(medium.refractive_index(np.array([omega0]))[0])
         critical = float(limits.self_focusing_power(laser.wavelength, n0, medium.n2))
+        if config.gas.is_gradient:  # the energy limit of the highest pressure in the fiber
+            critical = critical_power_at(config.gas, medium, laser.wavelength, omega0,
+                                         config.gas.highest_pressure)
         rates = weighted_rates(medium, laser.wavelength, config.gas.ionization_model)
     return _Setup(config, omega0, medium, waveguide, efficiency, waist, optimum, full,
                   full * efficiency, math.exp(-2 * alpha * config.fiber.length), rates,
-                  critical, n0)
+                  critical, n0, entrance)
 
 
 def _run_value(run, name: str):
@@ -175,11 +185,12 @@ def _self_focusing_part(s: _Setup, run) -> tuple[dict, list, list]:
     p_max = limits.max_pressure_for_self_focusing(
         s.peak_power_coupled, critical_at, margin=margin,
         pressure_range=(min(1e2, gas.pressure / 10), ceiling))
+    at_input = s.entrance.critical_power  # the entrance pressure (a gradient's p0)
     values = {
-        "limits.self_focusing.critical_power_w": s.critical_power,
+        "limits.self_focusing.critical_power_w": at_input,
         "limits.self_focusing.required_margin": margin,
         "limits.self_focusing.peak_power_input_w": s.peak_power_coupled,
-        "limits.self_focusing.margin_input": ratio_of(s.critical_power, s.peak_power_coupled),
+        "limits.self_focusing.margin_input": ratio_of(at_input, s.peak_power_coupled),
         "limits.self_focusing.max_pressure_pa": p_max,
         "limits.self_focusing.max_energy_j": limits.max_energy_for_self_focusing(
             s.critical_power, laser.duration_fwhm, laser.shape, margin=margin,
@@ -189,10 +200,20 @@ def _self_focusing_part(s: _Setup, run) -> tuple[dict, list, list]:
         f"self-focusing margin {margin:g} holds up to the search limit "
         f"{ceiling / 1e5:.4g} bar (condensation or 1000 bar)"]
     assumption = (f"coupled input peak power P (coupling {s.efficiency:.3f}) vs the critical "
-                  "power P_cr of the fill at the pump wavelength")
-    checks = [_check(f"{name}.input", s.peak_power_coupled, s.critical_power, unit=unit,
+                  "power P_cr of the fill at the pump wavelength"
+                  + (" at the entrance pressure" if gas.is_gradient else ""))
+    checks = [_check(f"{name}.input", s.peak_power_coupled, at_input, unit=unit,
                      required=margin, ratio="P_cr/P", source=SOURCES["critical_power"],
-                     assumption=assumption)]
+                     assumption=assumption) if at_input is not None else
+              _not_checked(f"{name}.input", unit, "evacuated entrance (gradient fill): no gas "
+                           "at the launch", ratio="P_cr/P")]
+    if gas.is_gradient:  # inside the fiber: the local pressure along z
+        extra, check = gradient_self_focusing(gas, s.medium, laser, s.omega0, s.config.fiber,
+                                              s.peak_power_coupled, run)
+        values.update(extra)
+        checks.append(_check(**check, unit=unit, required=margin, ratio="P_cr/P",
+                             source=SOURCES["critical_power"]))
+        return values, checks, notes
     if in_fiber is not None:
         values["limits.self_focusing.peak_power_in_fiber_w"] = in_fiber
         values["limits.self_focusing.margin_in_fiber"] = ratio_of(s.critical_power, in_fiber)
@@ -266,7 +287,7 @@ def _cell_part(s: _Setup) -> tuple[dict, list, list]:
     if s.config.gas is None:
         return ({"limits.cell.status": "not checked"},
                 [_not_checked("cell.rating", "Pa", "no gas fill", ratio="rating/pressure")], [])
-    pressure = s.config.gas.pressure
+    pressure = s.config.gas.highest_pressure  # a gradient's higher end
     status = pressure_rating_status(pressure, rated)
     values = {"limits.cell.pressure_pa": pressure, "limits.cell.rated_pressure_pa": rated,
               "limits.cell.status": status,
@@ -291,7 +312,7 @@ def _window_pressure(s: _Setup) -> tuple[dict, list, list]:
         return {}, [_not_checked(name, "m", "no gas fill", ratio="t/t_min", kind="minimum")], []
     material = solids.load_material(cell.window_material)
     strength = material.modulus_of_rupture.value
-    load = lc.window_pressure_difference(s.config.gas.pressure, P_1ATM)
+    load = lc.window_pressure_difference(s.config.gas.highest_pressure, P_1ATM)
     values = {"limits.window.material": material.name,
               "limits.window.pressure_difference_pa": load,
               "limits.window.outside_pressure_pa": P_1ATM,
@@ -322,8 +343,9 @@ def _window_pressure(s: _Setup) -> tuple[dict, list, list]:
     k = values["limits.window.stress_coefficient"]
     strength_source = material.modulus_of_rupture.source + (
         " [from memory]" if material.modulus_of_rupture.from_memory else "")
+    top = s.config.gas.highest_pressure  # a gradient's higher end
     assumption = (f"outside at 1 atm (lab side; a window onto vacuum carries the full "
-                  f"{s.config.gas.pressure / 1e5:.4g} bar), K = {k:g} ({lim.window_mounting}; "
+                  f"{top / 1e5:.4g} bar), K = {k:g} ({lim.window_mounting}; "
                   "Roark's simply supported 3(3+nu)/8 gives 1.19-1.24 for nu = 0.16-0.3), "
                   f"SF = {lim.window_safety_factor:g}, strength: {strength_source}")
     check = _check(name, cell.window_thickness, t_min, unit="m", kind="minimum", ratio="t/t_min",
@@ -366,8 +388,10 @@ def _static_fill_part(s: _Setup) -> tuple[dict, list, list]:
     from hcfplan.limits import beam as limits
     from hcfplan.limits.margins import margin as ratio_of
 
-    if s.medium is None or s.beam_waist is None:
-        why = "no gas before the fiber entrance (Taylor fiber)"
+    if s.medium is None or s.beam_waist is None or s.entrance.critical_power is None:
+        why = ("no gas before the fiber entrance (Taylor fiber)" if s.medium is None
+               or s.beam_waist is None else "no gas before the fiber entrance (gradient fill "
+               "with an evacuated entrance)")
         return ({}, [_not_checked("static_fill.self_focusing", "W", why, ratio="P_cr/P"),
                      _not_checked("static_fill.ionization", "", why, ratio="limit/fraction")],
                 [])
@@ -380,7 +404,8 @@ def _static_fill_part(s: _Setup) -> tuple[dict, list, list]:
     values = {"limits.static_fill.beam_waist_m": w0,
               "limits.static_fill.peak_power_w": s.peak_power_full,
               "limits.static_fill.peak_intensity_w_per_m2": intensity,
-              "limits.static_fill.self_focusing_margin": ratio_of(s.critical_power,
+              "limits.static_fill.pressure_pa": s.entrance.pressure,
+              "limits.static_fill.self_focusing_margin": ratio_of(s.entrance.critical_power,
                                                                   s.peak_power_full),
               "limits.static_fill.ionization_fraction": fraction,
               "limits.static_fill.gas_path_m": path}
@@ -389,14 +414,14 @@ def _static_fill_part(s: _Setup) -> tuple[dict, list, list]:
         radius = limits.gaussian_beam_radius(w0, laser.wavelength, path)
         curvature = path * (1 + (rayleigh / path) ** 2)
         z_f = limits.self_focusing_distance_marburger1975(
-            s.peak_power_full, laser.wavelength, s.n0, s.medium.n2, radius, curvature)
+            s.peak_power_full, laser.wavelength, s.entrance.n0, s.entrance.n2, radius, curvature)
         values["limits.static_fill.self_focusing_distance_m"] = z_f
         if z_f < path:
             notes.append(f"static fill: Kerr collapse estimated {z_f * 100:.3g} cm after the "
                          f"entrance window, before the fiber ({path * 100:.3g} cm)")
     where = f"focus at the fiber entrance (w0 = {w0 * 1e6:.4g} um), full pulse energy in the gas"
     checks = [
-        _check("static_fill.self_focusing", s.peak_power_full, s.critical_power, unit="W",
+        _check("static_fill.self_focusing", s.peak_power_full, s.entrance.critical_power, unit="W",
                required=lim.self_focusing_margin, ratio="P_cr/P",
                source=SOURCES["critical_power"], assumption=where),
         _check("static_fill.ionization", fraction, lim.ionization_fraction_limit, unit="",

@@ -93,12 +93,14 @@ def point_margins(config, report: dict) -> dict:
     lim = config.limits
     sf = _number(report, "limits.self_focusing.margin_input")
     sf_fiber = _number(report, "limits.self_focusing.margin_in_fiber")
+    if sf is None:  # a gradient with an evacuated entrance: no gas at the launch
+        sf = sf_fiber
     ion = _number(report, "limits.ionization.fraction_in_fiber")
     if ion is None:
         ion = _number(report, "limits.ionization.fraction_input")
     binding = [c["name"] for c in report.get("limits.checks", [])
                if c.get("severity") == "limit" and c.get("status") == "exceeds"]
-    pressure = config.gas.pressure if config.gas is not None else None
+    pressure = config.gas.highest_pressure if config.gas is not None else None  # gradient: top
     return {
         "self_focusing": sf, "self_focusing_in_fiber": sf_fiber,
         "self_focusing_required": lim.self_focusing_margin,
