@@ -190,7 +190,7 @@ def check_names(resolved: dict, present: set[str], table_dirs: tuple[Path, ...])
                 raise ConfigError(f"{key} = {name!r}: unknown gas{suggest(name, valid)} "
                                   f"(available: {', '.join(valid)})") from exc
     material_keys = [("fiber", "cladding"), ("cell", "window_material"),
-                     ("compressor", "wedge_material")]
+                     ("cell", "entrance_window_material"), ("compressor", "wedge_material")]
     valid_solids = solids.material_names()
     for section, key in material_keys:
         name = resolved[section][key]

@@ -60,6 +60,10 @@ SCHEMA: dict[str, dict[str, Key]] = {
         "beam_waist_um": Key(F, None,
                              "1/e^2 intensity radius of the focused beam at the fiber entrance; "
                              "default: the coupling optimum 0.64 a.", 1.0, 1.0e5, low_open=False),
+        "polarization": Key("choice", "linear", "Polarisation of the pump: circular lowers the "
+                            "Kerr coefficient (electronic 2/3, rotational 1/4) and uses the "
+                            "circular-polarisation ionisation rate.",
+                            choices=("linear", "circular")),
     },
     "fiber": {
         "kind": Key("choice", REQUIRED, "Fiber model.",
@@ -117,6 +121,14 @@ SCHEMA: dict[str, dict[str, Key]] = {
                                    low_open=False),
         "window_clear_aperture_mm": Key(F, None, "Unsupported (clear) window diameter.",
                                         0.0, 1000.0),
+        "entrance_window_material": Key("str", "fused_silica", "Entrance window material."),
+        "entrance_window_thickness_mm": Key(F, None, "Entrance window thickness (optional; its "
+                                            "GDD acts on the input pulse, laser.energy_uj is "
+                                            "the energy after it).", 0.0, 100.0,
+                                            low_open=False),
+        "window_coating": Key("choice", "uncoated", "Surfaces of both windows: uncoated "
+                              "(Fresnel loss at normal incidence) or ar (anti-reflection "
+                              "coated, loss taken as zero).", choices=("uncoated", "ar")),
     },
     "compressor": {
         "air_path_m": Key(F, 0.0, "Air path between cell and crystal.", 0.0, 1000.0,
@@ -124,6 +136,9 @@ SCHEMA: dict[str, dict[str, Key]] = {
         "mirror_gdd_fs2": Key(F, None, "GDD per chirped-mirror bounce.", -1.0e6, 1.0e6,
                               low_open=False),
         "mirror_tod_fs3": Key(F, 0.0, "TOD per bounce.", -1.0e8, 1.0e8, low_open=False),
+        "mirror_reflectivity": Key(F, 0.99, "Power reflectivity per chirped-mirror bounce "
+                                   "(default 0.99: common practice, no source; take the "
+                                   "maker's curve).", 0.0, 1.0),
         "mirror_gdd_csv": Key("path", None,
                               "Measured GDD per bounce, CSV columns wavelength_nm, gdd_fs2."),
         "mirror_band_nm": Key("band", None, "Usable mirror band [low, high]; light outside "

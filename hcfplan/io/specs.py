@@ -42,6 +42,7 @@ class LaserSpec:
     gdd: float  #: [s^2]
     spectrum: MeasuredCurve | None  #: measured input spectrum (values: intensity per wavelength)
     beam_waist: float | None  #: [m]
+    polarization: str = "linear"  #: "linear" or "circular"
 
 
 @dataclass(frozen=True)
@@ -118,6 +119,9 @@ class CellSpec:
     window_material: str
     window_thickness: float | None  #: [m]
     window_clear_aperture: float | None  #: [m]
+    entrance_window_material: str = "fused_silica"
+    entrance_window_thickness: float | None = None  #: [m]
+    window_coating: str = "uncoated"  #: "uncoated" (Fresnel) or "ar" (loss taken as zero)
 
 
 @dataclass(frozen=True)
@@ -132,6 +136,7 @@ class CompressorSpec:
     objective: str
     wedge_material: str | None
     wedge_max_insertion: float  #: [m]
+    mirror_reflectivity: float = 0.99  #: power reflectivity per bounce [1]
 
 
 @dataclass(frozen=True)

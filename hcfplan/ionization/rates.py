@@ -7,7 +7,7 @@ each function converts its inputs first.
 
 Validity (every rate here): single ionisation from one bound state (``l``, ``m``) of a neutral
 atom or of an ion of charge ``charge - 1``, single active electron; linear polarisation, cycle
-average (slowly varying envelope); field below barrier suppression
+average (slowly varying envelope), except :func:`adk_rate_circular`; field below barrier suppression
 (:func:`barrier_suppression_intensity`), above which the tunnelling formulas overestimate the
 rate. ADK further needs the Keldysh parameter γ ≪ 1; PPT covers multiphoton (γ ≫ 1) and tunnel
 regimes. Nothing here warns: the barrier-suppression check is made by
@@ -46,7 +46,7 @@ from scipy import special
 from hcfplan.constants import au_energy, au_field, au_time, c, e, epsilon_0, m_e
 from hcfplan.errors import ConfigError
 
-RateModel = Literal["ppt", "adk"]
+RateModel = Literal["ppt", "adk", "adk_circular"]
 
 #: The PPT multiphoton sum stops once exp(-alpha (kappa - nu)) falls below this value.
 _SUM_TOLERANCE = 1e-12
@@ -262,22 +262,63 @@ def _state_constants(ip_au: float, l: int, m: int, charge: int) -> tuple[float, 
     return n_star, log_c2 + log_f, kappa**3
 
 
+def _log_static_rate(field, ip_au: float, l: int, m: int, charge: int) -> np.ndarray:
+    """ln of the static (instantaneous-field) rate of Eq. (1) of [1] in atomic units, field F
+    in atomic units (> 0), and ln(3F/(pi F0))/2, the log of the linear cycle average."""
+    n_star, log_cf, f0 = _state_constants(ip_au, l, m, charge)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        log_w = (log_cf + math.log(ip_au) + (2.0 * n_star - abs(m) - 1.0)
+                 * np.log(2.0 * f0 / field) - 2.0 * f0 / (3.0 * field))
+        return log_w, 0.5 * np.log(3.0 * field / (np.pi * f0))
+
+
 def _log_adk_rate(intensity, wavelength, ip, l, m=0, charge=1) -> np.ndarray:
     intensity = _checked(intensity, wavelength, ip)
     _check_state(l, m, charge)
-    ip_au = ip / au_energy
-    n_star, log_cf, f0 = _state_constants(ip_au, l, m, charge)
     field = field_au(intensity)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        log_ratio = np.log(2.0 * f0 / field)
-        log_w = (
-            log_cf
-            + math.log(ip_au)
-            + (2.0 * n_star - abs(m) - 1.0) * log_ratio  # static rate, Eq. (1) of [1]
-            - 2.0 * f0 / (3.0 * field)
-            + 0.5 * np.log(3.0 * field / (np.pi * f0))  # cycle average, linear polarisation
-        )
-    return np.where(field > 0, log_w, -np.inf) - math.log(au_time)
+    log_static, log_average = _log_static_rate(field, ip / au_energy, l, m, charge)
+    return np.where(field > 0, log_static + log_average, -np.inf) - math.log(au_time)
+
+
+def _log_adk_rate_circular(intensity, wavelength, ip, l, m=0, charge=1) -> np.ndarray:
+    intensity = _checked(intensity, wavelength, ip)
+    _check_state(l, m, charge)
+    field = field_au(intensity) / math.sqrt(2.0)  # constant magnitude, I = c eps0 F^2
+    log_static, _ = _log_static_rate(field, ip / au_energy, l, m, charge)
+    return np.where(field > 0, log_static, -np.inf) - math.log(au_time)
+
+
+def adk_rate_circular(
+    intensity: npt.ArrayLike, wavelength: float, ip: float, l: int, m: int = 0, charge: int = 1
+) -> np.ndarray:
+    """ADK tunnel-ionisation rate for circular polarisation [1], [2].
+
+    Parameters and returns as :func:`adk_rate`; ``intensity`` is the intensity of the circular
+    wave, :math:`I = c\\varepsilon_0 F^2` with F the constant field magnitude. [W/m^2]
+
+    Notes
+    -----
+    The field of a circular wave turns at constant magnitude F, so in the tunnelling limit
+    (γ ≪ 1) the rate is the static rate :math:`w_{st}(F)` of Eq. (1) of [1] (the formula of
+    :func:`adk_rate` without the cycle-averaging factor :math:`\\sqrt{3F/(\\pi F_0)}`). At
+    equal intensity :math:`F = E_0/\\sqrt2`, so
+    :math:`w_{lin}/w_{circ} = \\sqrt{3E_0/(\\pi F_0)}\\,w_{st}(E_0)/w_{st}(E_0/\\sqrt2) \\gg 1`
+    (ADK 1986 and PPT 1966 [from memory]). The nonadiabatic circular rate of PPT (γ ≳ 1, a
+    different g(γ)) is not implemented: its formula was not available from a verified source;
+    where γ is not small this rate is expected to fall below it, as the tunnel limit of the
+    linear rate falls below PPT there. m is the magnetic number about the instantaneous
+    field direction.
+
+    References
+    ----------
+    .. [1] M. V. Ammosov, N. B. Delone and V. P. Krainov, "Tunnel ionization of complex atoms and
+           of atomic ions in an alternating electromagnetic field," Sov. Phys. JETP, vol. 64,
+           no. 6, pp. 1191-1194, 1986. [from memory]
+    .. [2] A. M. Perelomov, V. S. Popov and M. V. Terent'ev, "Ionization of atoms in an
+           alternating electric field," Sov. Phys. JETP, vol. 23, no. 5, pp. 924-934, 1966.
+           [from memory]
+    """
+    return np.exp(_log_adk_rate_circular(intensity, wavelength, ip, l, m, charge))[()]
 
 
 def adk_rate(
@@ -511,12 +552,17 @@ def ppt_rate(
 
 
 #: model key -> rate function (intensity [W/m^2], wavelength [m], ip [J], l, m, charge) -> [1/s]
-RATE_MODELS: dict[str, Callable[..., np.ndarray]] = {"ppt": ppt_rate, "adk": adk_rate}
+RATE_MODELS: dict[str, Callable[..., np.ndarray]] = {"ppt": ppt_rate, "adk": adk_rate,
+                                                     "adk_circular": adk_rate_circular}
 #: model key -> natural log of the same rate [ln(1/s)] (-inf at zero intensity), for tables
 LOG_RATE_MODELS: dict[str, Callable[..., np.ndarray]] = {
     "ppt": _log_ppt_rate,
     "adk": _log_adk_rate,
+    "adk_circular": _log_adk_rate_circular,
 }
+#: linear-polarisation model key -> the rate used for circular polarisation (tunnelling limit
+#: for both: the nonadiabatic circular PPT rate is not implemented, see adk_rate_circular)
+CIRCULAR_MODELS: dict[str, str] = {"ppt": "adk_circular", "adk": "adk_circular"}
 
 
 def rate_function(model: RateModel) -> Callable[..., np.ndarray]:

@@ -126,6 +126,7 @@ def _ppt_channel_closings(wavelength, ip, intensity_min, intensity_max) -> np.nd
 _BREAKPOINTS: dict[str, Callable[..., np.ndarray]] = {
     "ppt": _ppt_channel_closings,
     "adk": lambda *args: np.empty(0),
+    "adk_circular": lambda *args: np.empty(0),
 }
 
 

@@ -30,19 +30,31 @@ def _reason(exc: Exception) -> str:
     return text if len(text) <= MAX_REASON else text[:MAX_REASON] + "..."
 
 
-def build_medium(gas_spec):
-    """GasMedium for the configured fill; a refused phase becomes a ConfigError naming the
-    pressure and temperature keys (in the config's units)."""
+def build_medium(gas_spec, polarization: str = "linear"):
+    """GasMedium for the configured fill as a pump of ``polarization`` sees it (circular: the
+    Kerr data of :func:`hcfplan.materials.kerr_polarization.polarized_medium`); a refused phase
+    becomes a ConfigError naming the pressure and temperature keys (in the config's units)."""
     from hcfplan.materials import gases
+    from hcfplan.materials.kerr_polarization import polarized_medium
 
     fill = gases.GasFill(components=gas_spec.components, pressure=gas_spec.pressure,
                          temperature=gas_spec.temperature, eos=gas_spec.equation_of_state)
     try:
-        return gases.gas_medium(fill, search_dirs=gas_spec.table_dirs)
+        return polarized_medium(gases.gas_medium(fill, search_dirs=gas_spec.table_dirs),
+                                polarization)
     except GasPhaseError as exc:
         raise ConfigError(f"gas.pressure_bar = {gas_spec.pressure / 1e5:.10g}, "
                           f"gas.temperature_k = {gas_spec.temperature:.10g}: {_reason(exc)}"
                           ) from None
+
+
+def rate_model(config) -> str:
+    """Ionisation rate key (:data:`hcfplan.ionization.rates.RATE_MODELS`) for the configured
+    gas and pump polarisation (circular: :data:`~hcfplan.ionization.rates.CIRCULAR_MODELS`)."""
+    from hcfplan.ionization.rates import CIRCULAR_MODELS
+
+    model = config.gas.ionization_model
+    return CIRCULAR_MODELS[model] if config.laser.polarization == "circular" else model
 
 
 def build_waveguide(fiber, medium, omega0: float):

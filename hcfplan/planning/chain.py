@@ -24,6 +24,7 @@ from hcfplan.planning.build import (
     check_transmission,
     coupling,
     pump_omega,
+    rate_model,
 )
 from hcfplan.planning.validity import (
     collect_warnings,
@@ -67,13 +68,16 @@ def _broadening_estimate(report: dict) -> float:
 
 
 def _input_field(config, grid, energy: float):
+    from hcfplan.planning.hardware import with_entrance_window
     from hcfplan.pulse import fields as pulse
 
     laser = config.laser
     if laser.spectrum is not None:  # read while the config was loaded
-        return pulse.field_from_measured_spectrum(grid, laser.spectrum.wavelength,
-                                                  laser.spectrum.values, energy, gdd=laser.gdd)
-    return pulse.pulse_field(grid, laser.shape, laser.duration_fwhm, energy, gdd=laser.gdd)
+        field = pulse.field_from_measured_spectrum(grid, laser.spectrum.wavelength,
+                                                   laser.spectrum.values, energy, gdd=laser.gdd)
+    else:
+        field = pulse.pulse_field(grid, laser.shape, laser.duration_fwhm, energy, gdd=laser.gdd)
+    return with_entrance_window(config, grid, field)
 
 
 def run_chain(config, *, progress: Callable[[float, float, int], None] | None = None,
@@ -146,7 +150,8 @@ def _run_chain(config, progress, workers, grid=None) -> ChainResult:
 
     laser = config.laser
     omega0 = pump_omega(laser)
-    medium = build_medium(config.gas) if config.gas is not None else None
+    medium = (build_medium(config.gas, laser.polarization) if config.gas is not None
+              else None)
     waveguide = build_waveguide(config.fiber, medium, omega0)
     check_transmission(config, waveguide, omega0)
     efficiency, _, _ = coupling(config)
@@ -156,8 +161,7 @@ def _run_chain(config, progress, workers, grid=None) -> ChainResult:
     field0 = _input_field(config, grid, energy)
     peak_in = peak_power(field0)
     options = SolverOptions(rtol=config.grid.rtol, z_samples=config.grid.z_samples,
-                            ionization_model=(config.gas.ionization_model if config.gas
-                                              else None),
+                            ionization_model=rate_model(config) if config.gas else None,
                             stop_ionization_fraction=config.grid.stop_ionization_fraction,
                             workers=workers)
     result = propagate(field0, grid, waveguide, gas=medium, options=options, progress=progress,
@@ -248,6 +252,7 @@ def compress_output(config, grid, spectrum: np.ndarray, input_peak_power: float)
     """Best bounce count (and trim) for the fiber output, with the ideal references."""
     from hcfplan.compression.compressor import TrimSpec, optimize_bounces
     from hcfplan.compression.elements import band_from_wavelengths
+    from hcfplan.planning.hardware import compressor_losses
 
     comp = config.compressor
     band = None if comp.mirror_band is None else band_from_wavelengths(*comp.mirror_band)
@@ -256,10 +261,12 @@ def compress_output(config, grid, spectrum: np.ndarray, input_peak_power: float)
         n = _material_index(comp.wedge_material, grid.omega)
         trim = TrimSpec.from_index(grid, n, 0.0, comp.wedge_max_insertion)
     has_mirrors = comp.mirror_gdd is not None or comp.mirror_gdd_curve is not None
-    return optimize_bounces(grid, spectrum, fixed_phase(config, grid), _mirror_phase(config, grid),
-                            max_bounces=comp.max_bounces if has_mirrors else 0,
-                            in_pairs=comp.bounces_in_pairs, objective=comp.objective,
-                            band=band, trim=trim, input_peak_power=input_peak_power)
+    lossless = optimize_bounces(grid, spectrum, fixed_phase(config, grid),
+                                _mirror_phase(config, grid),
+                                max_bounces=comp.max_bounces if has_mirrors else 0,
+                                in_pairs=comp.bounces_in_pairs, objective=comp.objective,
+                                band=band, trim=trim, input_peak_power=input_peak_power)
+    return compressor_losses(config, lossless)
 
 
 #: Mirror-band loss above which the summary warns. [1]
@@ -429,6 +436,8 @@ class RunPeaks:
     output_peak_power: float  #: peak power at the fiber exit [W]
     z: Any = None  #: record positions of the run [m] (the limits along a gradient)
     peak_power_z: Any = None  #: peak power at each record [W]
+    output_energy: float | None = None  #: pulse energy at the fiber exit [J]
+    compressed_energy: float | None = None  #: after the compressor and its losses [J]
 
 
 def limits_part(chain: ChainResult) -> dict:
@@ -440,7 +449,10 @@ def limits_part(chain: ChainResult) -> dict:
     peaks = RunPeaks(max_peak_power=float(np.nanmax(prop.peak_power_z)),
                      max_peak_intensity=_finite_max(prop.peak_intensity_z),
                      output_peak_power=peak_power(prop.field_out_t),
-                     z=prop.z, peak_power_z=prop.peak_power_z)
+                     z=prop.z, peak_power_z=prop.peak_power_z,
+                     output_energy=float(prop.energy_z[-1]),
+                     compressed_energy=(None if chain.compression is None
+                                        else chain.compression.metrics.energy))
     with quiet_validity_of_materials():
         return limits_report(chain.config, run=peaks)
 
@@ -454,6 +466,10 @@ def summary_dict(chain: ChainResult) -> dict:
     summary.update(_fiber_part(chain, report))
     summary.update(_output_part(chain))
     summary.update(_compressed_part(chain.compression))
+    if chain.compression is not None:
+        from hcfplan.planning.hardware import throughput_values
+
+        summary.update(throughput_values(chain.config, chain.compression))
     summary.update(_thz_part(chain.config, chain.thz))
     summary.update(limits_part(chain))
     summary.update({

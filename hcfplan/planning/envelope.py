@@ -40,7 +40,13 @@ import numpy as np
 
 from hcfplan.constants import c
 from hcfplan.errors import ConfigError
-from hcfplan.planning.build import build_medium, build_waveguide, coupling, pump_omega
+from hcfplan.planning.build import (
+    build_medium,
+    build_waveguide,
+    coupling,
+    pump_omega,
+    rate_model,
+)
 from hcfplan.planning.reports.limits_gas import (
     PRESSURE_SEARCH_MAX,
     RATE_TABLE_RANGE,
@@ -363,18 +369,21 @@ def _envelope_map(config, energies, pressures, points) -> EnvelopeResult:
 
     laser, lim = config.laser, config.limits
     omega0 = pump_omega(laser)
-    medium = build_medium(config.gas)
+    medium = build_medium(config.gas, laser.polarization)
     energies, pressures, ceiling = _axes(config, medium, energies, pressures, points)
     efficiency, _, _ = coupling(config)
     means, tops = _fill_pressures(config.gas, pressures)
     n0, _n2, beta2, gamma, alpha = _pressure_axis(config, medium, means, omega0)
     if not np.array_equal(tops, means):  # a gradient: self-focusing at its highest pressure
         n0, _n2 = _pressure_axis(config, medium, tops, omega0)[:2]
-    critical = limits.self_focusing_power(laser.wavelength, n0, _n2)
+    from hcfplan.limits.rotational import self_focusing_n2
+
+    sf_ratio = self_focusing_n2(medium, laser.duration_fwhm, laser.shape) / medium.n2
+    critical = limits.self_focusing_power(laser.wavelength, n0, _n2 * sf_ratio)
     sf_energy = limits.max_energy_for_self_focusing(
         critical, laser.duration_fwhm, laser.shape, margin=lim.self_focusing_margin,
         coupling_efficiency=efficiency)
-    rates = weighted_rates(medium, laser.wavelength, config.gas.ionization_model)
+    rates = weighted_rates(medium, laser.wavelength, rate_model(config))
     i_lim = peak_intensity_for_fraction(lim.ionization_fraction_limit, laser.duration_fwhm,
                                         laser.shape, rates, RATE_TABLE_RANGE)
     area = build_waveguide(config.fiber, medium, omega0).peak_intensity_area

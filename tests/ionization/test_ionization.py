@@ -279,10 +279,11 @@ def test_ppt_monotonic_from_channel_to_channel():
 
 # ----------------------------------------------------------------------------- registry, tables
 def test_rate_registry():
-    # contract: registry keys map to the two functions; unknown keys list the valid ones
+    # contract: registry keys map to the functions; unknown keys list the valid ones
     assert ion.rate_function("ppt") is ion.ppt_rate
     assert ion.rate_function("adk") is ion.adk_rate
-    with pytest.raises(ConfigError, match=r"'pptx'.*\['adk', 'ppt'\]"):
+    assert ion.rate_function("adk_circular") is ion.adk_rate_circular
+    with pytest.raises(ConfigError, match=r"'pptx'.*\['adk', 'adk_circular', 'ppt'\]"):
         ion.rate_function("pptx")
 
 

@@ -62,5 +62,5 @@ def test_waveguide_without_area_leaves_ionisation_out_with_a_note(mixture, grid)
 
 def test_unknown_model_lists_the_models(mixture, grid):
     fiber = CapillaryFiber(core_radius=50e-6, length=0.02, gas=mixture)
-    with pytest.raises(ConfigError, match=r"'keldysh'.*\['adk', 'ppt'\]"):
+    with pytest.raises(ConfigError, match=r"'keldysh'.*\['adk', 'adk_circular', 'ppt'\]"):
         ionizing_gas(grid, fiber, mixture, "keldysh")

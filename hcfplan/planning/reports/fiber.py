@@ -99,7 +99,7 @@ def _fiber_report(config) -> dict:
 
     laser = config.laser
     omega0 = pump_omega(laser)
-    medium = build_medium(config.gas) if config.gas is not None else None
+    medium = build_medium(config.gas, laser.polarization) if config.gas is not None else None
     waveguide = build_waveguide(config.fiber, medium, omega0)
     w0 = np.array([omega0])
     betas = derived.dispersion_coefficients(waveguide, omega0, order=3)

@@ -29,7 +29,16 @@ import numpy as np
 
 from hcfplan.constants import P_1ATM, T_ROOM
 from hcfplan.errors import ConfigError
-from hcfplan.planning.build import build_medium, build_waveguide, coupling, pump_omega
+from hcfplan.planning.build import (
+    build_medium,
+    build_waveguide,
+    coupling,
+    pump_omega,
+    rate_model,
+)
+from hcfplan.planning.reports.limits_checks import check_entry as _check
+from hcfplan.planning.reports.limits_checks import finite_or_none as _finite
+from hcfplan.planning.reports.limits_checks import not_checked as _not_checked
 from hcfplan.planning.reports.limits_gas import (
     PRESSURE_SEARCH_MAX,
     RATE_TABLE_RANGE,
@@ -60,10 +69,14 @@ NOT_ACCEPTABLE_NOTE = ("beyond at least one modelled limit (see the margins mark
 
 SOURCES = {
     "critical_power": "P_cr = 1.8962 lambda^2/(4 pi n0 n2): G. Fibich and A. L. Gaeta, Opt. "
-                      "Lett. 25, 335 (2000); required margin P_cr/P: common practice, no source",
+                      "Lett. 25, 335 (2000); n2 electronic plus the rotational part at the "
+                      "pulse peak (molecular gases), circular polarisation 2/3 and 1/4 of the "
+                      "linear values (R. W. Boyd, Nonlinear Optics, Sec. 4.2 [from memory]); "
+                      "required margin P_cr/P: common practice, no source",
     "ionization": "PPT rate (A. M. Perelomov, V. S. Popov, M. V. Terent'ev, Sov. Phys. JETP 23, "
-                  "924 (1966)) integrated over the pulse; fraction limit: common practice, "
-                  "no source",
+                  "924 (1966)) integrated over the pulse (circular polarisation: the ADK "
+                  "tunnelling rate at the constant field magnitude); fraction limit: common "
+                  "practice, no source",
     "bsi": "barrier suppression, S. Augst et al., Phys. Rev. Lett. 63, 2212 (1989)",
     "rating": "the cell maker's rated pressure (cell.rated_pressure_bar)",
     "window": "circular plate under uniform load, W. C. Young and R. G. Budynas, Roark's "
@@ -79,35 +92,6 @@ SOURCES = {
 
 # ---------------------------------------------------------------------------------------------
 # checks
-
-
-def _finite(x):
-    if x is None or isinstance(x, bool):
-        return x
-    if isinstance(x, (float, int, np.floating, np.integer)):
-        return float(x) if math.isfinite(x) else None
-    return x
-
-
-def _check(name: str, value, limit, *, unit: str, source: str, assumption: str,
-           kind: str = "maximum", severity: str = "limit", required: float = 1.0,
-           ratio: str = "") -> dict:
-    """One entry of ``limits.checks`` (see the module docstring)."""
-    from hcfplan.limits.margins import margin_record
-
-    record = margin_record(name, limit=_finite(limit), value=_finite(value), required=required,
-                           unit=unit, kind=kind, ratio=ratio)
-    met = record["met"]
-    record.update({"margin": _finite(record["margin"]),
-                   "status": "not checked" if met is None else ("within" if met else "exceeds"),
-                   "severity": severity, "source": source, "assumption": assumption})
-    return record
-
-
-def _not_checked(name: str, unit: str, why: str, source: str = "",
-                 severity: str = "limit", ratio: str = "", kind: str = "maximum") -> dict:
-    return _check(name, None, None, unit=unit, source=source, assumption=why, severity=severity,
-                  ratio=ratio, kind=kind)
 
 
 @dataclass(frozen=True)
@@ -128,6 +112,7 @@ class _Setup:
     critical_power: float | None  #: [W]
     n0: float | None
     entrance: Any = None  #: EntranceGas: the fill at the entrance (limits_gradient)
+    n2_self_focusing: float | None = None  #: electronic + rotational at the peak [m^2/W]
 
 
 def _setup(config) -> _Setup:
@@ -136,23 +121,28 @@ def _setup(config) -> _Setup:
 
     laser = config.laser
     omega0 = pump_omega(laser)
-    medium = build_medium(config.gas) if config.gas is not None else None
+    medium = (build_medium(config.gas, laser.polarization) if config.gas is not None
+              else None)
     waveguide = build_waveguide(config.fiber, medium, omega0)
     efficiency, waist, optimum = coupling(config)
     full = pulse.peak_power_from_energy(laser.energy, laser.duration_fwhm, laser.shape)
     alpha = float(waveguide.attenuation(np.array([omega0]))[0])
-    critical = n0 = rates = entrance = None
+    critical = n0 = rates = entrance = n2_sf = None
     if medium is not None:
-        entrance = entrance_gas(config.gas, medium, laser.wavelength, omega0)
+        from hcfplan.limits.rotational import self_focusing_n2
+
+        pulse_id = (laser.duration_fwhm, laser.shape)
+        entrance = entrance_gas(config.gas, medium, laser.wavelength, omega0, pulse_id)
         n0 = float(medium.refractive_index(np.array([omega0]))[0])
-        critical = float(limits.self_focusing_power(laser.wavelength, n0, medium.n2))
+        n2_sf = self_focusing_n2(medium, laser.duration_fwhm, laser.shape)
+        critical = float(limits.self_focusing_power(laser.wavelength, n0, n2_sf))
         if config.gas.is_gradient:  # the energy limit of the highest pressure in the fiber
             critical = critical_power_at(config.gas, medium, laser.wavelength, omega0,
-                                         config.gas.highest_pressure)
-        rates = weighted_rates(medium, laser.wavelength, config.gas.ionization_model)
+                                         config.gas.highest_pressure, pulse_id)
+        rates = weighted_rates(medium, laser.wavelength, rate_model(config))
     return _Setup(config, omega0, medium, waveguide, efficiency, waist, optimum, full,
                   full * efficiency, math.exp(-2 * alpha * config.fiber.length), rates,
-                  critical, n0, entrance)
+                  critical, n0, entrance, n2_sf)
 
 
 def _run_value(run, name: str):
@@ -176,11 +166,12 @@ def _self_focusing_part(s: _Setup, run) -> tuple[dict, list, list]:
         return ({}, [_not_checked(f"{name}.input", unit, why, ratio="P_cr/P")], [])
     laser, gas = s.config.laser, s.config.gas
     ceiling = condensation_ceiling(s.medium, gas.temperature, PRESSURE_SEARCH_MAX)
+    sf_ratio = s.n2_self_focusing / s.medium.n2  # rotational part scaled with density too
 
     def critical_at(p: float) -> float:
         scaled = gas_at(gas, s.medium, p)
         n0 = float(scaled.refractive_index(np.array([s.omega0]))[0])
-        return float(limits.self_focusing_power(laser.wavelength, n0, scaled.n2))
+        return float(limits.self_focusing_power(laser.wavelength, n0, scaled.n2 * sf_ratio))
 
     p_max = limits.max_pressure_for_self_focusing(
         s.peak_power_coupled, critical_at, margin=margin,
@@ -188,6 +179,9 @@ def _self_focusing_part(s: _Setup, run) -> tuple[dict, list, list]:
     at_input = s.entrance.critical_power  # the entrance pressure (a gradient's p0)
     values = {
         "limits.self_focusing.critical_power_w": at_input,
+        "limits.self_focusing.polarization": laser.polarization,
+        "limits.self_focusing.n2_m2_per_w": s.n2_self_focusing,
+        "limits.self_focusing.electronic_n2_m2_per_w": s.medium.n2,
         "limits.self_focusing.required_margin": margin,
         "limits.self_focusing.peak_power_input_w": s.peak_power_coupled,
         "limits.self_focusing.margin_input": ratio_of(at_input, s.peak_power_coupled),
@@ -235,7 +229,10 @@ def _ionization_part(s: _Setup, run) -> tuple[dict, list, list]:
     level = s.config.limits.ionization_fraction_limit
     area = s.waveguide.peak_intensity_area
     intensity = s.peak_power_coupled / area
-    bsi = lowest_barrier_suppression(s.medium)
+    # barrier suppression is set by the field: a circular wave of intensity I has the field
+    # magnitude sqrt(I/(c eps0)), so it reaches the same field at twice the intensity
+    bsi = lowest_barrier_suppression(s.medium) * (
+        2.0 if laser.polarization == "circular" else 1.0)
     i_lim = peak_intensity_for_fraction(level, laser.duration_fwhm, laser.shape, s.rates,
                                         RATE_TABLE_RANGE)
 
@@ -243,7 +240,7 @@ def _ionization_part(s: _Setup, run) -> tuple[dict, list, list]:
         return pulse_ionization_fraction(i, laser.duration_fwhm, laser.shape, s.rates)
 
     values = {
-        "limits.ionization.model": s.config.gas.ionization_model,
+        "limits.ionization.model": rate_model(s.config),
         "limits.ionization.fraction_limit": level,
         "limits.ionization.peak_intensity_input_w_per_m2": intensity,
         "limits.ionization.fraction_input": fraction(intensity),
@@ -573,9 +570,12 @@ def _limits_report(config, run) -> dict:
     from hcfplan.limits.cautions import caution_lines
 
     s = _setup(config)
+    from hcfplan.planning.reports.limits_power import entrance_window_part, power_part
+
     parts = [_self_focusing_part(s, run), _ionization_part(s, run), _cell_part(s),
              _window_pressure(s), _window_b_integral(s, run), _static_fill_part(s),
-             _gas_handling_part(s), _entrance_part(s)]
+             _gas_handling_part(s), _entrance_part(s), entrance_window_part(s),
+             power_part(s, run)]
     report: dict = {}
     checks: list = []
     notes: list = list(s.medium.warnings) if s.medium is not None else []

@@ -19,8 +19,12 @@ from hcfplan.planning.reports.limits_gas import gas_at
 
 
 def critical_power_at(gas_spec, medium, wavelength: float, omega0: float,
-                      pressure: float) -> float:
+                      pressure: float, pulse: tuple | None = None) -> float:
     """Self-focusing critical power of the configured gas at ``pressure`` [Pa]; inf for no gas.
+
+    With ``pulse`` = (intensity FWHM [s], shape) the Kerr coefficient includes the delayed
+    rotational part a pulse of that duration sees
+    (:func:`hcfplan.limits.rotational.self_focusing_n2`); without, the electronic n2 only.
 
     References
     ----------
@@ -33,7 +37,18 @@ def critical_power_at(gas_spec, medium, wavelength: float, omega0: float,
         return math.inf
     scaled = gas_at(gas_spec, medium, pressure)
     n0 = float(scaled.refractive_index(np.array([omega0]))[0])
-    return float(self_focusing_power(wavelength, n0, scaled.n2))
+    return float(self_focusing_power(wavelength, n0, _kerr(scaled, medium, pulse)))
+
+
+def _kerr(scaled, medium, pulse: tuple | None) -> float:
+    """The Kerr coefficient for self-focusing of a fill rescaled from ``medium``: electronic,
+    plus rotational for a given pulse, the rotational share taken from the configured fill
+    (both parts scale with the density; the collisional T2 is the configured fill's). [m^2/W]"""
+    if pulse is None or medium.n2 <= 0:
+        return float(scaled.n2)
+    from hcfplan.limits.rotational import self_focusing_n2
+
+    return float(scaled.n2) * self_focusing_n2(medium, *pulse) / float(medium.n2)
 
 
 @dataclass(frozen=True)
@@ -42,12 +57,14 @@ class EntranceGas:
 
     pressure: float  #: [Pa]
     n0: float | None  #: refractive index at the pump, None when evacuated
-    n2: float | None  #: [m^2/W], None when evacuated
+    n2: float | None  #: for self-focusing [m^2/W] (with the rotational part), None when evacuated
     critical_power: float | None  #: [W], None when evacuated
 
 
-def entrance_gas(gas_spec, medium, wavelength: float, omega0: float) -> EntranceGas:
-    """The fill at the entrance pressure (``gas_spec.entrance_side_pressure``).
+def entrance_gas(gas_spec, medium, wavelength: float, omega0: float,
+                 pulse: tuple | None = None) -> EntranceGas:
+    """The fill at the entrance pressure (``gas_spec.entrance_side_pressure``); ``pulse`` as in
+    :func:`critical_power_at`.
 
     References
     ----------
@@ -59,12 +76,12 @@ def entrance_gas(gas_spec, medium, wavelength: float, omega0: float) -> Entrance
         return EntranceGas(pressure, None, None, None)
     scaled = gas_at(gas_spec, medium, pressure)
     n0 = float(scaled.refractive_index(np.array([omega0]))[0])
-    return EntranceGas(pressure, n0, scaled.n2,
-                       critical_power_at(gas_spec, medium, wavelength, omega0, pressure))
+    return EntranceGas(pressure, n0, _kerr(scaled, medium, pulse),
+                       critical_power_at(gas_spec, medium, wavelength, omega0, pressure, pulse))
 
 
 def tightest_point_along_fiber(gas_spec, medium, wavelength: float, omega0: float, length: float,
-                               z, peak_power) -> dict:
+                               z, peak_power, pulse: tuple | None = None) -> dict:
     """Where along a gradient the run's peak power comes closest to the local critical power.
 
     Parameters
@@ -97,7 +114,7 @@ def tightest_point_along_fiber(gas_spec, medium, wavelength: float, omega0: floa
     power = np.asarray(peak_power, dtype=float)
     pressure = viscous_pressure_profile(z, length, gas_spec.entrance_pressure,
                                         gas_spec.exit_pressure)
-    critical = np.array([critical_power_at(gas_spec, medium, wavelength, omega0, float(p))
+    critical = np.array([critical_power_at(gas_spec, medium, wavelength, omega0, float(p), pulse)
                          for p in pressure])
     with np.errstate(divide="ignore", invalid="ignore"):
         margins = np.where(power > 0, critical / power, np.inf)
@@ -123,13 +140,16 @@ def gradient_self_focusing(gas_spec, medium, laser, omega0: float, fiber, input_
     """
     z, power = getattr(run, "z", None), getattr(run, "peak_power_z", None)
     wavelength = laser.wavelength
+    pulse = (laser.duration_fwhm, laser.shape)
     if z is None or power is None:
-        top = critical_power_at(gas_spec, medium, wavelength, omega0, gas_spec.highest_pressure)
+        top = critical_power_at(gas_spec, medium, wavelength, omega0, gas_spec.highest_pressure,
+                                pulse)
         return ({"limits.self_focusing.critical_power_highest_pressure_w": top},
                 {"name": "self_focusing.highest_pressure", "value": input_power, "limit": top,
                  "assumption": "coupled input peak power vs P_cr at the highest pressure of the "
                                "gradient (peak power taken unchanged along the fiber)"})
-    t = tightest_point_along_fiber(gas_spec, medium, wavelength, omega0, fiber.length, z, power)
+    t = tightest_point_along_fiber(gas_spec, medium, wavelength, omega0, fiber.length, z, power,
+                                   pulse)
     values = {"limits.self_focusing.peak_power_in_fiber_w": t["peak_power"],
               "limits.self_focusing.margin_in_fiber": t["margin"],
               "limits.self_focusing.in_fiber_position_m": t["z"],
