@@ -19,6 +19,7 @@ SUFFIXES: dict[str, tuple[float, str, str]] = {
     "ps": (1e-12, "s", "ps"),
     "fs": (1e-15, "s", "fs"),
     "fs2": (1e-30, "s^2", "fs^2"),
+    "fs2_per_m": (1e-30, "s^2/m", "fs^2/m"),
     "fs3": (1e-45, "s^3", "fs^3"),
     "j": (1.0, "J", "J"),
     "mj": (1e-3, "J", "mJ"),

@@ -14,6 +14,7 @@ from __future__ import annotations
 from hcfplan.fibers.antiresonant import AntiresonantFiber
 from hcfplan.fibers.base import GasLike, Waveguide
 from hcfplan.fibers.capillary import CapillaryFiber
+from hcfplan.fibers.measured import MeasuredFiber
 from hcfplan.fibers.taylor import TaylorFiber
 
 #: model key -> Waveguide class
@@ -28,6 +29,7 @@ __all__ = [
     "AntiresonantFiber",
     "CapillaryFiber",
     "GasLike",
+    "MeasuredFiber",
     "TaylorFiber",
     "Waveguide",
 ]

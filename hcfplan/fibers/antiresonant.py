@@ -54,6 +54,13 @@ _RESONANCE_TOLERANCE = 1e-14
 #: them seven times (fiber report, recorder, limits), 4-6 ms each for the demo fiber.
 _KNOWN_RESONANCES: dict = {}
 _KNOWN_RESONANCES_KEPT = 32
+#: What the single-tube loss means for a real fiber (shown by the fiber report).
+SINGLE_TUBE_LOSS_NOTE = (
+    "the anti-resonant loss is the confinement loss of a single tube wall (Zeisberger & "
+    "Schmidt 2017), which overstates the loss of real single-ring and tube-lattice fibers by "
+    "one to two orders of magnitude (they are commonly well below 1 dB/m near 1 um for "
+    "25-50 um cores: from memory, no source verified); plan a real fiber with its measured "
+    "loss, fiber.loss_db_per_m or fiber.loss_csv")
 
 
 def wall_phase(omega: np.ndarray, wall_thickness: float, n_glass, n_gas) -> np.ndarray:
@@ -257,10 +264,14 @@ class AntiresonantFiber(GasFilledCore):
         active = np.ones(m_max, dtype=bool)
         for _ in range(_RESONANCE_ITERATIONS):
             omega = 2.0 * np.pi * c / wavelength[active]
-            n_glass = solid_index(material, omega)
-            n_gas = self.gas.refractive_index(omega)
+            # high orders lie below the glass table's range, where its index may be nan: those
+            # orders stay nan (handled below), so numpy's invalid-value warning is not news
+            with np.errstate(invalid="ignore"):
+                n_glass = solid_index(material, omega)
+                n_gas = self.gas.refractive_index(omega)
+                found = (2.0 * self.wall_thickness / orders[active]
+                         * np.sqrt(n_glass**2 - n_gas**2))
             previous = wavelength[active]
-            found = 2.0 * self.wall_thickness / orders[active] * np.sqrt(n_glass**2 - n_gas**2)
             wavelength[active] = found
             # settled orders, and nan (beyond a table), stay as they are
             still = ~((np.abs(found - previous) <= _RESONANCE_TOLERANCE * found) | np.isnan(found))
@@ -296,6 +307,11 @@ class AntiresonantFiber(GasFilledCore):
         resonances = self.resonance_wavelengths(max(m_needed, 1))
         distance = np.abs(wavelength[..., None] / resonances - 1.0)
         return np.any(distance < width / 2.0, axis=-1)
+
+    #: What :meth:`attenuation` is (the summary's ``fiber.loss_model``): the confinement loss of
+    #: one tube wall, which overstates the loss of real single-ring fibers (see
+    #: :data:`SINGLE_TUBE_LOSS_NOTE`).
+    loss_model = "antiresonant_single_tube_zeisberger2017"
 
     def describe(self) -> dict:
         """Defining SI parameters of the model.

@@ -339,6 +339,9 @@ class CapillaryFiber(GasFilledCore):
             )
         return alpha
 
+    #: What :meth:`attenuation` is (the summary's ``fiber.loss_model``).
+    loss_model = "capillary_marcatili1964"
+
     def describe(self) -> dict:
         """Defining SI parameters of the model.
 

@@ -178,6 +178,9 @@ class TaylorFiber:
         """
         return math.nan if self.mode_area is None else float(self.mode_area)
 
+    #: What :meth:`attenuation` is (the summary's ``fiber.loss_model``).
+    loss_model = "flat"
+
     def describe(self) -> dict:
         """Defining SI parameters of the model.
 

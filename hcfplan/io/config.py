@@ -18,6 +18,8 @@ from __future__ import annotations
 from pathlib import Path
 from typing import Any
 
+import numpy as np
+
 from hcfplan import units
 from hcfplan.errors import ConfigError
 from hcfplan.io import crosschecks
@@ -130,8 +132,36 @@ def _si(value, suffix):
     return None if value is None else units.to_si(value, suffix)
 
 
-def _build_fiber(f: dict) -> FiberSpec:
+def _fiber_loss_curve(f: dict, base: Path) -> MeasuredCurve | None:
+    """``fiber.loss_csv`` read now, losses >= 0, converted to field attenuation [1/m]."""
+    curve = _measured_curve(f["loss_csv"], base, "fiber.loss_csv", "loss_db_per_m")
+    if curve is None:
+        return None
+    negative = np.flatnonzero(curve.values < 0)
+    if negative.size:
+        raise ConfigError(f"fiber.loss_csv: {curve.source}: loss {curve.values[negative[0]]:g} "
+                          f"dB/m at {curve.wavelength[negative[0]] * 1e9:g} nm: losses must "
+                          "be >= 0")
+    alpha = units.power_loss_db_per_m_to_field_attenuation(curve.values)
+    return MeasuredCurve(source=curve.source, wavelength=curve.wavelength, values=alpha)
+
+
+def _fiber_gvd_curve(f: dict, base: Path, pump_nm: float) -> MeasuredCurve | None:
+    """``fiber.gvd_csv`` read now (beta2 in s^2/m); it must contain the pump."""
+    curve = _measured_curve(f["gvd_csv"], base, "fiber.gvd_csv", "gvd_fs2_per_m")
+    if curve is None:
+        return None
+    lo, hi = curve.wavelength[0] * 1e9, curve.wavelength[-1] * 1e9
+    if not lo <= pump_nm <= hi:
+        raise ConfigError(f"fiber.gvd_csv: {curve.source} covers {lo:g}-{hi:g} nm; it must "
+                          f"contain the pump, laser.wavelength_nm = {pump_nm:g}, about which "
+                          "it is integrated to beta(omega)")
+    return curve
+
+
+def _build_fiber(f: dict, base: Path, pump_nm: float) -> FiberSpec:
     core = _si(f["core_diameter_um"], "um")
+    flat = f["loss_db_per_m"]
     return FiberSpec(
         kind=f["kind"], length=f["length_m"],
         core_radius=None if core is None else core / 2,
@@ -140,11 +170,14 @@ def _build_fiber(f: dict) -> FiberSpec:
         mode_order=crosschecks.mode_order(f["mode"]),
         betas=tuple(units.taylor_betas_to_si(f["betas_fs_n_per_mm"] or [])),
         gamma=f["gamma_per_w_per_m"],
-        loss=units.power_loss_db_per_m_to_field_attenuation(f["loss_db_per_m"]),
+        loss=units.power_loss_db_per_m_to_field_attenuation(flat or 0.0),
         self_steepening=f["self_steepening"], raman_fraction=f["raman_fraction"],
         raman_tau1=units.to_si(f["raman_tau1_fs"], "fs"),
         raman_tau2=units.to_si(f["raman_tau2_fs"], "fs"),
         effective_area=_si(f["effective_area_um2"], "um2"),
+        flat_loss=None if flat is None else units.power_loss_db_per_m_to_field_attenuation(flat),
+        loss_curve=_fiber_loss_curve(f, base),
+        gvd_curve=_fiber_gvd_curve(f, base, pump_nm),
     )
 
 
@@ -190,7 +223,7 @@ def _build_specs(r: dict, present: set[str], base: Path, extra_gas_dirs) -> dict
             spectrum=spectrum,
             beam_waist=_si(las["beam_waist_um"], "um"),
             polarization=las["polarization"]),
-        fiber=_build_fiber(r["fiber"]),
+        fiber=_build_fiber(r["fiber"], base, las["wavelength_nm"]),
         gas=_build_gas(r["gas"], present, table_dirs),
         cell=CellSpec(rated_pressure=_si(cell["rated_pressure_bar"], "bar"),
                       window_material=cell["window_material"],

@@ -44,6 +44,9 @@ def check_fiber(resolved: dict) -> None:
     """Keys each fiber kind needs or refuses, the wall against the core, and the mode name."""
     fiber = resolved["fiber"]
     kind = fiber["kind"]
+    if fiber["loss_db_per_m"] is not None and fiber["loss_csv"] is not None:
+        raise ConfigError("fiber.loss_db_per_m and fiber.loss_csv: give one measured loss, "
+                          "not both")
     if kind in ("capillary", "antiresonant"):
         _require(resolved, "fiber", "core_diameter_um", f"for kind = {kind!r}")
     if kind == "antiresonant":

@@ -79,8 +79,17 @@ SCHEMA: dict[str, dict[str, Key]] = {
         "betas_fs_n_per_mm": Key("float_list", None,
                                  "Taylor fiber: [beta2, beta3, ...] about the pump in fs^n/mm."),
         "gamma_per_w_per_m": Key(F, None, "Taylor fiber: nonlinear coefficient.", 0.0, 1.0e3),
-        "loss_db_per_m": Key(F, 0.0, "Taylor fiber: flat power loss.", 0.0, 1.0e4,
-                             low_open=False),
+        "loss_db_per_m": Key(F, None, "Flat measured power loss; replaces the model's loss "
+                             "(capillary, antiresonant; for taylor the fiber's loss, default 0).",
+                             0.0, 1.0e4, low_open=False),
+        "loss_csv": Key("path", None, "Measured power loss, CSV columns wavelength_nm, "
+                        "loss_db_per_m; replaces the model's loss inside the measured range "
+                        "(the model's loss outside it, with a warning where light is there)."),
+        "gvd_csv": Key("path", None, "Measured GVD of the fiber itself (evacuated), CSV "
+                       "columns wavelength_nm, gvd_fs2_per_m; the gas dispersion at the fill "
+                       "density is added; integrated to beta(omega) about the pump (which it "
+                       "must contain); the model's beta outside the measured range, with a "
+                       "warning where light is there."),
         "self_steepening": Key("bool", True, "Taylor fiber: include self-steepening."),
         "raman_fraction": Key(F, 0.0, "Taylor fiber: fractional delayed Raman response f_R.",
                               0.0, 1.0, low_open=False, high_open=True),

@@ -1,7 +1,8 @@
 """The frozen specs a validated config is made of: SI values only, built by
 :mod:`hcfplan.io.config` while loading.
 
-Files a config names (a measured input spectrum, a measured mirror GDD curve) are read while
+Files a config names (a measured input spectrum, a measured mirror GDD curve, measured fiber
+loss and GVD) are read while
 loading and travel here as arrays (:class:`MeasuredCurve`), so a run needs no file access.
 """
 
@@ -56,12 +57,18 @@ class FiberSpec:
     mode_order: int  #: m of EH1m
     betas: tuple[float, ...]  #: (beta2, beta3, ...) [s^n/m]
     gamma: float | None  #: [1/(W m)]
-    loss: float  #: field attenuation [1/m]
+    loss: float  #: field attenuation of a taylor fiber (0 when not given) [1/m]
     self_steepening: bool
     raman_fraction: float
     raman_tau1: float  #: [s]
     raman_tau2: float  #: [s]
     effective_area: float | None  #: [m^2]
+    #: flat measured field attenuation replacing the model's (``fiber.loss_db_per_m``) [1/m]
+    flat_loss: float | None = None
+    #: measured loss (``fiber.loss_csv``), values as field attenuation [1/m]
+    loss_curve: MeasuredCurve | None = None
+    #: measured GVD (``fiber.gvd_csv``), values beta2 [s^2/m]
+    gvd_curve: MeasuredCurve | None = None
 
 
 @dataclass(frozen=True)

@@ -10,8 +10,11 @@ Table layout (blocks, ``[[...]]`` = array of records)::
 
     schema_version = 1
     [gas]          name, symbol, molar_mass_g_per_mol, source, notes?
-    [[dispersion]] key, default?, form, <form coefficients>, reference_temperature_k,
-                   reference_pressure_pa | _bar, valid_wavelength_um = [lo, hi], source
+    [[dispersion]] key, default?, form, <form coefficients>, constant?,
+                   reference_temperature_k, reference_pressure_pa | _bar,
+                   valid_wavelength_um = [lo, hi], source
+    [dispersion_combined]  keys = [key, ...], switch_wavelength_um = [[lo, hi], ...],
+                   source, notes?                                    (optional)
     [kerr]         n2_m2_per_w, wavelength_nm, pulse_duration_fs?, reference_temperature_k,
                    reference_pressure_pa | _bar, kind, source, notes?
     [ionization]   species, mole_fraction, potential_ev, l, m, charge, source
@@ -23,7 +26,10 @@ Table layout (blocks, ``[[...]]`` = array of records)::
     [notes]        text                                              (optional)
 
 The ``<form coefficients>`` are the two keys of :data:`DISPERSION_FORM_KEYS` for the record's
-``form``.
+``form``; ``constant`` (default 0) is the published constant term of the form (added to
+n^2 - 1 or to n - 1). ``[dispersion_combined]`` names fits of the file in order of increasing
+wavelength and one switch band between each neighbouring pair; the loader refuses a band that
+does not lie inside the stated ranges of both fits it joins.
 """
 
 from __future__ import annotations
@@ -90,6 +96,18 @@ def _kind_numbers(value: Any) -> str:
     return "" if ok else "must be a non-empty list of numbers"
 
 
+def _kind_strs(value: Any) -> str:
+    ok = isinstance(value, list) and value and all(_kind_str(v) == "" for v in value)
+    return "" if ok else "must be a non-empty list of non-empty strings"
+
+
+def _kind_bands(value: Any) -> str:
+    if not (isinstance(value, list) and value):
+        return "must be a non-empty list of [lo, hi] pairs"
+    problems = [_kind_range(v) for v in value]
+    return next((f"band {i}: {p}" for i, p in enumerate(problems) if p), "")
+
+
 def _kind_range(value: Any) -> str:
     if not (isinstance(value, list) and len(value) == 2 and all(_is_number(v) for v in value)):
         return "must be a list [lo, hi] of two numbers"
@@ -105,11 +123,15 @@ _KINDS: dict[str, Callable[[Any], str]] = {
     "bool": _kind_bool,
     "numbers": _kind_numbers,
     "range": _kind_range,
+    "strs": _kind_strs,
+    "bands": _kind_bands,
 }
 
 
 def _values(value: Any) -> list:
-    return value if isinstance(value, list) else [value]
+    if not isinstance(value, list):
+        return [value]
+    return [x for v in value for x in _values(v)]
 
 
 _CHECKS: dict[str, Callable[[Any], str]] = {
@@ -131,7 +153,7 @@ _CHECKS: dict[str, Callable[[Any], str]] = {
 class TableField:
     """One table key: base name, value kind, value check, allowed unit suffixes, required.
 
-    ``kind`` is one of ``number, int, str, bool, numbers, range``; ``check`` one of
+    ``kind`` is one of ``number, int, str, bool, numbers, range, strs, bands``; ``check`` one of
     ``"", positive, nonnegative, fraction, charge, kerr_kind, form``. With ``units``, the key
     in the file is ``<name>_<unit>`` for one of the units, and the value is converted to SI.
     """
@@ -149,7 +171,7 @@ def _factor(unit: str) -> float:
 
 def _to_si(value: Any, factor: float) -> Any:
     if isinstance(value, list):
-        return [v * factor for v in value]
+        return [_to_si(v, factor) for v in value]
     return value * factor
 
 
@@ -255,6 +277,14 @@ DISPERSION_FIELDS = (
     _T,
     _P,
     TableField("valid_wavelength", "range", "positive", ("um", "nm")),
+    TableField("constant", "number", required=False),
+    _SOURCE,
+    _NOTES,
+)
+#: The optional block joining several fits of one gas into the index used by default.
+COMBINED_FIELDS = (
+    TableField("keys", "strs"),
+    TableField("switch_wavelength", "bands", "positive", ("um", "nm")),
     _SOURCE,
     _NOTES,
 )
@@ -293,7 +323,8 @@ RAMAN_FIELDS = (
 EOS_FIELDS = (TableField("coolprop_name", "str"), _SOURCE, _NOTES)
 NOTES_FIELDS = (TableField("text", "str"),)
 #: The top-level keys (blocks) a table may have.
-TOP_KEYS = ("schema_version", "gas", "dispersion", "kerr", "ionization", "raman", "eos", "notes")
+TOP_KEYS = ("schema_version", "gas", "dispersion", "dispersion_combined", "kerr", "ionization",
+            "raman", "eos", "notes")
 
 
 def check_top_level(data: Mapping, path: str) -> None:

@@ -1,11 +1,11 @@
-"""Gas data tables: the frozen records, the dispersion forms, the TOML loader and search path.
+"""Gas data tables: the frozen records, the TOML loader and search path.
 
 One TOML file per gas lives in the top-level ``gases/`` folder (shipped as the package
 ``hcfplan._gases``). Users may put their own tables in further directories; those are searched
 first. The layout of a file and the checks of each key are in
 :mod:`hcfplan.materials.gas_table_schema`; this module builds the records from the checked SI
-values. Dispersion coefficients are kept as printed (micrometre units) and the wavelength is
-converted when a fit is evaluated, see :func:`refractive_index_from_fit`.
+values. The dispersion records, their forms and the combination of several fits live in
+:mod:`hcfplan.materials.gas_dispersion` and are re-exported here.
 
 References
 ----------
@@ -20,16 +20,24 @@ from __future__ import annotations
 import importlib.resources
 import math
 import os
-from collections.abc import Callable, Mapping, Sequence
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from functools import lru_cache
 from pathlib import Path
 from typing import Any
 
-import numpy as np
-
 from hcfplan.errors import ConfigError
+from hcfplan.materials.gas_dispersion import (
+    DISPERSION_FORMS,
+    CombinedDispersion,
+    DispersionFit,
+    combined_term,
+    fit_term,
+    refractive_index_from_fit,
+    switch_weight,
+)
 from hcfplan.materials.gas_table_schema import (
+    COMBINED_FIELDS,
     DISPERSION_FIELDS,
     EOS_FIELDS,
     GAS_FIELDS,
@@ -44,29 +52,18 @@ from hcfplan.materials.gas_table_schema import (
 )
 from hcfplan.materials.table_files import read_table_toml
 
+__all__ = [
+    "DISPERSION_FORMS", "GAS_PATH_VARIABLE", "CombinedDispersion", "DispersionFit", "GasTable",
+    "IonizationData", "KerrData", "RotationalRamanSpecies", "available_gases",
+    "combined_term", "fit_term", "gas_search_dirs", "load_gas_table", "refractive_index_from_fit",
+    "shipped_gas_dir", "switch_weight",
+]
+
 #: Environment variable with extra table directories (os.pathsep-separated); read only by
 #: :func:`gas_search_dirs` when the caller passes an environment mapping.
 GAS_PATH_VARIABLE = "HCFPLAN_GAS_PATH"
 
 _SHIPPED_PACKAGE = "hcfplan._gases"
-
-@dataclass(frozen=True)
-class DispersionFit:
-    """One published refractive-index fit at its reference state.
-
-    ``coefficients`` holds pairs in the published micrometre units: ``(B_i, C_i [um^2])`` for
-    ``"n2_minus_1_sellmeier"`` and ``(A_i [um^-2], B_i [um^-2])`` for ``"n_minus_1_inverse"``.
-    Temperatures in [K], pressure in [Pa], ``valid_wavelength`` = (lo, hi) in [m].
-    """
-
-    form: str
-    coefficients: tuple
-    reference_temperature: float
-    reference_pressure: float
-    valid_wavelength: tuple[float, float]
-    source: str
-    key: str = ""
-
 
 @dataclass(frozen=True)
 class KerrData:
@@ -127,14 +124,14 @@ class RotationalRamanSpecies:
 class GasTable:
     """Everything hcfplan knows about one gas, in SI (``molar_mass`` in [kg/mol]).
 
-    ``dispersion`` is the default fit; ``dispersion_fits`` holds all fits of the file,
-    including the default one.
+    ``dispersion`` is what the index uses by default: the ``[dispersion_combined]`` record if
+    the file has one, else the default fit; ``dispersion_fits`` holds all fits of the file.
     """
 
     name: str
     coolprop_name: str
     molar_mass: float
-    dispersion: DispersionFit
+    dispersion: DispersionFit | CombinedDispersion
     kerr: KerrData
     ionization: IonizationData
     raman: tuple[RotationalRamanSpecies, ...]
@@ -147,62 +144,6 @@ class GasTable:
     def label(self) -> str:
         """Short name for messages: the symbol, or the name if the table has no symbol."""
         return self.symbol or self.name
-
-
-# --- dispersion forms ---------------------------------------------------------------------------
-
-
-def _n_sellmeier(coefficients: tuple, wavelength: np.ndarray) -> np.ndarray:
-    """n from n^2 - 1 = sum B_i lambda^2 / (lambda^2 - C_i), lambda in um (form of [1])."""
-    wavelength_um = np.asarray(wavelength, dtype=float) * 1e6  # the fits take micrometres
-    lam2 = wavelength_um**2
-    n2_minus_1 = sum(b * lam2 / (lam2 - c_um2) for b, c_um2 in coefficients)
-    return np.sqrt(1.0 + n2_minus_1)
-
-
-def _n_inverse(coefficients: tuple, wavelength: np.ndarray) -> np.ndarray:
-    """n from n - 1 = sum A_i / (B_i - lambda^-2), lambda in um (form of Eq. (1) of [2])."""
-    wavenumber2 = (1.0 / (np.asarray(wavelength, dtype=float) * 1e6)) ** 2  # [um^-2]
-    return 1.0 + sum(a / (b - wavenumber2) for a, b in coefficients)
-
-
-#: form name -> evaluator(coefficients, wavelength [m]) -> n
-DISPERSION_FORMS: dict[str, Callable[[tuple, np.ndarray], np.ndarray]] = {
-    "n2_minus_1_sellmeier": _n_sellmeier,
-    "n_minus_1_inverse": _n_inverse,
-}
-
-
-def refractive_index_from_fit(fit: DispersionFit, wavelength: np.ndarray) -> np.ndarray:
-    """Refractive index of a fit at its own reference state.
-
-    Parameters
-    ----------
-    fit : DispersionFit
-        The fit record.
-    wavelength : float or ndarray
-        Vacuum wavelength. [m]
-
-    Returns
-    -------
-    ndarray
-        Refractive index n. [-]
-
-    Notes
-    -----
-    ``"n2_minus_1_sellmeier"``: :math:`n^2 - 1 = \\sum_i B_i \\lambda^2/(\\lambda^2 - C_i)`, the
-    form of [1]; ``"n_minus_1_inverse"``: :math:`n - 1 = \\sum_i A_i/(B_i - \\lambda^{-2})`, the
-    form of Eq. (1) of [2]; :math:`\\lambda` in micrometres as printed. The coefficients and the
-    reference state come from the record (its ``source`` names the paper). No range check here;
-    :func:`hcfplan.materials.gases.refractive_index_reference` warns.
-
-    References
-    ----------
-    .. [1] A. Borzsonyi, Z. Heiner, M. P. Kalashnikov, A. P. Kovacs, K. Osvay, Appl. Opt. 47,
-           4856-4863 (2008), doi:10.1364/AO.47.004856.
-    .. [2] P. E. Ciddor, Appl. Opt. 35, 1566-1573 (1996), doi:10.1364/AO.35.001566.
-    """
-    return DISPERSION_FORMS[fit.form](fit.coefficients, wavelength)
 
 
 # --- record builders ------------------------------------------------------------------------
@@ -220,6 +161,7 @@ def _dispersion_record(block: Any, where: str, path: str) -> tuple[DispersionFit
             f"(got {len(values[first])} and {len(values[second])})"
         )
     lo, hi = values["valid_wavelength"]
+    constant = values["constant"]
     fit = DispersionFit(
         form=form,
         coefficients=tuple(zip(values[first], values[second], strict=True)),
@@ -228,6 +170,7 @@ def _dispersion_record(block: Any, where: str, path: str) -> tuple[DispersionFit
         valid_wavelength=(float(lo), float(hi)),
         source=values["source"],
         key=values["key"],
+        constant=0.0 if constant is None else float(constant),
     )
     return fit, bool(values["default"])
 
@@ -250,6 +193,46 @@ def _dispersion_records(blocks: Any, path: str) -> tuple[DispersionFit, tuple[Di
             f"(found {len(defaults)})"
         )
     return defaults[0], fits
+
+
+def _combined_record(block: Any, fits: tuple[DispersionFit, ...], default: DispersionFit,
+                     path: str) -> CombinedDispersion:
+    """Build the ``[dispersion_combined]`` record; every band inside both fits' ranges."""
+    values = check_block(block, COMBINED_FIELDS, "dispersion_combined", path)
+    by_key = {fit.key: fit for fit in fits}
+    unknown = [k for k in values["keys"] if k not in by_key]
+    if unknown:
+        raise ConfigError(f"{path}: dispersion_combined.keys: {unknown[0]!r} is not a "
+                          f"[[dispersion]] key (keys: {list(by_key)})")
+    chosen = tuple(by_key[k] for k in values["keys"])
+    if default.key not in values["keys"]:
+        raise ConfigError(f"{path}: dispersion_combined.keys = {values['keys']}: must include "
+                          f"the default fit {default.key!r} (used exactly next to it)")
+    bands = [tuple(float(v) for v in band) for band in values["switch_wavelength"]]
+    if len(chosen) < 2 or len(bands) != len(chosen) - 1:
+        raise ConfigError(f"{path}: dispersion_combined: {len(chosen)} keys need "
+                          f"{max(len(chosen) - 1, 1)} switch band(s), got {len(bands)}")
+    for i, (lo, hi) in enumerate(bands):
+        if i and lo < bands[i - 1][1]:
+            raise ConfigError(f"{path}: dispersion_combined.switch_wavelength band {i}: must "
+                              "start at or above the end of the band before it")
+        for fit in chosen[i : i + 2]:
+            f_lo, f_hi = fit.valid_wavelength
+            if lo < f_lo or hi > f_hi:
+                raise ConfigError(
+                    f"{path}: dispersion_combined.switch_wavelength band {i} "
+                    f"({lo * 1e6:g}-{hi * 1e6:g} um): must lie inside the range of fit "
+                    f"{fit.key!r} ({f_lo * 1e6:g}-{f_hi * 1e6:g} um)")
+    parts = [f"{fit.key} ({fit.valid_wavelength[0] * 1e9:.0f}-"
+             f"{fit.valid_wavelength[1] * 1e9:.0f} nm)" for fit in chosen]
+    switches = ", ".join(f"{lo * 1e9:.0f}-{hi * 1e9:.0f} nm" for lo, hi in bands)
+    cited = " | ".join(dict.fromkeys(fit.source for fit in chosen))
+    source = (f"combined fits {', '.join(parts)}, switched smoothly across {switches} "
+              f"({values['source']}). Fits: {cited}")
+    return CombinedDispersion(fits=chosen, switches=tuple(bands), source=source,
+                              reference_temperature=default.reference_temperature,
+                              reference_pressure=default.reference_pressure,
+                              anchor=values["keys"].index(default.key))
 
 
 def _kerr_record(block: Any, path: str) -> KerrData:
@@ -305,6 +288,9 @@ def _table_from_data(data: Mapping, path: str) -> GasTable:
     gas = check_block(required_block(data, "gas", path), GAS_FIELDS, "gas", path)
     eos = check_block(required_block(data, "eos", path), EOS_FIELDS, "eos", path)
     default_fit, fits = _dispersion_records(required_block(data, "dispersion", path), path)
+    combined = data.get("dispersion_combined")
+    dispersion = (default_fit if combined is None
+                  else _combined_record(combined, fits, default_fit, path))
     raman_blocks = data.get("raman", [])
     if not isinstance(raman_blocks, list):
         raise ConfigError(f"{path}: raman: must be an array of [[raman]] records")
@@ -314,7 +300,7 @@ def _table_from_data(data: Mapping, path: str) -> GasTable:
         name=gas["name"],
         coolprop_name=eos["coolprop_name"],
         molar_mass=float(gas["molar_mass"]),
-        dispersion=default_fit,
+        dispersion=dispersion,
         kerr=_kerr_record(required_block(data, "kerr", path), path),
         ionization=_ionization_record(required_block(data, "ionization", path), path),
         raman=tuple(_raman_record(b, f"raman[{i}]", path) for i, b in enumerate(raman_blocks)),
@@ -331,20 +317,26 @@ def _table_from_data(data: Mapping, path: str) -> GasTable:
 def shipped_gas_dir(package: str = _SHIPPED_PACKAGE) -> Path:
     """Directory of the gas tables shipped with hcfplan.
 
-    Uses ``importlib.resources`` on ``package`` (present when hcfplan is installed); in a plain
-    source checkout on PYTHONPATH it falls back to the ``gases/`` folder next to ``hcfplan/``.
+    The ``gases/`` folder next to the ``hcfplan/`` package that is running, where there is one
+    (a source checkout, also one run from PYTHONPATH while another checkout is installed, so
+    code and tables always come from the same tree); otherwise ``importlib.resources`` on
+    ``package`` (an installed hcfplan). A ``package`` other than the default is always looked
+    up through ``importlib.resources``.
 
     References
     ----------
     None: file helper (no published model).
     """
+    checkout = Path(__file__).resolve().parents[2] / "gases"
+    if package == _SHIPPED_PACKAGE and checkout.is_dir():
+        return checkout
     try:
         root = Path(str(importlib.resources.files(package)))
         if root.is_dir():
             return root
     except ModuleNotFoundError:
         pass
-    return Path(__file__).resolve().parents[2] / "gases"
+    return checkout
 
 
 def gas_search_dirs(

@@ -46,12 +46,15 @@ from hcfplan.materials.gas_density import (
 from hcfplan.materials.gas_phase import check_fill, fill_phase
 from hcfplan.materials.gas_tables import (
     GAS_PATH_VARIABLE,
+    CombinedDispersion,
     DispersionFit,
     GasTable,
     IonizationData,
     KerrData,
     RotationalRamanSpecies,
     available_gases,
+    combined_term,
+    fit_term,
     gas_search_dirs,
     load_gas_table,
     refractive_index_from_fit,
@@ -60,6 +63,7 @@ from hcfplan.materials.gas_tables import (
 
 __all__ = [
     "GAS_PATH_VARIABLE",
+    "CombinedDispersion",
     "DispersionFit",
     "GasComponent",
     "GasFill",
@@ -69,6 +73,7 @@ __all__ = [
     "KerrData",
     "RotationalRamanSpecies",
     "available_gases",
+    "fit_label",
     "gas_medium",
     "gas_search_dirs",
     "kerr_coefficient",
@@ -85,23 +90,35 @@ FRACTION_SUM_TOLERANCE = 1e-6
 # --- refractive index and Kerr coefficient ------------------------------------------------------
 
 
-def _fit(table: GasTable, key: str | None) -> DispersionFit:
-    if key is None:
+def _fit(table: GasTable, key: str | None) -> DispersionFit | CombinedDispersion:
+    if key is None or key == table.dispersion.key:
         return table.dispersion
     fits = {fit.key: fit for fit in table.dispersion_fits or (table.dispersion,)}
     if key not in fits:
-        raise ConfigError(f"{table.name}: dispersion fit {key!r}: unknown; allowed: {list(fits)}")
+        allowed = list(dict.fromkeys([table.dispersion.key, *fits]))
+        raise ConfigError(f"{table.name}: dispersion fit {key!r}: unknown; allowed: {allowed}")
     return fits[key]
 
 
-def _outside_message(fit: DispersionFit, wavelength: np.ndarray, label: str) -> str:
-    """One message if any wavelength lies outside the fit's range, else ''."""
+def fit_label(record: DispersionFit | CombinedDispersion) -> str:
+    """Short name of a dispersion record for messages: its key, or the keys it combines.
+
+    References
+    ----------
+    None: text helper.
+    """
+    return record.label if isinstance(record, CombinedDispersion) else repr(record.key)
+
+
+def _outside_message(fit, wavelength: np.ndarray, label: str) -> str:
+    """One message if any wavelength lies outside the record's range, else ''."""
     lo, hi = fit.valid_wavelength
     outside = (wavelength < lo) | (wavelength > hi)
     if not np.any(outside):
         return ""
+    what = "fits" if isinstance(fit, CombinedDispersion) else "fit"
     return (
-        f"{label} dispersion fit {fit.key!r} is valid for {lo * 1e9:.0f}-{hi * 1e9:.0f} nm; "
+        f"{label} dispersion {what} {fit_label(fit)} valid for {lo * 1e9:.0f}-{hi * 1e9:.0f} nm; "
         f"{int(np.count_nonzero(outside))} of {wavelength.size} wavelengths "
         f"({np.min(wavelength) * 1e9:.4g}-{np.max(wavelength) * 1e9:.4g} nm) are extrapolated"
     )
@@ -114,19 +131,28 @@ def _wavelength(omega: np.ndarray) -> np.ndarray:
     return 2 * np.pi * c / omega
 
 
+def _term_per_molecule(table: GasTable, record, wavelength: np.ndarray, eos: str) -> np.ndarray:
+    """(n^2-1)/(n^2+2) / N_ref of a record [m^3]; a combined record mixes its fits' terms."""
+    def density_ref(fit):
+        return reference_density(table.coolprop_name, fit.reference_pressure,
+                                 fit.reference_temperature, eos)
+
+    if isinstance(record, CombinedDispersion):
+        densities = tuple(density_ref(fit) for fit in record.fits)
+        return combined_term(record, wavelength, densities)
+    return fit_term(record, wavelength, density_ref(record))
+
+
 def _lorentz_lorenz_term(
     table: GasTable, omega: np.ndarray, density: float, fit: str | None, eos: str
 ) -> tuple[np.ndarray, str]:
     """(n^2-1)/(n^2+2) at ``density`` by density scaling from the fit, and a range message."""
     record = _fit(table, fit)
     wavelength = _wavelength(omega)
-    n_ref = refractive_index_from_fit(record, wavelength)
-    density_ref = reference_density(
-        table.coolprop_name, record.reference_pressure, record.reference_temperature, eos
-    )
+    flat = np.atleast_1d(wavelength).astype(float).ravel()
     # Lorentz-Lorenz, Sec. 2.3 of [2]: (n^2-1)/(n^2+2) is proportional to N
-    term = (n_ref**2 - 1) / (n_ref**2 + 2) * (density / density_ref)
-    return term, _outside_message(record, wavelength, table.label)
+    term = (_term_per_molecule(table, record, flat, eos) * density).reshape(np.shape(wavelength))
+    return term, _outside_message(record, flat, table.label)
 
 
 def _index_from_lorentz_lorenz(term: np.ndarray) -> np.ndarray:
@@ -146,12 +172,15 @@ def refractive_index_reference(
     omega : float or ndarray
         Angular frequency. [rad/s]
     fit : str, optional
-        Key of a dispersion record (e.g. ``"ciddor1996"`` for air); default record if None.
+        Key of a dispersion record (e.g. ``"ciddor1996"`` for air); the table's default
+        (its combined record if it has one) if None.
 
     Returns
     -------
     ndarray
-        n at (``fit.reference_temperature``, ``fit.reference_pressure``). [-]
+        n at (``fit.reference_temperature``, ``fit.reference_pressure``); for a combined
+        record, at the default fit's reference state, each fit scaled there by Lorentz-Lorenz
+        with the CoolProp density. [-]
 
     Notes
     -----
@@ -168,9 +197,14 @@ def refractive_index_reference(
     """
     record = _fit(table, fit)
     wavelength = _wavelength(omega)
-    message = _outside_message(record, wavelength, table.label)
+    message = _outside_message(record, np.atleast_1d(wavelength), table.label)
     if message:
         warnings.warn(message, ValidityWarning, stacklevel=2)
+    if isinstance(record, CombinedDispersion):
+        density = reference_density(table.coolprop_name, record.reference_pressure,
+                                    record.reference_temperature, "coolprop")
+        term, _ = _lorentz_lorenz_term(table, omega, density, fit, "coolprop")
+        return _index_from_lorentz_lorenz(term)
     return refractive_index_from_fit(record, wavelength)
 
 
@@ -192,7 +226,8 @@ def refractive_index(
     number_density : float
         Number density of the gas. [1/m^3]
     fit : str, optional
-        Key of a dispersion record; default record if None.
+        Key of a dispersion record; the table's default (its combined record if it has one)
+        if None.
     eos : {"coolprop", "ideal"}
         EOS used for the reference density; use the one that gave ``number_density``.
 

@@ -58,7 +58,25 @@ def rate_model(config) -> str:
 
 
 def build_waveguide(fiber, medium, omega0: float):
-    """Waveguide model for the configured fiber (see :mod:`hcfplan.fibers.base`)."""
+    """Waveguide model for the configured fiber (see :mod:`hcfplan.fibers.base`), with the
+    measured loss and GVD of ``fiber.loss_db_per_m``, ``fiber.loss_csv`` and ``fiber.gvd_csv``
+    laid over it (:class:`hcfplan.fibers.measured.MeasuredFiber`)."""
+    from hcfplan import fibers
+
+    model = _model_waveguide(fiber, medium, omega0)
+    flat = fiber.flat_loss if fiber.kind != "taylor" else None  # taylor: its own flat loss
+    loss, gvd = fiber.loss_curve, fiber.gvd_curve
+    if flat is None and loss is None and gvd is None:
+        return model
+    return fibers.MeasuredFiber(
+        base=model, omega0=omega0, flat_loss=flat,
+        loss_wavelength=None if loss is None else loss.wavelength,
+        loss=None if loss is None else loss.values,
+        gvd_wavelength=None if gvd is None else gvd.wavelength,
+        gvd=None if gvd is None else gvd.values)
+
+
+def _model_waveguide(fiber, medium, omega0: float):
     from hcfplan import fibers
 
     if fiber.kind == "capillary":
@@ -134,9 +152,11 @@ def coupling(config) -> tuple[float, float | None, float | None]:
 #: floating-point range (common practice, no source). [dB]
 MAX_FIBER_LOSS_DB = 300.0
 #: Config keys that set the linear loss of each fiber kind.
-_LOSS_KEYS = {"capillary": ("core_diameter_um", "mode", "bend_radius_m"),
-              "antiresonant": ("core_diameter_um", "wall_thickness_um"),
-              "taylor": ("loss_db_per_m",)}
+_LOSS_KEYS = {"capillary": ("core_diameter_um", "mode", "bend_radius_m", "loss_db_per_m",
+                            "loss_csv"),
+              "antiresonant": ("core_diameter_um", "wall_thickness_um", "loss_db_per_m",
+                               "loss_csv"),
+              "taylor": ("loss_db_per_m", "loss_csv")}
 
 
 def check_transmission(config, waveguide, omega0: float) -> float:

@@ -369,6 +369,7 @@ def _fiber_part(chain: ChainResult, report: dict) -> dict:
         "fiber.length_m": chain.config.fiber.length,
         "fiber.transmission": transmission,
         "fiber.linear_transmission": report["fiber.transmission"],
+        "fiber.loss_model": report["fiber.loss_model"],
         "fiber.soliton_order": report["fiber.soliton_order"],
         "fiber.zdw_m": report["fiber.zdw_m"],
         "fiber.beta2_s2_per_m": report["fiber.beta2_s2_per_m"],

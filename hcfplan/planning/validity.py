@@ -149,16 +149,49 @@ def _span_nm(lo: float, hi: float) -> str:
     return f"{a} nm" if a == b else f"{a}-{b} nm"
 
 
+def _gas_fit_name(table) -> str:
+    """"argon dispersion (combined fits bideau_mehu1981+borzsonyi2008+peck_fisher1964)", or
+    "neon dispersion fit (A. Borzsonyi)" for a table with one fit."""
+    from hcfplan.materials.gases import CombinedDispersion
+
+    fit = table.dispersion
+    if isinstance(fit, CombinedDispersion):
+        return f"{table.name} dispersion (combined fits {fit.label})"
+    return f"{table.name} dispersion fit ({fit.source.split(',')[0]})"
+
+
+def _measured_notes(config, band: tuple[float, float], where: str) -> list[str]:
+    """Notes where ``band`` leaves a measured fiber curve (the model is used there)."""
+    fiber = config.fiber
+    notes = []
+    for curve, what, fallback in (
+            (getattr(fiber, "gvd_curve", None), "fiber.gvd_csv", "the model's beta"),
+            (getattr(fiber, "loss_curve", None), "fiber.loss_csv", "the model's loss")):
+        if curve is None:
+            continue
+        lo, hi = float(curve.wavelength[0]), float(curve.wavelength[-1])
+        if band[0] >= lo and band[1] <= hi:
+            continue
+        notes.append(f"{what} ({curve.source.name}) covers {_span_nm(lo, hi)}; {where} "
+                     f"({_span_nm(*band)}) leaves it: {fallback} is used outside")
+    return notes
+
+
 def range_notes(config, medium, band: tuple[float, float], where: str) -> list[str]:
-    """Warnings for every fit (gas components, cladding, window) that ``band`` [m] leaves."""
+    """Warnings for every fit (gas components, cladding, window) that ``band`` [m] leaves, and
+    for every measured fiber curve (``fiber.gvd_csv``, ``fiber.loss_csv``) it leaves.
+
+    A gas whose table combines several fits is checked against the combined range (the first
+    fit's lower end to the last fit's upper end; the switch bands lie inside both fits they
+    join, so the range has no gap): the note appears only where the light leaves every fit.
+    """
     from hcfplan.materials import solids
 
     notes = []
     if medium is not None:
         for comp in medium.components:
-            fit = comp.table.dispersion
-            notes.append(_note(f"{comp.table.name} dispersion fit ({fit.source.split(',')[0]})",
-                               *fit.valid_wavelength, band, where))
+            notes.append(_note(_gas_fit_name(comp.table),
+                               *comp.table.dispersion.valid_wavelength, band, where))
     materials = {config.fiber.cladding: "cladding"} if config.fiber.kind != "taylor" else {}
     if config.cell.window_thickness:
         materials.setdefault(config.cell.window_material, "window")
@@ -166,4 +199,4 @@ def range_notes(config, medium, band: tuple[float, float], where: str) -> list[s
         fit = solids.load_material(name).dispersion
         notes.append(_note(f"{role} ({name}) Sellmeier fit", fit.wavelength_min,
                            fit.wavelength_max, band, where))
-    return [n for n in notes if n]
+    return [n for n in notes if n] + _measured_notes(config, band, where)

@@ -124,8 +124,12 @@ def test_case_subprocess(case, tmp_path):
 # (hcfplan/materials/data/solids.toml); the CoolProp equation-of-state limits (Neon T <= 725 K);
 # the near-critical and near-saturation bands are common practice, no source (gas_phase.py).
 VALIDITY_CASES = {
-    "pump-beyond-gas-fit": (["laser.wavelength_nm=1800"],
-                            ["dispersion fit", "valid for 400-1000 nm", "the pump (1800 nm)"]),
+    "pump-beyond-gas-fit": (["laser.wavelength_nm=2500"],
+                            ["dispersion (combined fits", "valid for 140-2059 nm",
+                             "the pump (2500 nm)"]),
+    "pump-beyond-single-gas-fit": (["gas.species=Ne", "laser.wavelength_nm=1030"],
+                                   ["neon dispersion fit", "valid for 400-1000 nm",
+                                    "the pump (1030 nm)"]),
     "pump-beyond-cladding-fit": (["laser.wavelength_nm=4000"],
                                  ["cladding (fused_silica) Sellmeier fit is valid for 210-3710 nm",
                                   "the pump (4000 nm)"]),
@@ -159,11 +163,18 @@ def test_outside_validity_is_a_warning(name, capsys):
 def test_gas_command_wavelength_beyond_fit_is_a_warning(capsys):
     import json
 
-    code = main(["gas", "Ar", "--wavelength-nm", "1800", "--json"])
+    # Ar's combined fits reach 2059 nm (Peck & Fisher 1964); Ne has Borzsonyi alone (400-1000 nm)
+    code = main(["gas", "Ne", "--wavelength-nm", "1800", "--json"])
     captured = capsys.readouterr()
     assert code == 0, captured.err
     warnings = json.loads(captured.out)["warnings"]
     assert any("valid for 400-1000 nm" in w and "1800 nm" in w for w in warnings), warnings
+    code = main(["gas", "Ar", "--wavelength-nm", "1800", "--wavelength-nm", "2500", "--json"])
+    captured = capsys.readouterr()
+    assert code == 0, captured.err
+    warnings = json.loads(captured.out)["warnings"]
+    assert any("valid for 140-2059 nm" in w and "2500 nm extrapolated" in w
+               and "1800" not in w for w in warnings), warnings
 
 
 def test_thz_spectrum_beyond_crystal_fit_is_a_warning(capsys, tmp_path):

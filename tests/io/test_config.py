@@ -117,7 +117,7 @@ def test_every_key_has_unit_or_is_dimensionless():
                      "window_material", "max_bounces", "bounces_in_pairs", "objective",
                      "wedge_material", "crystal", "cutoff_quantity", "detector_crystal", "points",
                      "z_samples", "rtol", "stop_ionization_fraction", "spectrum_csv",
-                     "mirror_gdd_csv", "cutoff_db", "self_focusing_margin",
+                     "mirror_gdd_csv", "loss_csv", "gvd_csv", "cutoff_db", "self_focusing_margin",
                      "ionization_fraction_limit", "window_safety_factor", "window_mounting",
                      "rating_fraction", "polarization", "entrance_window_material",
                      "window_coating", "mirror_reflectivity"}

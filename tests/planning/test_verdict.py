@@ -233,9 +233,9 @@ def test_main_lobe_below_half(tmp_path):
 
 
 def test_extrapolated_data(tmp_path):
-    # argon's dispersion fit is stated for 400-1000 nm (A. Borzsonyi et al., Appl. Opt. 47,
-    # 4856 (2008)); a 1030 nm pump lies outside it
-    _, _, verdict = run_case(tmp_path, "laser.wavelength_nm=1030")
+    # neon's only dispersion fit is stated for 400-1000 nm (A. Borzsonyi et al., Appl. Opt. 47,
+    # 4856 (2008)); a 1030 nm pump lies outside it (argon's combined fits reach 2059 nm)
+    _, _, verdict = run_case(tmp_path, "laser.wavelength_nm=1030", "gas.species=Ne")
     assert verdict.status == "caution" and verdict.codes == ("extrapolated_data",)
     assert "400-1000 nm" in verdict.reasons[0].message
 
@@ -345,7 +345,7 @@ def test_headline_names_the_code_of_a_cutoff_beyond_the_crystal_model(tmp_path, 
 
 
 def test_headline_warnings_are_one_block_without_the_verdict_reasons(tmp_path, capsys):
-    _, summary, verdict = run_case(tmp_path, "laser.wavelength_nm=1030")
+    _, summary, verdict = run_case(tmp_path, "laser.wavelength_nm=1030", "gas.species=Ne")
     message = reason(verdict, "extrapolated_data").message
     assert message in summary["warnings"]  # the run warns with the same text
     out = _headline(summary, tmp_path, capsys)

@@ -86,6 +86,40 @@ def _antiresonant_part(waveguide, config) -> dict:
     return {"fiber.resonance_wavelengths_m": res, "fiber.pump_in_resonance_band": inside}
 
 
+#: What each ``fiber.loss_model`` value means (``fiber.loss_model_note`` of the report).
+LOSS_MODEL_NOTES = {
+    "capillary_marcatili1964": "capillary model: Marcatili & Schmeltzer EH1m leakage loss "
+                               "(plus the bend term when fiber.bend_radius_m is given)",
+    "antiresonant_single_tube_zeisberger2017": "anti-resonant model: confinement loss of one "
+                                               "tube wall (Zeisberger & Schmidt 2017), an "
+                                               "upper estimate for real fibers",
+    "flat": "taylor fiber: the flat loss fiber.loss_db_per_m (0 when not given)",
+    "measured_flat": "measured: the flat loss fiber.loss_db_per_m replaces the model's",
+    "measured_curve": "measured: fiber.loss_csv replaces the model's loss inside its range "
+                      "(the model's loss outside it)",
+}
+
+
+def _loss_part(waveguide, config) -> tuple[dict, list[str]]:
+    """``fiber.loss_model`` and its note, ``fiber.dispersion_model``, and the warning that the
+    single-tube anti-resonant loss overstates a real fiber's."""
+    from hcfplan.fibers.antiresonant import SINGLE_TUBE_LOSS_NOTE
+
+    model = getattr(waveguide, "loss_model", "model")
+    dispersion = getattr(waveguide, "dispersion_model", "model")
+    part = {"fiber.loss_model": model,
+            "fiber.loss_model_note": LOSS_MODEL_NOTES.get(model, model),
+            "fiber.dispersion_model": dispersion}
+    if dispersion == "measured_gvd":
+        part["fiber.dispersion_model_note"] = (
+            f"measured: fiber.gvd_csv ({config.fiber.gvd_curve.source.name}) integrated about "
+            "the pump; the model's beta outside its range")
+    notes = []
+    if model == "antiresonant_single_tube_zeisberger2017":
+        notes.append(f"fiber.loss_model = {model}: {SINGLE_TUBE_LOSS_NOTE}")
+    return part, notes
+
+
 def fiber_report(config) -> dict:
     """Analytic summary of the configured fiber at the pump (see module docstring)."""
 
@@ -151,7 +185,10 @@ def _fiber_report(config) -> dict:
         "estimate.dispersive_wave_m": _dispersive_wave(waveguide, omega0, peak_power, gamma),
     }
     report.update(_antiresonant_part(waveguide, config))
+    loss_part, loss_notes = _loss_part(waveguide, config)
+    report.update(loss_part)
     notes = range_notes(config, medium, (laser.wavelength, laser.wavelength), "the pump")
+    notes += loss_notes
     if medium is not None:
         report.update(_gas_part(medium, config))
         notes = list(medium.warnings) + notes
