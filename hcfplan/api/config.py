@@ -130,7 +130,7 @@ def _raw_of(cfg) -> dict:
         from hcfplan.io.tomlio import read_toml
 
         return read_toml(cfg.source)
-    return {s: dict(t) for s, t in cfg.resolved.items()}
+    return {s: {k: v for k, v in t.items() if v is not None} for s, t in cfg.resolved.items()}
 
 
 def as_config(config: ConfigLike, overrides=None):

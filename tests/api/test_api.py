@@ -126,7 +126,10 @@ def test_load_config_takes_mappings_and_overrides(fast):
     from hcfplan.io.tomlio import read_toml
 
     mapping = read_toml(config)
-    assert hcfplan.load_config(mapping).resolved == hcfplan.load_config(config).resolved
+    from_mapping = hcfplan.load_config(mapping)
+    assert from_mapping.resolved == hcfplan.load_config(config).resolved
+    assert hcfplan.load_config(from_mapping, {"gas.pressure_bar": 3}).resolved == \
+        hcfplan.load_config(config, {"gas.pressure_bar": 3}).resolved
 
 
 @pytest.mark.parametrize("overrides, match", [
