@@ -23,9 +23,9 @@ LAYERS = {
     "propagation": 4, "compression": 4, "thz": 4, "limits": 4,
     "io": 5,
     "planning": 6,
-    "plotting": 7, "styles": 7,
+    "plotting": 7, "styles": 7, "report": 7,
     "cli": 8,
-    "__init__": 9, "__main__": 9,
+    "__init__": 9, "__main__": 9, "api": 9,
 }
 PHYSICS = {name for name, layer in LAYERS.items() if 1 <= layer <= 4}
 

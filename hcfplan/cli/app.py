@@ -19,9 +19,11 @@ import typer
 
 from hcfplan.cli.common import (
     JSON_HELP,
+    NO_REPORT_HELP,
     SET_HELP,
     SPREAD_WORKERS_HELP,
     WRITTEN,
+    command_line,
     gas_dirs,
     interrupted_message,
     load_cli_config,
@@ -252,6 +254,7 @@ def simulate_command(
     quiet: bool = typer.Option(False, "--quiet", help="No progress bar and no report text."),
     force: bool = typer.Option(False, "--force", help="Allow writing into an existing --out."),
     no_figures: bool = typer.Option(False, "--no-figures", help="Skip the figures."),
+    no_report: bool = typer.Option(False, "--no-report", help=NO_REPORT_HELP),
     spread: str | None = typer.Option(
         None, "--spread", help="Input uncertainty band, e.g. energy=5%,pressure=2%,fwhm=5%: the "
         "chain also runs at its corners and reports the ranges; 'default' uses the [spread] "
@@ -286,6 +289,10 @@ def simulate_command(
 
         jobs = figure_jobs(out_dir, chain, spread_result)
     summary = write_run(out_dir, chain, figures=jobs, spread=spread_result)
+    if not no_report:
+        from hcfplan.report import write_run_report
+
+        write_run_report(out_dir, summary, command=command_line())
     if as_json:
         print_json(summary)
     elif not quiet:

@@ -14,12 +14,21 @@ from pathlib import Path
 #: Help texts of options that several commands share.
 SET_HELP = "Override one config value, e.g. --set gas.pressure_bar=3 (repeatable)."
 JSON_HELP = "Print machine-readable JSON (SI values, unit in the key name)."
+NO_REPORT_HELP = "Skip report.html (the self-contained page of the results and figures)."
 SPREAD_WORKERS_HELP = ("Corners of --spread computed at a time, by this process and worker "
                        "processes (default: all cores).")
 
 
 # ---------------------------------------------------------------------------------------------
 # configs and gas tables
+
+
+def command_line() -> str:
+    """The command as typed (``hcfplan`` and its arguments), for a report's provenance."""
+    import shlex
+    import sys
+
+    return shlex.join(["hcfplan", *sys.argv[1:]])
 
 
 def gas_dirs() -> tuple[Path, ...]:

@@ -15,9 +15,11 @@ import typer
 
 from hcfplan.cli.common import (
     JSON_HELP,
+    NO_REPORT_HELP,
     SET_HELP,
     SPREAD_WORKERS_HELP,
     WRITTEN,
+    command_line,
     gas_dirs,
     load_cli_config,
     run_spread_corners,
@@ -156,6 +158,7 @@ def scan_command(
                                "scan or other files (matching points are reused)."),
     set_: Optional[list[str]] = typer.Option(None, "--set", help=SET_HELP),  # noqa: UP007, UP045
     no_figures: bool = typer.Option(False, "--no-figures", help="Skip the figures."),
+    no_report: bool = typer.Option(False, "--no-report", help=NO_REPORT_HELP),
     as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
 ) -> None:
     """Run the full chain over one or two varied keys; saves every point as it finishes."""
@@ -176,6 +179,10 @@ def scan_command(
         bar.close()
     stop_workers()  # no more points to compute
     figures = [] if no_figures else scan_figures(outcome.out_dir, plan, outcome.records)
+    if not no_report:
+        from hcfplan.report import write_scan_report
+
+        write_scan_report(outcome.out_dir, command=command_line())
     failed = [r for r in outcome.records if r["status"] != "ok"]
     if as_json:
         print_json(_scan_json(outcome, figures, failed))
@@ -400,6 +407,7 @@ def compare_command(
         None, "--spread", help="Input uncertainty band for both setups, e.g. "
         "energy=5%,pressure=2%,fwhm=5% ('default': the [spread] keys of each config)."),
     workers: int = typer.Option(0, "--workers", help=SPREAD_WORKERS_HELP),
+    no_report: bool = typer.Option(False, "--no-report", help=NO_REPORT_HELP),
     as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
 ) -> None:
     """Run two setups and show them side by side with B - A and B / A."""
@@ -421,6 +429,12 @@ def compare_command(
     if plans[0] is not None:
         stop_workers()  # no more points to compute
     figures = _compare_outputs(out, comparison, force, spreads) if out is not None else []
+    if out is not None and not no_report:
+        from hcfplan.report import write_compare_report
+
+        write_compare_report(out, command=command_line(),
+                             configs=[side.chain.config.resolved
+                                      for side in (comparison.a, comparison.b)])
     if as_json:
         print_json({"labels": list(labels), "rows": list(comparison.rows),
                     "margins": {"a": comparison.a.margins, "b": comparison.b.margins},

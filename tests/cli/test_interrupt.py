@@ -120,6 +120,8 @@ def _assert_complete_or_absent(out: Path) -> list[str]:
         elif path.suffix == ".png":
             blob = path.read_bytes()
             assert blob.startswith(PNG_START) and blob.endswith(PNG_END), path
+        elif path.suffix == ".html":
+            assert path.read_text(encoding="utf-8").rstrip().endswith("</html>"), path
         else:
             pytest.fail(f"unexpected file {path.name}")
     return names
