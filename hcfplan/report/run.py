@@ -64,8 +64,8 @@ def verdict_section(summary: dict) -> str:
 
     verdict = stored_verdict(summary)
     out = f"<h2>Verdict</h2><p>{badge(verdict.status).text} "
-    out += {"valid": "converged and within the models' ranges (not a statement that the "
-                     "operating point is safe; the limits and cautions below still apply)",
+    out += {"valid": "converged and within the models' ranges (a statement about the numbers, "
+                     "not an approval of the setup; the limits and cautions below still apply)",
             "caution": "the numbers stand, with the cautions listed",
             "invalid": "some numbers are not results (listed as void)"}.get(verdict.status, "")
     out += "</p>"
