@@ -13,6 +13,7 @@ import numpy as np
 
 from hcfplan.constants import c
 from hcfplan.planning.build import build_medium, build_waveguide, coupling, pump_omega
+from hcfplan.planning.reports.nonlinearity import low_nonlinearity_notes
 from hcfplan.planning.validity import quiet_validity, range_notes
 
 #: Wavelength range searched for zero-dispersion points. [m]
@@ -133,7 +134,7 @@ def _fiber_report(config) -> dict:
     if medium is not None:
         report.update(_gas_part(medium, config))
         notes = list(medium.warnings) + notes
-    report["warnings"] = notes
+    report["warnings"] = notes + low_nonlinearity_notes(config, phi)
     return report
 
 
