@@ -89,10 +89,32 @@ def check_compressor(resolved: dict) -> None:
         check_band_share(band, resolved, band_share_analytic(band, resolved["laser"]))
     if comp["wedge_max_insertion_mm"] > 0 and comp["wedge_material"] is None:
         raise ConfigError("compressor.wedge_material: required when wedge_max_insertion_mm > 0")
+    _check_unused_companions(resolved)
     thz = resolved["thz"]
     if (thz["detector_crystal"] is None) != (thz["detector_thickness_mm"] is None):
         raise ConfigError("thz.detector_crystal and thz.detector_thickness_mm: give both or "
                           "neither")
+
+
+def _check_unused_companions(resolved: dict) -> None:
+    """Refuse a key that only acts together with another one that is absent: the run would
+    ignore it (the TOD per bounce of mirrors given by their GDD, a wedge trim without an
+    insertion range, an EO probe duration without a detection crystal)."""
+    comp, thz = resolved["compressor"], resolved["thz"]
+    if comp["mirror_tod_fs3"] != 0 and comp["mirror_gdd_fs2"] is None:
+        given = ("compressor.mirror_gdd_csv (which holds the measured GDD)"
+                 if comp["mirror_gdd_csv"] is not None else "no mirrors")
+        raise ConfigError(f"compressor.mirror_tod_fs3 = {describe(comp['mirror_tod_fs3'])}: "
+                          "acts only with compressor.mirror_gdd_fs2, and the config has "
+                          f"{given}; give mirror_gdd_fs2 or remove mirror_tod_fs3")
+    if comp["wedge_material"] is not None and comp["wedge_max_insertion_mm"] == 0:
+        raise ConfigError(f"compressor.wedge_material = {comp['wedge_material']!r} with "
+                          "compressor.wedge_max_insertion_mm = 0: the wedge trim is off; give "
+                          "the largest insertion (> 0) or remove wedge_material")
+    if thz["probe_fwhm_fs"] is not None and thz["detector_crystal"] is None:
+        raise ConfigError(f"thz.probe_fwhm_fs = {describe(thz['probe_fwhm_fs'])}: sets the "
+                          "probe of EO detection, and the config has no thz.detector_crystal; "
+                          "give the detection crystal and thickness or remove probe_fwhm_fs")
 
 
 #: Least share of the input spectrum's energy the mirror band must hold: with less, the band

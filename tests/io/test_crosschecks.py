@@ -258,3 +258,30 @@ def test_pole_in_the_run_band_depends_on_the_pulse():
         config_from_mapping({**BASE, "gas": gas})
     config_from_mapping({**BASE, "gas": gas,
                          "laser": {**BASE["laser"], "fwhm_fs": 200.0}})
+
+
+# ---------------------------------------------------------------------------------------------
+# Keys that act only together with another key
+
+
+@pytest.mark.parametrize("section,values,fragment", [
+    ("compressor", {"mirror_tod_fs3": 100.0}, "compressor.mirror_tod_fs3 = 100.0: acts only with "
+     "compressor.mirror_gdd_fs2, and the config has no mirrors"),
+    ("compressor", {"wedge_material": "caf2"}, "compressor.wedge_material = 'caf2' with "
+     "compressor.wedge_max_insertion_mm = 0: the wedge trim is off"),
+    ("thz", {"probe_fwhm_fs": 30.0}, "thz.probe_fwhm_fs = 30.0: sets the probe of EO detection, "
+     "and the config has no thz.detector_crystal"),
+])
+def test_key_without_its_companion_is_refused(section, values, fragment):
+    with pytest.raises(ConfigError) as info:
+        config_from_mapping({**BASE, section: values})
+    assert str(info.value).startswith(fragment)
+
+
+@pytest.mark.parametrize("section,values", [
+    ("compressor", {"mirror_tod_fs3": 100.0, "mirror_gdd_fs2": -50.0}),
+    ("compressor", {"wedge_material": "caf2", "wedge_max_insertion_mm": 2.0}),
+    ("thz", {"probe_fwhm_fs": 30.0, "detector_crystal": "ZnTe", "detector_thickness_mm": 0.5}),
+])
+def test_key_with_its_companion_loads(section, values):
+    config_from_mapping({**BASE, section: values})
