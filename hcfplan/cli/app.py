@@ -11,7 +11,6 @@ app -> workflows -> common, output.
 
 from __future__ import annotations
 
-import math
 import sys
 from pathlib import Path
 
@@ -73,26 +72,25 @@ def gas_command(
     as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
 ) -> None:
     """Refractive index, group index, GVD, n2, density, Ip and self-focusing power of a gas."""
+    from hcfplan.io.checks import check_option
+    from hcfplan.io.crosschecks import check_triple_point
+    from hcfplan.materials.gases import load_gas_table
     from hcfplan.planning.reports.gas import gas_report
 
-    _check_cli_number("--pressure-bar", pressure_bar, 0.0, 1000.0)
-    _check_cli_number("--temperature-k", temperature_k, 1.0, 2000.0)
+    check_option("--pressure-bar", pressure_bar, "gas", "pressure_bar")
+    check_option("--temperature-k", temperature_k, "gas", "temperature_k")
     if eos not in ("coolprop", "ideal"):
         raise ConfigError(f"--eos = {eos!r}: must be one of coolprop, ideal")
     wavelengths = wavelength_nm or [800.0, 1030.0]
     for wl in wavelengths:
-        _check_cli_number("--wavelength-nm", wl, 150.0, 20000.0)
+        check_option("--wavelength-nm", wl, "laser", "wavelength_nm")
+    check_triple_point(load_gas_table(name, gas_dirs()), temperature_k, "--temperature-k")
     report = gas_report(name, pressure_bar * 1e5, temperature_k, [w * 1e-9 for w in wavelengths],
                         eos=eos, search_dirs=gas_dirs())
     if as_json:
         print_json(report)
         return
     print_gas(report)
-
-
-def _check_cli_number(option: str, value: float, low: float, high: float) -> None:
-    if not math.isfinite(value) or not low < value <= high:
-        raise ConfigError(f"{option} = {value}: must be > {low:g} and <= {high:g}")
 
 
 # ---------------------------------------------------------------------------------------------
@@ -111,6 +109,7 @@ def check_command(
 
     cfg = load_cli_config(config, set_ or [])
     warnings = _check_gas_phase(cfg)  # a liquid or two-phase fill: one-line error, exit 2
+    warnings += _nonlinearity_notes(cfg)
     notes = pressure_notes(cfg)
     if as_json:
         print_json(cfg.resolved)
@@ -142,6 +141,13 @@ def _check_gas_phase(cfg) -> list[str]:
     from hcfplan.planning.build import build_medium
 
     return list(build_medium(cfg.gas).warnings)
+
+
+def _nonlinearity_notes(cfg) -> list[str]:
+    """A warning when the configured energy, fill and length give no nonlinearity."""
+    from hcfplan.planning.reports import nonlinearity
+
+    return nonlinearity.low_nonlinearity_notes(cfg, nonlinearity.nonlinear_phase_estimate(cfg))
 
 
 def pressure_notes(cfg) -> list[str]:
@@ -395,15 +401,19 @@ def thz_command(
     as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
 ) -> None:
     """THz estimate from a measured broadened spectrum (no fiber model needed)."""
+    from hcfplan.io.checks import check_option
+    from hcfplan.materials.crystals import crystal_names
     from hcfplan.planning.reports.thz import thz_report, thz_setup_from_options
 
-    _check_cli_number("--thickness-mm", thickness_mm, 0.0, 50.0)
-    _check_cli_number("--energy-uj", energy_uj, 0.0, 1e6)
-    _check_cli_number("--detector-thickness-mm", detector_thickness_mm, 0.0, 50.0)
-    if not (math.isfinite(cutoff_db) and -200.0 <= cutoff_db < 0.0):
-        raise ConfigError(f"--cutoff-db = {cutoff_db}: must be < 0 and >= -200")
-    if cutoff_quantity not in ("power", "field"):
-        raise ConfigError(f"--cutoff-quantity = {cutoff_quantity!r}: must be one of power, field")
+    check_option("--thickness-mm", thickness_mm, "thz", "thickness_mm")
+    check_option("--energy-uj", energy_uj, "laser", "energy_uj")
+    check_option("--detector-thickness-mm", detector_thickness_mm, "thz", "detector_thickness_mm")
+    check_option("--cutoff-db", cutoff_db, "thz", "cutoff_db")
+    check_option("--cutoff-quantity", cutoff_quantity, "thz", "cutoff_quantity")
+    for option, name in (("--crystal", crystal), ("--detector-crystal", detector_crystal)):
+        if name is not None and name.lower() not in crystal_names():
+            raise ConfigError(f"{option} = {name!r}: unknown crystal (available: "
+                              f"{', '.join(crystal_names())})")
     setup = thz_setup_from_options(crystal=crystal, thickness=thickness_mm * 1e-3,
                                    cutoff_db=cutoff_db, cutoff_quantity=cutoff_quantity,
                                    detector_crystal=detector_crystal,

@@ -168,6 +168,41 @@ def _check_value(path: str, value: Any, spec: Key) -> Any:
     raise AssertionError(f"schema kind {kind!r} not handled")  # a bug, not bad input
 
 
+def check_option(option: str, value: Any, section: str, key: str) -> Any:
+    """A command-line option that stands for the config key ``section.key``, checked against
+    that key's schema entry (type, finiteness, range) and named as the option.
+
+    Example: ``check_option("--energy-uj", 5e-324, "laser", "energy_uj")`` raises
+    ``--energy-uj = 5e-324: must be >= 1e-06``.
+    """
+    return _check_value(option, value, known_key(section, key))
+
+
+def check_applicability(given: dict[str, dict[str, Any]]) -> None:
+    """Refuse a key the configured ``fiber.kind`` does not read (``Key.fiber_kinds``).
+
+    ``given`` holds the keys as written (file and ``--set``), before defaults are filled in, so
+    a default never counts as given.
+    """
+    kind = given.get("fiber", {}).get("kind")
+    for section, table in given.items():
+        for key in table:
+            spec = SCHEMA[section][key]
+            if not spec.applies_to(kind):
+                kinds = " and ".join(spec.fiber_kinds)
+                raise ConfigError(f"{section}.{key}: does not apply to fiber.kind = {kind!r} "
+                                  f"(only to {kinds}); remove it or change fiber.kind")
+
+
+def shown_keys(resolved: dict[str, dict[str, Any]]) -> dict[str, dict[str, Any]]:
+    """The resolved table without the keys the configured fiber kind does not read (what
+    ``check`` prints and a run folder's ``config.resolved.toml`` holds, so it loads again)."""
+    kind = resolved.get("fiber", {}).get("kind")
+    return {section: {key: value for key, value in table.items()
+                      if SCHEMA[section][key].applies_to(kind)}
+            for section, table in resolved.items()}
+
+
 def validate_raw(raw: dict[str, Any]) -> dict[str, dict[str, Any]]:
     """Check sections and keys, fill defaults; return the resolved table (user units).
 
@@ -188,6 +223,7 @@ def validate_raw(raw: dict[str, Any]) -> dict[str, dict[str, Any]]:
     for section in REQUIRED_SECTIONS:
         if section not in raw:
             raise ConfigError(f"[{section}]: required section is missing")
+    check_applicability(checked)
     taylor = checked["fiber"].get("kind") == "taylor"
     resolved: dict[str, dict[str, Any]] = {}
     for section, keys in SCHEMA.items():

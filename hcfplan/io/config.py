@@ -23,7 +23,7 @@ import numpy as np
 from hcfplan import units
 from hcfplan.errors import ConfigError
 from hcfplan.io import crosschecks
-from hcfplan.io.checks import describe, known_key, validate_raw
+from hcfplan.io.checks import describe, known_key, shown_keys, validate_raw
 from hcfplan.io.schema import REQUIRED_SECTIONS
 from hcfplan.io.specs import (
     CellSpec,
@@ -209,10 +209,20 @@ def _build_specs(r: dict, present: set[str], base: Path, extra_gas_dirs) -> dict
     gas_dir = _resolve_path(r["gas"]["table_dir"], base, "gas.table_dir", must_be_dir=True)
     table_dirs = tuple(([gas_dir] if gas_dir else []) + [Path(d) for d in extra_gas_dirs])
     crosschecks.check_names(r, present, table_dirs)
+    crosschecks.check_crystal_absorption(r, present)
     band = comp["mirror_band_nm"]
     spectrum = _measured_curve(las["spectrum_csv"], base, "laser.spectrum_csv", None)
     if spectrum is not None:
         crosschecks.check_measured_spectrum(spectrum.wavelength, r)
+        if band is not None:
+            crosschecks.check_band_share(band, r, crosschecks.band_share_measured(
+                band, spectrum.wavelength, spectrum.values))
+    mirror_curve = _measured_curve(comp["mirror_gdd_csv"], base, "compressor.mirror_gdd_csv",
+                                   "gdd_fs2")
+    if mirror_curve is not None:
+        crosschecks.check_mirror_curve(mirror_curve.wavelength, r)
+    crosschecks.check_gas_tables(r, present, table_dirs,
+                                 None if spectrum is None else spectrum.wavelength)
     return dict(
         laser=LaserSpec(
             wavelength=units.to_si(las["wavelength_nm"], "nm"),
@@ -235,8 +245,7 @@ def _build_specs(r: dict, present: set[str], base: Path, extra_gas_dirs) -> dict
         compressor=CompressorSpec(
             air_path=comp["air_path_m"], mirror_gdd=_si(comp["mirror_gdd_fs2"], "fs2"),
             mirror_tod=units.to_si(comp["mirror_tod_fs3"], "fs3"),
-            mirror_gdd_curve=_measured_curve(comp["mirror_gdd_csv"], base,
-                                             "compressor.mirror_gdd_csv", "gdd_fs2"),
+            mirror_gdd_curve=mirror_curve,
             mirror_band=None if band is None else (band[0] * 1e-9, band[1] * 1e-9),
             max_bounces=comp["max_bounces"], bounces_in_pairs=comp["bounces_in_pairs"],
             objective=comp["objective"], wedge_material=comp["wedge_material"],
@@ -280,7 +289,8 @@ def config_from_mapping(raw: dict[str, Any], *, base_dir: Path | str = ".",
     crosschecks.check_compressor(resolved)
     crosschecks.check_grid(resolved)
     specs = _build_specs(resolved, present, Path(base_dir), extra_gas_dirs)
-    shown = {s: t for s, t in resolved.items() if s in present or s in REQUIRED_SECTIONS}
+    shown = {s: t for s, t in shown_keys(resolved).items()
+             if s in present or s in REQUIRED_SECTIONS}
     return PlanConfig(**specs, resolved=shown, present_sections=tuple(sorted(present)),
                       source=source, overrides=tuple(overrides))
 

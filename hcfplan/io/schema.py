@@ -29,6 +29,10 @@ class Key:
     ``high_open`` the high bound. Bounds that keep values away from zero exclude inputs no model
     here can use (a zero-size beam or crystal, an energy of 1e-300 uJ); they are common
     practice, no source.
+
+    ``fiber_kinds`` names the ``fiber.kind`` values the key applies to (empty: every kind). A
+    key given for a kind it does not apply to is refused naming the kind, since the model of
+    that kind would ignore it (:func:`hcfplan.io.checks.check_applicability`).
     """
 
     kind: str
@@ -39,9 +43,20 @@ class Key:
     low_open: bool = True
     high_open: bool = False
     choices: tuple[str, ...] = ()
+    fiber_kinds: tuple[str, ...] = ()
+
+    def applies_to(self, fiber_kind: str | None) -> bool:
+        """Whether the key is read for ``fiber.kind = fiber_kind`` (every key for None)."""
+        return not self.fiber_kinds or fiber_kind is None or fiber_kind in self.fiber_kinds
 
 
 F = "float"
+#: ``Key.fiber_kinds`` of keys that only some fiber models read (what each model reads:
+#: ``hcfplan.planning.build.build_waveguide``).
+_CAP = ("capillary",)
+_ARF = ("antiresonant",)
+_HOLLOW = ("capillary", "antiresonant")
+_TAYLOR = ("taylor",)
 
 SCHEMA: dict[str, dict[str, Key]] = {
     "laser": {
@@ -69,16 +84,20 @@ SCHEMA: dict[str, dict[str, Key]] = {
         "kind": Key("choice", REQUIRED, "Fiber model.",
                     choices=("capillary", "antiresonant", "taylor")),
         "core_diameter_um": Key(F, None, "Core (bore) diameter; required for capillary and "
-                                "antiresonant.", 1.0, 1.0e4),
+                                "antiresonant.", 1.0, 1.0e4, fiber_kinds=_HOLLOW),
         "length_m": Key(F, REQUIRED, "Fiber length.", 0.0, 100.0),
         "cladding": Key("str", "fused_silica", "Cladding / wall glass (a solid material name)."),
-        "wall_thickness_um": Key(F, None, "Tube wall thickness (antiresonant).", 0.0, 100.0),
+        "wall_thickness_um": Key(F, None, "Tube wall thickness (antiresonant).", 0.0, 100.0,
+                                 fiber_kinds=_ARF),
         "bend_radius_m": Key(F, None, "Bend radius (capillary bend loss; optional).", 1.0e-3,
-                             1.0e6, low_open=False),
-        "mode": Key("str", "EH11", "Capillary mode EH1m (EH11 is the fundamental)."),
+                             1.0e6, low_open=False, fiber_kinds=_CAP),
+        "mode": Key("str", "EH11", "Capillary mode EH1m (EH11 is the fundamental).",
+                    fiber_kinds=_CAP),
         "betas_fs_n_per_mm": Key("float_list", None,
-                                 "Taylor fiber: [beta2, beta3, ...] about the pump in fs^n/mm."),
-        "gamma_per_w_per_m": Key(F, None, "Taylor fiber: nonlinear coefficient.", 0.0, 1.0e3),
+                                 "Taylor fiber: [beta2, beta3, ...] about the pump in fs^n/mm.",
+                                 fiber_kinds=_TAYLOR),
+        "gamma_per_w_per_m": Key(F, None, "Taylor fiber: nonlinear coefficient.", 0.0, 1.0e3,
+                                 fiber_kinds=_TAYLOR),
         "loss_db_per_m": Key(F, None, "Flat measured power loss; replaces the model's loss "
                              "(capillary, antiresonant; for taylor the fiber's loss, default 0).",
                              0.0, 1.0e4, low_open=False),
@@ -90,15 +109,16 @@ SCHEMA: dict[str, dict[str, Key]] = {
                        "density is added; integrated to beta(omega) about the pump (which it "
                        "must contain); the model's beta outside the measured range, with a "
                        "warning where light is there."),
-        "self_steepening": Key("bool", True, "Taylor fiber: include self-steepening."),
+        "self_steepening": Key("bool", True, "Taylor fiber: include self-steepening.",
+                               fiber_kinds=_TAYLOR),
         "raman_fraction": Key(F, 0.0, "Taylor fiber: fractional delayed Raman response f_R.",
-                              0.0, 1.0, low_open=False, high_open=True),
+                              0.0, 1.0, low_open=False, high_open=True, fiber_kinds=_TAYLOR),
         "raman_tau1_fs": Key(F, 12.2, "Taylor fiber: Raman oscillation time tau1.", 0.1, 1.0e4,
-                             low_open=False),
+                             low_open=False, fiber_kinds=_TAYLOR),
         "raman_tau2_fs": Key(F, 32.0, "Taylor fiber: Raman damping time tau2.", 0.1, 1.0e5,
-                             low_open=False),
+                             low_open=False, fiber_kinds=_TAYLOR),
         "effective_area_um2": Key(F, None, "Taylor fiber: effective mode area (for intensities).",
-                                  0.0, 1.0e8),
+                                  0.0, 1.0e8, fiber_kinds=_TAYLOR),
     },
     "gas": {
         "species": Key("str", None, "Fill gas (a table name such as Ar); or use mixture."),
@@ -106,7 +126,7 @@ SCHEMA: dict[str, dict[str, Key]] = {
                        "Ar = 0.3 }; fractions sum to 1."),
         "pressure_bar": Key(F, None, "Static fill pressure (absolute); required unless the "
                             "fill is a gradient (entrance_pressure_bar and exit_pressure_bar).",
-                            0.0, 1000.0),
+                            1.0e-9, 1000.0, low_open=False),
         "entrance_pressure_bar": Key(F, None, "Gradient fill: absolute pressure at the fiber "
                                      "entrance (0: evacuated); give with exit_pressure_bar, "
                                      "instead of pressure_bar. Profile p(z) = sqrt(p0^2 + "

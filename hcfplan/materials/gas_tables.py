@@ -5,7 +5,9 @@ One TOML file per gas lives in the top-level ``gases/`` folder (shipped as the p
 first. The layout of a file and the checks of each key are in
 :mod:`hcfplan.materials.gas_table_schema`; this module builds the records from the checked SI
 values. The dispersion records, their forms and the combination of several fits live in
-:mod:`hcfplan.materials.gas_dispersion` and are re-exported here.
+:mod:`hcfplan.materials.gas_dispersion` and are re-exported here. A fit with a pole or an index
+not real and above 1 inside its stated range, and an equation-of-state name CoolProp does not
+know, are refused while loading (:mod:`hcfplan.materials.gas_fit_checks`).
 
 References
 ----------
@@ -22,7 +24,7 @@ import math
 import os
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
-from functools import lru_cache
+from functools import lru_cache, partial
 from pathlib import Path
 from typing import Any
 
@@ -36,6 +38,7 @@ from hcfplan.materials.gas_dispersion import (
     refractive_index_from_fit,
     switch_weight,
 )
+from hcfplan.materials.gas_fit_checks import check_eos_name, index_defect
 from hcfplan.materials.gas_table_schema import (
     COMBINED_FIELDS,
     DISPERSION_FIELDS,
@@ -172,6 +175,10 @@ def _dispersion_record(block: Any, where: str, path: str) -> tuple[DispersionFit
         key=values["key"],
         constant=0.0 if constant is None else float(constant),
     )
+    problem = index_defect(partial(refractive_index_from_fit, fit), form, fit.coefficients, lo, hi)
+    if problem:  # a pole, or n not real and > 1, inside the fit's own range
+        raise ConfigError(f"{path}: {where}.{problem}, inside the fit's own stated range "
+                          f"({lo * 1e9:.4g}-{hi * 1e9:.4g} nm)")
     return fit, bool(values["default"])
 
 
@@ -287,6 +294,7 @@ def _table_from_data(data: Mapping, path: str) -> GasTable:
     check_top_level(data, path)
     gas = check_block(required_block(data, "gas", path), GAS_FIELDS, "gas", path)
     eos = check_block(required_block(data, "eos", path), EOS_FIELDS, "eos", path)
+    check_eos_name(eos["coolprop_name"], "eos.coolprop_name", path)
     default_fit, fits = _dispersion_records(required_block(data, "dispersion", path), path)
     combined = data.get("dispersion_combined")
     dispersion = (default_fit if combined is None

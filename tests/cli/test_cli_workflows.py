@@ -70,7 +70,7 @@ def test_scan_2d_text_shows_table_and_cautions(capsys, tmp_path):
 
 @pytest.mark.parametrize("argv,fragment", [
     (["--vary", "gas.pressur=1:2:3"], "--vary gas.pressur: unknown key"),
-    (["--vary", "gas.pressure_bar=0:2:3"], "gas.pressure_bar = 0.0: must be > 0"),
+    (["--vary", "gas.pressure_bar=0:2:3"], "gas.pressure_bar = 0.0: must be >= 1e-09"),
     (["--vary", "gas.pressure_bar=1:2:2", "--set", "laser.fwhm_fs=x"],
      "laser.fwhm_fs = 'x': must be a number"),
 ])

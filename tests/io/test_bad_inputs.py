@@ -5,7 +5,9 @@ command-line option of the corpus must stop with exactly one non-empty stderr li
 the key or the file:line, no traceback, and nothing written (no output folder for ``simulate``).
 Every case runs in-process through ``hcfplan.cli.app.main``; the cases marked ``subprocess = true``
 also run through a real ``python -m hcfplan`` process, as a user would see them. The crystal
-table cases call the loader directly, since the CLI takes no user crystal tables.
+table cases call the loader directly, since the CLI takes no user crystal tables. The cases of
+kind ``valid`` are extreme but allowed inputs: they must run (exit 0), say what is extreme in a
+warning or note, and print no NaN or infinity in their JSON.
 """
 
 from __future__ import annotations
@@ -27,6 +29,7 @@ HERE = Path(__file__).resolve().parents[1] / "bad_inputs"
 ROOT = HERE.parents[1]
 CASES = parse_toml((HERE / "cases.toml").read_text(encoding="utf-8"), "cases.toml")["case"]
 CLI_CASES = [c for c in CASES if c.get("kind", "cli") == "cli"]
+VALID_CASES = [c for c in CASES if c.get("kind") == "valid"]
 CRYSTAL_CASES = [c for c in CASES if c.get("kind") == "crystal_table"]
 SUBPROCESS_CASES = [c for c in CLI_CASES if c.get("subprocess")]
 
@@ -68,7 +71,7 @@ def _referenced(case: dict) -> set[str]:
 def test_corpus_is_large_and_every_file_used():
     ids = [c["id"] for c in CASES]
     assert len(ids) == len(set(ids))
-    assert len(CASES) >= 40
+    assert len(CASES) >= 200
     named = set().union(*(_referenced(c) for c in CASES)) | INDIRECT
     for path in HERE.rglob("*"):
         if path.is_file() and path.name != "cases.toml":
@@ -88,6 +91,25 @@ def test_case_in_process(case, capsys, monkeypatch, tmp_path):
     _check_stderr(case, captured.err)
     assert not out.exists(), "an output folder was created for bad input"
     assert list(tmp_path.iterdir()) == [], "bad input wrote files"
+
+
+def _no_constant(name: str):
+    raise AssertionError(f"{name} in the JSON output")
+
+
+@pytest.mark.parametrize("case", VALID_CASES, ids=[c["id"] for c in VALID_CASES])
+def test_extreme_valid_case_runs_with_warning(case, capsys, monkeypatch, tmp_path):
+    import json
+
+    out = tmp_path / "out"
+    monkeypatch.chdir(tmp_path)
+    code = main([_expand(a, out) for a in case["argv"]])
+    captured = capsys.readouterr()
+    assert code == 0, captured.err
+    assert "Traceback" not in captured.err
+    json.loads(captured.out, parse_constant=_no_constant)  # NaN, Infinity refused
+    for fragment in _fragments(case):
+        assert fragment in captured.out + captured.err, fragment
 
 
 @pytest.mark.parametrize("case", CRYSTAL_CASES, ids=[c["id"] for c in CRYSTAL_CASES])

@@ -44,6 +44,7 @@ NAMES = ["Ar", "He", "Ne", "Kr", "Xe", "N2", "air", "GaP", "ZnTe", "fused_silica
          "capillary", "antiresonant", "taylor", "EH11", "EH12", "gaussian", "sech2", "ideal",
          "coolprop", "ppt", "adk", "power", "field", "fwhm", "peak_power", "clamped",
          "good_spectrum.csv", "csv/good_gdd.csv", "csv/unsorted.csv", "gas_tables/negative_n2",
+         "gas_tables/pole_in_run_range", "gas_tables/unknown_eos", "testgas",
          ".", "~", "~no_such_user_hcfplan/x", "", " ", "EH1\u00b2", "a\nb", "\x00"]
 
 numbers = st.one_of(

@@ -130,7 +130,8 @@ RUN_ERRORS = [
      "loss"),
     (["fiber.length_m=100.0", "fiber.core_diameter_um=50.0"],
      "fiber.length_m = 100.0 with fiber.core_diameter_um = 50.0"),
-    (["gas.temperature_k=50.0"], "gas.pressure_bar = 0.6, gas.temperature_k = 50: Ar at 0.6 bar"),
+    (["gas.pressure_bar=1.0", "gas.temperature_k=85.0"],
+     "gas.pressure_bar = 1, gas.temperature_k = 85: Ar at 1 bar and 85 K would be liquid"),
 ]
 
 

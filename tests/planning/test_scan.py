@@ -58,7 +58,7 @@ def test_bad_vary(text, fragment):
 
 
 def test_every_point_validated_up_front(fast):
-    with pytest.raises(ConfigError, match=r"gas.pressure_bar = -1.0: must be > 0"):
+    with pytest.raises(ConfigError, match=r"gas.pressure_bar = -1.0: must be >= 1e-09"):
         plan_scan(fast, [parse_vary("gas.pressure_bar=-1:2:4")])
 
 

@@ -13,6 +13,7 @@ import numpy as np
 
 from hcfplan.constants import c
 from hcfplan.planning.build import build_medium, build_waveguide, coupling, pump_omega
+from hcfplan.planning.reports.nonlinearity import low_nonlinearity_notes
 from hcfplan.planning.validity import quiet_validity, range_notes
 
 #: Wavelength range searched for zero-dispersion points. [m]
@@ -194,7 +195,7 @@ def _fiber_report(config) -> dict:
         notes = list(medium.warnings) + notes
         if config.gas.is_gradient:
             notes.append(GRADIENT_NOTE)
-    report["warnings"] = notes
+    report["warnings"] = notes + low_nonlinearity_notes(config, phi)
     return report
 
 
