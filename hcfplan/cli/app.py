@@ -12,6 +12,7 @@ app -> workflows -> common, output.
 from __future__ import annotations
 
 import math
+import os
 import sys
 from pathlib import Path
 
@@ -380,6 +381,15 @@ def thz_command(
                                                    help="EO detection crystal (optional)."),
     detector_thickness_mm: float = typer.Option(0.3, "--detector-thickness-mm",
                                                 help="EO detection crystal thickness."),
+    geometry: str = typer.Option("collinear", "--geometry", help="collinear or tilted_front "
+                                 "(velocity matching by a pulse-front tilt, e.g. LiNbO3)."),
+    beam_waist_um: float | None = typer.Option(
+        None, "--beam-waist-um", help="Pump 1/e^2 radius on the crystal: absolute energy, "
+        "peak field and the crystal's fluence limits."),
+    focus_f_number: float = typer.Option(2.0, "--focus-f-number",
+                                         help="f-number of the THz focus of the peak field."),
+    repetition_khz: float | None = typer.Option(None, "--repetition-khz",
+                                                help="Repetition rate (THz average power)."),
     plot: Path | None = typer.Option(None, "--plot", help="Write the THz figure here."),
     as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
 ) -> None:
@@ -393,19 +403,41 @@ def thz_command(
         raise ConfigError(f"--cutoff-db = {cutoff_db}: must be < 0 and >= -200")
     if cutoff_quantity not in ("power", "field"):
         raise ConfigError(f"--cutoff-quantity = {cutoff_quantity!r}: must be one of power, field")
+    if geometry not in ("collinear", "tilted_front"):
+        raise ConfigError(f"--geometry = {geometry!r}: must be one of collinear, tilted_front")
+    if beam_waist_um is not None:
+        _check_cli_number("--beam-waist-um", beam_waist_um, 0.0, 1e6)
+    _check_cli_number("--focus-f-number", focus_f_number, 0.0, 100.0)
+    if repetition_khz is not None:
+        _check_cli_number("--repetition-khz", repetition_khz, 0.0, 1e6)
+    from hcfplan.materials.crystal_tables import crystal_search_dirs
+
     setup = thz_setup_from_options(crystal=crystal, thickness=thickness_mm * 1e-3,
                                    cutoff_db=cutoff_db, cutoff_quantity=cutoff_quantity,
                                    detector_crystal=detector_crystal,
-                                   detector_thickness=detector_thickness_mm * 1e-3)
+                                   detector_thickness=detector_thickness_mm * 1e-3,
+                                   geometry=geometry,
+                                   beam_waist=None if beam_waist_um is None
+                                   else beam_waist_um * 1e-6,
+                                   table_dirs=crystal_search_dirs(environ=os.environ))
     result, report = thz_report(spectrum_csv, setup, phase_csv=phase_csv,
-                                energy=energy_uj * 1e-6)
+                                energy=energy_uj * 1e-6, focus_f_number=focus_f_number,
+                                repetition_rate=None if repetition_khz is None
+                                else repetition_khz * 1e3)
     if plot is not None:
         from hcfplan.io.results import write_figure
+        from hcfplan.planning.reports.thz_absolute import waveforms
         from hcfplan.plotting.report import draw_thz_result
+        from hcfplan.plotting.thz_time import draw_thz_waveform
 
         WRITTEN.watch(plot)
         write_figure(plot, draw_thz_result, result)
         report["figure"] = str(plot)
+        waveform_plot = plot.with_name(f"{plot.stem}_waveform{plot.suffix}")
+        WRITTEN.watch(waveform_plot)
+        write_figure(waveform_plot, draw_thz_waveform, result,
+                     waveforms(result, setup, focus_f_number))
+        report["waveform_figure"] = str(waveform_plot)
     if as_json:
         print_json(report)
         return

@@ -146,8 +146,10 @@ def check_measured_spectrum(wavelength, resolved: dict) -> None:
                           "wavelength centres the grid and must lie within the spectrum")
 
 
-def check_names(resolved: dict, present: set[str], table_dirs: tuple[Path, ...]) -> None:
-    """Check gas, material and crystal names against the shipped and user tables."""
+def check_names(resolved: dict, present: set[str], table_dirs: tuple[Path, ...],
+                crystal_dirs: tuple[Path, ...] = ()) -> None:
+    """Check gas, material and crystal names against the shipped and user tables (user
+    crystal folders ``crystal_dirs``; the check-only materials are accepted, not listed)."""
     from hcfplan.materials import crystals, gases, solids
 
     if "gas" in present:
@@ -172,10 +174,11 @@ def check_names(resolved: dict, present: set[str], table_dirs: tuple[Path, ...])
             raise ConfigError(f"{section}.{key} = {name!r}: unknown material"
                               f"{suggest(name, valid_solids)} "
                               f"(available: {', '.join(valid_solids)})")
-    valid_crystals = crystals.crystal_names()
+    valid_crystals = crystals.listed_crystal_names(crystal_dirs)
+    known = {v.lower() for v in crystals.crystal_names(crystal_dirs)}
     for key in ("crystal", "detector_crystal"):
         name = resolved["thz"][key]
-        if name is not None and name.lower() not in {v.lower() for v in valid_crystals}:
+        if name is not None and name.lower() not in known:
             raise ConfigError(f"thz.{key} = {name!r}: unknown crystal"
                               f"{suggest(name, valid_crystals)} "
                               f"(available: {', '.join(valid_crystals)})")

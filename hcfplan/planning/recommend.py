@@ -38,7 +38,7 @@ from hcfplan.planning.recommend_points import (
     score,
 )
 
-Goal = Literal["shortest", "peak_power", "thz_cutoff"]
+Goal = Literal["shortest", "peak_power", "thz_cutoff", "thz_field"]
 SEARCH_KEYS = ("gas.pressure_bar", "laser.energy_uj")
 #: Default coarse pass: points for one key, points per key for two keys.
 COARSE_POINTS = {1: 12, 2: 6}
@@ -376,6 +376,10 @@ def recommend(config_path: str | Path, goal: Goal, *,
         if config.gas is None:
             raise ConfigError(f"recommend: fiber.kind = {config.fiber.kind!r} has no gas; "
                               "the search needs a gas-filled fiber")
+        if goal == "thz_field" and ("thz" not in config.present_sections
+                                    or config.thz.beam_waist is None):
+            raise ConfigError("--goal thz_field: needs a [thz] section with thz.beam_waist_um "
+                              "(the peak field is absolute)")
         spans = tuple(ranges) if ranges else (("gas.pressure_bar", default_range(config)),)
         setup = _Setup((raw, path.parent, tuple(over), tuple(extra_gas_dirs), path), goal,
                        spans, None if target_thz is None else target_thz * 1e12, coarse,

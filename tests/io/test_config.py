@@ -119,7 +119,7 @@ def test_every_key_has_unit_or_is_dimensionless():
                      "z_samples", "rtol", "stop_ionization_fraction", "spectrum_csv",
                      "mirror_gdd_csv", "cutoff_db", "self_focusing_margin",
                      "ionization_fraction_limit", "window_safety_factor", "window_mounting",
-                     "rating_fraction"}
+                     "rating_fraction", "geometry", "focus_f_number"}
     for section, keys in SCHEMA.items():
         for key in keys:
             assert key in dimensionless or suffix_of(key) is not None, f"{section}.{key}"
