@@ -332,7 +332,8 @@ def print_thz_report(report: dict, detector_crystal: str | None = None) -> None:
     print_rows(rows)
     print_verdict(verdict)
     if "figure" in report:
-        echo(f"\nFigure written: {report['figure']}")
+        echo(f"\nFigure written: {report['figure']}"
+             + (f" and {report['waveform_figure']}" if "waveform_figure" in report else ""))
     print_warnings(unlisted_warnings(report["warnings"], verdict))
     print_cautions(("estimates", "laser"))
 

@@ -30,6 +30,7 @@ from typing import Literal
 from hcfplan.errors import ConfigError
 from hcfplan.planning import recommend_search as search
 from hcfplan.planning.recommend_points import (
+    CRYSTAL_LIMITED_GOALS,
     GOALS,
     MIN_MAIN_LOBE_FRACTION,
     Evaluation,
@@ -309,7 +310,8 @@ def _search(setup: _Setup, gas: str | None, on_batch=None) -> Recommendation:
     binding = ()
     if best is not None:
         cap_pa = None if cap is None else cap * 1e5
-        binding = tuple(binding_constraints(best.record, cap_pa, fraction))
+        binding = tuple(binding_constraints(best.record, cap_pa, fraction,
+                                            crystal=setup.goal in CRYSTAL_LIMITED_GOALS))
     return Recommendation(**common, allowed=allowed, bound_reason=bound_reason, tolerance=tol,
                           best=best, reason=reason, evaluations=evals, coarse=len(points),
                           runs=runner.runs, binding=binding,

@@ -167,11 +167,13 @@ def constraint_text(check: dict) -> str:
 
 
 def binding_constraints(record: dict, pressure_cap: float | None = None,
-                        fraction: float | None = None, count: int = 2) -> list[dict]:
+                        fraction: float | None = None, count: int = 2,
+                        crystal: bool = False) -> list[dict]:
     """The constraints closest to their required value at a point, closest first.
 
     Every checked limit of severity "limit" (``limits_report``) and, with ``pressure_cap``
-    [Pa], the fill pressure against ``fraction`` x the cell rating. Returns at most
+    [Pa], the fill pressure against ``fraction`` x the cell rating; with ``crystal``, the pump
+    fluence on the THz crystal against its binding limit. Returns at most
     ``count`` entries ``{"name", "closeness", "text"}`` where closeness = margin / required
     (1 on the limit).
     """
@@ -194,6 +196,12 @@ def binding_constraints(record: dict, pressure_cap: float | None = None,
                  f"({pressure_cap / 1e5:.4g} bar)")
         found.append({"name": "limits.rating_fraction", "closeness": closeness,
                       "text": margin_text(label, closeness, 1.0, "limit/pressure")})
+    thz = record.get("summary", {}).get("thz", {})
+    closeness = _finite(thz.get("crystal_fluence_margin"))
+    if crystal and closeness is not None:
+        label = f"crystal fluence margin ({thz.get('binding_limit')})"
+        found.append({"name": "thz.crystal_fluence_margin", "closeness": closeness,
+                      "text": margin_text(label, closeness, 1.0, "limit/fluence")})
     found.sort(key=lambda c: c["closeness"])
     return found[:count]
 

@@ -17,10 +17,10 @@ _FLOOR_DB = -50.0  # lowest level drawn on the dB axis
 
 
 def _window(time: np.ndarray, *curves: np.ndarray) -> tuple[float, float]:
-    """Time range holding every sample above 1e-3 of each curve's peak, with a margin. [s]"""
+    """Time range holding every sample above 2 % of each curve's peak, with a margin. [s]"""
     lit = np.zeros(time.shape, dtype=bool)
     for curve in curves:
-        lit |= np.abs(curve) > 1e-3 * np.max(np.abs(curve))
+        lit |= np.abs(curve) > 0.02 * np.max(np.abs(curve))
     lo, hi = time[lit].min(), time[lit].max()
     pad = 0.1 * (hi - lo) + 0.2e-12
     return lo - pad, hi + pad
