@@ -197,7 +197,8 @@ def print_spread(s: dict) -> None:
     echo()
     inputs = ", ".join(f"{k} +-{v:.0%}" for k, v in spread["inputs"].items())
     echo(f"Spread over {spread['runs']} corner runs ({inputs}):")
-    scale = {"fwhm_s": (1e-15, "fs"), "peak_power_w": (1e9, "GW"), "cutoff_hz": (1e12, "THz")}
+    scale = {"fwhm_s": (1e-15, "fs"), "peak_power_w": (1e9, "GW"), "cutoff_hz": (1e12, "THz"),
+             "peak_field_v_per_m": (1e5, "kV/cm")}
     rows = []
     for key, r in spread["ranges"].items():
         factor, unit = scale.get(key.split(".")[-1], (1.0, ""))
@@ -294,6 +295,7 @@ def print_simulation(s: dict, out_dir: Path) -> None:
         if "detected_cutoff_hz" in thz:
             rows.append(("detected THz cutoff", thz_shown(verdict, thz, "detected_cutoff_hz"),
                          "EO detection"))
+        rows += thz_absolute_rows(thz)
     print_rows(rows)
     grid = s["grid"]
     if grid.get("refinements"):
@@ -331,12 +333,42 @@ def print_thz_report(report: dict, detector_crystal: str | None = None) -> None:
     if detector_crystal is not None:
         rows.append(("detected cutoff", thz_shown(verdict, report, "detected_cutoff_hz"),
                      f"EO detection in {detector_crystal}"))
+    rows += thz_absolute_rows(report)
     print_rows(rows)
     print_verdict(verdict)
     if "figure" in report:
-        echo(f"\nFigure written: {report['figure']}")
+        echo(f"\nFigure written: {report['figure']}"
+             + (f" and {report['waveform_figure']}" if "waveform_figure" in report else ""))
     print_warnings(unlisted_warnings(report["warnings"], verdict))
     print_cautions(("estimates", "laser"))
+
+
+def thz_absolute_rows(thz: dict) -> list[tuple[str, str, str]]:
+    """Rows of the absolute THz figures of a summary's ``thz`` section or a ``thz`` report:
+    geometry and tilt, energy, efficiency, average power, peak field, crystal fluence limit."""
+    rows = []
+    if thz.get("geometry") == "tilted_front":
+        rows.append(("tilted front", f"{fmt(thz.get('tilt_angle_deg'), 1, 4)} deg",
+                     f"interaction length {fmt(thz.get('interaction_length_m'), 1e-3)} mm; "
+                     "grating and imaging not modelled"))
+    if thz.get("efficiency") is not None:
+        energy = thz.get("energy_estimate_j")
+        rows.append(("THz energy", f"{fmt(energy, 1e-9)} nJ",
+                     f"efficiency {thz['efficiency']:.3g}"
+                     + (f", average power {fmt(thz['average_power_w'], 1e-3)} mW"
+                        if thz.get("average_power_w") is not None else "")))
+    if thz.get("peak_field_v_per_m") is not None:
+        rows.append(("THz peak field", f"{fmt(thz['peak_field_v_per_m'], 1e5)} kV/cm",
+                     f"at an f/{thz['focus_f_number']:g} focus (exit face "
+                     f"{fmt(thz['peak_field_exit_v_per_m'], 1e5)} kV/cm)"))
+    if thz.get("binding_limit") is not None:
+        margin = thz.get("crystal_fluence_margin")
+        rows.append(("crystal fluence", f"{fmt(thz['pump_fluence_j_per_m2'], 1e4)} J/cm^2",
+                     f"binding limit {thz['binding_limit']}: margin limit/fluence = "
+                     f"{margin:.3g} (required >= 1): {'met' if margin >= 1 else 'not met'}"))
+    if thz.get("absolute_assumptions"):
+        rows.append(("THz assumptions", "", thz["absolute_assumptions"]))
+    return rows
 
 
 def unlisted_warnings(warnings, verdict) -> list[str]:

@@ -117,6 +117,7 @@ def scan_rows(plan, records) -> tuple[list[str], list[list[str]]]:
     keys = [v.key for v in plan.varies]
     required = records[0]["margins"].get("self_focusing_required") if records else None
     header = keys + ["status", "verdict", "FWHM (fs)", "peak (GW)", "THz cutoff",
+                     "THz field (kV/cm)",
                      "SF margin P_cr/P" + (f" (req. >= {required:g})" if required else ""),
                      "ion. fraction", "beyond limits"]
     from hcfplan.planning.verdict import verdict_of_record
@@ -135,7 +136,9 @@ def scan_rows(plan, records) -> tuple[list[str], list[list[str]]]:
             r["status"], " ".join([verdict.status, *verdict.codes]),
             shown("compressed.fwhm_s", comp.get("fwhm_s"), 1e-15),
             shown("compressed.peak_power_w", comp.get("peak_power_w"), 1e9),
-            shown("thz.cutoff_hz", thz.get("cutoff_hz"), 1e12), fmt(m.get("self_focusing"), 1, 3),
+            shown("thz.cutoff_hz", thz.get("cutoff_hz"), 1e12),
+            shown("thz.peak_field_v_per_m", thz.get("peak_field_v_per_m"), 1e5),
+            fmt(m.get("self_focusing"), 1, 3),
             fmt(m.get("ionization_fraction"), 1, 3),
             m.get("binding") or ("-" if r["status"] == "ok" else r["message"][:60])])
     return header, rows
@@ -236,7 +239,9 @@ def _print_scan(outcome, figures, failed) -> None:
 def recommend_command(
     config: Path = typer.Argument(..., help="Config TOML file."),
     goal: str = typer.Option(..., "--goal", help="shortest (compressed FWHM), peak_power "
-                             "(compressed peak power) or thz_cutoff."),
+                             "(compressed peak power), thz_cutoff or thz_field (THz peak field "
+                             "at the focus; needs thz.beam_waist_um, keeps the crystal fluence "
+                             "below its binding limit)."),
     target_thz: Optional[float] = typer.Option(  # noqa: UP007, UP045
         None, "--target-thz", help="With --goal thz_cutoff: the smallest pressure (or energy) "
         "whose THz cutoff reaches this value."),
@@ -364,7 +369,10 @@ def _print_recommendation(rec, chosen: bool) -> None:
                    f"verdict {best.verdict}){mark}")
         typer.echo(f"  compressed {shown('compressed', 'fwhm_s', 1e-15)} fs, "
                    f"{shown('compressed', 'peak_power_w', 1e9)} GW; THz cutoff "
-                   f"{shown('thz', 'cutoff_hz', 1e12)} THz")
+                   f"{shown('thz', 'cutoff_hz', 1e12)} THz"
+                   + (f"; THz peak field {shown('thz', 'peak_field_v_per_m', 1e5)} kV/cm, "
+                      f"efficiency {shown('thz', 'efficiency', 1.0)}"
+                      if thz.get("peak_field_v_per_m") is not None else ""))
         for line in verdict_lines(verdict, "  ")[1:] if verdict.reasons else ():
             typer.echo(line)
         for i, c in enumerate(rec.binding):

@@ -203,13 +203,27 @@ def _build_gas(g: dict, present: set[str], table_dirs: tuple[Path, ...]) -> GasS
                    entrance_pressure=ends[0], exit_pressure=ends[1])
 
 
+def _crystal_dirs(table_dir, base: Path) -> tuple[Path, ...]:
+    """User crystal folders: ``thz.table_dir`` (relative to the config) first, then those of
+    ``HCFPLAN_CRYSTAL_PATH``; every table in them is validated now."""
+    import os
+
+    from hcfplan.materials.crystal_tables import crystal_search_dirs, validate_crystal_dirs
+
+    folder = _resolve_path(table_dir, base, "thz.table_dir", must_be_dir=True)
+    dirs = tuple(crystal_search_dirs([folder] if folder else [], os.environ))
+    validate_crystal_dirs(dirs)
+    return dirs
+
+
 def _build_specs(r: dict, present: set[str], base: Path, extra_gas_dirs) -> dict:
     las, cell, comp, thz, grid = r["laser"], r["cell"], r["compressor"], r["thz"], r["grid"]
     lim = r["limits"]
     gas_dir = _resolve_path(r["gas"]["table_dir"], base, "gas.table_dir", must_be_dir=True)
     table_dirs = tuple(([gas_dir] if gas_dir else []) + [Path(d) for d in extra_gas_dirs])
-    crosschecks.check_names(r, present, table_dirs)
-    crosschecks.check_crystal_absorption(r, present)
+    crystal_dirs = _crystal_dirs(r["thz"]["table_dir"], base)
+    crosschecks.check_names(r, present, table_dirs, crystal_dirs)
+    crosschecks.check_crystal_absorption(r, present, crystal_dirs)
     band = comp["mirror_band_nm"]
     spectrum = _measured_curve(las["spectrum_csv"], base, "laser.spectrum_csv", None)
     if spectrum is not None:
@@ -258,7 +272,9 @@ def _build_specs(r: dict, present: set[str], base: Path, extra_gas_dirs) -> dict
             detector_thickness=_si(thz["detector_thickness_mm"], "mm"),
             probe_fwhm=_si(thz["probe_fwhm_fs"], "fs"), beam_waist=_si(thz["beam_waist_um"], "um"),
             d_eff=_si(thz["d_eff_pm_per_v"], "pm_per_v"),
-            damage_fluence=_si(thz["damage_fluence_j_per_cm2"], "j_per_cm2")),
+            damage_fluence=_si(thz["damage_fluence_j_per_cm2"], "j_per_cm2"),
+            geometry=thz["geometry"], focus_f_number=thz["focus_f_number"],
+            table_dirs=crystal_dirs),
         limits=LimitsSpec(
             self_focusing_margin=lim["self_focusing_margin"],
             ionization_fraction_limit=lim["ionization_fraction_limit"],

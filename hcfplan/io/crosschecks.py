@@ -286,8 +286,10 @@ def check_mirror_curve(wavelength, resolved: dict) -> None:
                           "GDD at the pump is not in the file)")
 
 
-def check_names(resolved: dict, present: set[str], table_dirs: tuple[Path, ...]) -> None:
-    """Check gas, material and crystal names against the shipped and user tables."""
+def check_names(resolved: dict, present: set[str], table_dirs: tuple[Path, ...],
+                crystal_dirs: tuple[Path, ...] = ()) -> None:
+    """Check gas, material and crystal names against the shipped and user tables (user
+    crystal folders ``crystal_dirs``; the check-only materials are accepted, not listed)."""
     from hcfplan.materials import crystals, gases, solids
 
     if "gas" in present:
@@ -312,10 +314,11 @@ def check_names(resolved: dict, present: set[str], table_dirs: tuple[Path, ...])
             raise ConfigError(f"{section}.{key} = {name!r}: unknown material"
                               f"{suggest(name, valid_solids)} "
                               f"(available: {', '.join(valid_solids)})")
-    valid_crystals = crystals.crystal_names()
+    valid_crystals = crystals.listed_crystal_names(crystal_dirs)
+    known = {v.lower() for v in crystals.crystal_names(crystal_dirs)}
     for key in ("crystal", "detector_crystal"):
         name = resolved["thz"][key]
-        if name is not None and name.lower() not in {v.lower() for v in valid_crystals}:
+        if name is not None and name.lower() not in known:
             raise ConfigError(f"thz.{key} = {name!r}: unknown crystal"
                               f"{suggest(name, valid_crystals)} "
                               f"(available: {', '.join(valid_crystals)})")
@@ -414,7 +417,8 @@ def check_triple_point(table, temperature_k: float, key: str = "gas.temperature_
                           f"there, at any pressure; raise {key}")
 
 
-def check_crystal_absorption(resolved: dict, present: set[str]) -> None:
+def check_crystal_absorption(resolved: dict, present: set[str],
+                             crystal_dirs: tuple[Path, ...] = ()) -> None:
     """Refuse a THz crystal that absorbs the pump (or, in EO detection, the probe at the pump
     wavelength) in a single photon: the photon energy ``h c / laser.wavelength_nm`` above the
     crystal table's direct band gap. Two-photon absorption (twice the photon energy above the
@@ -436,7 +440,7 @@ def check_crystal_absorption(resolved: dict, present: set[str]) -> None:
                       ("detector_crystal", "the EO detection crystal absorbs the probe (the "
                        "compressed pulse, at the pump wavelength)")):
         name = resolved["thz"][key]
-        gap = None if name is None else crystals.load_crystal(name).band_gap_direct
+        gap = None if name is None else crystals.load_crystal(name, crystal_dirs).band_gap_direct
         if gap is not None and photon > gap:
             raise ConfigError(
                 f"thz.{key} = {name!r} with laser.wavelength_nm = {describe(pump)}: the photon "

@@ -201,6 +201,15 @@ SCHEMA: dict[str, dict[str, Key]] = {
                               0.0, 1.0e4),
         "damage_fluence_j_per_cm2": Key(F, None, "Crystal damage fluence for the pump check.",
                                         0.0, 1.0e3),
+        "geometry": Key("choice", "collinear", "Generation geometry: collinear, or "
+                        "tilted_front (velocity matching by a pulse-front tilt, e.g. LiNbO3; "
+                        "grating and imaging not modelled).",
+                        choices=("collinear", "tilted_front")),
+        "focus_f_number": Key(F, 2.0, "f-number of the THz focusing optic for the peak field "
+                              "(diffraction-limited focus of each frequency).", 0.5, 100.0,
+                              low_open=False),
+        "table_dir": Key("path", None, "Extra folder searched first for crystal tables "
+                         "(*.toml); also HCFPLAN_CRYSTAL_PATH."),
     },
     "limits": {
         "self_focusing_margin": Key(F, 2.0, "Required self-focusing margin P_cr / P (critical "

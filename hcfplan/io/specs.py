@@ -158,6 +158,9 @@ class ThzSpec:
     beam_waist: float | None  #: [m]
     d_eff: float | None  #: [m/V]
     damage_fluence: float | None  #: [J/m^2]
+    geometry: str = "collinear"
+    focus_f_number: float = 2.0
+    table_dirs: tuple[Path, ...] = ()  #: user crystal folders, searched first
 
 
 @dataclass(frozen=True)

@@ -9,7 +9,8 @@ printed (micrometre units) and converted when a model is evaluated.
 
 from __future__ import annotations
 
-from collections.abc import Iterable, Sequence
+import os
+from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass
 from importlib import resources
 from pathlib import Path
@@ -39,6 +40,34 @@ _PROPERTY_KEYS: dict[str, tuple[str, float]] = {
     "band_gap_indirect_ev": ("band_gap_indirect", eV),
     "two_photon_absorption_cm_per_gw": ("two_photon_coefficient", 1e-2 / 1e9),  # cm/GW -> m/W
     "damage_fluence_j_per_cm2": ("damage_fluence", 1e4),  # J/cm^2 -> J/m^2
+    "carrier_mobility_cm2_per_vs": ("carrier_mobility", 1e-4),  # cm^2/(V s) -> m^2/(V s)
+}
+#: Plausible ranges of the property values, in the file's units (a value outside is refused as
+#: a typo or a unit slip; wide on purpose, common practice, no source).
+_PROPERTY_RANGES: dict[str, tuple[float, float]] = {
+    "r41_pm_per_v": (0.0, 1000.0),
+    "d_eff_pm_per_v": (0.0, 1000.0),
+    "band_gap_direct_ev": (0.1, 20.0),
+    "band_gap_indirect_ev": (0.1, 20.0),
+    "two_photon_absorption_cm_per_gw": (0.0, 1000.0),
+    "damage_fluence_j_per_cm2": (1e-4, 100.0),
+    "carrier_mobility_cm2_per_vs": (0.0, 1e5),
+}
+#: Range of the refractive indices a table may give, optical and THz (checked where the model
+#: is evaluated at the ends of its stated range; common practice, no source).
+INDEX_RANGE = (1.0, 30.0)
+#: Environment variable naming user crystal folders (``:``-separated; read by io/cli only).
+CRYSTAL_PATH_VARIABLE = "HCFPLAN_CRYSTAL_PATH"
+#: Keys each block may hold (anything else is refused as a misspelling or a key without unit).
+_KNOWN_KEYS: dict[str, frozenset[str]] = {
+    "(top level)": frozenset({"name", "description", "check_only", "optical_index",
+                              "thz_permittivity", "properties", "notes"}),
+    "optical_index": frozenset({"model", "constant", "b", "pole_um", "pole_um2", "index",
+                                "wavelength_um", "lambda_sq_term_per_um2", "source",
+                                "valid_min_um", "valid_max_um", "range_source"}),
+    "thz_permittivity": frozenset({"model", "eps_inf", "index", "oscillators", "source",
+                                   "valid_max_thz", "range_source"}),
+    "oscillator": frozenset({"frequency_thz", "strength", "damping_thz", "source"}),
 }
 
 
@@ -60,6 +89,7 @@ class OpticalIndexModel:
     wavelength_min: float
     wavelength_max: float
     source: str
+    lambda_sq_term: float = 0.0  #: coefficient of an extra + c lambda_um^2 term of n^2 [1/um^2]
 
 
 @dataclass(frozen=True)
@@ -91,8 +121,10 @@ class CrystalTable:
 
     Attributes: ``r41`` [m/V], ``d_eff`` [m/V] (optical rectification, P = eps0 d_eff |E|^2),
     ``band_gap_direct``/``band_gap_indirect`` [J], ``two_photon_coefficient`` [m/W] measured at
-    ``two_photon_wavelength`` [m], ``damage_fluence`` [J/m^2]. ``sources`` maps each property key
-    of the file to its source string; ``notes`` are (key, text) pairs.
+    ``two_photon_wavelength`` [m], ``damage_fluence`` [J/m^2], ``carrier_mobility`` [m^2/(V s)]
+    (of the free carriers two-photon absorption makes). ``sources`` maps each property key of
+    the file to its source string; ``notes`` are (key, text) pairs. ``check_only`` marks an
+    ideal material for analytic checks, not offered in lists shown to users.
     """
 
     name: str
@@ -107,8 +139,10 @@ class CrystalTable:
     two_photon_coefficient: float | None = None
     two_photon_wavelength: float | None = None
     damage_fluence: float | None = None
+    carrier_mobility: float | None = None
     sources: tuple[tuple[str, str], ...] = ()
     notes: tuple[tuple[str, str], ...] = ()
+    check_only: bool = False
 
     def source(self, key: str) -> str:
         """Source string of a property key of the file (e.g. ``'r41_pm_per_v'``).
@@ -153,6 +187,74 @@ def crystal_names(search_dirs: Sequence[str | Path] = ()) -> list[str]:
     return sorted(set(_user_files(search_dirs)) | set(_shipped_files()))
 
 
+def listed_crystal_names(search_dirs: Sequence[str | Path] = ()) -> list[str]:
+    """The crystal names offered to users: :func:`crystal_names` without the check-only
+    materials (tables with ``check_only = true``, such as ``thin``).
+
+    References
+    ----------
+    None: file helper (no published model).
+    """
+    user, shipped = _user_files(search_dirs), _shipped_files()
+    out = []
+    for name in crystal_names(search_dirs):
+        entry = user.get(name) or shipped[name]
+        try:
+            hidden = read_table_toml(entry, entry.name).get("check_only") is True
+        except ConfigError:
+            hidden = False  # a malformed file is listed; loading it names the problem
+        if not hidden:
+            out.append(name)
+    return out
+
+
+def crystal_search_dirs(extra: Sequence[str | Path] = (),
+                        environ: Mapping[str, str] | None = None) -> list[Path]:
+    """User crystal folders: ``extra`` (``thz.table_dir``) first, then the entries of
+    ``HCFPLAN_CRYSTAL_PATH`` (``:``-separated) when ``environ`` is passed.
+
+    Raises
+    ------
+    ConfigError
+        A folder that does not exist, naming where it was set.
+
+    References
+    ----------
+    None: file helper (no published model).
+    """
+    dirs = [Path(d) for d in extra]
+    if environ is not None:
+        dirs += [Path(p) for p in environ.get(CRYSTAL_PATH_VARIABLE, "").split(os.pathsep) if p]
+    for d in dirs:
+        if not d.is_dir():
+            raise ConfigError(f"crystal table directory {str(d)!r}: does not exist (set by "
+                              f"thz.table_dir or {CRYSTAL_PATH_VARIABLE})")
+    return dirs
+
+
+def validate_crystal_dirs(search_dirs: Sequence[str | Path]) -> list[str]:
+    """Load and validate every ``*.toml`` file of the user folders ``search_dirs``.
+
+    Returns
+    -------
+    list of str
+        The lower-case names found.
+
+    Raises
+    ------
+    ConfigError
+        The first malformed file, naming the file and the key.
+
+    References
+    ----------
+    None: file checks (no published model).
+    """
+    found = _user_files(search_dirs)
+    for path in found.values():
+        _table_from_dict(read_table_toml(path, path.name), str(path))
+    return sorted(found)
+
+
 def load_crystal(name: str, search_dirs: Sequence[str | Path] = ()) -> CrystalTable:
     """Load and validate the crystal table ``name`` (case-insensitive, the file stem).
 
@@ -179,7 +281,8 @@ def load_crystal(name: str, search_dirs: Sequence[str | Path] = ()) -> CrystalTa
     entry = user.get(key) or _shipped_files().get(key)
     if entry is None:
         raise ConfigError(
-            f"crystal = {name!r}: unknown; valid names: {', '.join(crystal_names(search_dirs))}"
+            f"crystal = {name!r}: unknown; valid names: "
+            f"{', '.join(listed_crystal_names(search_dirs))}"
         )
     data = read_table_toml(entry, entry.name)
     return _table_from_dict(data, str(entry))
@@ -240,6 +343,50 @@ def _range(section: dict, path: str, where: str, lo_key: str, hi_key: str) -> tu
     return lo, hi
 
 
+def _known_keys(section: dict, path: str, where: str, kind: str) -> None:
+    for key in section:
+        if key not in _KNOWN_KEYS[kind]:
+            raise _fail(path, f"{where}.{key}" if where != "(top level)" else key,
+                        f"is not a known key; valid: {', '.join(sorted(_KNOWN_KEYS[kind]))}")
+
+
+def _optical_n_sq(model: OpticalIndexModel, wavelength: float) -> float:
+    """n^2 of a Sellmeier model at one wavelength [m] (for the range check of a table)."""
+    l2 = (wavelength * 1e6) ** 2  # the coefficients are printed for lambda in um
+    poles = model.poles if model.model == "sellmeier_pole_um2" else [p**2 for p in model.poles]
+    return (model.constant + model.lambda_sq_term * l2
+            + sum(b * l2 / (l2 - p) for b, p in zip(model.b, poles, strict=True)))
+
+
+def _check_optical_range(model: OpticalIndexModel, path: str) -> None:
+    """The index at both ends of the stated range lies within :data:`INDEX_RANGE`."""
+    if model.model not in ("sellmeier_pole_um", "sellmeier_pole_um2"):
+        values = model.table_index or (model.constant,)
+        ends = [(model.wavelength_min, min(values)), (model.wavelength_max, max(values))]
+    else:
+        ends = [(w, float(np.sqrt(max(_optical_n_sq(model, w), 0.0))))
+                for w in (model.wavelength_min, model.wavelength_max)]
+    lo, hi = INDEX_RANGE
+    for wavelength, n in ends:
+        if not (np.isfinite(n) and lo <= n <= hi):
+            raise _fail(path, "optical_index", f"gives n = {n:.4g} at {wavelength * 1e6:.4g} um: "
+                        f"outside {lo:g}-{hi:g} (check the coefficients and their units)")
+
+
+def _check_thz_range(model: ThzDielectricModel, path: str) -> None:
+    """Re n_THz within :data:`INDEX_RANGE` at 0.1 THz and at the stated upper limit's tenth."""
+    for nu in (0.1e12, 0.1 * model.frequency_max):
+        Omega = 2 * np.pi * nu
+        eps = model.eps_inf + sum(o.strength * o.omega**2 / (o.omega**2 - Omega**2
+                                                              - 1j * o.damping * Omega)
+                                  for o in model.oscillators)
+        n = float(np.sqrt(complex(eps)).real)
+        lo, hi = INDEX_RANGE
+        if not (np.isfinite(n) and lo <= n <= hi):
+            raise _fail(path, "thz_permittivity", f"gives n = {n:.4g} at {nu * 1e-12:.3g} THz: "
+                        f"outside {lo:g}-{hi:g} (check the coefficients and their units)")
+
+
 def _model_name(section: dict, path: str, where: str, names) -> str:
     model = _require(section, "model", path, where)
     if not isinstance(model, str) or model not in names:
@@ -249,6 +396,7 @@ def _model_name(section: dict, path: str, where: str, names) -> str:
 
 def _optical_from_dict(sec: dict, path: str) -> OpticalIndexModel:
     where = "optical_index"
+    _known_keys(sec, path, where, where)
     model = _model_name(sec, path, where, OPTICAL_MODEL_NAMES)
     source = _source(sec, path, where)
     lo, hi = _range(sec, path, where, "valid_min_um", "valid_max_um")
@@ -273,11 +421,19 @@ def _optical_from_dict(sec: dict, path: str) -> OpticalIndexModel:
         fields["poles"] = _numbers(sec, pole_key, path, where)
         if len(fields["b"]) != len(fields["poles"]):
             raise _fail(path, f"{where}.{pole_key}", "must have as many entries as b")
-    return OpticalIndexModel(model=model, wavelength_min=lo * 1e-6, wavelength_max=hi * 1e-6,
-                             source=source, **fields)
+        if "lambda_sq_term_per_um2" in sec:  # signed: read as a number of either sign
+            value = sec["lambda_sq_term_per_um2"]
+            _number({"x": abs(value) if isinstance(value, (int, float)) else value}, "x", path,
+                    f"{where}.lambda_sq_term_per_um2")
+            fields["lambda_sq_term"] = float(value)
+    out = OpticalIndexModel(model=model, wavelength_min=lo * 1e-6, wavelength_max=hi * 1e-6,
+                            source=source, **fields)
+    _check_optical_range(out, path)
+    return out
 
 
 def _oscillator_from_dict(sec: dict, path: str, where: str) -> LorentzOscillator:
+    _known_keys(sec, path, where, "oscillator")
     return LorentzOscillator(
         omega=2 * np.pi * 1e12 * _number(sec, "frequency_thz", path, where, positive=True),
         strength=_number(sec, "strength", path, where),
@@ -288,6 +444,7 @@ def _oscillator_from_dict(sec: dict, path: str, where: str) -> LorentzOscillator
 
 def _thz_from_dict(sec: dict, path: str) -> ThzDielectricModel:
     where = "thz_permittivity"
+    _known_keys(sec, path, where, where)
     model = _model_name(sec, path, where, THZ_MODEL_NAMES)
     source = _source(sec, path, where)
     fmax = _number(sec, "valid_max_thz", path, where, positive=True) * 1e12
@@ -305,7 +462,9 @@ def _thz_from_dict(sec: dict, path: str) -> ThzDielectricModel:
                                   f"{where}.oscillators[{i}]")
             for i, o in enumerate(raw)
         )
-    return ThzDielectricModel(model, eps_inf, oscillators, fmax, source)
+    out = ThzDielectricModel(model, eps_inf, oscillators, fmax, source)
+    _check_thz_range(out, path)
+    return out
 
 
 def _properties_from_dict(sec: dict, path: str) -> tuple[dict[str, Any], tuple]:
@@ -318,7 +477,12 @@ def _properties_from_dict(sec: dict, path: str) -> tuple[dict[str, Any], tuple]:
         if not isinstance(entry, dict):
             raise _fail(path, where, "must be a table {value = ..., source = \"...\"}")
         field, factor = _PROPERTY_KEYS[key]
-        values[field] = _number(entry, "value", path, where) * factor
+        value = _number(entry, "value", path, where)
+        low, high = _PROPERTY_RANGES[key]
+        if not low <= value <= high:
+            raise _fail(path, f"{where}.value", f"= {value!r}: outside the plausible range "
+                        f"{low:g}-{high:g} (unit: the key's suffix)")
+        values[field] = value * factor
         sources.append((key, _source(entry, path, where)))
         if key.startswith("two_photon"):
             values["two_photon_wavelength"] = (
@@ -328,6 +492,10 @@ def _properties_from_dict(sec: dict, path: str) -> tuple[dict[str, Any], tuple]:
 
 
 def _table_from_dict(data: dict, path: str) -> CrystalTable:
+    _known_keys(data, path, "(top level)", "(top level)")
+    check_only = data.get("check_only", False)
+    if not isinstance(check_only, bool):
+        raise _fail(path, "check_only", f"= {check_only!r}: must be true or false")
     for section in ("optical_index", "thz_permittivity"):
         if not isinstance(data.get(section), dict):
             raise _fail(path, f"[{section}]", "is missing")
@@ -343,5 +511,6 @@ def _table_from_dict(data: dict, path: str) -> CrystalTable:
         thz=_thz_from_dict(data["thz_permittivity"], path),
         sources=sources,
         notes=notes,
+        check_only=check_only,
         **props,
     )

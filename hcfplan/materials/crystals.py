@@ -46,6 +46,8 @@ from hcfplan.materials.crystal_tables import (
     ThzDielectricModel,
     ThzModelName,
     crystal_names,
+    crystal_search_dirs,
+    listed_crystal_names,
     load_crystal,
 )
 
@@ -60,6 +62,8 @@ __all__ = [
     "ThzModelName",
     "coherence_length",
     "crystal_names",
+    "crystal_search_dirs",
+    "listed_crystal_names",
     "load_crystal",
     "optical_group_index",
     "optical_index",
@@ -77,8 +81,8 @@ __all__ = [
 def _sellmeier(model: OpticalIndexModel, wavelength: np.ndarray, pole_sq: np.ndarray):
     lam_um = wavelength * 1e6  # the Sellmeier coefficients are printed for lambda in um
     l2 = lam_um**2
-    n_sq = np.full_like(l2, model.constant)
-    dn_sq = np.zeros_like(l2)  # d(n^2)/d(lambda_um)
+    n_sq = model.constant + model.lambda_sq_term * l2
+    dn_sq = 2.0 * model.lambda_sq_term * lam_um  # d(n^2)/d(lambda_um)
     for b, p2 in zip(model.b, pole_sq, strict=True):
         n_sq = n_sq + b * l2 / (l2 - p2)
         dn_sq = dn_sq - 2.0 * b * lam_um * p2 / (l2 - p2) ** 2

@@ -314,7 +314,8 @@ def phase_matching_output(config, thz):
     peak = thz.peak_frequency if thz.peak_frequency is not None else thz.model_limit
     f_max = max(min(2.0 * thz.cutoff_computed, PM_MAP_PEAK_MULTIPLE * peak), PM_MAP_MIN_FREQUENCY)
     frequency = np.linspace(f_max / PM_MAP_POINTS[1], f_max, PM_MAP_POINTS[1])
-    return phase_matching_map(crystals.load_crystal(config.thz.crystal), wavelengths, frequency)
+    return phase_matching_map(crystals.load_crystal(config.thz.crystal, config.thz.table_dirs),
+                              wavelengths, frequency)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -425,6 +426,9 @@ def _thz_part(config, thz) -> dict:
     if thz.thz_energy is not None:
         out["thz.energy_estimate_j"] = thz.thz_energy
         out["thz.energy_estimate_caution"] = thz.thz_energy_caution
+    from hcfplan.planning.reports.thz import chain_part
+
+    out.update(chain_part(config, thz))  # geometry, absolute figures, crystal fluence limits
     return out
 
 
@@ -545,4 +549,7 @@ def field_arrays(chain: ChainResult) -> dict[str, np.ndarray]:
         arrays["thz_power_generated"] = thz.generated_power
         arrays["thz_power_detected"] = (thz.detected_power if thz.detected_power is not None
                                         else np.full_like(thz.frequency, np.nan))
+        from hcfplan.planning.reports.thz import chain_arrays
+
+        arrays.update(chain_arrays(chain.config, thz))  # E(t), the focus, the EO waveform
     return arrays

@@ -168,9 +168,9 @@ def thz_model_range(config) -> tuple[float, str]:
     from hcfplan.materials.crystals import load_crystal
     from hcfplan.thz.measures import model_limit
 
-    crystal = load_crystal(config.thz.crystal)
+    crystal = load_crystal(config.thz.crystal, config.thz.table_dirs)
     name = config.thz.detector_crystal
-    detector = None if name is None else load_crystal(name)
+    detector = None if name is None else load_crystal(name, config.thz.table_dirs)
     limit = model_limit(crystal, detector)
     owners = [t.name for t in (crystal, detector)
               if t is not None and t.thz.frequency_max == limit]

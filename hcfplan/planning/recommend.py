@@ -30,6 +30,7 @@ from typing import Literal
 from hcfplan.errors import ConfigError
 from hcfplan.planning import recommend_search as search
 from hcfplan.planning.recommend_points import (
+    CRYSTAL_LIMITED_GOALS,
     GOALS,
     MIN_MAIN_LOBE_FRACTION,
     Evaluation,
@@ -38,7 +39,7 @@ from hcfplan.planning.recommend_points import (
     score,
 )
 
-Goal = Literal["shortest", "peak_power", "thz_cutoff"]
+Goal = Literal["shortest", "peak_power", "thz_cutoff", "thz_field"]
 SEARCH_KEYS = ("gas.pressure_bar", "gas.exit_pressure_bar", "laser.energy_uj")
 #: The pressure keys of :data:`SEARCH_KEYS`: a static fill's pressure, or a gradient's exit
 #: pressure (its entrance pressure stays as configured).
@@ -328,7 +329,8 @@ def _search(setup: _Setup, gas: str | None, on_batch=None) -> Recommendation:
     binding = ()
     if best is not None:
         cap_pa = None if cap is None else cap * 1e5
-        binding = tuple(binding_constraints(best.record, cap_pa, fraction))
+        binding = tuple(binding_constraints(best.record, cap_pa, fraction,
+                                            crystal=setup.goal in CRYSTAL_LIMITED_GOALS))
     return Recommendation(**common, allowed=allowed, bound_reason=bound_reason, tolerance=tol,
                           best=best, reason=reason, evaluations=evals, coarse=len(points),
                           runs=runner.runs, binding=binding,
@@ -396,6 +398,10 @@ def recommend(config_path: str | Path, goal: Goal, *,
         if config.gas is None:
             raise ConfigError(f"recommend: fiber.kind = {config.fiber.kind!r} has no gas; "
                               "the search needs a gas-filled fiber")
+        if goal == "thz_field" and ("thz" not in config.present_sections
+                                    or config.thz.beam_waist is None):
+            raise ConfigError("--goal thz_field: needs a [thz] section with thz.beam_waist_um "
+                              "(the peak field is absolute)")
         spans = tuple(ranges) if ranges else ((default_key(config), default_range(config)),)
         setup = _Setup((raw, path.parent, tuple(over), tuple(extra_gas_dirs), path), goal,
                        spans, None if target_thz is None else target_thz * 1e12, coarse,

@@ -19,7 +19,11 @@ GOALS: dict[str, tuple[str, str, float]] = {
     "shortest": ("compressed", "fwhm_s", 1.0),
     "peak_power": ("compressed", "peak_power_w", -1.0),
     "thz_cutoff": ("thz", "cutoff_hz", -1.0),
+    "thz_field": ("thz", "peak_field_v_per_m", -1.0),
 }
+#: Goals whose point must also keep the pump fluence on the generation crystal below its
+#: binding limit (damage, two-photon or free-carrier absorption; thz.crystal_fluence_margin).
+CRYSTAL_LIMITED_GOALS = ("thz_field",)
 #: For the goal "shortest", a compressed pulse counts only with at least this share of its
 #: energy in the main lobe: a short spike on a broad pedestal is not a short pulse for a lab
 #: (common practice, no source).
@@ -125,6 +129,10 @@ def point_verdict(record: dict, goal: str) -> tuple[bool, tuple[str, ...], str]:
     reasons += [check_label(c, margins) for c in beyond]
     if not beyond and margins.get("binding"):
         reasons += [f"{n.strip()} beyond its limit" for n in margins["binding"].split(",")]
+    crystal = _finite(record.get("summary", {}).get("thz", {}).get("crystal_fluence_margin"))
+    if goal in CRYSTAL_LIMITED_GOALS and crystal is not None and crystal < 1:
+        binding = record["summary"]["thz"].get("binding_limit")
+        reasons.append(f"crystal fluence beyond its {binding} limit")
     if goal == "shortest" and record.get("status") == "ok":
         lobe = _finite(record.get("summary", {}).get("compressed", {})
                        .get("main_lobe_energy_fraction"))
@@ -159,11 +167,13 @@ def constraint_text(check: dict) -> str:
 
 
 def binding_constraints(record: dict, pressure_cap: float | None = None,
-                        fraction: float | None = None, count: int = 2) -> list[dict]:
+                        fraction: float | None = None, count: int = 2,
+                        crystal: bool = False) -> list[dict]:
     """The constraints closest to their required value at a point, closest first.
 
     Every checked limit of severity "limit" (``limits_report``) and, with ``pressure_cap``
-    [Pa], the fill pressure against ``fraction`` x the cell rating. Returns at most
+    [Pa], the fill pressure against ``fraction`` x the cell rating; with ``crystal``, the pump
+    fluence on the THz crystal against its binding limit. Returns at most
     ``count`` entries ``{"name", "closeness", "text"}`` where closeness = margin / required
     (1 on the limit).
     """
@@ -186,6 +196,12 @@ def binding_constraints(record: dict, pressure_cap: float | None = None,
                  f"({pressure_cap / 1e5:.4g} bar)")
         found.append({"name": "limits.rating_fraction", "closeness": closeness,
                       "text": margin_text(label, closeness, 1.0, "limit/pressure")})
+    thz = record.get("summary", {}).get("thz", {})
+    closeness = _finite(thz.get("crystal_fluence_margin"))
+    if crystal and closeness is not None:
+        label = f"crystal fluence margin ({thz.get('binding_limit')})"
+        found.append({"name": "thz.crystal_fluence_margin", "closeness": closeness,
+                      "text": margin_text(label, closeness, 1.0, "limit/fluence")})
     found.sort(key=lambda c: c["closeness"])
     return found[:count]
 

@@ -34,6 +34,8 @@ REPORTED = (
     ("compressed FWHM", "compressed", "fwhm_s", "max"),
     ("compressed peak power", "compressed", "peak_power_w", "min"),
     ("THz cutoff", "thz", "cutoff_hz", "min"),
+    ("THz peak field", "thz", "peak_field_v_per_m", "min"),
+    ("THz efficiency", "thz", "efficiency", "min"),
     ("self-focusing margin", "margins", "self_focusing", "min"),
     ("self-focusing margin in fiber", "margins", "self_focusing_in_fiber", "min"),
     ("ionisation fraction", "margins", "ionization_fraction", "max"),

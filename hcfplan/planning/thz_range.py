@@ -12,6 +12,16 @@ import math
 
 import numpy as np
 
+#: The absolute THz figures of a summary that are results (a reason can void them): they follow
+#: from the compressed pulse (:mod:`hcfplan.planning.reports.thz_absolute`).
+THZ_ABSOLUTE_RESULTS = ("thz.peak_field_v_per_m", "thz.peak_field_exit_v_per_m",
+                        "thz.efficiency", "thz.average_power_w", "thz.pump_fluence_j_per_m2",
+                        "thz.two_photon_fluence_j_per_m2", "thz.free_carrier_fluence_j_per_m2",
+                        "thz.crystal_fluence_margin", "thz.binding_limit",
+                        "thz.interaction_length_m", "thz.tilt_angle_deg")
+#: Settings and texts among them (never void): from the config or the crystal table.
+THZ_ABSOLUTE_SETTINGS = ("thz.geometry", "thz.focus_f_number", "thz.damage_fluence_j_per_m2",
+                         "thz.absolute_assumptions", "thz.eo_signal_normalisation")
 
 def within_model(cutoff, limit: float):
     """``cutoff`` [Hz] (float or array) with nan above ``limit`` [Hz]: a value of the

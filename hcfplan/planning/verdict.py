@@ -46,12 +46,11 @@ code                           status    voids
                                          where the output spectrum carries light)
 =============================  ========  ==================================================
 
-"Every result" is :data:`RESULT_FIELDS`, an explicit list of result keys: the output
-spectrum's width, transform limit and peak power, the compressed pulse and the mirror set chosen
-for it, and the THz peak, cutoffs, widths, efficiency and energy. Inputs and settings are never
-void, even where they sit in a result section (:data:`NOT_RESULT_FIELDS`: e.g. the crystal
-thickness, the crystal model's limit, the THz frequency step); nor are the margins and limits:
-they say why a result is void.
+"Every result" is :data:`RESULT_FIELDS`, an explicit list of result keys: the output spectrum's
+width, transform limit and peak power, the compressed pulse and its mirror set, the THz peak,
+cutoffs, widths, efficiency, energy, peak field and fluence limits. Inputs and settings are never
+void, even in a result section (:data:`NOT_RESULT_FIELDS`: e.g. the crystal thickness, the model's
+limit, the THz frequency step); nor are the margins and limits: they say why a result is void.
 
 Why these statuses: a code is *invalid* when the printed numbers are not what the models would
 give for the setup — the model fails at the pump (resonance, self-focusing collapse, tunnelling
@@ -79,6 +78,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from hcfplan.planning.convergence import EDGE_ENERGY_LIMIT, EDGE_LEVEL_DB, MIN_POINTS_PER_FWHM
+from hcfplan.planning.thz_range import THZ_ABSOLUTE_RESULTS, THZ_ABSOLUTE_SETTINGS
 
 #: Verdict statuses from best to worst.
 STATUSES = ("valid", "caution", "invalid")
@@ -108,7 +108,7 @@ COMPRESSED_RESULT_FIELDS = (
 THZ_RESULT_FIELDS = ("thz.peak_hz", "thz.cutoff_hz", "thz.bandwidth_3db_hz",
                      "thz.bandwidth_10db_hz", "thz.relative_efficiency",
                      "thz.detected_peak_hz", "thz.detected_cutoff_hz",
-                     "thz.energy_estimate_j")
+                     "thz.energy_estimate_j") + THZ_ABSOLUTE_RESULTS
 #: Every number a run produces: the only keys a reason can void.
 RESULT_FIELDS = OUTPUT_RESULT_FIELDS + COMPRESSED_RESULT_FIELDS + THZ_RESULT_FIELDS
 #: Keys of the ``output``, ``compressed`` and ``thz`` sections that are inputs, settings or
@@ -120,7 +120,7 @@ NOT_RESULT_FIELDS = ("output.energy_j", "output.bandwidth_definition",
                      "output.max_ionization_fraction", "output.max_peak_intensity_w_per_m2",
                      "output.max_peak_power_w", "thz.crystal", "thz.thickness_m",
                      "thz.cutoff_definition", "thz.model_limit_hz", "thz.frequency_step_hz",
-                     "thz.energy_estimate_caution")
+                     "thz.energy_estimate_caution") + THZ_ABSOLUTE_SETTINGS
 #: Durations and peak powers of the compressed pulse and its references.
 DURATION_FIELDS = ("compressed.fwhm_s", "compressed.peak_power_w",
                    "compressed.transform_limit_fwhm_s", "compressed.best_quadratic_fwhm_s",

@@ -192,4 +192,10 @@ def figure_jobs(out_dir: Path, chain, spread=None) -> list[tuple[Path, Callable,
             for name, draw in FIGURES.items() if applies(name, chain)]
     if spread is not None and spread.corners:
         jobs.insert(2, (out_dir / "spread.png", draw_spread, (chain, spread)))
+    if chain.thz is not None:
+        from hcfplan.planning.reports.thz import chain_waveforms
+        from hcfplan.plotting.thz_time import draw_thz_waveform
+
+        jobs.append((out_dir / "thz_waveform.png", draw_thz_waveform,
+                     (chain.thz, chain_waveforms(chain.config, chain.thz))))
     return jobs

@@ -72,6 +72,7 @@ from hcfplan.materials.crystals import (
     thz_index,
 )
 from hcfplan.numerics.grid import Grid
+from hcfplan.thz.crystal_limits import CrystalLimits, crystal_fluence_limits, limit_warnings
 from hcfplan.thz.detection import (
     EoDetector,
     eo_response,
@@ -82,6 +83,12 @@ from hcfplan.thz.measures import band_above_level, model_limit, spectral_peak, t
 from hcfplan.thz.mixing import PHASE_MATCHING
 from hcfplan.thz.sampling import padded_spectrum, thz_sampling
 from hcfplan.thz.setup import ThzSetup
+from hcfplan.thz.tilted import (
+    interaction_length,
+    mixing_sum_tilted_front,
+    tilt_angle,
+    tilted_coherence_length,
+)
 
 #: Reference nonlinearity and flat-top beam area of :attr:`ThzResult.relative_efficiency`.
 REFERENCE_D_EFF = 1e-12  # 1 pm/V [m/V]
@@ -136,6 +143,18 @@ class ThzResult:
     coherence_length : c / (2 nu |n_g - n_T|) at the pump centroid on ``frequency``. [m]
     optical_frequency, optical_spectrum : the driving spectrum, ascending. [Hz], [J/Hz]
     warnings : pump-side checks and validity notes.
+    detector_response : EO response R(Omega) on ``frequency`` (:func:`eo_response` with the
+        probe gate), or ``None`` without a detector. [-]
+    probe_frequency : mean probe frequency of the EO detection, or ``None``. [Hz]
+    geometry : "collinear" or "tilted_front" (:mod:`hcfplan.thz.tilted`).
+    tilt_angle : pulse-front tilt inside the crystal (tilted front only). [rad]
+    interaction_length : THz path over which it is generated (the thickness, or for a tilted
+        front the part of it that crosses the pump beam). [m]
+    field_scale : factor from ``generated_field`` to the on-axis field at the exit face of a
+        Gaussian pump beam (2 (d_eff / 1 pm/V) (1 mm^2 / (pi w^2))), or ``None`` without beam
+        radius and d_eff. [-]
+    crystal_limits : pump fluence and its damage, two-photon and free-carrier limits
+        (:mod:`hcfplan.thz.crystal_limits`), or ``None`` without beam radius.
     """
 
     frequency: np.ndarray
@@ -164,6 +183,13 @@ class ThzResult:
     optical_frequency: np.ndarray
     optical_spectrum: np.ndarray
     warnings: tuple[str, ...]
+    detector_response: np.ndarray | None = None
+    probe_frequency: float | None = None
+    geometry: str = "collinear"
+    tilt_angle: float | None = None
+    interaction_length: float | None = None
+    field_scale: float | None = None
+    crystal_limits: CrystalLimits | None = None
 
 
 # ----------------------------------------------------------------------------------------------
@@ -198,17 +224,18 @@ def pump_crystal_warnings(
     beam_radius : float or None
         1/e^2 intensity radius of a Gaussian beam; ``None`` skips the intensity checks. [m]
     damage_fluence : float or None
-        Damage (or working-limit) fluence; ``None`` uses the crystal table's value. [J/m^2]
+        Unused here: the fluence limits (damage, two-photon and free-carrier absorption) are
+        :func:`hcfplan.thz.crystal_limits.crystal_fluence_limits`. [J/m^2]
 
     Returns
     -------
     list of str
-        Warnings; peak fluence 2E/(pi w^2), peak intensity 2P/(pi w^2).
+        Warnings; peak intensity 2P/(pi w^2).
 
     References
     ----------
-    None: comparisons of twice the photon energy with the band gaps of the crystal table and
-    of the Gaussian-beam peak fluence with its damage fluence (common practice, no source).
+    None: comparisons of twice the photon energy with the band gaps of the crystal table
+    (common practice, no source).
     """
     out = []
     two_photon = 2 * hbar * omega_pump
@@ -230,12 +257,6 @@ def pump_crystal_warnings(
         out.append("thz.beam_waist_um not given: fluence, intensity and damage checks of the "
                    "crystal skipped")
         return out
-    fluence = 2 * pump_energy / (np.pi * beam_radius**2)
-    limit = damage_fluence if damage_fluence is not None else crystal.damage_fluence
-    if limit is not None and fluence > limit:
-        out.append(f"{crystal.name}: peak fluence {fluence * 1e-4:.3g} J/cm^2 exceeds the damage "
-                   f"fluence {limit * 1e-4:.3g} J/cm^2 (peak intensity {intensity * 1e-4:.3g} "
-                   "W/cm^2)")
     return out
 
 
@@ -278,6 +299,8 @@ class _Generated:
     omega_c: float
     band: slice
     drive_peak: float  # peak of |Omega I~(Omega)|^2, the pump-limited (thin-crystal) spectrum [Hz]
+    tilt: float | None  # pulse-front tilt (tilted front only) [rad]
+    length: float  # interaction length [m]
 
 
 def _generated_field(grid: Grid, shifted: np.ndarray, setup: ThzSetup,
@@ -293,15 +316,22 @@ def _generated_field(grid: Grid, shifted: np.ndarray, setup: ThzSetup,
     count = (len(band) if setup.max_frequency is None
              else int(setup.max_frequency / grid.dnu) + 1)
     Omega = 2 * np.pi * grid.dnu * np.arange(max(min(count, grid.points // 2), 2))
-    mixed = PHASE_MATCHING[setup.phase_matching](band, omega_band, grid.dnu, Omega, crystal,
-                                                 setup.thickness, omega_c)
+    tilt = length = None
+    if setup.geometry == "tilted_front":
+        tilt = tilt_angle(crystal, omega_c)
+        length = interaction_length(setup.thickness, tilt, setup.beam_radius)
+        mixed = mixing_sum_tilted_front(band, grid.dnu, Omega, crystal, length, omega_c, tilt)
+    else:
+        mixed = PHASE_MATCHING[setup.phase_matching](band, omega_band, grid.dnu, Omega, crystal,
+                                                     setup.thickness, omega_c)
     n_thz, n_opt = thz_index(crystal, Omega), float(optical_index(crystal, omega_c))
     t_in = 4 * n_opt / (1 + n_opt) ** 2  # pump power transmission of the input face
     source = 2 * REFERENCE_D_EFF * t_in / (n_opt * c * REFERENCE_AREA) * mixed  # P(Omega) L
     field = 1j * Omega / (2 * epsilon_0 * c) * 2 / (n_thz + 1) * source  # (1/n_T) t = 2/(n_T+1)
     drive = np.abs(Omega * spectral_autocorrelation(band, len(Omega))) ** 2
     return _Generated(Omega, field, omega_c, slice(lo, hi),
-                      spectral_peak(Omega / (2 * np.pi), drive))
+                      spectral_peak(Omega / (2 * np.pi), drive), tilt,
+                      setup.thickness if length is None else length)
 
 
 def _continuous_phase(Omega: np.ndarray, delay: float) -> np.ndarray:
@@ -315,9 +345,23 @@ def _continuous_phase(Omega: np.ndarray, delay: float) -> np.ndarray:
     return sign * np.exp(-1j * Omega * delay)
 
 
+def _centred(gate: np.ndarray, Omega: np.ndarray) -> np.ndarray:
+    """The probe gate referenced to the probe's own centre: without the linear phase
+    exp(i Omega t_c) of the probe's place t_c in the time window (least-squares slope of the
+    unwrapped phase where |gate| > 1/2), so that zero delay means probe and THz frames
+    coincide; |gate| is unchanged."""
+    strong = np.abs(gate) > 0.5
+    if np.count_nonzero(strong) < 2:
+        return gate
+    phase = np.unwrap(np.angle(gate))
+    slope = np.polyfit(Omega[strong], phase[strong], 1, w=np.abs(gate[strong]))[0]
+    return gate * np.exp(-1j * slope * Omega)
+
+
 def _detected_power(detector: EoDetector, grid: Grid, shifted, gen: _Generated,
-                    probe_grid: Grid) -> np.ndarray:
-    """|E_T(Omega) R(Omega)|^2 with the EO response R of :func:`eo_response`."""
+                    probe_grid: Grid) -> tuple[np.ndarray, np.ndarray, float]:
+    """(|E_T(Omega) R(Omega)|^2, R, probe centroid [rad/s]) with the EO response R of
+    :func:`eo_response`."""
     if detector.probe_spectrum is None:
         probe = shifted[gen.band]
         omega = grid.shifted(grid.omega)[gen.band]
@@ -329,9 +373,9 @@ def _detected_power(detector: EoDetector, grid: Grid, shifted, gen: _Generated,
         omega = grid.shifted(grid.omega)
     power = np.abs(probe) ** 2
     omega_probe = float(np.sum(omega * power) / np.sum(power))
-    gate = probe_gate(probe, len(gen.Omega))
+    gate = _centred(probe_gate(probe, len(gen.Omega)), gen.Omega)
     response = eo_response(detector.crystal, detector.thickness, gen.Omega, omega_probe, gate)
-    return np.abs(gen.field * response) ** 2
+    return np.abs(gen.field * response) ** 2, response, omega_probe
 
 
 def _coherence_notes(crystal, thickness, frequency, l_c, drive_peak) -> list[str]:
@@ -417,9 +461,11 @@ def thz_estimate(grid: Grid, spectrum: np.ndarray, setup: ThzSetup) -> ThzResult
                                _band_edges(grid, spectrum, setup.band_floor_db))
         gen = dataclasses.replace(gen, field=gen.field * _continuous_phase(gen.Omega,
                                                                             sampling.delay))
-        l_c = coherence_length(crystal, gen.omega_c, gen.Omega)
-        detected = (None if setup.detector is None
-                    else _detected_power(setup.detector, fine, shifted, gen, grid))
+        l_c = (coherence_length(crystal, gen.omega_c, gen.Omega) if gen.tilt is None
+               else tilted_coherence_length(crystal, gen.omega_c, gen.tilt, gen.Omega))
+        detected, response, omega_probe = ((None, None, None) if setup.detector is None
+                                           else _detected_power(setup.detector, fine, shifted,
+                                                                gen, grid))
     notes = list(dict.fromkeys(str(w.message) for w in caught)) + list(sampling.notes)
     frequency = gen.Omega / (2 * np.pi)
     power = np.abs(gen.field) ** 2
@@ -428,7 +474,7 @@ def thz_estimate(grid: Grid, spectrum: np.ndarray, setup: ThzSetup) -> ThzResult
         f"{crystal.name} / {setup.detector.crystal.name}")
     cutoff, definition = thz_cutoff(frequency, power, setup.cutoff_db, setup.cutoff_level)
     peak = spectral_peak(frequency, power)
-    notes += _coherence_notes(crystal, thickness, frequency, l_c, gen.drive_peak)
+    notes += _coherence_notes(crystal, gen.length, frequency, l_c, gen.drive_peak)
     notes += _model_notes(names, limit, frequency, power, cutoff, peak)
     detected_cutoff = detected_peak = None
     if detected is not None:
@@ -443,11 +489,21 @@ def thz_estimate(grid: Grid, spectrum: np.ndarray, setup: ThzSetup) -> ThzResult
     # A eps0 c int E^2 dt, trapezoidal on the THz samples (2 int_0^inf |E(nu)|^2 dnu)
     thz_ref = REFERENCE_AREA * epsilon_0 * c * 2 * float(np.trapezoid(power, frequency))
     energy, energy_notes = _absolute_energy(crystal, thz_ref, pump_energy, setup.beam_radius,
-                                            setup.d_eff)
+                                            setup.d_eff, setup.geometry)
+    power_t = np.abs(grid.to_time(spectrum)) ** 2
     notes += energy_notes + pump_crystal_warnings(
-        crystal, thickness, pump_energy=pump_energy,
-        peak_power=float(np.max(np.abs(grid.to_time(spectrum)) ** 2)), omega_pump=gen.omega_c,
-        beam_radius=setup.beam_radius, damage_fluence=setup.damage_fluence)
+        crystal, gen.length, pump_energy=pump_energy, peak_power=float(np.max(power_t)),
+        omega_pump=gen.omega_c, beam_radius=setup.beam_radius)
+    limits = None
+    if setup.beam_radius is not None:
+        limits = crystal_fluence_limits(
+            crystal, gen.length, pump_energy=pump_energy, peak_power=float(np.max(power_t)),
+            power_squared_integral=float(np.sum(power_t**2) * grid.dt), omega_pump=gen.omega_c,
+            beam_radius=setup.beam_radius, damage_fluence=setup.damage_fluence)
+        notes += list(limits.notes) + limit_warnings(crystal.name, limits)
+    d = setup.d_eff if setup.d_eff is not None else crystal.d_eff
+    scale = (None if energy is None else
+             2 * (d / REFERENCE_D_EFF) * REFERENCE_AREA / (np.pi * setup.beam_radius**2))
     return ThzResult(
         frequency=frequency, generated_power=power / power.max(), generated_field=gen.field,
         detected_power=None if detected is None else detected / detected.max(),
@@ -468,11 +524,18 @@ def thz_estimate(grid: Grid, spectrum: np.ndarray, setup: ThzSetup) -> ThzResult
         phase_matching=setup.phase_matching, coherence_length=l_c,
         optical_frequency=grid.shifted(grid.frequency),
         optical_spectrum=np.abs(grid.shifted(spectrum)) ** 2,
-        warnings=tuple(notes))
+        warnings=tuple(notes), detector_response=response,
+        probe_frequency=None if omega_probe is None else omega_probe / (2 * np.pi),
+        geometry=setup.geometry, tilt_angle=gen.tilt, interaction_length=gen.length,
+        field_scale=scale, crystal_limits=limits)
 
 
-def _absolute_energy(crystal, thz_ref, pump_energy, beam_radius, d_eff):
-    """THz energy for a Gaussian beam (A_eff = pi w^2) and d_eff; scales as d_eff^2 / A_eff."""
+def _absolute_energy(crystal, thz_ref, pump_energy, beam_radius, d_eff, geometry="collinear"):
+    """THz energy for a Gaussian beam (A_eff = pi w^2) and d_eff; scales as d_eff^2 / A_eff.
+
+    With a Gaussian pump, the on-axis field is twice that of a flat-top beam of area pi w^2
+    and the THz intensity profile exp(-4 r^2 / w^2) has the area pi w^2 / 4, which gives the
+    same energy: the flat-top figure is the Gaussian-beam energy."""
     d = d_eff if d_eff is not None else crystal.d_eff
     if beam_radius is None or d is None:
         missing = ["thz.beam_waist_um"] if beam_radius is None else []
@@ -481,7 +544,7 @@ def _absolute_energy(crystal, thz_ref, pump_energy, beam_radius, d_eff):
         return None, ["absolute THz energy not estimated: set " + " and ".join(missing)]
     energy = thz_ref * (d / REFERENCE_D_EFF) ** 2 * REFERENCE_AREA / (np.pi * beam_radius**2)
     notes = []
-    if energy > TYPICAL_EFFICIENCY[1] * pump_energy:
+    if geometry == "collinear" and energy > TYPICAL_EFFICIENCY[1] * pump_energy:
         notes.append(f"estimated THz efficiency {energy / pump_energy:.2g} is above the "
                      f"~{TYPICAL_EFFICIENCY[1]:.0e} seen for collinear GaP/ZnTe: the "
                      "undepleted plane-wave model overestimates here (2PA, Kerr, diffraction)")

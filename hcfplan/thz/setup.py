@@ -18,6 +18,7 @@ from hcfplan.thz.detection import EoDetector
 from hcfplan.thz.measures import CUTOFF_LEVELS, CutoffLevelName
 from hcfplan.thz.mixing import PHASE_MATCHING, PhaseMatchingName
 from hcfplan.thz.sampling import DEFAULT_FREQUENCY_STEP
+from hcfplan.thz.tilted import GEOMETRIES, GeometryName
 
 
 def _positive_or_none(name: str, value: float | None, unit: str) -> None:
@@ -60,6 +61,9 @@ class ThzSetup:
     frequency_step : float
         Largest THz sample spacing (:mod:`hcfplan.thz.sampling`); the optical spectrum is
         interpolated onto it when its own grid is coarser. [Hz]
+    geometry : {"collinear", "tilted_front"}
+        Generation geometry; ``"tilted_front"`` is velocity matching by a pulse-front tilt
+        (:mod:`hcfplan.thz.tilted`; group-velocity mixing sum, ``phase_matching`` unused).
     """
 
     crystal: CrystalTable
@@ -74,8 +78,11 @@ class ThzSetup:
     band_floor_db: float = -60.0
     max_frequency: float | None = None
     frequency_step: float = DEFAULT_FREQUENCY_STEP
+    geometry: GeometryName = "collinear"
 
     def __post_init__(self) -> None:
+        if self.geometry not in GEOMETRIES:
+            raise ConfigError(f"geometry = {self.geometry!r}: valid: {', '.join(GEOMETRIES)}")
         if not (math.isfinite(self.thickness) and self.thickness > 0):
             raise ConfigError(f"crystal thickness = {self.thickness} m: must be > 0")
         if self.phase_matching not in PHASE_MATCHING:

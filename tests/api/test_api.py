@@ -88,7 +88,7 @@ def test_every_figure_of_the_cli_can_be_drawn(fast):
     _, _, run = fast
     assert set(run.figures) == {"thz_spectrum", "compressed_pulse", "spectral_evolution",
                                 "energy_ionization", "temporal_in_out", "spectrum_in_out",
-                                "bounces"}
+                                "bounces", "thz_waveform"}
     for name in run.figures:
         fig = run.plot(name)
         assert fig.axes and any(ax.has_data() for ax in fig.axes), name

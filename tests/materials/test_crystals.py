@@ -18,6 +18,7 @@ from hcfplan.materials import crystal_tables, crystals
 from hcfplan.materials.crystals import (
     coherence_length,
     crystal_names,
+    listed_crystal_names,
     load_crystal,
     optical_group_index,
     optical_index,
@@ -69,8 +70,10 @@ def test_shipped_crystals_are_listed_and_load():
 
 
 def test_unknown_crystal_lists_valid_names():
-    with pytest.raises(ConfigError, match=r"'unobtainium'.*gap.*thin.*znte"):
+    with pytest.raises(ConfigError, match=r"'unobtainium'.*gap.*linbo3.*znte") as info:
         load_crystal("unobtainium")
+    assert "thin" not in str(info.value)  # the check-only material is not offered
+    assert "thin" in crystal_names() and "thin" not in listed_crystal_names()
 
 
 def test_user_folder_shadows_shipped_table(tmp_path):

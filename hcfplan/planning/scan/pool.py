@@ -30,6 +30,8 @@ WORKER_PRELOAD = [
     "hcfplan.planning.hardware",
     "hcfplan.planning.reports.fiber",
     "hcfplan.planning.reports.thz",
+    "hcfplan.planning.reports.thz_absolute",
+    "hcfplan.thz.waveforms",
     "hcfplan.planning.verdict",
     "hcfplan.limits.beam",
     "hcfplan.limits.margins",
