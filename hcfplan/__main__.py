@@ -2,6 +2,10 @@
 
 import sys
 
-from hcfplan.cli.app import main
+try:
+    from hcfplan.cli.app import main
+except KeyboardInterrupt:  # Ctrl-C while the command line loads: one line, as in a command
+    sys.stderr.write("hcfplan: interrupted; nothing written\n")
+    sys.exit(130)
 
 sys.exit(main())

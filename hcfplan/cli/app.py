@@ -1,9 +1,12 @@
 """The ``hcfplan`` command line: parse, call ``planning``, print, set the exit code.
 
-Exit codes: 0 success; 1 a run that did not succeed (solver fault; partial result saved);
-2 bad input (one line on stderr naming the key, no traceback); 3 ``simulate`` finished but the
+Exit codes: 0 success; 1 a run that did not succeed (solver fault; partial result saved) or a
+fault of the machine met while writing (full disk, read-only folder: one line naming the path
+and the cause); 2 bad input, including an output path found unusable before the work starts
+(one line on stderr naming the key or option, no traceback); 3 ``simulate`` finished but the
 verdict of its result is invalid (:mod:`hcfplan.planning.verdict`; results saved); 130
-interrupted (Ctrl-C: one line on stderr saying what was kept, no traceback).
+interrupted (Ctrl-C: one line on stderr saying what was kept, no traceback), 143 or 129 for
+SIGTERM or SIGHUP (the same line).
 Heavy modules (scipy, CoolProp, numba, matplotlib) are imported inside the commands so that
 ``hcfplan --help`` starts quickly. Imports of the command line flow one way:
 app -> workflows -> common, output.
@@ -11,6 +14,7 @@ app -> workflows -> common, output.
 
 from __future__ import annotations
 
+import contextlib
 import os
 import sys
 from pathlib import Path
@@ -24,10 +28,13 @@ from hcfplan.cli.common import (
     SPREAD_WORKERS_HELP,
     WRITTEN,
     command_line,
+    end_quietly,
+    fault_message,
     gas_dirs,
     interrupted_message,
     load_cli_config,
     run_spread_corners,
+    signals_as_interrupt,
     spread_plan,
     start_workers,
     stop_workers,
@@ -55,6 +62,31 @@ app = typer.Typer(
     rich_markup_mode=None,
     help="Plan pulse compression in gas-filled hollow-core fibers and the THz it drives.",
 )
+
+
+def _print_version(value: bool) -> None:
+    if value:
+        from hcfplan.version import __version__
+
+        typer.echo(f"hcfplan {__version__}")
+        raise typer.Exit(0)
+
+
+@app.callback()
+def _options(
+    version: bool = typer.Option(False, "--version", callback=_print_version, is_eager=True,
+                                 help="Print the version of hcfplan and exit."),
+) -> None:
+    pass
+
+
+def _check_plot(plot: Path | None) -> None:
+    """Refuse an unusable ``--plot`` path (a folder, under a file or a read-only folder) before
+    any work: one line, exit 2."""
+    if plot is not None:
+        from hcfplan.io.results import check_output_file
+
+        check_output_file("--plot", plot)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -202,6 +234,7 @@ def fiber_command(
     """Linear and first nonlinear numbers of the configured fiber at the pump (no GNLSE run)."""
     from hcfplan.planning.reports.fiber import fiber_report
 
+    _check_plot(plot)
     cfg = load_cli_config(config, set_ or [])
     report = fiber_report(cfg)
     if plot is not None:
@@ -231,14 +264,24 @@ def _fiber_plot(cfg, path: Path) -> None:
 # simulate
 
 
-def _default_out_dir(config: Path) -> Path:
-    """``runs/<config stem>``, or the first free ``runs/<stem>-2``, ``-3``... (never overwrite)."""
+def _claim_out_dir(out: Path | None, config: Path, force: bool) -> Path:
+    """Claim ``--out`` (:func:`hcfplan.io.results.prepare_output_dir`), or by default
+    ``runs/<config stem>``, or the first free ``runs/<stem>-2``, ``-3``... (never overwrite;
+    a folder another command is writing into is passed over too)."""
+    from hcfplan.io.results import OutputBusyError, prepare_output_dir
+
+    if out is not None:
+        return prepare_output_dir(out, force=force)
     base = Path("runs") / config.stem
     candidate, k = base, 2
-    while candidate.exists() and any(candidate.iterdir()):
+    while True:
+        if not (candidate.exists() and any(candidate.iterdir())):
+            try:
+                return prepare_output_dir(candidate, force=False)
+            except OutputBusyError:
+                pass
         candidate = base.with_name(f"{base.name}-{k}")
         k += 1
-    return candidate
 
 
 class _Progress(TerminalBar):
@@ -269,14 +312,12 @@ def simulate_command(
     workers: int = typer.Option(0, "--workers", help=SPREAD_WORKERS_HELP),
 ) -> None:
     """Run fiber (GNLSE) -> compressor -> THz and write summary.json, fields.npz and figures."""
-    from hcfplan.io.results import prepare_output_dir
     from hcfplan.planning.chain import run_chain
     from hcfplan.planning.run_folder import write_run
 
     cfg = load_cli_config(config, set_ or [])
     plan = spread_plan(cfg, spread, set_ or [])
-    out_dir = prepare_output_dir(out if out is not None else _default_out_dir(config),
-                                 force=force)
+    out_dir = _claim_out_dir(out, config, force)
     WRITTEN.watch(out_dir)
     if plan is not None:
         start_workers(workers)  # imports on another core while the nominal chain runs
@@ -360,6 +401,7 @@ def envelope_command(
 
     if contours not in ("duration", "cutoff", "both"):
         raise ConfigError(f"--contours = {contours!r}: must be one of duration, cutoff, both")
+    _check_plot(plot)
     cfg = load_cli_config(config, set_ or [])
     result = envelope_map(cfg)
     checked = check_envelope(cfg, result) if check else None
@@ -436,6 +478,7 @@ def thz_command(
         if name is not None and name.lower() not in known:
             raise ConfigError(f"{option} = {name!r}: unknown crystal (available: "
                               f"{', '.join(listed_crystal_names(crystal_dirs))})")
+    _check_plot(plot)
     setup = thz_setup_from_options(crystal=crystal, thickness=thickness_mm * 1e-3,
                                    cutoff_db=cutoff_db, cutoff_quantity=cutoff_quantity,
                                    detector_crystal=detector_crystal,
@@ -485,22 +528,50 @@ INVALID_RESULT = 3
 #: Common practice, no source. Typer returns it for a KeyboardInterrupt inside a command.
 INTERRUPTED = 130
 
+#: Exit code of a command stopped by a fault of the machine while it ran (an OSError: full
+#: disk, read-only folder...); found before the work started, the fault is bad input (2).
+RUN_FAULT = 1
+
 
 def main(argv: list[str] | None = None) -> int:
     """Console entry point: run the app and return the exit code.
 
-    A HcfplanError becomes one stderr line and exit 2; Ctrl-C becomes one stderr line saying
-    what the command kept (:func:`hcfplan.cli.common.interrupted_message`) and exit 130.
+    A HcfplanError becomes one stderr line and exit 2; a fault of the machine met while the
+    command ran (full disk, read-only folder: an OSError) one line naming the path and the
+    cause, and what was kept, and exit 1; Ctrl-C, SIGTERM or SIGHUP one stderr line saying
+    what the command kept (:func:`hcfplan.cli.common.interrupted_message`) and exit 130 (Ctrl-C)
+    or 128 + the signal's number. ``argv`` None: the process's own command line, and a further
+    signal during the exit ends the process quietly (:func:`hcfplan.cli.common.end_quietly`).
     """
     WRITTEN.clear()
+    received: list[int] = []
     try:
-        result = app(args=argv, prog_name="hcfplan", standalone_mode=False)
+        with signals_as_interrupt(received):
+            result = _run(argv)
     except KeyboardInterrupt:  # outside a command (typer turns one inside into 130)
         result = INTERRUPTED
+    finally:
+        with contextlib.suppress(KeyboardInterrupt):
+            WRITTEN.release()  # the output folders' locks; an unused new folder is removed
+        if argv is None:
+            end_quietly()
+    if result == INTERRUPTED or received:
+        typer.echo(f"hcfplan: {interrupted_message()}", err=True)
+        return 128 + received[0] if received else INTERRUPTED  # 130 for Ctrl-C
+    return result
+
+
+def _run(argv: list[str] | None) -> int:
+    """The command of ``argv``; its exit code (see :func:`main`)."""
+    try:
+        result = app(args=argv, prog_name="hcfplan", standalone_mode=False)
     except HcfplanError as exc:
         message = " ".join(str(exc).split())
         typer.echo(f"hcfplan: error: {message}", err=True)
         return 2
+    except OSError as exc:  # a fault of the machine (typer handles a broken stdout pipe)
+        typer.echo(f"hcfplan: error: {fault_message(exc)}", err=True)
+        return RUN_FAULT
     except typer.Exit as exc:
         result = exc.exit_code
     except typer.TyperException as exc:  # usage: unknown option, missing or unparsable value
@@ -515,8 +586,6 @@ def main(argv: list[str] | None = None) -> int:
     except SystemExit as exc:
         code = exc.code
         return code if isinstance(code, int) else (0 if code is None else 1)
-    if result == INTERRUPTED:
-        typer.echo(f"hcfplan: {interrupted_message()}", err=True)
     return result if isinstance(result, int) else 0
 
 

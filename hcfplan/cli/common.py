@@ -1,14 +1,19 @@
 """Helpers shared by the commands of :mod:`hcfplan.cli.app` and :mod:`hcfplan.cli.workflows`.
 
 Loading a config with the gas folders of the environment, the ``--spread`` and ``--workers``
-handling, the help texts of shared options, and the record of the files a command writes (so an
-interrupted command can say what it kept). Imports nothing else of the command line; heavy
+handling, the help texts of shared options, the record of the files a command writes (so an
+interrupted command can say what it kept), and the handling of signals and of faults of
+the machine (full disk, read-only folder). Imports nothing else of the command line; heavy
 modules are imported inside the functions.
 """
 
 from __future__ import annotations
 
+import contextlib
 import os
+import signal
+import threading
+from collections.abc import Iterator
 from pathlib import Path
 
 #: Help texts of options that several commands share.
@@ -148,6 +153,17 @@ class WrittenFiles:
         """Forget every output (a new command starts)."""
         self.before.clear()
 
+    @staticmethod
+    def release() -> None:
+        """Release the output folders the command locked
+        (:func:`hcfplan.io.results.release_output_dirs`); one it created and left empty is
+        removed."""
+        import sys
+
+        results = sys.modules.get("hcfplan.io.results")  # no folder locked without it
+        if results is not None:
+            results.release_output_dirs()
+
     def watch(self, path: Path, note: str = "") -> None:
         """Record ``path`` (folder or file) as an output; ``note`` is added to the message."""
         path = Path(path)
@@ -187,3 +203,59 @@ def interrupted_message() -> str:
              for path, names, _ in kept]
     notes = "".join(f"; {note}" for _, _, note in kept if note)
     return "interrupted; kept " + "; ".join(parts) + " (complete files only)" + notes
+
+
+def fault_message(exc: OSError) -> str:
+    """The one line for a fault of the machine met while a command ran (a full disk, a
+    read-only folder, a folder where a file should be): the path, the cause, what was kept."""
+    if exc.filename is not None and type(exc).__str__ is OSError.__str__:
+        text = f"{exc.filename}: {exc.strerror}"  # not Python's "[Errno 28] ...: 'path'"
+    else:  # hcfplan.numerics.storage.WriteError: "cannot write PATH: CAUSE"
+        text = str(exc)
+    kept = WRITTEN.kept()
+    if kept:
+        text += "; " + interrupted_message().removeprefix("interrupted; ")
+    return text
+
+
+#: Signals that end a command: Ctrl-C (SIGINT), ``kill`` (SIGTERM), a closed terminal (SIGHUP).
+#: The command stops its workers, says what it kept and exits with 128 + the signal's number.
+INTERRUPTING = tuple(getattr(signal, name) for name in ("SIGINT", "SIGTERM", "SIGHUP")
+                     if hasattr(signal, name))
+
+
+class CommandInterrupted(KeyboardInterrupt):
+    """A signal of :data:`INTERRUPTING` inside a command. A subclass: every clean-up that
+    handles Ctrl-C handles it, and CPython 3.11 does not take it for Ctrl-C left unhandled
+    (a plain KeyboardInterrupt raised inside an ``exec`` of a string, as dataclasses create
+    their methods, makes the interpreter end itself by SIGINT at exit, after the command's own
+    exit code)."""
+
+
+@contextlib.contextmanager
+def signals_as_interrupt(received: list[int]) -> Iterator[None]:
+    """Inside the block, :data:`INTERRUPTING` signals raise :class:`CommandInterrupted` (their
+    number is appended to ``received``), so a command ends the same way on ``kill`` as on
+    Ctrl-C. Only in the main thread; elsewhere nothing is changed."""
+    if threading.current_thread() is not threading.main_thread():
+        yield
+        return
+
+    def handler(signum, frame):
+        received.append(signum)
+        raise CommandInterrupted(signum)
+
+    previous = {sig: signal.signal(sig, handler) for sig in INTERRUPTING}
+    try:
+        yield
+    finally:
+        for sig, old in previous.items():
+            signal.signal(sig, signal.SIG_DFL if old is None else old)
+
+
+def end_quietly() -> None:
+    """After the command has finished (or was interrupted): a further Ctrl-C or SIGTERM ends
+    the process at once, without a traceback from its clean-up at exit. Only for the
+    ``hcfplan`` process itself, never for a caller of :func:`hcfplan.cli.app.main`."""
+    for sig in INTERRUPTING:
+        signal.signal(sig, signal.SIG_DFL)

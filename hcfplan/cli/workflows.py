@@ -7,7 +7,6 @@ command line flow one way: app -> workflows -> common, output.
 
 from __future__ import annotations
 
-import contextlib
 from pathlib import Path
 from typing import Optional
 
@@ -42,25 +41,6 @@ from hcfplan.errors import ConfigError
 
 VARY_HELP = ("Varied key: section.key=START:STOP:COUNT (COUNT linearly spaced values, both "
              "ends included; numeric keys) or section.key=a,b,c (any key). Give one or two.")
-
-
-@contextlib.contextmanager
-def _sigterm_as_exit():
-    """Turn SIGTERM into SystemExit so a scan stops its worker processes on the way out."""
-    import signal
-
-    def handler(signum, frame):
-        raise SystemExit(128 + signum)
-
-    try:
-        previous = signal.signal(signal.SIGTERM, handler)
-    except ValueError:  # not the main thread (e.g. called from a test runner thread)
-        yield
-        return
-    try:
-        yield
-    finally:
-        signal.signal(signal.SIGTERM, previous)
 
 
 class _ScanProgress:
@@ -165,6 +145,7 @@ def scan_command(
     as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
 ) -> None:
     """Run the full chain over one or two varied keys; saves every point as it finishes."""
+    from hcfplan.io.results import lock_output_dir
     from hcfplan.planning.scan import parse_vary, plan_scan, run_scan
 
     varies = [parse_vary(text) for text in vary]
@@ -173,11 +154,11 @@ def scan_command(
     plan = plan_scan(config, varies, overrides=tuple(set_ or ()), extra_gas_dirs=gas_dirs())
     out_dir = out if out is not None else Path("scans") / config.stem
     WRITTEN.watch(out_dir, "the same scan command resumes from them")
+    lock_output_dir(out_dir)  # until the command ends: the figures too
     bar = _ScanProgress(not as_json)
     try:
-        with _sigterm_as_exit():
-            outcome = run_scan(plan, out_dir, workers=worker_count(workers),
-                               address=dask_scheduler, fresh=fresh, force=force, on_point=bar)
+        outcome = run_scan(plan, out_dir, workers=worker_count(workers),
+                           address=dask_scheduler, fresh=fresh, force=force, on_point=bar)
     finally:
         bar.close()
     stop_workers()  # no more points to compute
@@ -277,12 +258,11 @@ def recommend_command(
         start_workers(workers)
     bar = TerminalBar(not as_json, "recommend")
     try:
-        with _sigterm_as_exit():
-            recs = recommend(config, goal, search=vary, gases=gas_list, target_thz=target_thz,
-                             overrides=tuple(set_ or ()), extra_gas_dirs=gas_dirs(),
-                             budget=budget, coarse=coarse, workers=count,
-                             on_batch=lambda done, size: bar.draw(
-                                 0.0, f"{done} runs done, {size} running"))
+        recs = recommend(config, goal, search=vary, gases=gas_list, target_thz=target_thz,
+                         overrides=tuple(set_ or ()), extra_gas_dirs=gas_dirs(),
+                         budget=budget, coarse=coarse, workers=count,
+                         on_batch=lambda done, size: bar.draw(
+                             0.0, f"{done} runs done, {size} running"))
     finally:
         bar.close()
     stop_workers()

@@ -5,6 +5,11 @@ Interruption: Ctrl-C (KeyboardInterrupt) inside a write removes the temporary fi
 out. SIGTERM and SIGHUP, which end the process without any clean-up, are held back while a
 temporary file exists and delivered once the file is complete and renamed (or removed); the
 process then ends as it would have, with every file in the folder complete.
+
+Faults of the machine: a write that fails (full disk, read-only file system) raises
+:class:`~hcfplan.numerics.storage.WriteError` naming the file; output paths are checked before
+a run (:func:`prepare_output_dir`, :func:`check_output_file`), and an output folder is locked
+against other hcfplan commands while one writes into it (:func:`lock_output_dir`).
 """
 
 from __future__ import annotations
@@ -24,6 +29,7 @@ from typing import Any
 import numpy as np
 
 from hcfplan.errors import ConfigError
+from hcfplan.numerics.lifeline import exit_with_parent, ignore_interrupts, signals_blocked
 from hcfplan.numerics.storage import atomic_path, write_text
 
 
@@ -144,8 +150,9 @@ def write_figures(jobs: list[FigureJob]) -> None:
 
     sys.stdout.flush()
     sys.stderr.flush()  # nothing buffered is written twice by the child
-    child = context.Process(target=_serve_in_child, args=(serve,), daemon=True)
-    child.start()
+    child = context.Process(target=_serve_in_child, args=(serve, os.getpid()), daemon=True)
+    with signals_blocked(signal.SIGINT):  # no Ctrl-C in the child before it ignores it
+        child.start()
     try:
         with _child_stopped_on_sigterm(child):
             serve()
@@ -180,9 +187,15 @@ def _wait_while_busy(child, done) -> None:
             child.join()
 
 
-def _serve_in_child(serve: Callable[[], None]) -> None:
-    """The child's part of :func:`write_figures`; any failure leaves its figure to the parent."""
-    signal.signal(signal.SIGINT, signal.SIG_IGN)  # Ctrl-C: the parent stops it (SIGTERM)
+def _serve_in_child(serve: Callable[[], None], parent: int) -> None:
+    """The child's part of :func:`write_figures`; any failure leaves its figure to the parent.
+
+    It ignores Ctrl-C (the parent stops it, SIGTERM) and ends, after the file it writes, when
+    the parent ``parent`` ends, SIGKILL included
+    (:func:`~hcfplan.numerics.lifeline.exit_with_parent`)."""
+    signal.signal(signal.SIGTERM, signal.SIG_DFL)  # not the parent's handlers, copied by fork
+    ignore_interrupts()
+    exit_with_parent(parent)
     try:
         serve()
     except BaseException:  # noqa: BLE001 - the parent draws what is left and raises there
@@ -211,20 +224,151 @@ def _child_stopped_on_sigterm(child) -> Iterator[None]:
         signal.signal(signal.SIGTERM, signal.SIG_DFL if previous is None else previous)
 
 
-def prepare_output_dir(path: Path, *, force: bool) -> Path:
-    """Check the output folder before a run; refuse an existing non-empty one unless ``force``.
+def _writable_ancestor(option: str, path: Path, start: Path | None = None) -> Path:
+    """The nearest existing folder at or above ``start`` (default ``path``), checked to be a
+    writable folder; ConfigError naming ``option`` and ``path`` otherwise."""
+    start = path if start is None else start
+    ancestor = next(p for p in (start, *start.absolute().parents) if p.exists())
+    if not ancestor.is_dir():
+        raise ConfigError(f"{option} {path}: {ancestor} is a file, not a folder")
+    if not os.access(ancestor, os.W_OK | os.X_OK):
+        cause = "read-only file system" if _read_only(ancestor) else "no write permission"
+        raise ConfigError(f"{option} {path}: cannot create files under {ancestor} ({cause})")
+    return ancestor
 
-    The folder is not created here but by the first file written into it, so a run that stops
-    before writing anything (bad input found late, an interruption) leaves no folder behind.
+
+def _read_only(folder: Path) -> bool:
+    """Whether ``folder`` lies on a file system mounted read-only (where statvfs tells)."""
+    try:
+        return bool(os.statvfs(folder).f_flag & getattr(os, "ST_RDONLY", 1))
+    except (OSError, AttributeError):
+        return False
+
+
+def check_output_file(option: str, path: Path) -> Path:
+    """Check a file to be written (e.g. ``--plot``) before any work: not an existing folder,
+    under a writable folder (or one that can be created there). ConfigError otherwise."""
+    path = Path(path)
+    if path.is_dir():
+        raise ConfigError(f"{option} {path}: is a folder; give a file name, e.g. "
+                          f"{path / 'figure.png'}")
+    _writable_ancestor(option, path, path.parent)
+    return path
+
+
+class OutputBusyError(ConfigError):
+    """An output folder is being written by another hcfplan command (:func:`lock_output_dir`)."""
+
+
+class _FolderLock:
+    """An exclusive lock (``flock``) on an output folder, held by this process."""
+
+    def __init__(self, path: Path, fd: int, created: bool) -> None:
+        self.path, self.fd, self.created, self.count = path, fd, created, 1
+
+    def release(self) -> None:
+        import fcntl
+
+        fcntl.flock(self.fd, fcntl.LOCK_UN)
+        os.close(self.fd)
+        if self.created:
+            with contextlib.suppress(OSError):  # not empty: kept
+                self.path.rmdir()
+
+
+#: Output folders this process holds locked, by (device, inode): a lock is taken once per
+#: process (a second ``flock`` of the same folder by this process would refuse itself), and
+#: counted, so that a command and the run it calls can both lock the folder.
+_LOCKS: dict[tuple[int, int], _FolderLock] = {}
+_LOCKS_GUARD = threading.Lock()
+
+
+def lock_output_dir(path: Path, option: str = "--out") -> Path:
+    """Create the output folder ``path`` if needed and lock it for this process: another
+    hcfplan command that locks it meanwhile (another process) is refused with a ConfigError,
+    so two commands never write into one folder at the same time.
+
+    The lock is released by :func:`unlock_output_dir` (once per call of this function), by
+    :func:`release_output_dirs` or when the process ends (by any means: the kernel drops it). A
+    folder this call created and that is still empty then is removed. Where ``fcntl`` is
+    missing (Windows), or the file system has no locks, the folder is created but not locked.
     """
     path = Path(path)
     if path.exists() and not path.is_dir():
-        raise ConfigError(f"--out {path}: exists and is not a folder")
-    if path.is_dir() and any(path.iterdir()) and not force:
+        raise ConfigError(f"{option} {path}: exists and is not a folder")
+    _writable_ancestor(option, path)
+    created = not path.exists()
+    try:
+        path.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        raise ConfigError(f"{option} {path}: cannot create the folder ({exc.strerror})") from None
+    try:
+        import fcntl
+    except ImportError:  # pragma: no cover - no flock on this platform
+        return path
+    with _LOCKS_GUARD:
+        stat = path.stat()
+        held = _LOCKS.get((stat.st_dev, stat.st_ino))
+        if held is not None:
+            held.count += 1
+            return path
+        fd = os.open(path, os.O_RDONLY | getattr(os, "O_DIRECTORY", 0))
+        try:
+            fcntl.flock(fd, fcntl.LOCK_EX | fcntl.LOCK_NB)
+        except BlockingIOError:
+            os.close(fd)
+            raise OutputBusyError(f"{option} {path}: another hcfplan command is writing into "
+                                  f"this folder; wait for it to finish or choose another "
+                                  f"{option}") from None
+        except OSError:  # a file system without locks (some network ones): not locked
+            os.close(fd)
+            return path
+        _LOCKS[(stat.st_dev, stat.st_ino)] = _FolderLock(path, fd, created)
+    return path
+
+
+def unlock_output_dir(path: Path) -> None:
+    """Undo one :func:`lock_output_dir` of ``path`` (the lock goes with the last one)."""
+    with _LOCKS_GUARD:
+        try:
+            stat = Path(path).stat()
+        except OSError:
+            return
+        key = (stat.st_dev, stat.st_ino)
+        held = _LOCKS.get(key)
+        if held is None:
+            return
+        held.count -= 1
+        if held.count == 0:
+            del _LOCKS[key]
+            held.release()
+
+
+def release_output_dirs() -> None:
+    """Release every output folder lock of this process (the end of a command)."""
+    with _LOCKS_GUARD:
+        held = list(_LOCKS.values())
+        _LOCKS.clear()
+    for lock in held:
+        lock.release()
+
+
+def prepare_output_dir(path: Path, *, force: bool) -> Path:
+    """Claim the output folder before a run: create it and lock it (:func:`lock_output_dir`:
+    another command writing there is refused), then refuse an existing non-empty one unless
+    ``force``. The check follows the lock, so two commands started together with the same
+    folder never both write there, and never into a folder the other has filled.
+
+    The folder stays locked until the command ends (:func:`release_output_dirs`); one that is
+    still empty then (a run that stopped before writing anything: bad input found late, an
+    interruption) is removed again, as it was created here.
+    """
+    path = lock_output_dir(path)
+    if not force and any(path.iterdir()):
+        unlock_output_dir(path)
         raise ConfigError(f"--out {path}: folder exists and is not empty; use --force to "
                           "overwrite or choose another --out")
-    ancestor = next(p for p in (path, *path.absolute().parents) if p.exists())
-    if not ancestor.is_dir() or not os.access(ancestor, os.W_OK | os.X_OK):
-        raise ConfigError(f"--out {path}: cannot create files under {ancestor} (not a "
-                          "writable folder)")
+    if not os.access(path, os.W_OK | os.X_OK):
+        unlock_output_dir(path)
+        raise ConfigError(f"--out {path}: folder is not writable")
     return path

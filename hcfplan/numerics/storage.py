@@ -1,9 +1,13 @@
 """Atomic file writes: a file is complete or absent, never half-written.
 
 Each write goes to a temporary file in the target folder, is flushed to disk (``fsync`` of the
-file), renamed over the target and the folder is synced, so a crash or a full disk leaves
-either the old file or the new one. SIGTERM/SIGHUP are held back during the rename. Used by
-the disk cache (:mod:`hcfplan.numerics.cache`) and every output writer (:mod:`hcfplan.io.results`).
+file) before it is renamed over the target, and the folder is synced after the rename (which
+makes the rename itself durable; a folder created for the file is synced into its parent
+too), so a crash, a power cut or a full disk leaves either the old file or the new one.
+SIGTERM/SIGHUP are held back during the write. A write that fails (full disk, read-only file
+system, a folder where the file should be) removes its temporary file and raises
+:class:`WriteError`, which names the target file and the cause. Used by the disk cache
+(:mod:`hcfplan.numerics.cache`) and every output writer (:mod:`hcfplan.io.results`).
 """
 
 from __future__ import annotations
@@ -15,8 +19,6 @@ import tempfile
 import threading
 from collections.abc import Iterator
 from pathlib import Path
-
-import numpy as np
 
 #: Signals that end the process without clean-up by default; held back during a write.
 HELD_SIGNALS = tuple(getattr(signal, name) for name in ("SIGTERM", "SIGHUP")
@@ -47,22 +49,55 @@ def termination_held() -> Iterator[None]:
             signal.raise_signal(signum)
 
 
+class WriteError(OSError):
+    """A file could not be written: ``filename`` is the target (not the temporary file),
+    ``errno`` and ``strerror`` the cause (e.g. ENOSPC, EROFS, EISDIR)."""
+
+    def __str__(self) -> str:
+        return f"cannot write {self.filename}: {self.strerror}"
+
+
+def _write_error(exc: OSError, path: Path) -> WriteError:
+    if isinstance(exc, WriteError):
+        return exc
+    return WriteError(exc.errno, exc.strerror or str(exc), str(path))
+
+
+def _make_folders(folder: Path) -> None:
+    """Create ``folder`` and its missing parents; each new folder is synced into its parent."""
+    missing = []
+    while not folder.is_dir():
+        missing.append(folder)
+        if folder.parent == folder:
+            break
+        folder = folder.parent
+    for new in reversed(missing):
+        new.mkdir(exist_ok=True)
+        _sync(new.parent)
+
+
 @contextlib.contextmanager
 def atomic_path(path: Path, suffix: str) -> Iterator[Path]:
     """A temporary path beside ``path``; on leaving the block it is synced and renamed to ``path``
-    (removed instead when the block raises)."""
+    (removed instead when the block raises). An OSError, of the block or of the write, is raised
+    as :class:`WriteError` naming ``path``."""
     path = Path(path)
-    path.parent.mkdir(parents=True, exist_ok=True)
     with termination_held():
-        fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=suffix, dir=path.parent)
+        try:
+            _make_folders(path.parent)
+            fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=suffix, dir=path.parent)
+        except OSError as exc:
+            raise _write_error(exc, path) from exc
         os.close(fd)
         tmp_path = Path(tmp)
         try:
             yield tmp_path
             os.chmod(tmp_path, 0o666 & ~_umask())  # mkstemp makes 0600; give the usual mode
-            _sync(tmp_path)
+            _sync(tmp_path)  # the data is on disk before the name points to it
             os.replace(tmp_path, path)
-            _sync(path.parent)
+            _sync(path.parent)  # and the new name is on disk
+        except OSError as exc:
+            raise _write_error(exc, path) from exc
         finally:
             if tmp_path.exists():
                 tmp_path.unlink()
@@ -94,8 +129,10 @@ def write_text(path: Path, text: str) -> None:
         tmp.write_text(text, encoding="utf-8")
 
 
-def write_npz(path: Path, arrays: dict[str, np.ndarray]) -> None:
-    """Write arrays to a compressed ``.npz`` atomically."""
+def write_npz(path: Path, arrays: dict) -> None:
+    """Write arrays (a dict of name to ndarray) to a compressed ``.npz`` atomically."""
+    import numpy as np
+
     with atomic_path(Path(path), ".npz") as tmp:
         with open(tmp, "wb") as handle:
             np.savez_compressed(handle, **arrays)

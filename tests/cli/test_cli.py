@@ -262,3 +262,75 @@ def test_envelope_check_text_says_above_the_model_range(capsys):
     out = capsys.readouterr().out
     assert "THz cutoff above the model's range (> 20 THz) estimated, void chain" in out
     assert "50 THz" not in out and "n/a THz" not in out
+
+
+#: Each command and a function it calls early: (argv after the command, module, name).
+_EARLY_CALLS = {
+    "gas": (["Ar"], "hcfplan.planning.reports.gas", "gas_report"),
+    "check": ([str(DEMOS[0])], "hcfplan.io.config", "load_config"),
+    "fiber": ([str(DEMOS[0])], "hcfplan.io.config", "load_config"),
+    "simulate": ([str(DEMOS[0]), "--out", "{tmp}/run"], "hcfplan.io.config", "load_config"),
+    "limits": ([str(DEMOS[0])], "hcfplan.io.config", "load_config"),
+    "envelope": ([str(DEMOS[0])], "hcfplan.io.config", "load_config"),
+    "thz": ([str(ROOT / "configs" / "demo_broadened_spectrum.csv")],
+            "hcfplan.planning.reports.thz", "thz_setup_from_options"),
+    "scan": ([str(DEMOS[0]), "--vary", "gas.pressure_bar=1,2", "--workers", "1", "--out",
+              "{tmp}/scan"], "hcfplan.planning.scan", "plan_scan"),
+    "recommend": ([str(DEMOS[0]), "--goal", "shortest", "--workers", "1"],
+                  "hcfplan.planning.recommend", "recommend"),
+    "compare": ([str(DEMOS[0]), "--set-b", "laser.energy_uj=10"], "hcfplan.io.config",
+                "load_config"),
+}
+
+
+@pytest.mark.parametrize("command", list(_EARLY_CALLS))
+def test_ctrl_c_prints_one_line_in_every_command(capsys, monkeypatch, tmp_path, command):
+    # contract: Ctrl-C (KeyboardInterrupt) in any command: exit 130, one line on stderr, no
+    # traceback. No external source is needed for this check.
+    import importlib
+
+    from hcfplan.cli.app import app
+
+    assert sorted(_EARLY_CALLS) == sorted(c.name for c in app.registered_commands)
+    args, module, name = _EARLY_CALLS[command]
+
+    def interrupted(*args, **kwargs):
+        raise KeyboardInterrupt
+
+    monkeypatch.setattr(importlib.import_module(module), name, interrupted)
+    code, out, err = run(capsys, command, *(a.format(tmp=tmp_path) for a in args))
+    assert code == 130
+    assert err == "hcfplan: interrupted; nothing written\n"
+    assert list(tmp_path.iterdir()) == []  # no output folder left behind
+
+
+@pytest.mark.parametrize(("name", "expected"), [("SIGTERM", 143), ("SIGHUP", 129)])
+def test_termination_ends_a_command_like_ctrl_c(capsys, monkeypatch, name, expected):
+    # contract: SIGTERM or SIGHUP inside a command: exit 128 + the signal, the same one line
+    import os
+    import signal
+    import time
+
+    from hcfplan.io import config as io_config
+
+    signum = getattr(signal, name)
+
+    def terminated(*args, **kwargs):
+        os.kill(os.getpid(), signum)
+        time.sleep(5)  # the handler raises before this ends
+        pytest.fail(f"{name} was not handled")
+
+    previous = signal.getsignal(signum)
+    monkeypatch.setattr(io_config, "load_config", terminated)
+    code, out, err = run(capsys, "check", str(DEMOS[0]))
+    assert code == expected
+    assert err == "hcfplan: interrupted; nothing written\n"
+    assert signal.getsignal(signum) is previous  # restored after the command
+
+
+def test_version(capsys):
+    from hcfplan.version import __version__
+
+    code, out, err = run(capsys, "--version")
+    assert code == 0 and err == ""
+    assert out == f"hcfplan {__version__}\n"

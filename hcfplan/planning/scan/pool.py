@@ -3,13 +3,21 @@
 Workers fork from a server that has imported :data:`WORKER_PRELOAD` (start-up cost paid once),
 run their numerical libraries on one thread each (:data:`WORKER_THREADS`), and the pool is
 kept between the runs of one parent process (:class:`KeptPool`).
+
+Interrupts and a killed command: the server and the workers ignore Ctrl-C (the command stops
+them, :mod:`hcfplan.planning.scan_server`), and every worker ends by itself once the command
+has ended, SIGKILL included (:func:`worker_start`: a :class:`~hcfplan.numerics.lifeline.Lifeline`
+pipe); the server then ends too (its clients are gone).
 """
 
 from __future__ import annotations
 
 import contextlib
 import os
+import signal
 import threading
+
+from hcfplan.numerics.lifeline import Lifeline, exit_at_eof, ignore_interrupts, signals_blocked
 
 #: Modules a fork server imports once before forking the scan workers (start-up cost): every
 #: module a point imports (a test checks that a point imports no other hcfplan module), and
@@ -78,6 +86,11 @@ def worker_environment():
                 os.environ[key] = value
 
 
+#: The fork server's one preload module: it imports :data:`WORKER_PRELOAD` and sets the
+#: server's signal handling and its watch of the command (:mod:`hcfplan.planning.scan_server`).
+SERVER_PRELOAD = ["hcfplan.planning.scan_server"]
+
+
 def pool_context():
     """``forkserver`` where available: workers fork from a clean server process that has
     imported :data:`WORKER_PRELOAD` (no threads or numba state copied from the parent, no
@@ -86,9 +99,32 @@ def pool_context():
 
     if "forkserver" in multiprocessing.get_all_start_methods():
         context = multiprocessing.get_context("forkserver")
-        context.set_forkserver_preload(WORKER_PRELOAD)
+        context.set_forkserver_preload(SERVER_PRELOAD)
         return context
     return multiprocessing.get_context("spawn")
+
+
+def _ensure_server() -> None:
+    """Start the fork server, if it is not running, in the workers' environment and with
+    SIGINT blocked (it starts with Ctrl-C blocked, so its start-up cannot be interrupted; this
+    process gets a Ctrl-C of the meantime afterwards)."""
+    from multiprocessing import forkserver, resource_tracker
+
+    # the resource tracker, which the server's start starts first, unblocks SIGINT after
+    # starting itself (it ignores SIGINT on its own); started before, it leaves the mask alone
+    with worker_environment():
+        resource_tracker.ensure_running()
+        with signals_blocked(signal.SIGINT):
+            forkserver.ensure_running()
+
+
+def worker_start(lifeline) -> None:
+    """Initializer of every pool process: ignore Ctrl-C (the command stops its workers) and
+    end when the command has ended (``lifeline``: the read end of the command's
+    :class:`~hcfplan.numerics.lifeline.Lifeline`, :func:`~hcfplan.numerics.lifeline.exit_at_eof`).
+    """
+    ignore_interrupts()
+    exit_at_eof(lifeline)
 
 
 def start_worker_server(workers: int) -> None:
@@ -103,10 +139,7 @@ def start_worker_server(workers: int) -> None:
     context = pool_context()
     if workers <= 1 or context.get_start_method() != "forkserver":
         return
-    from multiprocessing import forkserver
-
-    with worker_environment():  # the server's environment is the workers' environment
-        forkserver.ensure_running()
+    _ensure_server()  # the server's environment is the workers' environment
 
 
 def _shutdown(pool, *, terminate: bool) -> None:
@@ -138,6 +171,7 @@ class KeptPool:
 
         self._lock = threading.Lock()
         self._pool, self._size, self._lent = None, 0, False
+        self._lifeline: Lifeline | None = None
         atexit.register(self.release)
 
     @property
@@ -145,11 +179,17 @@ class KeptPool:
         """The kept pool (a ``ProcessPoolExecutor``), or None when none is kept."""
         return self._pool
 
-    @staticmethod
-    def _new(children: int):
+    def _new(self, children: int):
+        """A new pool whose processes end with this one (:func:`worker_start`)."""
         from concurrent.futures import ProcessPoolExecutor
 
-        return ProcessPoolExecutor(max_workers=children, mp_context=pool_context())
+        context = pool_context()
+        if context.get_start_method() == "forkserver":
+            _ensure_server()
+        if self._lifeline is None:  # one for every pool of this process
+            self._lifeline = Lifeline()
+        return ProcessPoolExecutor(max_workers=children, mp_context=context,
+                                   initializer=worker_start, initargs=(self._lifeline.reader,))
 
     def lend(self, children: int):
         """(pool of ``children`` processes, whether it is the kept one) for one run."""

@@ -42,13 +42,38 @@ def _scan_state(plan: ScanPlan) -> dict:
                        for p in plan.points]}
 
 
+#: Files and folders of a scan folder and their kind ("file" or "folder").
+SCAN_ENTRIES = {"scan.json": "file", "table.csv": "file", "points": "folder"}
+
+
+def _check_scan_entries(out_dir: Path) -> None:
+    """Refuse a scan folder whose index, table or points folder is of the wrong kind, or that
+    cannot be written (a read-only folder): before anything is computed."""
+    import os
+
+    for name, kind in SCAN_ENTRIES.items():
+        path = out_dir / name
+        if path.exists() and path.is_dir() != (kind == "folder"):
+            found = "folder" if kind == "file" else "file"
+            raise ConfigError(f"--out {out_dir}: {path} is a {found} where the scan keeps its "
+                              f"{kind} {name}; move it away or choose another --out")
+    for folder in (out_dir, out_dir / "points"):
+        if folder.is_dir() and not os.access(folder, os.W_OK | os.X_OK):
+            raise ConfigError(f"--out {out_dir}: {folder} is not writable (the scan updates "
+                              "its index and adds points there)")
+
+
 def prepare_scan_dir(out_dir: Path, plan: ScanPlan, *, fresh: bool, force: bool) -> Path:
-    """Create or reopen the scan folder; refuse a folder of another scan or unrelated files."""
+    """Create or reopen the scan folder; refuse a folder of another scan or unrelated files.
+
+    The caller holds the folder's lock (:func:`hcfplan.io.results.lock_output_dir`): the
+    checks are made under it, so two scans of one folder never run at once."""
     from hcfplan.io.results import write_json
 
     out_dir = Path(out_dir)
     if out_dir.exists() and not out_dir.is_dir():
         raise ConfigError(f"--out {out_dir}: exists and is not a folder")
+    _check_scan_entries(out_dir)
     state = out_dir / "scan.json"
     if out_dir.is_dir() and not (fresh or force):
         try:
@@ -87,11 +112,25 @@ def run_scan(plan: ScanPlan, out_dir: Path, *, workers: int = 1, address: str | 
 
     With ``workers`` > 1 (and no ``address``), the worker processes are kept for the next run
     of this process (:class:`~hcfplan.planning.scan.pool.KeptPool`);
-    :func:`~hcfplan.planning.scan.pool.release_workers` stops them."""
-    from hcfplan.io.results import write_json
+    :func:`~hcfplan.planning.scan.pool.release_workers` stops them. The folder is locked
+    during the run (:func:`hcfplan.io.results.lock_output_dir`): a scan or another command
+    writing into it from another process is refused (ConfigError), and refuses this one."""
+    from hcfplan.io.results import lock_output_dir, unlock_output_dir
 
     if workers < 1:
         raise ConfigError(f"--workers = {workers}: must be >= 1")
+    out_dir = lock_output_dir(out_dir)  # another command writing there is refused
+    try:
+        return _run_locked(plan, out_dir, workers, address, fresh, force, on_point)
+    finally:
+        unlock_output_dir(out_dir)
+
+
+def _run_locked(plan: ScanPlan, out_dir: Path, workers: int, address: str | None, fresh: bool,
+                force: bool, on_point) -> ScanOutcome:
+    """:func:`run_scan` in the locked folder ``out_dir``."""
+    from hcfplan.io.results import write_json
+
     out_dir = prepare_scan_dir(out_dir, plan, fresh=fresh, force=force)
     points_dir = out_dir / "points"
     found, damaged, todo = {}, [], []
