@@ -211,7 +211,7 @@ def _fiber_plot(cfg, path: Path) -> None:
     wavelengths = np.linspace(0.4 * lam0, 2.2 * lam0, 800)
     curves = dispersion_curves(cfg, wavelengths)
     WRITTEN.watch(path)
-    write_figure(path, plot_dispersion_and_loss, curves)
+    write_figure(path, plot_dispersion_and_loss, curves, cfg)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -248,6 +248,9 @@ def simulate_command(
     quiet: bool = typer.Option(False, "--quiet", help="No progress bar and no report text."),
     force: bool = typer.Option(False, "--force", help="Allow writing into an existing --out."),
     no_figures: bool = typer.Option(False, "--no-figures", help="Skip the figures."),
+    figures: str = typer.Option(
+        "default", "--figures", help="Figures to draw: 'default' (spectrum_in_out, "
+        "compressed_pulse, thz_spectrum), 'all', or comma-separated names."),
     spread: str | None = typer.Option(
         None, "--spread", help="Input uncertainty band, e.g. energy=5%,pressure=2%,fwhm=5%: the "
         "chain also runs at its corners and reports the ranges; 'default' uses the [spread] "
@@ -261,6 +264,11 @@ def simulate_command(
 
     cfg = load_cli_config(config, set_ or [])
     plan = spread_plan(cfg, spread, set_ or [])
+    figure_names = None
+    if not no_figures:
+        from hcfplan.plotting.report import select_figures
+
+        figure_names = select_figures(figures)
     out_dir = prepare_output_dir(out if out is not None else _default_out_dir(config),
                                  force=force)
     WRITTEN.watch(out_dir)
@@ -280,7 +288,7 @@ def simulate_command(
     if not no_figures:
         from hcfplan.plotting.report import figure_jobs
 
-        jobs = figure_jobs(out_dir, chain, spread_result)
+        jobs = figure_jobs(out_dir, chain, spread_result, figure_names)
     summary = write_run(out_dir, chain, figures=jobs, spread=spread_result)
     if as_json:
         print_json(summary)
