@@ -264,13 +264,19 @@ def simulate_command(
 
     cfg = load_cli_config(config, set_ or [])
     plan = spread_plan(cfg, spread, set_ or [])
-    figure_names = None
+    figure_names = helpers = None
     if not no_figures:
         from hcfplan.plotting.report import select_figures
 
         figure_names = select_figures(figures)
     out_dir = prepare_output_dir(out if out is not None else _default_out_dir(config),
                                  force=force)
+    if figure_names and plan is None:
+        from hcfplan.plotting.helpers import FigureHelpers
+
+        # matplotlib is imported on the other core during the run; helpers that get no
+        # figures (an error, Ctrl-C) end when the pipe closes with this process or its frame
+        helpers = FigureHelpers.start()
     WRITTEN.watch(out_dir)
     if plan is not None:
         start_workers(workers)  # imports on another core while the nominal chain runs
@@ -285,11 +291,12 @@ def simulate_command(
     if plan is not None:
         stop_workers()  # no more points to compute
     jobs = None
-    if not no_figures:
+    if figure_names is not None:
         from hcfplan.plotting.report import figure_jobs
 
         jobs = figure_jobs(out_dir, chain, spread_result, figure_names)
-    summary = write_run(out_dir, chain, figures=jobs, spread=spread_result)
+    summary = write_run(out_dir, chain, figures=jobs, spread=spread_result,
+                        figure_writer=helpers.write if helpers is not None else None)
     if as_json:
         print_json(summary)
     elif not quiet:
