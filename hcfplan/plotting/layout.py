@@ -25,6 +25,13 @@ _NAMES = {"laser.fwhm_fs": "Pump FWHM duration", "laser.energy_uj": "Pulse energ
 _UNITS = {"um": "µm", "uJ": "µJ", "fs^2": "fs²", "fs^3": "fs³", "um^2": "µm²"}
 
 
+def key_name(key: str) -> str:
+    """The human name of a config key without its unit, e.g. ``laser.energy_uj`` ->
+    ``"Pulse energy"``."""
+    label = key_label(key)
+    return label.rsplit(" (", 1)[0] if label.endswith(")") else label
+
+
 def key_label(key: str) -> str:
     """Axis label of a config key: a human name and its unit, e.g. ``gas.pressure_bar`` ->
     ``"Gas fill pressure (bar)"``. Unknown keys read as their words with the unit."""

@@ -13,7 +13,7 @@ import textwrap
 from collections.abc import Callable
 from pathlib import Path
 
-from hcfplan.plotting.layout import setup_line
+from hcfplan.plotting.layout import key_name, setup_line
 from hcfplan.plotting.propagation import (
     plot_energy_and_ionization,
     plot_spectra_in_out,
@@ -156,7 +156,7 @@ def draw_spread(fig, chain, spread):
     ax_spec.set_ylim(floor, 2)
     ax_spec.set_xlabel("Wavelength (nm)")
     ax_spec.set_ylabel("Spectral energy density per Hz\n(rel. highest peak)")
-    inputs = ", ".join(f"{k} ±{v:.0%}" for k, v in spread.spec.items)
+    inputs = ", ".join(f"{key_name(k)} ±{v:.0%}" for k, v in spread.spec.items)
     ax_spec.set_title(textwrap.fill(f"Fiber output over the input band ({inputs})", 60),
                       fontsize="small")
     ax_spec.legend(loc="upper left", bbox_to_anchor=(0.0, -0.2), borderaxespad=0.0,

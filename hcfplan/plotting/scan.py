@@ -20,7 +20,7 @@ import textwrap
 import numpy as np
 
 from hcfplan.constants import c
-from hcfplan.plotting.layout import key_label, plain_log_ticks
+from hcfplan.plotting.layout import key_label, legend_beside, plain_log_ticks
 
 #: (figure label, summary/margins path, display scale, log axis)
 QUANTITIES = (
@@ -175,10 +175,10 @@ def draw_results_1d(fig, key: str, values: tuple, records):
     required = records[0].get("margins", {}).get("self_focusing_required") if records else None
     if required:
         axes[3].axhline(required, color="C3", ls="--", lw=1,
-                        label=f"required margin P_cr/P >= {required:g}")
-        axes[3].legend(fontsize="small")
-    axes[4].axhline(1.0, color="C3", ls="--", lw=1, label="required margin >= 1")
-    axes[4].legend(fontsize="small")
+                        label=f"required margin\nP_cr/P >= {required:g}")
+        legend_beside(axes[3])
+    axes[4].axhline(1.0, color="C3", ls="--", lw=1, label="required margin\n>= 1")
+    legend_beside(axes[4])
     if labels:
         axes[-1].set_xticks(x, labels)
     axes[-1].set_xlabel(key_label(key))

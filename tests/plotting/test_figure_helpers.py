@@ -37,7 +37,7 @@ def _draw_here_only(fig, k, log):
 
 @pytest.fixture()
 def helpers():
-    started = FigureHelpers.start()
+    started = FigureHelpers.start(2)
     if started is None:
         pytest.skip("figures are drawn in one process here (one core or not Linux)")
     yield started
