@@ -13,8 +13,10 @@ hcfplan itself.
 
 Then each side runs the whole command once to warm its caches (numba, FFTW wisdom, rate tables)
 and the two commands are alternated, A B A B ..., each in a new process with a new output
-folder; the script prints every pair, the median of each side, their ratio and the load
-average before and after (the machine may be shared). Nothing here is a timed test.
+folder; the script prints every pair, the median of each side (wall time, and CPU time of the
+command with every process it started), their ratio and the load average before and after
+(the machine may be shared: where it is busy, the wall time follows the CPU time more than the
+work done in parallel). Nothing here is a timed test.
 """
 
 from __future__ import annotations
@@ -22,6 +24,7 @@ from __future__ import annotations
 import argparse
 import hashlib
 import os
+import resource
 import shutil
 import statistics
 import subprocess
@@ -86,15 +89,19 @@ def _venv(name: str, make_tree) -> Path:
     return venv
 
 
-def _run(venv: Path, out: Path, figures: bool) -> float:
-    """Wall time [s] of the whole command from the venv, in a new process."""
+def _run(venv: Path, out: Path, figures: bool) -> tuple[float, float]:
+    """Wall time and CPU time (user + system, with every process it started) [s] of the whole
+    command from the venv, in a new process."""
     env = {k: v for k, v in os.environ.items() if k != "PYTHONPATH"}
     cmd = [str(venv / "bin" / "hcfplan"), "simulate", CONFIG, "--out", str(out), "--quiet"]
     if not figures:
         cmd.append("--no-figures")
+    before = resource.getrusage(resource.RUSAGE_CHILDREN)
     start = time.perf_counter()
     subprocess.run(cmd, cwd=ROOT, env=env, check=True, stdout=subprocess.DEVNULL)
-    return time.perf_counter() - start
+    wall = time.perf_counter() - start
+    after = resource.getrusage(resource.RUSAGE_CHILDREN)
+    return wall, (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
 
 
 def main() -> None:
@@ -106,23 +113,27 @@ def main() -> None:
     figures = not args.no_figures
     load_before = os.getloadavg()
     times: dict[str, list[float]] = {name: [] for name in sides}
+    cpu: dict[str, list[float]] = {name: [] for name in sides}
     with tempfile.TemporaryDirectory() as tmp:
         for name, venv in sides.items():  # warm-up: caches of each side
             _run(venv, Path(tmp) / f"warm-{name}", figures)
         for i in range(args.pairs):
             row = []
             for name, venv in sides.items():
-                seconds = _run(venv, Path(tmp) / f"{name}-{i}", figures)
+                seconds, cpu_seconds = _run(venv, Path(tmp) / f"{name}-{i}", figures)
                 times[name].append(seconds)
-                row.append(f"{name} {seconds:.2f} s")
+                cpu[name].append(cpu_seconds)
+                row.append(f"{name} {seconds:.2f} s (CPU {cpu_seconds:.2f} s)")
             print(f"pair {i + 1}: " + ", ".join(row), flush=True)
     load_after = os.getloadavg()
     medians = {name: statistics.median(t) for name, t in times.items()}
     what = "with figures" if figures else "--no-figures"
     print(f"\nhcfplan simulate {CONFIG} ({what}), median of {args.pairs} alternated pairs:")
     for name, med in medians.items():
-        print(f"  {name:8s} {med:.2f} s  (min {min(times[name]):.2f}, max {max(times[name]):.2f})")
-    print(f"  current / {RELEASE}: {medians['current'] / medians[RELEASE]:.2f}")
+        print(f"  {name:8s} {med:.2f} s  (min {min(times[name]):.2f}, max {max(times[name]):.2f}); "
+              f"CPU {statistics.median(cpu[name]):.2f} s")
+    print(f"  current / {RELEASE}: {medians['current'] / medians[RELEASE]:.2f} (wall), "
+          f"{statistics.median(cpu['current']) / statistics.median(cpu[RELEASE]):.2f} (CPU)")
     print(f"load average (1 min) before {load_before[0]:.2f}, after {load_after[0]:.2f}; "
           f"{os.cpu_count()} CPUs")
 

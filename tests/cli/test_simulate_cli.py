@@ -130,6 +130,7 @@ def test_interrupt_during_the_figures_names_the_kept_files(tmp_path, capsys, mon
     # names the files this run wrote (complete, written atomically), not the older ones.
     # No external source is needed for this check.
     from hcfplan.planning import run_folder
+    from hcfplan.plotting.helpers import FigureHelpers
 
     config = tmp_path / "tiny.toml"
     config.write_text(TINY)
@@ -138,6 +139,7 @@ def test_interrupt_during_the_figures_names_the_kept_files(tmp_path, capsys, mon
     (out / "notes.txt").write_text("kept from before\n")
     capsys.readouterr()
     monkeypatch.setattr(run_folder, "write_figures", _interrupt)
+    monkeypatch.setattr(FigureHelpers, "write", _interrupt)  # helpers started before the run
     code = main(["simulate", str(config), "--out", str(out), "--quiet", "--force"])
     err = capsys.readouterr().err
     assert code == 130
