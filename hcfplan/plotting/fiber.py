@@ -24,7 +24,7 @@ def plot_dispersion_and_loss(fig, curves: dict, config=None):
     if finite.size:
         span = np.percentile(np.abs(finite), 90) * 1.5 or 1.0
         ax_gvd.set_ylim(-span, span)
-    ax_gvd.set_ylabel("GVD $\\beta_2$ (fs$^2$/mm)")
+    ax_gvd.set_ylabel("GVD β₂ (fs²/mm)")
     ax_loss.semilogy(wl_nm, np.clip(loss, 1e-6, None), color="C3")
     plain_log_ticks(ax_loss.yaxis)
     ax_loss.set_ylabel("Power loss (dB/m)")
