@@ -61,7 +61,7 @@ def _release_tree(dest: Path) -> Path:
 
 def _current_tree(dest: Path) -> Path:
     """Copy what a release of the working tree would hold (package, gases, project files)."""
-    ignore = shutil.ignore_patterns("__pycache__", "*.pyc", "*.nbi", "*.nbc")
+    ignore = shutil.ignore_patterns("__pycache__", "*.pyc", "*.nbi", "*.nbc", "_gases")
     for name in ("hcfplan", "gases"):
         shutil.copytree(ROOT / name, dest / name, ignore=ignore)
     for name in ("pyproject.toml", "README.md", "LICENSE"):
