@@ -31,7 +31,7 @@ def main() -> None:
         tmp = Path(tmp)
         run("fiber", "configs/yb_capillary_mixture.toml", "--plot", str(FIGURES / "fiber.png"))
         run("simulate", "configs/yb_arf_argon.toml", "--out", str(tmp / "arf"), "--quiet",
-            "--spread", "default")
+            "--spread", "default", "--figures", "all")
         for name in ("spectral_evolution", "compressed_pulse", "thz_spectrum", "spread"):
             shutil.copy(tmp / "arf" / f"{name}.png", FIGURES / f"simulate_{name}.png")
         run("envelope", "configs/yb_capillary_mixture.toml", "--plot",

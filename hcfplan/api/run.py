@@ -46,6 +46,16 @@ class _AxesFigure:
     def set_size_inches(self, *_, **__) -> None:
         """The caller's figure keeps its size."""
 
+    def subplots_adjust(self, *_, **__) -> None:
+        """The caller's figure keeps its layout."""
+
+    def tight_layout(self, *_, **__) -> None:
+        """The caller's figure keeps its layout."""
+
+    def __getattr__(self, name: str):
+        """Anything else (a title, a legend of the figure) goes to the axes' own figure."""
+        return getattr(self.axes.reshape(-1)[0].figure, name)
+
 
 def draw_figure(name: str, jobs, ax=None):
     """Draw the figure job called ``name`` (its file stem) into a new figure, or into ``ax``.
@@ -111,10 +121,12 @@ class Run:
 
         return field_arrays(self.chain)
 
-    def _jobs(self, folder: Path):
-        from hcfplan.plotting.report import figure_jobs
+    def _jobs(self, folder: Path, names: tuple[str, ...] | None = None):
+        """Figure jobs of ``names`` (default: every figure of the registry)."""
+        from hcfplan.plotting.report import FIGURES, figure_jobs
 
-        return figure_jobs(Path(folder), self.chain)
+        return figure_jobs(Path(folder), self.chain,
+                           names=tuple(FIGURES) if names is None else names)
 
     @property
     def figures(self) -> tuple[str, ...]:
@@ -145,19 +157,25 @@ class Run:
         """
         return draw_figure(name, self._jobs(Path(".")), ax)
 
-    def save(self, folder, *, figures: bool = True, report: bool = True,
+    def save(self, folder, *, figures: bool | str = True, report: bool = True,
              force: bool = False) -> Path:
         """Write the run folder as ``simulate --out folder`` does.
 
-        ``summary.json``, ``fields.npz``, ``config.resolved.toml``, the figures (unless
-        ``figures=False``) and ``report.html`` (unless ``report=False``). A non-empty folder is
-        refused (ConfigError) unless ``force``. Returns the folder.
+        ``summary.json``, ``fields.npz``, ``config.resolved.toml``, the figures and
+        ``report.html`` (unless ``report=False``). ``figures``: True for the default set of
+        ``simulate``, False for none, or a ``--figures`` value (``"all"`` or comma-separated
+        names). A non-empty folder is refused (ConfigError) unless ``force``. Returns the
+        folder.
         """
         from hcfplan.io.results import prepare_output_dir
         from hcfplan.planning.run_folder import write_run
+        from hcfplan.plotting.report import select_figures
 
         out_dir = prepare_output_dir(Path(folder), force=force)
-        jobs = self._jobs(out_dir) if figures else None
+        jobs = None
+        if figures is not False:
+            names = select_figures(None if figures is True else str(figures))
+            jobs = self._jobs(out_dir, names)
         summary = write_run(out_dir, self.chain, figures=jobs)
         if report:
             from hcfplan.report import write_run_report

@@ -9,13 +9,12 @@ interrupted (Ctrl-C: one line on stderr saying what was kept, no traceback), 143
 SIGTERM or SIGHUP (the same line).
 Heavy modules (scipy, CoolProp, numba, matplotlib) are imported inside the commands so that
 ``hcfplan --help`` starts quickly. Imports of the command line flow one way:
-app -> workflows -> common, output.
+app -> thz_command, workflows -> common, output.
 """
 
 from __future__ import annotations
 
 import contextlib
-import os
 import sys
 from pathlib import Path
 
@@ -27,6 +26,7 @@ from hcfplan.cli.common import (
     SET_HELP,
     SPREAD_WORKERS_HELP,
     WRITTEN,
+    check_plot,
     command_line,
     end_quietly,
     fault_message,
@@ -49,9 +49,9 @@ from hcfplan.cli.output import (
     print_json,
     print_limits,
     print_simulation,
-    print_thz_report,
     print_warnings,
 )
+from hcfplan.cli.thz_command import register as register_thz
 from hcfplan.cli.workflows import register as register_workflows
 from hcfplan.errors import ConfigError, HcfplanError
 
@@ -78,15 +78,6 @@ def _options(
                                  help="Print the version of hcfplan and exit."),
 ) -> None:
     pass
-
-
-def _check_plot(plot: Path | None) -> None:
-    """Refuse an unusable ``--plot`` path (a folder, under a file or a read-only folder) before
-    any work: one line, exit 2."""
-    if plot is not None:
-        from hcfplan.io.results import check_output_file
-
-        check_output_file("--plot", plot)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -234,7 +225,7 @@ def fiber_command(
     """Linear and first nonlinear numbers of the configured fiber at the pump (no GNLSE run)."""
     from hcfplan.planning.reports.fiber import fiber_report
 
-    _check_plot(plot)
+    check_plot(plot)
     cfg = load_cli_config(config, set_ or [])
     report = fiber_report(cfg)
     if plot is not None:
@@ -257,7 +248,7 @@ def _fiber_plot(cfg, path: Path) -> None:
     wavelengths = np.linspace(0.4 * lam0, 2.2 * lam0, 800)
     curves = dispersion_curves(cfg, wavelengths)
     WRITTEN.watch(path)
-    write_figure(path, plot_dispersion_and_loss, curves)
+    write_figure(path, plot_dispersion_and_loss, curves, cfg)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -305,6 +296,9 @@ def simulate_command(
     force: bool = typer.Option(False, "--force", help="Allow writing into an existing --out."),
     no_figures: bool = typer.Option(False, "--no-figures", help="Skip the figures."),
     no_report: bool = typer.Option(False, "--no-report", help=NO_REPORT_HELP),
+    figures: str = typer.Option(
+        "default", "--figures", help="Figures to draw: 'default' (spectrum_in_out, "
+        "compressed_pulse, thz_spectrum), 'all', or comma-separated names."),
     spread: str | None = typer.Option(
         None, "--spread", help="Input uncertainty band, e.g. energy=5%,pressure=2%,fwhm=5%: the "
         "chain also runs at its corners and reports the ranges; 'default' uses the [spread] "
@@ -317,7 +311,18 @@ def simulate_command(
 
     cfg = load_cli_config(config, set_ or [])
     plan = spread_plan(cfg, spread, set_ or [])
+    figure_names = helpers = None
+    if not no_figures:
+        from hcfplan.plotting.report import select_figures
+
+        figure_names = select_figures(figures)
     out_dir = _claim_out_dir(out, config, force)
+    if figure_names and plan is None:
+        from hcfplan.plotting.helpers import FigureHelpers
+
+        # matplotlib is imported on the other core during the run; helpers that get no
+        # figures (an error, Ctrl-C) end when the pipe closes with this process or its frame
+        helpers = FigureHelpers.start()
     WRITTEN.watch(out_dir)
     if plan is not None:
         start_workers(workers)  # imports on another core while the nominal chain runs
@@ -332,11 +337,12 @@ def simulate_command(
     if plan is not None:
         stop_workers()  # no more points to compute
     jobs = None
-    if not no_figures:
+    if figure_names is not None:
         from hcfplan.plotting.report import figure_jobs
 
-        jobs = figure_jobs(out_dir, chain, spread_result)
-    summary = write_run(out_dir, chain, figures=jobs, spread=spread_result)
+        jobs = figure_jobs(out_dir, chain, spread_result, figure_names)
+    summary = write_run(out_dir, chain, figures=jobs, spread=spread_result,
+                        figure_writer=helpers.write if helpers is not None else None)
     if not no_report:
         from hcfplan.report import write_run_report
 
@@ -401,7 +407,7 @@ def envelope_command(
 
     if contours not in ("duration", "cutoff", "both"):
         raise ConfigError(f"--contours = {contours!r}: must be one of duration, cutoff, both")
-    _check_plot(plot)
+    check_plot(plot)
     cfg = load_cli_config(config, set_ or [])
     result = envelope_map(cfg)
     checked = check_envelope(cfg, result) if check else None
@@ -419,96 +425,9 @@ def envelope_command(
 
 
 # ---------------------------------------------------------------------------------------------
-# thz (from a measured spectrum)
+# thz (from a measured spectrum) lives in its own module
 
-
-@app.command("thz")
-def thz_command(
-    spectrum_csv: Path = typer.Argument(..., help="Measured spectrum CSV: wavelength_nm, "
-                                        "intensity (per unit wavelength)."),
-    phase_csv: Path | None = typer.Option(
-        None, "--phase-csv", help="Spectral phase CSV: wavelength_nm, phase_rad (default: the "
-        "pulse is compressed to its transform limit)."),
-    crystal: str = typer.Option("GaP", "--crystal", help="Generation crystal."),
-    thickness_mm: float = typer.Option(0.3, "--thickness-mm", help="Crystal thickness."),
-    energy_uj: float = typer.Option(1.0, "--energy-uj", help="Pulse energy on the crystal."),
-    cutoff_db: float = typer.Option(-20.0, "--cutoff-db", help="Share of the THz energy above the "
-                                   "cutoff (-20: 99 % of it lies below)."),
-    cutoff_quantity: str = typer.Option("power", "--cutoff-quantity",
-                                        help="Spectrum whose integral it divides: power or field."),
-    detector_crystal: str | None = typer.Option(None, "--detector-crystal",
-                                                   help="EO detection crystal (optional)."),
-    detector_thickness_mm: float = typer.Option(0.3, "--detector-thickness-mm",
-                                                help="EO detection crystal thickness."),
-    geometry: str = typer.Option("collinear", "--geometry", help="collinear or tilted_front "
-                                 "(velocity matching by a pulse-front tilt, e.g. LiNbO3)."),
-    beam_waist_um: float | None = typer.Option(
-        None, "--beam-waist-um", help="Pump 1/e^2 radius on the crystal: absolute energy, "
-        "peak field and the crystal's fluence limits."),
-    focus_f_number: float = typer.Option(2.0, "--focus-f-number",
-                                         help="f-number of the THz focus of the peak field."),
-    repetition_khz: float | None = typer.Option(None, "--repetition-khz",
-                                                help="Repetition rate (THz average power)."),
-    plot: Path | None = typer.Option(None, "--plot", help="Write the THz figure here."),
-    as_json: bool = typer.Option(False, "--json", help=JSON_HELP),
-) -> None:
-    """THz estimate from a measured broadened spectrum (no fiber model needed)."""
-    from hcfplan.io.checks import check_option
-    from hcfplan.materials.crystal_tables import (
-        crystal_names,
-        crystal_search_dirs,
-        listed_crystal_names,
-    )
-    from hcfplan.planning.reports.thz import thz_report, thz_setup_from_options
-
-    check_option("--thickness-mm", thickness_mm, "thz", "thickness_mm")
-    check_option("--energy-uj", energy_uj, "laser", "energy_uj")
-    check_option("--detector-thickness-mm", detector_thickness_mm, "thz", "detector_thickness_mm")
-    check_option("--cutoff-db", cutoff_db, "thz", "cutoff_db")
-    check_option("--cutoff-quantity", cutoff_quantity, "thz", "cutoff_quantity")
-    check_option("--geometry", geometry, "thz", "geometry")
-    check_option("--focus-f-number", focus_f_number, "thz", "focus_f_number")
-    if beam_waist_um is not None:
-        check_option("--beam-waist-um", beam_waist_um, "thz", "beam_waist_um")
-    if repetition_khz is not None:
-        check_option("--repetition-khz", repetition_khz, "laser", "repetition_khz")
-    crystal_dirs = crystal_search_dirs(environ=os.environ)
-    known = crystal_names(crystal_dirs)
-    for option, name in (("--crystal", crystal), ("--detector-crystal", detector_crystal)):
-        if name is not None and name.lower() not in known:
-            raise ConfigError(f"{option} = {name!r}: unknown crystal (available: "
-                              f"{', '.join(listed_crystal_names(crystal_dirs))})")
-    _check_plot(plot)
-    setup = thz_setup_from_options(crystal=crystal, thickness=thickness_mm * 1e-3,
-                                   cutoff_db=cutoff_db, cutoff_quantity=cutoff_quantity,
-                                   detector_crystal=detector_crystal,
-                                   detector_thickness=detector_thickness_mm * 1e-3,
-                                   geometry=geometry,
-                                   beam_waist=None if beam_waist_um is None
-                                   else beam_waist_um * 1e-6,
-                                   table_dirs=crystal_dirs)
-    result, report = thz_report(spectrum_csv, setup, phase_csv=phase_csv,
-                                energy=energy_uj * 1e-6, focus_f_number=focus_f_number,
-                                repetition_rate=None if repetition_khz is None
-                                else repetition_khz * 1e3)
-    if plot is not None:
-        from hcfplan.io.results import write_figure
-        from hcfplan.planning.reports.thz_absolute import waveforms
-        from hcfplan.plotting.report import draw_thz_result
-        from hcfplan.plotting.thz_time import draw_thz_waveform
-
-        WRITTEN.watch(plot)
-        write_figure(plot, draw_thz_result, result)
-        report["figure"] = str(plot)
-        waveform_plot = plot.with_name(f"{plot.stem}_waveform{plot.suffix}")
-        WRITTEN.watch(waveform_plot)
-        write_figure(waveform_plot, draw_thz_waveform, result,
-                     waveforms(result, setup, focus_f_number))
-        report["waveform_figure"] = str(waveform_plot)
-    if as_json:
-        print_json(report)
-        return
-    print_thz_report(report, detector_crystal)
+register_thz(app)
 
 
 # ---------------------------------------------------------------------------------------------

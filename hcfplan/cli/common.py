@@ -259,3 +259,12 @@ def end_quietly() -> None:
     ``hcfplan`` process itself, never for a caller of :func:`hcfplan.cli.app.main`."""
     for sig in INTERRUPTING:
         signal.signal(sig, signal.SIG_DFL)
+
+
+def check_plot(plot: Path | None) -> None:
+    """Refuse an unusable ``--plot`` path (a folder, under a file or a read-only folder) before
+    any work: one line, exit 2."""
+    if plot is not None:
+        from hcfplan.io.results import check_output_file
+
+        check_output_file("--plot", plot)

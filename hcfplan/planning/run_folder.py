@@ -7,6 +7,7 @@ as jobs (:func:`hcfplan.plotting.report.figure_jobs`), since planning does not i
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from pathlib import Path
 
 from hcfplan.io.results import FigureJob, write_figures, write_json
@@ -16,11 +17,14 @@ from hcfplan.planning.chain import ChainResult, field_arrays, summary_dict
 
 
 def write_run(out_dir: Path, chain: ChainResult, *, figures: list[FigureJob] | None = None,
-              spread=None) -> dict:
+              spread=None, figure_writer: Callable[[list[FigureJob]], None] | None = None
+              ) -> dict:
     """Write the run into ``out_dir`` and return the summary dict that was written.
 
     ``figures``: the figure jobs to draw (None: no figures and no ``figures`` key in the
-    summary). ``spread`` (a :class:`~hcfplan.planning.spread.SpreadResult`) adds ``spread.*``
+    summary), with ``figure_writer`` (default :func:`~hcfplan.io.results.write_figures`; the
+    CLI passes the helpers it started before the run, :mod:`hcfplan.plotting.helpers`).
+    ``spread`` (a :class:`~hcfplan.planning.spread.SpreadResult`) adds ``spread.*``
     and the worst-case margins ``limits.worst_case.*`` to the summary.
     """
     out_dir = Path(out_dir)
@@ -34,7 +38,7 @@ def write_run(out_dir: Path, chain: ChainResult, *, figures: list[FigureJob] | N
     write_npz(out_dir / "fields.npz", field_arrays(chain))
     write_text(out_dir / "config.resolved.toml", dump_toml(chain.config.resolved))
     if figures is not None:
-        write_figures(figures)
+        (figure_writer or write_figures)(figures)
         summary["figures"] = sorted(path.name for path, _, _ in figures)
     write_json(out_dir / "summary.json", summary)
     return summary

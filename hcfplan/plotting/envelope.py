@@ -15,6 +15,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from hcfplan.errors import ConfigError
+from hcfplan.plotting.layout import legend_beside
 
 if TYPE_CHECKING:
     from matplotlib.axes import Axes
@@ -101,13 +102,12 @@ def plot_envelope(ax: Axes, result: EnvelopeResult, *, contours: str = "duration
     ax.set_xlim(p.min(), p.max())
     ax.set_ylim(bottom, top)
     ax.set_xlabel(f"{result.pressure_axis.capitalize()} (bar)")
-    ax.set_ylabel("Pulse energy before coupling (uJ)")
+    ax.set_ylabel("Pulse energy before coupling (µJ)")
     _check_marks(ax, check)
     ax.set_title("Operating envelope: analytic limits, SPM-only estimate contours\n"
                  + _check_title(check), fontsize="medium")
-    ax.legend(loc="lower left", fontsize="small",
-              title="lines: model estimates; contours: SPM-only estimates",
-              title_fontsize="small", framealpha=0.85)
+    legend_beside(ax, title="lines: model estimates;\ncontours: SPM-only estimates",
+                  title_fontsize="small")
     return ax
 
 

@@ -4,11 +4,14 @@ from __future__ import annotations
 
 import numpy as np
 
+from hcfplan.plotting.layout import legend_beside, plain_log_ticks, setup_line
 
-def plot_dispersion_and_loss(fig, curves: dict):
+
+def plot_dispersion_and_loss(fig, curves: dict, config=None):
     """Draw beta2 (top) and power loss (bottom) vs wavelength, pump and resonances marked.
 
-    ``curves`` is the dict of :func:`hcfplan.planning.reports.fiber.dispersion_curves`.
+    ``curves`` is the dict of :func:`hcfplan.planning.reports.fiber.dispersion_curves`;
+    ``config`` (optional) names the gas, pressure and core in the title.
     Returns the two axes.
     """
     ax_gvd, ax_loss = fig.subplots(2, 1, sharex=True)
@@ -21,9 +24,10 @@ def plot_dispersion_and_loss(fig, curves: dict):
     if finite.size:
         span = np.percentile(np.abs(finite), 90) * 1.5 or 1.0
         ax_gvd.set_ylim(-span, span)
-    ax_gvd.set_ylabel("GVD $\\beta_2$ (fs$^2$/mm)")
+    ax_gvd.set_ylabel("GVD β₂ (fs²/mm)")
     ax_loss.semilogy(wl_nm, np.clip(loss, 1e-6, None), color="C3")
-    ax_loss.set_ylabel("Loss (dB/m)")
+    plain_log_ticks(ax_loss.yaxis)
+    ax_loss.set_ylabel("Power loss (dB/m)")
     ax_loss.set_xlabel("Wavelength (nm)")
     for ax in (ax_gvd, ax_loss):
         ax.axvline(curves["pump_wavelength_m"] * 1e9, color="C2", ls="--", lw=1.0,
@@ -32,6 +36,8 @@ def plot_dispersion_and_loss(fig, curves: dict):
             if wl_nm.min() <= res * 1e9 <= wl_nm.max():
                 ax.axvspan(res * 1e9 * 0.98, res * 1e9 * 1.02, color="0.6", alpha=0.3,
                            label="resonance band" if i == 0 else None)
-    ax_gvd.legend(loc="best")
-    ax_gvd.set_title("Fundamental-mode dispersion and loss")
+    legend_beside(ax_gvd)
+    setup = setup_line(config) if config is not None else ""
+    ax_gvd.set_title("Fundamental-mode dispersion and loss" + (f"\n{setup}" if setup else ""),
+                     fontsize="medium")
     return ax_gvd, ax_loss

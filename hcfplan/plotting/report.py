@@ -1,16 +1,19 @@
 """The figures of one ``simulate`` run, each drawn into a fresh figure from a ChainResult.
 
-:data:`FIGURES` maps a file stem to a ``draw(fig, chain)`` function; :func:`applies` says
-whether a figure exists for a run (no compressor or THz figure without those stages);
-:func:`figure_jobs` lists the figures of a run folder for
-:func:`hcfplan.io.results.write_figures`.
+:data:`FIGURES` maps a file stem to a ``draw(fig, chain)`` function (the registry of figure
+names); :data:`DEFAULT_FIGURES` are the ones a run draws unless asked for others
+(:func:`select_figures` reads ``--figures``); :func:`applies` says whether a figure exists for
+a run (no compressor or THz figure without those stages); :func:`figure_jobs` lists the figures
+of a run folder for :func:`hcfplan.io.results.write_figures`.
 """
 
 from __future__ import annotations
 
+import textwrap
 from collections.abc import Callable
 from pathlib import Path
 
+from hcfplan.plotting.layout import key_name, setup_line
 from hcfplan.plotting.propagation import (
     plot_energy_and_ionization,
     plot_spectra_in_out,
@@ -19,23 +22,26 @@ from hcfplan.plotting.propagation import (
 )
 
 
-def _propagation_figure(fig, chain, plot: Callable, title: str):
-    """One axes of ``fig`` with ``plot(ax, chain.propagation)`` and ``title``."""
-    ax = plot(fig.subplots(), chain.propagation)
-    ax.set_title(title)
+def _propagation_figure(fig, chain, plot: Callable, title: str, **kwargs):
+    """One axes of ``fig`` with ``plot(ax, chain.propagation, **kwargs)`` and ``title`` (with
+    the gas, pressure and fiber of the run on a second line)."""
+    ax = plot(fig.subplots(), chain.propagation, **kwargs)
+    setup = setup_line(chain.config)
+    ax.set_title(f"{title}\n{setup}" if setup else title, fontsize="medium")
     return ax
 
 
 def draw_spectra(fig, chain):
-    """Input and output spectral energy density per wavelength, dB."""
+    """Input and output spectral energy density per nm, dB relative to the higher peak."""
     return _propagation_figure(fig, chain, plot_spectra_in_out,
                                "Spectrum before and after the fiber")
 
 
-def draw_spectral_evolution(fig, chain):
-    """Spectrum along z as an image (dB relative to the overall peak)."""
+def draw_spectral_evolution(fig, chain, z_scale: str = "auto"):
+    """Spectrum per nm along z as an image (dB relative to the overall peak); ``z_scale``
+    ``"auto"`` takes a log z axis where the dynamics happen in the first tenth of the fiber."""
     return _propagation_figure(fig, chain, plot_spectral_evolution,
-                               "Spectral evolution along the fiber")
+                               "Spectral evolution along the fiber", z_scale=z_scale)
 
 
 def draw_temporal(fig, chain):
@@ -45,9 +51,11 @@ def draw_temporal(fig, chain):
 
 
 def draw_energy_ionization(fig, chain):
-    """Pulse energy and peak ionisation fraction along z."""
-    return _propagation_figure(fig, chain, plot_energy_and_ionization,
-                               "Energy and ionisation along the fiber")
+    """Pulse energy and ionisation fraction along z, with the configured ionisation limit."""
+    limits = getattr(chain.config, "limits", None)
+    return _propagation_figure(
+        fig, chain, plot_energy_and_ionization, "Energy and ionisation along the fiber",
+        ionization_limit=getattr(limits, "ionization_fraction_limit", None))
 
 
 def draw_compressed(fig, chain):
@@ -56,49 +64,66 @@ def draw_compressed(fig, chain):
 
     ax_lin, ax_log, ax_phase = fig.subplots(3, 1)
     fig.set_size_inches(7.5, 10)
+    fig.subplots_adjust(hspace=0.35)
     plot_temporal_intensity(ax_lin, chain.compression, scale="linear")
     plot_temporal_intensity(ax_log, chain.compression, scale="log", references=False)
-    plot_residual_phase(ax_phase, chain.compression)
+    plot_residual_phase(ax_phase, chain.compression, band=_mirror_band(chain))
+    ax_lin.set_title("Compressed pulse against the transform limit", fontsize="medium")
     return ax_lin
+
+
+def _mirror_band(chain):
+    """The configured mirror band [m] or None."""
+    return getattr(getattr(chain.config, "compressor", None), "mirror_band", None)
 
 
 def draw_bounces(fig, chain):
     """Peak power against the number of chirped-mirror bounces."""
     from hcfplan.plotting.compression import plot_peak_power_vs_bounces
 
-    return plot_peak_power_vs_bounces(fig.subplots(), chain.compression)
+    ax = plot_peak_power_vs_bounces(fig.subplots(), chain.compression)
+    ax.set_title("Peak power against the bounce count", fontsize="medium")
+    return ax
 
 
 def draw_thz_result(fig, thz):
-    """THz spectrum and coherence length of a :class:`~hcfplan.thz.generation.ThzResult` alone."""
-    from hcfplan.plotting.thz import plot_coherence_length, plot_thz_spectrum
+    """THz spectrum and coherence length of a :class:`~hcfplan.thz.generation.ThzResult` alone
+    (one THz range on both panels)."""
+    from hcfplan.plotting.thz import plot_coherence_length, plot_thz_spectrum, thz_range
 
     ax_spec, ax_lc = fig.subplots(2, 1, sharex=True)
     fig.set_size_inches(7.5, 7.5)
-    plot_thz_spectrum(ax_spec, thz)
-    plot_coherence_length(ax_lc, thz)
+    f_range = thz_range(thz)
+    plot_thz_spectrum(ax_spec, thz, f_range=f_range)
+    plot_coherence_length(ax_lc, thz, f_range=f_range)
     return ax_spec
 
 
 def draw_thz(fig, chain):
-    """THz spectrum with the cutoff, coherence length, driving spectrum, phase-matching map."""
+    """THz spectrum with the cutoff, coherence length and phase-matching map over one THz range
+    (beyond the crystal model shaded on each), and the driving spectrum."""
     from hcfplan.plotting.thz import (
         plot_coherence_length,
         plot_optical_spectrum,
         plot_phase_matching_map,
         plot_thz_spectrum,
+        thz_range,
     )
 
-    axes = fig.subplots(2, 2)
-    fig.set_size_inches(13, 8.5)
-    plot_thz_spectrum(axes[0, 0], chain.thz)
-    plot_coherence_length(axes[1, 0], chain.thz)
-    plot_optical_spectrum(axes[0, 1], chain.thz)
+    rows = 4 if chain.phase_matching is not None else 3
+    axes = fig.subplots(rows, 1)
+    fig.set_size_inches(7.5, 3.3 * rows)
+    fig.subplots_adjust(hspace=0.55)
+    f_range = thz_range(chain.thz)
+    plot_thz_spectrum(axes[0], chain.thz, f_range=f_range)
+    plot_coherence_length(axes[1], chain.thz, f_range=f_range)
     if chain.phase_matching is not None:
-        plot_phase_matching_map(axes[1, 1], chain.phase_matching,
-                                max_length=4 * chain.thz.thickness)
-        axes[1, 1].axhline(chain.config.laser.wavelength * 1e9, color="w", ls="--", lw=0.8)
-    return axes[0, 0]
+        plot_phase_matching_map(axes[2], chain.phase_matching, f_range=f_range,
+                                max_length=4 * chain.thz.thickness,
+                                model_limit=chain.thz.model_limit)
+        axes[2].axhline(chain.config.laser.wavelength * 1e9, color="w", ls="--", lw=0.8)
+    plot_optical_spectrum(axes[-1], chain.thz)
+    return axes[0]
 
 
 def draw_spread(fig, chain, spread):
@@ -109,6 +134,7 @@ def draw_spread(fig, chain, spread):
 
     ax_spec, ax_range = fig.subplots(1, 2, gridspec_kw={"width_ratios": [3, 2]})
     fig.set_size_inches(12, 4.8)
+    fig.subplots_adjust(wspace=0.6)
     grid = chain.grid
     order = np.argsort(grid.frequency)
     freq = grid.frequency[order]
@@ -129,10 +155,12 @@ def draw_spread(fig, chain, spread):
         ax_spec.set_xlim(lit.min() * 0.97, lit.max() * 1.03)
     ax_spec.set_ylim(floor, 2)
     ax_spec.set_xlabel("Wavelength (nm)")
-    ax_spec.set_ylabel("Spectral density per Hz (norm.)")
-    inputs = ", ".join(f"{k} ±{v:.0%}" for k, v in spread.spec.items)
-    ax_spec.set_title(f"Fiber output over the input band ({inputs})", fontsize="small")
-    ax_spec.legend()
+    ax_spec.set_ylabel("Spectral energy density per Hz\n(rel. highest peak)")
+    inputs = ", ".join(f"{key_name(k)} ±{v:.0%}" for k, v in spread.spec.items)
+    ax_spec.set_title(textwrap.fill(f"Fiber output over the input band ({inputs})", 60),
+                      fontsize="small")
+    ax_spec.legend(loc="upper left", bbox_to_anchor=(0.0, -0.2), borderaxespad=0.0,
+                   fontsize="small", ncols=2)
     labels, lows, highs = [], [], []
     for label, r in spread.ranges.items():
         if r["nominal"]:
@@ -148,20 +176,61 @@ def draw_spread(fig, chain, spread):
     return ax_spec
 
 
-#: File stem -> draw function, from the most to the least costly to draw (demo config, 16384
-#: points: 1.9, 1.7, 0.7, 0.6, 0.4, 0.3, 0.3 s), so that :func:`hcfplan.io.results.write_figures`
-#: starts the costly ones first.
+def draw_thz_waveform_of_run(fig, chain):
+    """The THz field and the EO-sampled waveform in time (left) beside their spectra (right)."""
+    from hcfplan.planning.reports.thz import chain_waveforms
+    from hcfplan.plotting.thz_time import draw_thz_waveform
+
+    return draw_thz_waveform(fig, chain.thz, chain_waveforms(chain.config, chain.thz))
+
+
+#: File stem -> draw function ``draw(fig, chain)`` of every figure of a run, from the most to
+#: the least costly to draw (CPU time for the demo config: 0.41, 0.35, 0.31, 0.22, 0.18, 0.13,
+#: 0.11 s), so that :func:`hcfplan.io.results.write_figures` starts the costly ones first. Each
+#: draws into the figure (or subfigure) it is given, so any of them can be drawn by name.
 FIGURES: dict[str, Callable] = {
     "thz_spectrum": draw_thz,
     "compressed_pulse": draw_compressed,
-    "spectral_evolution": draw_spectral_evolution,
     "energy_ionization": draw_energy_ionization,
-    "temporal_in_out": draw_temporal,
-    "spectrum_in_out": draw_spectra,
     "bounces": draw_bounces,
+    "spectral_evolution": draw_spectral_evolution,
+    "spectrum_in_out": draw_spectra,
+    "temporal_in_out": draw_temporal,
+    "thz_waveform": draw_thz_waveform_of_run,
 }
 
-_NEEDS = {"compressed_pulse": "compression", "bounces": "compression", "thz_spectrum": "thz"}
+#: The figures ``simulate`` draws unless ``--figures`` asks for others (``all``, or names).
+DEFAULT_FIGURES: tuple[str, ...] = ("spectrum_in_out", "compressed_pulse", "thz_spectrum")
+
+_NEEDS = {"compressed_pulse": "compression", "bounces": "compression", "thz_spectrum": "thz",
+          "thz_waveform": "thz"}
+
+
+def select_figures(choice: str | None) -> tuple[str, ...]:
+    """The figure names of a ``--figures`` value: ``None`` or ``"default"`` gives
+    :data:`DEFAULT_FIGURES`, ``"all"`` every figure of :data:`FIGURES`, otherwise a
+    comma-separated list of names (``default`` and ``all`` may be among them).
+
+    Raises
+    ------
+    ConfigError
+        An unknown name, with the valid ones listed.
+    """
+    from hcfplan.errors import ConfigError
+
+    names: list[str] = []
+    for item in (choice or "default").split(","):
+        item = item.strip()
+        if item == "default":
+            names += DEFAULT_FIGURES
+        elif item == "all":
+            names += FIGURES
+        elif item in FIGURES:
+            names.append(item)
+        elif item:
+            raise ConfigError(f"--figures {item!r}: unknown figure; choose 'default', 'all' or "
+                              f"names from {', '.join(FIGURES)}")
+    return tuple(name for name in FIGURES if name in names)
 
 
 def applies(name: str, chain) -> bool:
@@ -170,7 +239,8 @@ def applies(name: str, chain) -> bool:
     return stage is None or getattr(chain, stage) is not None
 
 
-def figure_jobs(out_dir: Path, chain, spread=None) -> list[tuple[Path, Callable, tuple]]:
+def figure_jobs(out_dir: Path, chain, spread=None, names: tuple[str, ...] | None = None
+                ) -> list[tuple[Path, Callable, tuple]]:
     """The figure jobs ``(path, draw, args)`` of a run folder, the costliest first.
 
     Parameters
@@ -181,6 +251,8 @@ def figure_jobs(out_dir: Path, chain, spread=None) -> list[tuple[Path, Callable,
         The run (:func:`hcfplan.planning.chain.run_chain`).
     spread : SpreadResult, optional
         Corner runs of ``--spread``; with corners, ``spread.png`` is drawn too.
+    names : tuple of str, optional
+        The figures to draw (:func:`select_figures`); default :data:`DEFAULT_FIGURES`.
 
     Returns
     -------
@@ -188,14 +260,9 @@ def figure_jobs(out_dir: Path, chain, spread=None) -> list[tuple[Path, Callable,
         Jobs for :func:`hcfplan.io.results.write_figures`.
     """
     out_dir = Path(out_dir)
+    names = DEFAULT_FIGURES if names is None else names
     jobs = [(out_dir / f"{name}.png", draw, (chain,))
-            for name, draw in FIGURES.items() if applies(name, chain)]
+            for name, draw in FIGURES.items() if name in names and applies(name, chain)]
     if spread is not None and spread.corners:
-        jobs.insert(2, (out_dir / "spread.png", draw_spread, (chain, spread)))
-    if chain.thz is not None:
-        from hcfplan.planning.reports.thz import chain_waveforms
-        from hcfplan.plotting.thz_time import draw_thz_waveform
-
-        jobs.append((out_dir / "thz_waveform.png", draw_thz_waveform,
-                     (chain.thz, chain_waveforms(chain.config, chain.thz))))
+        jobs.insert(min(2, len(jobs)), (out_dir / "spread.png", draw_spread, (chain, spread)))
     return jobs

@@ -15,9 +15,12 @@ Nothing here recomputes physics.
 
 from __future__ import annotations
 
+import textwrap
+
 import numpy as np
 
 from hcfplan.constants import c
+from hcfplan.plotting.layout import key_label, legend_beside, plain_log_ticks
 
 #: (figure label, summary/margins path, display scale, log axis)
 QUANTITIES = (
@@ -133,11 +136,12 @@ def draw_spectrum_map(fig, key: str, values: tuple, records):
     shown = np.clip(np.nan_to_num(image / peak, nan=0.0), _SPECTRUM_FLOOR, 1.0)
     mesh = ax.pcolormesh(wl, y, shown, shading="nearest",
                          norm=LogNorm(vmin=_SPECTRUM_FLOOR, vmax=1.0))
-    fig.colorbar(mesh, ax=ax, label="Spectral energy density (rel.)")
+    fig.colorbar(mesh, ax=ax,
+                 label="Spectral energy density per nm\n(rel. highest peak of the scan)")
     if labels:
         ax.set_yticks(y, labels)
     ax.set_xlabel("Wavelength (nm)")
-    ax.set_ylabel(key)
+    ax.set_ylabel(key_label(key))
     ax.set_title("Fiber output spectrum")
     return ax
 
@@ -163,20 +167,21 @@ def draw_results_1d(fig, key: str, values: tuple, records):
                         clip_on=False)
         if log and np.any(y > 0):
             ax.set_yscale("log")
-        ax.set_ylabel(label, fontsize="small")
+            plain_log_ticks(ax.yaxis)
+        ax.set_ylabel(textwrap.fill(label, 18), fontsize="small")
         for xi, r in zip(x, records, strict=True):
             if _outside(r):
                 ax.axvspan(xi - half, xi + half, color="C3", alpha=0.15, lw=0)
     required = records[0].get("margins", {}).get("self_focusing_required") if records else None
     if required:
         axes[3].axhline(required, color="C3", ls="--", lw=1,
-                        label=f"required margin P_cr/P >= {required:g}")
-        axes[3].legend(fontsize="small")
-    axes[4].axhline(1.0, color="C3", ls="--", lw=1, label="required margin >= 1")
-    axes[4].legend(fontsize="small")
+                        label=f"required margin\nP_cr/P >= {required:g}")
+        legend_beside(axes[3])
+    axes[4].axhline(1.0, color="C3", ls="--", lw=1, label="required margin\n>= 1")
+    legend_beside(axes[4])
     if labels:
         axes[-1].set_xticks(x, labels)
-    axes[-1].set_xlabel(key)
+    axes[-1].set_xlabel(key_label(key))
     note = void_note(records)
     axes[0].set_title("Scan results (shaded: beyond a modelled limit)"
                       + (f"\n{note}" if note else ""), fontsize="small" if note else None)
@@ -189,7 +194,8 @@ def draw_results_2d(fig, keys: tuple[str, str], values: tuple[tuple, tuple], rec
     y, ylabels = _axis(values[1])
     n = len(QUANTITIES)
     axes = np.atleast_1d(fig.subplots(n, 1))
-    fig.set_size_inches(6.4, 2.6 * n)
+    fig.set_size_inches(6.4, 2.8 * n)
+    fig.subplots_adjust(hspace=0.35)
     outside = np.array([bool(_outside(r)) for r in records]).reshape(x.size, y.size)
     gx, gy = np.meshgrid(x, y, indexing="ij")
     for ax, (label, path, scale, log) in zip(axes, QUANTITIES, strict=True):
@@ -200,15 +206,15 @@ def draw_results_2d(fig, keys: tuple[str, str], values: tuple[tuple, tuple], rec
             z = np.log10(np.where(z > 0, z, np.nan))
             label = f"log10 {label}"
         mesh = ax.pcolormesh(x, y, z.T, shading="nearest")
-        fig.colorbar(mesh, ax=ax, label=label)
+        fig.colorbar(mesh, ax=ax, label=textwrap.fill(label, 20))
         ax.plot(gx[outside], gy[outside], "x", color="C3", ms=8)
         ax.plot(gx[void], gy[void], "o", mfc="none", color="0.6", ms=8)
         if xlabels:
             ax.set_xticks(x, xlabels)
         if ylabels:
             ax.set_yticks(y, ylabels)
-        ax.set_ylabel(keys[1])
-    axes[-1].set_xlabel(keys[0])
+        ax.set_ylabel(key_label(keys[1]))
+    axes[-1].set_xlabel(key_label(keys[0]))
     note = void_note(records)
     axes[0].set_title("Scan results (x: beyond a modelled limit)"
                       + (f"\n{note}" if note else ""), fontsize="small" if note else None)

@@ -67,7 +67,8 @@ def test_simulate_writes_time_domain_arrays(tmp_path):
                                    "detector_thickness_mm = 0.2\nbeam_waist_um = 2000.0")
                       .replace("energy_uj = 300.0", "energy_uj = 300.0\nrepetition_khz = 1.0"))
     out = tmp_path / "out"
-    assert main(["simulate", str(config), "--out", str(out), "--quiet"]) == 0
+    assert main(["simulate", str(config), "--out", str(out), "--quiet", "--figures",
+                 "default,thz_waveform"]) == 0
     fields = np.load(out / "fields.npz")
     for key in ("thz_time_s", "thz_field_v_per_m", "eo_delay_s", "eo_signal"):
         assert key in fields.files

@@ -521,8 +521,9 @@ def test_plots_draw_and_return_axes():
     pm_map = phase_matching_map(gap, np.linspace(0.8e-6, 1.6e-6, 9), np.linspace(0.1e12, 5e12, 20))
     fig, axes = plt.subplots(2, 2)
     assert plot_thz_spectrum(axes[0, 0], result) is axes[0, 0]
-    # the figure states the cutoff definition used (in the title; the legend has the value)
-    assert result.cutoff_definition in axes[0, 0].get_title()
+    # the figure states the cutoff definition used (in the title, wrapped over lines; the
+    # legend has the value)
+    assert result.cutoff_definition in " ".join(axes[0, 0].get_title().split())
     labels = [t.get_text() for t in axes[0, 0].get_legend().get_texts()]
     assert any("cutoff" in label for label in labels)
     assert plot_phase_matching_map(axes[0, 1], pm_map) is axes[0, 1]

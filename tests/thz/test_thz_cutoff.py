@@ -134,7 +134,7 @@ def test_figure_shades_beyond_the_model():
     result = thz_estimate(grid, spectrum, ThzSetup(load_crystal("znte"), 0.2e-3))
     fig, ax = plt.subplots()
     plot_thz_spectrum(ax, result)
-    labels = [t.get_text() for t in ax.get_legend().get_texts()]
+    labels = [" ".join(t.get_text().split()) for t in ax.get_legend().get_texts()]
     assert "beyond the crystal model (> 4.5 THz)" in labels
     assert not any(label.startswith("cutoff") for label in labels)
     assert "above the model's range (> 4.5 THz)" in ax.get_title()
