@@ -154,10 +154,14 @@ def test_bad_config_argument_is_a_config_error():
 def test_limits_are_the_cli_json(fast, capsys):
     _, config, _ = fast
     assert main(["limits", str(config), "--json"]) == 0
-    assert json.loads(capsys.readouterr().out) == hcfplan.api.limits(config)
+    cli = json.loads(capsys.readouterr().out)
+    assert cli == hcfplan.api.limits(config)
     from hcfplan.limits.cautions import caution_lines  # the physics package keeps its name
 
-    assert caution_lines() and not callable(sys.modules["hcfplan"].limits)
+    assert caution_lines() and hcfplan.limits.beam.self_focusing_power  # its modules stay
+    assert hcfplan.limits(config) == cli  # and called, it is the limits report of a config
+    with pytest.raises(ConfigError, match="gas.pressure_bar"):
+        hcfplan.limits(config, {"gas.pressure_bar": -1})
 
 
 def test_scan_table_matches_the_points(fast, tmp_path):
