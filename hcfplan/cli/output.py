@@ -301,8 +301,13 @@ def print_simulation(s: dict, out_dir: Path) -> None:
     if grid.get("refinements"):
         echo(f"grid refined {grid['refinements']}x ({'; then '.join(grid['refinement_reasons'])})")
     print_verdict(verdict)
-    echo(f"\nWritten to {out_dir}/: summary.json, fields.npz"
-         + (" and figures" if any(out_dir.glob("*.png")) else ""))
+    written = ["summary.json", "fields.npz"]
+    figures = len(list(out_dir.glob("*.png")))
+    if figures:
+        written.append(f"{figures} figure{'s' if figures > 1 else ''}")
+    if (out_dir / "report.html").exists():
+        written.append("report.html")
+    echo(f"\nWritten to {out_dir}/: {', '.join(written)}")
     print_spread(s)
     limits = _flat_limits(s["limits"]) if "limits" in s else None
     if limits is not None:
