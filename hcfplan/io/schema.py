@@ -224,8 +224,9 @@ SCHEMA: dict[str, dict[str, Key]] = {
         "window_distance_m": Key(F, None, "Fiber exit to exit window distance (beam size at "
                                  "the window); default: 0.3 m.", 0.0, 100.0),
         "entrance_gas_path_m": Key(F, None, "Gas path from the entrance window to the fiber "
-                                   "(static fill); default: two Rayleigh ranges.", 0.0, 100.0,
-                                   low_open=False),
+                                   "(static fill), also the entrance window's distance from "
+                                   "the focus; default: two Rayleigh ranges for the gas path, "
+                                   "0.3 m for the window.", 0.0, 100.0, low_open=False),
         "b_integral_limit_rad": Key(F, 1.0, "B-integral treated as the limit in the exit "
                                     "window.", 0.0, 100.0),
         "cladding_damage_fluence_j_per_cm2": Key(F, None, "Damage fluence of the fiber glass "

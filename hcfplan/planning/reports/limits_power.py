@@ -28,6 +28,11 @@ SOURCES = {
 }
 
 
+#: Entrance window to fiber entrance distance when limits.entrance_gas_path_m is not given: the
+#: exit window's default distance (common practice, no source). [m]
+DEFAULT_ENTRANCE_WINDOW_DISTANCE = 0.3
+
+
 def _stretch_factor(gdd: float, duration_fwhm: float) -> float:
     """FWHM after a GDD over the transform-limited FWHM of a Gaussian pulse,
     sqrt(1 + (4 ln2 GDD / tau^2)^2) (G. P. Agrawal, Nonlinear Fiber Optics, ch. 3 [from
@@ -56,8 +61,10 @@ def entrance_window_part(s) -> tuple[dict, list, list]:
         why = "no launch model (Taylor fiber): the beam size at the entrance window is unknown"
         return values, [not_checked(name, "rad", why, SOURCES["b_integral"], ratio="limit/B")], []
     w0 = s.beam_waist
-    rayleigh = math.pi * w0**2 / laser.wavelength
-    path = lim.entrance_gas_path if lim.entrance_gas_path is not None else 2 * rayleigh
+    # the window sits at the start of the entrance gas path; without that key the distance of
+    # the exit window's default (a window millimetres from a focus would not be built)
+    path = (lim.entrance_gas_path if lim.entrance_gas_path is not None
+            else DEFAULT_ENTRANCE_WINDOW_DISTANCE)
     radius = limits.gaussian_beam_radius(w0, laser.wavelength, path)
     power = s.peak_power_full / transmission  # before the window's loss
     intensity = limits.gaussian_peak_intensity(power, radius)
@@ -69,7 +76,8 @@ def entrance_window_part(s) -> tuple[dict, list, list]:
                    "limits.entrance_window.peak_intensity_w_per_m2": intensity,
                    "limits.entrance_window.n2_m2_per_w": n2,
                    "limits.entrance_window.b_integral_rad": b})
-    default = "" if lim.entrance_gas_path is not None else " (default: two Rayleigh ranges)"
+    default = ("" if lim.entrance_gas_path is not None
+               else " (default; set limits.entrance_gas_path_m for the cell's distance)")
     assumption = (f"Gaussian beam converging to the waist {w0 * 1e6:.4g} um at the fiber "
                   f"entrance, window {path:.4g} m before it{default}; transform-limited input "
                   "peak power before the window")
