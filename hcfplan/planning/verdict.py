@@ -41,6 +41,11 @@ code                           status    voids
                                          (THz peak or cutoff beyond the crystal model's
                                          validity, or a cutoff the THz estimate already left
                                          out for that reason; the rest of the result stands)
+``thz_crystal_limit``          caution   nothing (pump fluence on the THz crystal above the
+                                         limit that binds, ``thz.binding_limit``: damage,
+                                         two-photon or free-carrier absorption; the energy,
+                                         efficiency and peak field ignore the last two, so
+                                         they are upper bounds, and the message says so)
 ``main_lobe_below_half``       caution   nothing (main lobe below half the compressed energy)
 ``extrapolated_data``          caution   nothing (a material fit is used outside its range
                                          where the output spectrum carries light)
@@ -57,7 +62,8 @@ give for the setup — the model fails at the pump (resonance, self-focusing col
 rates beyond barrier suppression), the grid does not hold or resolve the light, the solver
 stopped, or no light is left. It is a *caution* when the numbers stand as computed but one
 void number is left out (the THz cutoff beyond the crystal model), a number needs reading with
-care (a spike on a pedestal) or rests on a fit used beyond its stated range. A verdict judges
+care (a spike on a pedestal, THz figures past the crystal's fluence limit) or rests on a fit
+used beyond its stated range. A verdict judges
 the numbers, never the setup: "valid" does not call an operating point safe.
 
 Entry points: :func:`verdict_fields` (from a ChainResult and its flat summary; called by
@@ -80,7 +86,11 @@ from typing import Any
 from hcfplan.planning.convergence import EDGE_ENERGY_LIMIT, EDGE_LEVEL_DB, MIN_POINTS_PER_FWHM
 from hcfplan.planning.thz_range import THZ_ABSOLUTE_RESULTS, THZ_ABSOLUTE_SETTINGS
 from hcfplan.planning.verdict_reasons import Reason, first_number, number
-from hcfplan.planning.verdict_thz import check_thz_model, crystal_model_limit
+from hcfplan.planning.verdict_thz import (
+    check_crystal_limit,
+    check_thz_model,
+    crystal_model_limit,
+)
 
 #: Verdict statuses from best to worst.
 STATUSES = ("valid", "caution", "invalid")
@@ -173,6 +183,9 @@ CODES: dict[str, Code] = {
                              "of the shortest pulse"),
     "thz_beyond_crystal_model": Code("caution", THZ_CUTOFF_FIELDS,
                                      "THz cutoff or band beyond the crystal model's validity"),
+    "thz_crystal_limit": Code("caution", (),
+                              "pump fluence on the THz crystal above its binding limit "
+                              "(damage, two-photon or free-carrier absorption)"),
     "main_lobe_below_half": Code("caution", (),
                                  f"main lobe below {MAIN_LOBE_FLOOR:.0%} of the compressed "
                                  "energy"),
@@ -383,8 +396,8 @@ def _check_extrapolated(flat: dict, measured: dict) -> list[Reason]:
 #: The checks in the order their reasons are listed: the physical causes before the numerical
 #: ones (without light at the fiber end, the grid checks see only numerical noise).
 CHECKS = (_check_run, _check_transmission, _check_resonance, _check_self_focusing,
-          _check_barrier, _check_convergence, check_thz_model, _check_main_lobe,
-          _check_extrapolated)
+          _check_barrier, _check_convergence, check_thz_model, check_crystal_limit,
+          _check_main_lobe, _check_extrapolated)
 
 
 def _verdict(flat: dict, measured: dict) -> Verdict:
@@ -468,8 +481,9 @@ def verdict_of_thz_report(report: dict, detector: bool | None = None) -> Verdict
     """The verdict of a THz estimate from a measured spectrum (the ``thz`` command's report:
     unprefixed keys ``crystal``, ``peak_hz``, ``cutoff_hz``, ``model_limit_hz``, ...).
 
-    Only the THz check applies (there is no fiber run): ``thz_beyond_crystal_model`` when the
-    cutoff is left out or lies beyond the crystal model. ``void_fields`` names the report's own
+    Only the THz checks apply (there is no fiber run): ``thz_beyond_crystal_model`` when the
+    cutoff is left out or lies beyond the crystal model, ``thz_crystal_limit`` when the pump
+    fluence (``--energy-uj`` with a beam radius) exceeds the crystal's binding limit. ``void_fields`` names the report's own
     keys (e.g. ``cutoff_hz``). ``detector``: whether an EO detector was given (default: a
     detected number is present); without one the ``detected_*`` keys are no results at all.
     """
@@ -480,7 +494,8 @@ def verdict_of_thz_report(report: dict, detector: bool | None = None) -> Verdict
             if not isinstance(v, (dict, list)) and k != "verdict"
             and (detector or not k.startswith("detected_"))}
     measured = {"thz_model_limit_hz": report.get("model_limit_hz")}
-    verdict = verdict_from_reasons(check_thz_model(flat, measured), flat)
+    verdict = verdict_from_reasons(check_thz_model(flat, measured)
+                                   + check_crystal_limit(flat, measured), flat)
     return Verdict(verdict.status, verdict.reasons,
                    tuple(k.removeprefix("thz.") for k in verdict.void_fields))
 
