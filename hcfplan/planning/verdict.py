@@ -483,9 +483,10 @@ def verdict_of_thz_report(report: dict, detector: bool | None = None) -> Verdict
 
     Only the THz checks apply (there is no fiber run): ``thz_beyond_crystal_model`` when the
     cutoff is left out or lies beyond the crystal model, ``thz_crystal_limit`` when the pump
-    fluence (``--energy-uj`` with a beam radius) exceeds the crystal's binding limit. ``void_fields`` names the report's own
-    keys (e.g. ``cutoff_hz``). ``detector``: whether an EO detector was given (default: a
-    detected number is present); without one the ``detected_*`` keys are no results at all.
+    fluence (``--energy-uj`` with a beam radius) exceeds the crystal's binding limit.
+    ``void_fields`` names the report's own keys (e.g. ``cutoff_hz``). ``detector``: whether an
+    EO detector was given (default: a detected number is present); without one the
+    ``detected_*`` keys are no results at all.
     """
     if detector is None:
         detector = any(report.get(k) is not None
