@@ -122,7 +122,7 @@ def _contours(ax, p, e, result, which: str) -> None:
                     label="compressed FWHM, SPM-only estimate (fs)")
     if which in ("cutoff", "both"):
         # the thin-crystal estimate has no geometry: say so for a tilted front
-        tilted = ("; no tilted front in it"
+        tilted = ("\n(thin crystal: no tilted front in it)"
                   if getattr(result, "thz_geometry", "collinear") == "tilted_front" else "")
         values = np.asarray(result.thz_cutoff) * THZ
         limit = result.thz_model_limit * THZ
