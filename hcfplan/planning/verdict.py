@@ -527,7 +527,8 @@ def measured_of_chain(chain) -> dict:
             notes = range_notes(config, chain.medium, band, "the output spectrum at -40 dB")
     measured["extrapolated"] = notes
     if chain.thz is not None:
-        measured["thz_model_limit_hz"] = crystal_model_limit(config.thz.crystal)
+        measured["thz_model_limit_hz"] = crystal_model_limit(config.thz.crystal,
+                                                             config.thz.table_dirs)
     return measured
 
 

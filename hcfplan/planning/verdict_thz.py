@@ -60,16 +60,17 @@ def check_thz_model(flat: dict, measured: dict) -> list[Reason]:
                    f"({limit / 1e12:.3g} THz): the cutoff is void")]
 
 
-def crystal_model_limit(name) -> float | None:
-    """Upper validity frequency of the THz model of a crystal table (shipped or on the user's
-    crystal path), or None when no table of that name loads. [Hz]"""
+def crystal_model_limit(name, search_dirs=()) -> float | None:
+    """Upper validity frequency of the THz model of a crystal table (in ``search_dirs``, the
+    user's crystal path or the shipped tables), or None when no table of that name loads.
+    [Hz]"""
     if not isinstance(name, str):
         return None
     from hcfplan.errors import HcfplanError
     from hcfplan.materials import crystals
 
     try:
-        return float(crystals.load_crystal(name).thz.frequency_max)
+        return float(crystals.load_crystal(name, search_dirs).thz.frequency_max)
     except HcfplanError:
         return None
 

@@ -74,3 +74,18 @@ def test_estimate_beyond_its_limit_reaches_the_verdict():
         if expected == "caution":
             assert verdict.codes == ("thz_crystal_limit",)
             assert f"({result.crystal_limits.binding})" in verdict.reasons[0].message
+
+
+def test_model_limit_of_a_user_crystal_in_its_folder(tmp_path, monkeypatch):
+    """The verdict reads the model range of a crystal in thz.table_dir (its search folders)."""
+    from pathlib import Path
+
+    from hcfplan.planning.verdict_thz import crystal_model_limit
+
+    monkeypatch.delenv("HCFPLAN_CRYSTAL_PATH", raising=False)
+    shipped = Path(__file__).resolve().parents[2] / "hcfplan/materials/data/crystals/gap.toml"
+    text = shipped.read_text().replace('name = "GaP"', 'name = "MyGaP"')
+    (tmp_path / "mygap.toml").write_text(text.replace("valid_max_thz = 20.0",
+                                                      "valid_max_thz = 7.0"))
+    assert crystal_model_limit("MyGaP") is None
+    assert crystal_model_limit("MyGaP", (tmp_path,)) == pytest.approx(7e12)
