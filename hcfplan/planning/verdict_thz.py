@@ -96,5 +96,15 @@ def check_crystal_limit(flat: dict, measured: dict) -> list[Reason]:
                    f"{name} {limit * 1e-4:.3g} J/cm^2 ({1 / margin:.3g}x)")
     else:
         numbers = f"pump fluence on {crystal} is {1 / margin:.3g}x its {name}"
+    exceeded = [n for n, (k, _) in LIMIT_KEYS.items()
+                if fluence is not None and (v := number(flat, k)) is not None and v < fluence]
+    consequences = [LIMIT_CONSEQUENCES[binding]]
+    absorption = [n for n in exceeded if n != binding and n != "damage"]
+    if binding == "damage" and absorption:  # the figures do not stand: say why
+        consequences = [LIMIT_CONSEQUENCES["damage"].split(";")[0],
+                        f"also above its {LIMIT_KEYS[absorption[0]][1]}: "
+                        + LIMIT_CONSEQUENCES[absorption[0]].split(", which")[0]
+                        + ", which the estimate leaves out: THz energy, efficiency and peak "
+                        "field are upper bounds"]
     return [Reason("thz_crystal_limit",
-                   f"{numbers}, the limit that binds ({binding}): {LIMIT_CONSEQUENCES[binding]}")]
+                   f"{numbers}, the limit that binds ({binding}): " + "; ".join(consequences))]

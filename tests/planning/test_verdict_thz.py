@@ -89,3 +89,18 @@ def test_model_limit_of_a_user_crystal_in_its_folder(tmp_path, monkeypatch):
                                                       "valid_max_thz = 7.0"))
     assert crystal_model_limit("MyGaP") is None
     assert crystal_model_limit("MyGaP", (tmp_path,)) == pytest.approx(7e12)
+
+
+def test_damage_binding_with_an_absorption_limit_also_exceeded():
+    """Damage binds, but the fluence is above the free-carrier limit too: the figures are then
+    upper bounds, and the message says so instead of "stand as computed"."""
+    flat = BEYOND | {"thz.damage_fluence_j_per_m2": 5.0, "thz.binding_limit": "damage",
+                     "thz.crystal_fluence_margin": 0.125}
+    message = verdict_of_summary(flat).reasons[0].message
+    assert "(damage)" in message and "maker's rating" in message
+    assert "also above its two-photon absorption limit" in message  # the first exceeded
+    assert "upper bounds" in message and "stand as computed" not in message
+    alone = BEYOND | {"thz.damage_fluence_j_per_m2": 5.0, "thz.binding_limit": "damage",
+                      "thz.crystal_fluence_margin": 0.125, "thz.pump_fluence_j_per_m2": 8.0,
+                      "thz.free_carrier_fluence_j_per_m2": 10.0}
+    assert "stand as computed" in verdict_of_summary(alone).reasons[0].message
