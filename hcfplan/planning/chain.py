@@ -304,9 +304,11 @@ PM_MAP_MIN_FREQUENCY = 5e12
 
 
 def phase_matching_output(config, thz):
-    """Coherence length of the generation crystal over pump wavelength and THz frequency."""
+    """Coherence length of the generation crystal over pump wavelength and THz frequency (for
+    a tilted front at the run's fixed tilt)."""
     from hcfplan.materials import crystals
     from hcfplan.thz.detection import phase_matching_map
+    from hcfplan.thz.tilted import tilted_phase_matching_map
 
     lam0 = config.laser.wavelength
     wavelengths = np.linspace(PM_MAP_WAVELENGTH_SPAN[0] * lam0, PM_MAP_WAVELENGTH_SPAN[1] * lam0,
@@ -314,8 +316,10 @@ def phase_matching_output(config, thz):
     peak = thz.peak_frequency if thz.peak_frequency is not None else thz.model_limit
     f_max = max(min(2.0 * thz.cutoff_computed, PM_MAP_PEAK_MULTIPLE * peak), PM_MAP_MIN_FREQUENCY)
     frequency = np.linspace(f_max / PM_MAP_POINTS[1], f_max, PM_MAP_POINTS[1])
-    return phase_matching_map(crystals.load_crystal(config.thz.crystal, config.thz.table_dirs),
-                              wavelengths, frequency)
+    crystal = crystals.load_crystal(config.thz.crystal, config.thz.table_dirs)
+    if thz.geometry == "tilted_front" and thz.tilt_angle is not None:
+        return tilted_phase_matching_map(crystal, wavelengths, frequency, thz.tilt_angle)
+    return phase_matching_map(crystal, wavelengths, frequency)
 
 
 # ---------------------------------------------------------------------------------------------

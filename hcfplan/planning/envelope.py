@@ -71,8 +71,8 @@ RATING_OVERSHOOT = 1.2
 BETA2_REL_WIDTH = 1e-2
 #: Chebyshev nodes at which a mixture's density is evaluated along the pressure axis.
 MIXTURE_NODES = 16
-__all__ = ["ESTIMATE_KIND", "ESTIMATE_NOTE", "EnvelopeResult", "envelope_json",
-           "envelope_map", "thz_cutoff_gaussian_estimate", "thz_model_range"]
+__all__ = ["ESTIMATE_KIND", "ESTIMATE_NOTE", "TILTED_FRONT_NOTE", "EnvelopeResult",
+           "envelope_json", "envelope_map", "thz_cutoff_gaussian_estimate", "thz_model_range"]
 #: What the duration and THz contours are (JSON ``envelope.estimate_kind``).
 ESTIMATE_KIND = "spm_only"
 ESTIMATE_NOTE = ("SPM-only estimates: compressed duration = input FWHM / SPM broadening factor "
@@ -80,6 +80,13 @@ ESTIMATE_NOTE = ("SPM-only estimates: compressed duration = input FWHM / SPM bro
                  "plasma neglected; floored at one optical cycle); THz cutoff = that of a "
                  "perfectly compressed Gaussian of this duration in a thin crystal (no phase "
                  "mismatch, no phonon band, no detector)")
+
+#: Said of the THz contours when ``thz.geometry = "tilted_front"`` (JSON ``envelope.notes``,
+#: the figure's legend): the thin-crystal estimate has no geometry.
+TILTED_FRONT_NOTE = ("thz.geometry = tilted_front: the THz contours are the thin-crystal "
+                     "estimate, which has no geometry; the tilt, the interaction length across "
+                     "the pump beam and the crystal's THz absorption that set a tilted front's "
+                     "cutoff are not in them (simulate gives the tilted-front estimate)")
 
 
 def thz_cutoff_gaussian_estimate(duration_fwhm, level_db: float = -20.0,
@@ -153,6 +160,8 @@ class EnvelopeResult:
     #: upper end of the crystal model's THz range (generation ∩ detection crystal) [Hz]
     thz_model_limit: float = math.inf
     thz_model: str = ""  #: crystal(s) whose table sets ``thz_model_limit``, e.g. "GaP"
+    #: ``thz.geometry`` of the config; the contours do not depend on it (TILTED_FRONT_NOTE)
+    thz_geometry: str = "collinear"
     pressure_axis: str = "fill pressure"  #: what the pressures are (a gradient: exit pressure)
 
     def thz_cutoff_within_model(self) -> np.ndarray:
@@ -399,6 +408,8 @@ def _envelope_map(config, energies, pressures, points) -> EnvelopeResult:
         notes += (f"gradient fill: the pressure axis is the exit pressure, the entrance fixed at "
                   f"{config.gas.entrance_pressure / 1e5:.4g} bar; estimates at the profile's "
                   "mean pressure, the self-focusing line at the highest pressure in the fiber",)
+    if config.thz.geometry == "tilted_front":
+        notes += (TILTED_FRONT_NOTE,)
     if np.nanmax(cutoff) > thz_limit:
         notes += (f"THz cutoff estimates {beyond_model_text(thz_limit, thz_model)} are no "
                   "cutoffs of the model: not drawn as contours, null in the JSON",)
@@ -417,6 +428,7 @@ def _envelope_map(config, energies, pressures, points) -> EnvelopeResult:
         ionization_fraction_limit=lim.ionization_fraction_limit,
         thz_cutoff_db=config.thz.cutoff_db, thz_cutoff_quantity=config.thz.cutoff_quantity,
         notes=notes, thz_model_limit=thz_limit, thz_model=thz_model,
+        thz_geometry=config.thz.geometry,
         pressure_axis=("exit pressure (gradient, entrance fixed)" if config.gas.is_gradient
                        else "fill pressure"))
 
@@ -458,6 +470,7 @@ def envelope_json(result: EnvelopeResult, check=None) -> dict:
         "envelope.thz_cutoff_hz": _nested(result.thz_cutoff_within_model()),
         "envelope.thz_model_limit_hz": _maybe(result.thz_model_limit),
         "envelope.thz_model": result.thz_model or None,
+        "envelope.thz_geometry": result.thz_geometry,
         "envelope.thz_cutoff_note": (
             "null where the estimate lies "
             f"{beyond_model_text(result.thz_model_limit, result.thz_model)}: no cutoff of "

@@ -41,6 +41,11 @@ code                           status    voids
                                          (THz peak or cutoff beyond the crystal model's
                                          validity, or a cutoff the THz estimate already left
                                          out for that reason; the rest of the result stands)
+``thz_crystal_limit``          caution   nothing (pump fluence on the THz crystal above the
+                                         limit that binds, ``thz.binding_limit``: damage,
+                                         two-photon or free-carrier absorption; the energy,
+                                         efficiency and peak field ignore the last two, so
+                                         they are upper bounds, and the message says so)
 ``main_lobe_below_half``       caution   nothing (main lobe below half the compressed energy)
 ``extrapolated_data``          caution   nothing (a material fit is used outside its range
                                          where the output spectrum carries light)
@@ -57,7 +62,8 @@ give for the setup — the model fails at the pump (resonance, self-focusing col
 rates beyond barrier suppression), the grid does not hold or resolve the light, the solver
 stopped, or no light is left. It is a *caution* when the numbers stand as computed but one
 void number is left out (the THz cutoff beyond the crystal model), a number needs reading with
-care (a spike on a pedestal) or rests on a fit used beyond its stated range. A verdict judges
+care (a spike on a pedestal, THz figures past the crystal's fluence limit) or rests on a fit
+used beyond its stated range. A verdict judges
 the numbers, never the setup: "valid" does not call an operating point safe.
 
 Entry points: :func:`verdict_fields` (from a ChainResult and its flat summary; called by
@@ -79,6 +85,12 @@ from typing import Any
 
 from hcfplan.planning.convergence import EDGE_ENERGY_LIMIT, EDGE_LEVEL_DB, MIN_POINTS_PER_FWHM
 from hcfplan.planning.thz_range import THZ_ABSOLUTE_RESULTS, THZ_ABSOLUTE_SETTINGS
+from hcfplan.planning.verdict_reasons import Reason, first_number, number
+from hcfplan.planning.verdict_thz import (
+    check_crystal_limit,
+    check_thz_model,
+    crystal_model_limit,
+)
 
 #: Verdict statuses from best to worst.
 STATUSES = ("valid", "caution", "invalid")
@@ -171,29 +183,15 @@ CODES: dict[str, Code] = {
                              "of the shortest pulse"),
     "thz_beyond_crystal_model": Code("caution", THZ_CUTOFF_FIELDS,
                                      "THz cutoff or band beyond the crystal model's validity"),
+    "thz_crystal_limit": Code("caution", (),
+                              "pump fluence on the THz crystal above its binding limit "
+                              "(damage, two-photon or free-carrier absorption)"),
     "main_lobe_below_half": Code("caution", (),
                                  f"main lobe below {MAIN_LOBE_FLOOR:.0%} of the compressed "
                                  "energy"),
     "extrapolated_data": Code("caution", (),
                               "a material fit is used outside its range where there is light"),
 }
-
-
-@dataclass(frozen=True)
-class Reason:
-    """One finding: its code (a key of :data:`CODES`) and one line with the numbers."""
-
-    code: str
-    message: str
-
-    def as_dict(self) -> dict:
-        return {"code": self.code, "message": self.message}
-
-    @property
-    def short(self) -> str:
-        """The message up to its first ": " or "; " (the first numbers, without what follows
-        from them)."""
-        return self.message.partition(": ")[0].partition("; ")[0]
 
 
 @dataclass(frozen=True)
@@ -251,17 +249,6 @@ def flat_summary(summary: dict) -> dict:
     return out
 
 
-def _num(flat: dict, key: str) -> float | None:
-    value = flat.get(key)
-    if isinstance(value, bool) or not isinstance(value, (int, float)):
-        return None
-    return float(value) if math.isfinite(value) else None
-
-
-def _first(flat: dict, *keys: str) -> float | None:
-    return next((v for v in (_num(flat, k) for k in keys) if v is not None), None)
-
-
 # ---------------------------------------------------------------------------------------------
 # the checks: each takes the flat summary and the measured extras, returns reasons
 
@@ -316,7 +303,7 @@ def _check_convergence(flat: dict, measured: dict) -> list[Reason]:
 
 
 def _check_transmission(flat: dict, measured: dict) -> list[Reason]:
-    t = _num(flat, "fiber.transmission")
+    t = number(flat, "fiber.transmission")
     if t is None or t >= TRANSMISSION_FLOOR:
         return []
     return [Reason("no_transmission", f"fiber transmission {t:.2g} (below "
@@ -326,8 +313,8 @@ def _check_transmission(flat: dict, measured: dict) -> list[Reason]:
 def _check_resonance(flat: dict, measured: dict) -> list[Reason]:
     if flat.get("limits.fiber.pump_in_resonance_band") is not True:
         return []
-    distance = _num(flat, "limits.fiber.relative_distance_to_resonance")
-    pump = _num(measured, "pump_wavelength_m")
+    distance = number(flat, "limits.fiber.relative_distance_to_resonance")
+    pump = number(measured, "pump_wavelength_m")
     resonances = [r for r in flat.get("limits.fiber.resonance_wavelengths_m") or []
                   if isinstance(r, (int, float)) and r > 0]
     where = "a wall resonance"
@@ -341,8 +328,8 @@ def _check_resonance(flat: dict, measured: dict) -> list[Reason]:
 
 
 def _check_self_focusing(flat: dict, measured: dict) -> list[Reason]:
-    critical = _num(flat, "limits.self_focusing.critical_power_w")
-    power = _first(flat, "limits.static_fill.peak_power_w",
+    critical = number(flat, "limits.self_focusing.critical_power_w")
+    power = first_number(flat, "limits.static_fill.peak_power_w",
                    "limits.self_focusing.peak_power_input_w")
     if critical is None or power is None or power < critical:
         return []
@@ -353,8 +340,8 @@ def _check_self_focusing(flat: dict, measured: dict) -> list[Reason]:
 
 
 def _check_barrier(flat: dict, measured: dict) -> list[Reason]:
-    bsi = _num(flat, "limits.ionization.barrier_suppression_intensity_w_per_m2")
-    peak = _first(flat, "output.max_peak_intensity_w_per_m2",
+    bsi = number(flat, "limits.ionization.barrier_suppression_intensity_w_per_m2")
+    peak = first_number(flat, "output.max_peak_intensity_w_per_m2",
                   "limits.ionization.peak_intensity_in_fiber_w_per_m2",
                   "limits.ionization.peak_intensity_input_w_per_m2")
     if bsi is None or peak is None or peak <= bsi:
@@ -374,11 +361,11 @@ _DURATION_NAMES = {"compressed.fwhm_s": "compressed FWHM",
 def _under_sampled(flat: dict) -> tuple[float, dict[str, float]]:
     """``grid.dt_s`` and the FWHMs (:data:`UNRESOLVED_GROUPS` keys) spanning fewer than
     ``MIN_POINTS_PER_FWHM`` steps of it (none without a step)."""
-    dt = _num(flat, "grid.dt_s")
+    dt = number(flat, "grid.dt_s")
     if dt is None or dt <= 0:
         return math.nan, {}
     return dt, {k: f for k in UNRESOLVED_GROUPS
-                if (f := _num(flat, k)) is not None and 0 < f < MIN_POINTS_PER_FWHM * dt}
+                if (f := number(flat, k)) is not None and 0 < f < MIN_POINTS_PER_FWHM * dt}
 
 
 def _check_resolution(flat: dict, measured: dict) -> list[Reason]:
@@ -392,50 +379,8 @@ def _check_resolution(flat: dict, measured: dict) -> list[Reason]:
                    f"{MIN_POINTS_PER_FWHM:g} needed)")]
 
 
-def _check_thz(flat: dict, measured: dict) -> list[Reason]:
-    if "thz.crystal" not in flat:
-        return []
-    crystal = flat.get("thz.crystal")
-    limit_keys = [k for k in flat if k.startswith("thz.") and k.endswith("model_limit_hz")]
-    limit = _first(flat, *limit_keys)
-    if limit_keys and "thz.cutoff_hz" in flat and flat["thz.cutoff_hz"] is None:
-        shown = f" ({limit / 1e12:.3g} THz)" if limit is not None else ""
-        return [Reason("thz_beyond_crystal_model",
-                       f"THz cutoff not given: the spectrum reaches beyond the {crystal} model's "
-                       f"validity{shown}")]
-    if limit is None:
-        limit = _num(measured, "thz_model_limit_hz")
-    if limit is None:
-        limit = _crystal_limit(crystal)
-    if limit is None:
-        return []
-    beyond = [(name, v) for name, v in (("peak", _num(flat, "thz.peak_hz")),
-                                        ("cutoff", _num(flat, "thz.cutoff_hz")))
-              if v is not None and v > limit]
-    if not beyond:
-        return []
-    what = " and ".join(f"{name} {value / 1e12:.3g} THz" for name, value in beyond)
-    verb = "are" if len(beyond) > 1 else "is"
-    return [Reason("thz_beyond_crystal_model",
-                   f"THz {what} {verb} beyond the {crystal} model's validity "
-                   f"({limit / 1e12:.3g} THz): the cutoff is void")]
-
-
-def _crystal_limit(name) -> float | None:
-    """Upper validity frequency of the THz model of a shipped crystal table. [Hz]"""
-    if not isinstance(name, str):
-        return None
-    from hcfplan.errors import HcfplanError
-    from hcfplan.materials import crystals
-
-    try:
-        return float(crystals.load_crystal(name).thz.frequency_max)
-    except HcfplanError:
-        return None
-
-
 def _check_main_lobe(flat: dict, measured: dict) -> list[Reason]:
-    fraction = _num(flat, "compressed.main_lobe_energy_fraction")
+    fraction = number(flat, "compressed.main_lobe_energy_fraction")
     if fraction is None or fraction >= MAIN_LOBE_FLOOR:
         return []
     return [Reason("main_lobe_below_half",
@@ -451,7 +396,8 @@ def _check_extrapolated(flat: dict, measured: dict) -> list[Reason]:
 #: The checks in the order their reasons are listed: the physical causes before the numerical
 #: ones (without light at the fiber end, the grid checks see only numerical noise).
 CHECKS = (_check_run, _check_transmission, _check_resonance, _check_self_focusing,
-          _check_barrier, _check_convergence, _check_thz, _check_main_lobe, _check_extrapolated)
+          _check_barrier, _check_convergence, check_thz_model, check_crystal_limit,
+          _check_main_lobe, _check_extrapolated)
 
 
 def _verdict(flat: dict, measured: dict) -> Verdict:
@@ -535,10 +481,12 @@ def verdict_of_thz_report(report: dict, detector: bool | None = None) -> Verdict
     """The verdict of a THz estimate from a measured spectrum (the ``thz`` command's report:
     unprefixed keys ``crystal``, ``peak_hz``, ``cutoff_hz``, ``model_limit_hz``, ...).
 
-    Only the THz check applies (there is no fiber run): ``thz_beyond_crystal_model`` when the
-    cutoff is left out or lies beyond the crystal model. ``void_fields`` names the report's own
-    keys (e.g. ``cutoff_hz``). ``detector``: whether an EO detector was given (default: a
-    detected number is present); without one the ``detected_*`` keys are no results at all.
+    Only the THz checks apply (there is no fiber run): ``thz_beyond_crystal_model`` when the
+    cutoff is left out or lies beyond the crystal model, ``thz_crystal_limit`` when the pump
+    fluence (``--energy-uj`` with a beam radius) exceeds the crystal's binding limit.
+    ``void_fields`` names the report's own keys (e.g. ``cutoff_hz``). ``detector``: whether an
+    EO detector was given (default: a detected number is present); without one the
+    ``detected_*`` keys are no results at all.
     """
     if detector is None:
         detector = any(report.get(k) is not None
@@ -547,7 +495,8 @@ def verdict_of_thz_report(report: dict, detector: bool | None = None) -> Verdict
             if not isinstance(v, (dict, list)) and k != "verdict"
             and (detector or not k.startswith("detected_"))}
     measured = {"thz_model_limit_hz": report.get("model_limit_hz")}
-    verdict = verdict_from_reasons(_check_thz(flat, measured), flat)
+    verdict = verdict_from_reasons(check_thz_model(flat, measured)
+                                   + check_crystal_limit(flat, measured), flat)
     return Verdict(verdict.status, verdict.reasons,
                    tuple(k.removeprefix("thz.") for k in verdict.void_fields))
 
@@ -578,7 +527,8 @@ def measured_of_chain(chain) -> dict:
             notes = range_notes(config, chain.medium, band, "the output spectrum at -40 dB")
     measured["extrapolated"] = notes
     if chain.thz is not None:
-        measured["thz_model_limit_hz"] = _crystal_limit(config.thz.crystal)
+        measured["thz_model_limit_hz"] = crystal_model_limit(config.thz.crystal,
+                                                             config.thz.table_dirs)
     return measured
 
 

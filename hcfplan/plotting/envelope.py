@@ -121,6 +121,9 @@ def _contours(ax, p, e, result, which: str) -> None:
             ax.plot([], [], color="0.35", lw=0.8,
                     label="compressed FWHM, SPM-only estimate (fs)")
     if which in ("cutoff", "both"):
+        # the thin-crystal estimate has no geometry: say so for a tilted front
+        tilted = ("\n(thin crystal: no tilted front in it)"
+                  if getattr(result, "thz_geometry", "collinear") == "tilted_front" else "")
         values = np.asarray(result.thz_cutoff) * THZ
         limit = result.thz_model_limit * THZ
         levels = [v for v in _levels(values, CUTOFF_LEVELS_THZ) if v < limit]
@@ -129,11 +132,11 @@ def _contours(ax, p, e, result, which: str) -> None:
                             linestyles=":")
             ax.clabel(cs, fmt="%g THz (SPM-only)", fontsize="x-small")
             ax.plot([], [], color="C2", lw=0.8, ls=":",
-                    label="THz cutoff, SPM-only thin-crystal estimate (THz)")
-        _beyond_model(ax, p, e, values, limit, result.thz_model)
+                    label=f"THz cutoff, SPM-only thin-crystal estimate (THz){tilted}")
+        _beyond_model(ax, p, e, values, limit, result.thz_model, tilted)
 
 
-def _beyond_model(ax, p, e, values, limit: float, model: str) -> None:
+def _beyond_model(ax, p, e, values, limit: float, model: str, suffix: str = "") -> None:
     """Hatch the map where the THz cutoff estimate lies above the crystal model's range: no
     cutoff contour is drawn there (the model says nothing about those frequencies)."""
     finite = values[np.isfinite(values)]
@@ -150,7 +153,7 @@ def _beyond_model(ax, p, e, values, limit: float, model: str) -> None:
         ax.clabel(cs, fmt=f"%g THz: {model or 'crystal'} model limit", fontsize="x-small")
     ax.fill_between([], [], [], facecolor="none", edgecolor="0.45", hatch="x", lw=0,
                     label=f"THz cutoff estimate beyond {owner} (> {limit:.3g} THz): "
-                          "no cutoff drawn")
+                          f"no cutoff drawn{suffix}")
 
 
 def _check_title(check) -> str:

@@ -146,7 +146,10 @@ def plot_phase_matching_map(ax: Any, pm_map: Any, *, max_length: float | None = 
     ax.set_xlim(lo, hi)
     ax.set_xlabel("THz frequency (THz)")
     ax.set_ylabel("Pump wavelength (nm)")
-    ax.set_title(f"{pm_map.crystal}: velocity matching"
+    geometry = getattr(pm_map, "geometry", "collinear")
+    how = ("collinear" if geometry != "tilted_front" else
+           f"tilted front at {np.degrees(pm_map.tilt):.1f} deg")
+    ax.set_title(f"{pm_map.crystal}: velocity matching, {how}"
                  + (" (hatched: beyond the crystal model)" if model_limit is not None
                     and model_limit * 1e-12 < hi else ""), fontsize="small")
     return ax

@@ -228,12 +228,18 @@ def eo_response(
 
 @dataclass(frozen=True)
 class PhaseMatchingMap:
-    """Coherence length [m] on (pump wavelength [m]) x (THz frequency [Hz]) for one crystal."""
+    """Coherence length [m] on (pump wavelength [m]) x (THz frequency [Hz]) for one crystal.
+
+    ``geometry`` is "collinear" or "tilted_front"; for the tilted front, ``tilt`` [rad] is the
+    fixed pulse-front tilt of the map (:func:`hcfplan.thz.tilted.tilted_phase_matching_map`).
+    """
 
     crystal: str
     pump_wavelength: np.ndarray
     frequency: np.ndarray
     coherence_length: np.ndarray
+    geometry: str = "collinear"
+    tilt: float | None = None
 
 
 def phase_matching_map(

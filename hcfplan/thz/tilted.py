@@ -41,7 +41,11 @@ import numpy as np
 from hcfplan.constants import c
 from hcfplan.errors import ConfigError
 from hcfplan.materials.crystals import CrystalTable, optical_group_index, thz_index
-from hcfplan.thz.detection import phase_matching_integral, spectral_autocorrelation
+from hcfplan.thz.detection import (
+    PhaseMatchingMap,
+    phase_matching_integral,
+    spectral_autocorrelation,
+)
 
 GeometryName = Literal["collinear", "tilted_front"]
 #: The generation geometries of the estimate.
@@ -168,6 +172,46 @@ def tilted_coherence_length(crystal: CrystalTable, omega_pump: float, tilt: floa
     nu = Omega / (2 * np.pi)
     with np.errstate(divide="ignore", invalid="ignore"):
         return np.where(mismatch * nu > 0, c / (2.0 * nu * mismatch), np.inf)
+
+
+def tilted_phase_matching_map(crystal: CrystalTable, pump_wavelength: np.ndarray,
+                              frequency: np.ndarray, tilt: float) -> PhaseMatchingMap:
+    """Coherence length of a tilted front of fixed tilt over pump wavelength and THz frequency.
+
+    c / (2 nu |n_g(lambda) / cos(gamma) - n_THz(nu)|) for each pump wavelength lambda and THz
+    frequency nu, with the tilt gamma held at the run's value (chosen for the pump centroid,
+    :func:`tilt_angle`): the map shows how far from the design wavelength and frequency a
+    given tilt stays velocity matched. (Re-choosing the tilt for each wavelength would match
+    every wavelength at :data:`DESIGN_FREQUENCY` and says nothing.)
+
+    Parameters
+    ----------
+    crystal : CrystalTable
+        Generation crystal.
+    pump_wavelength : ndarray
+        Pump vacuum wavelengths. [m]
+    frequency : ndarray
+        THz frequencies. [Hz]
+    tilt : float
+        Tilt angle gamma. [rad]
+
+    Returns
+    -------
+    PhaseMatchingMap
+        ``geometry = "tilted_front"``, ``tilt``; ``coherence_length`` of shape
+        (len(pump_wavelength), len(frequency)), ``inf`` where matched exactly. [m]
+
+    References
+    ----------
+    .. [1] J. Hebling, G. Almasi, I. Z. Kozma, J. Kuhl, Opt. Express 10, 1161 (2002).
+    """
+    pump_wavelength = np.asarray(pump_wavelength, dtype=float)
+    frequency = np.asarray(frequency, dtype=float)
+    Omega = 2 * np.pi * frequency
+    rows = [tilted_coherence_length(crystal, 2 * np.pi * c / lam, tilt, Omega)
+            for lam in pump_wavelength]
+    return PhaseMatchingMap(crystal.name, pump_wavelength, frequency, np.array(rows),
+                            geometry="tilted_front", tilt=float(tilt))
 
 
 def mixing_sum_tilted_front(band: np.ndarray, dnu: float, Omega: np.ndarray,
