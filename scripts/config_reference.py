@@ -11,6 +11,7 @@ import sys
 from pathlib import Path
 
 from hcfplan.io.schema import REQUIRED, SCHEMA
+from hcfplan.io.stages import STAGE_SECTIONS, STAGE_TABLE
 
 START, END = "<!-- config-reference:start -->", "<!-- config-reference:end -->"
 
@@ -23,8 +24,21 @@ def _default(key) -> str:
     return f"`{key.default}`".replace("True", "true").replace("False", "false")
 
 
+def _stages_note() -> list[str]:
+    """The paragraph on cascaded stages (``[[stage]]``) above the tables."""
+    sections = ", ".join(f"`[{s}]`" for s in STAGE_SECTIONS)
+    written = ", ".join(f"`[{STAGE_TABLE}.{s}]`" for s in STAGE_SECTIONS)
+    return ["", f"**[[{STAGE_TABLE}]]** (cascaded stages, optional): an array of tables, each "
+            f"holding the {sections} sections of one stage, written {written} after its "
+            f"`[[{STAGE_TABLE}]]` line, with the keys of the tables below; the other sections "
+            "hold for every stage. Without it the top-level sections are the one stage; both "
+            "forms in one file are refused. A key of one stage is "
+            f"`{STAGE_TABLE}.K.section.key` (K = 0, 1, ...) in `--set`, `--vary` and "
+            "messages. See \"Cascaded stages\" under \"Workflows\"."]
+
+
 def reference() -> str:
-    lines: list[str] = []
+    lines: list[str] = _stages_note()
     for section, keys in SCHEMA.items():
         lines += ["", f"**[{section}]**", "", "| key | type | default | meaning |",
                   "|---|---|---|---|"]

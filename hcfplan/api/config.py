@@ -130,7 +130,15 @@ def _raw_of(cfg) -> dict:
         from hcfplan.io.tomlio import read_toml
 
         return read_toml(cfg.source)
-    return {s: {k: v for k, v in t.items() if v is not None} for s, t in cfg.resolved.items()}
+    return {s: _set_keys(t) for s, t in cfg.resolved.items()}
+
+
+def _set_keys(table):
+    """A resolved table without its unset (None) keys; a list of stages (``stage``) item by
+    item."""
+    if isinstance(table, list):
+        return [{s: _set_keys(t) for s, t in item.items()} for item in table]
+    return {k: v for k, v in table.items() if v is not None}
 
 
 def as_config(config: ConfigLike, overrides=None):

@@ -236,6 +236,19 @@ def print_spread(s: dict) -> None:
         echo(f"  corner run failed: {failure}")
 
 
+def stage_rows(s: dict) -> list[tuple[str, str, str]]:
+    """One row per stage of a run with cascaded stages (the rows above are the final stage's):
+    energy in, compressed FWHM and energy, verdict."""
+    rows = []
+    for index, part in sorted(s.get("stages", {}).items(), key=lambda kv: int(kv[0])):
+        comp = part.get("compressed", {})
+        rows.append((f"stage {index}", f"in {fmt(part['input']['energy_j'], 1e-6)} uJ, "
+                     f"compressed {fmt(comp.get('fwhm_s'), 1e-15)} fs",
+                     f"{fmt(comp.get('energy_j'), 1e-6)} uJ, verdict "
+                     f"{part.get('verdict', {}).get('status')}"))
+    return rows
+
+
 def print_simulation(s: dict, out_dir: Path) -> None:
     """The headline of a run: every result number, or "void (code: message)" where the
     verdict voids it; the verdict with its reasons; one block of warnings; limits; cautions."""
@@ -296,6 +309,7 @@ def print_simulation(s: dict, out_dir: Path) -> None:
             rows.append(("detected THz cutoff", thz_shown(verdict, thz, "detected_cutoff_hz"),
                          "EO detection"))
         rows += thz_absolute_rows(thz)
+    rows += stage_rows(s)
     print_rows(rows)
     grid = s["grid"]
     if grid.get("refinements"):

@@ -15,6 +15,7 @@ Loading runs in four steps, each of which reports the first problem as one
 
 from __future__ import annotations
 
+from dataclasses import replace
 from pathlib import Path
 from typing import Any
 
@@ -22,7 +23,7 @@ import numpy as np
 
 from hcfplan import units
 from hcfplan.errors import ConfigError
-from hcfplan.io import crosschecks
+from hcfplan.io import crosschecks, stages
 from hcfplan.io.checks import describe, known_key, shown_keys, validate_raw
 from hcfplan.io.schema import REQUIRED_SECTIONS
 from hcfplan.io.specs import (
@@ -51,16 +52,23 @@ __all__ = ["CellSpec", "CompressorSpec", "FiberSpec", "GasSpec", "GridSpec", "La
 
 
 def parse_override(text: str) -> tuple[str, str, Any]:
-    """Split ``section.key=value`` into its parts and parse the value as TOML."""
+    """Split ``section.key=value`` into its parts and parse the value as TOML.
+
+    A key of one stage, ``stage.K.section.key=value``, returns the section as ``stage.K.section``.
+    """
     if "=" not in text:
         raise ConfigError(f"--set {text!r}: expected section.key=value")
     path, _, raw = text.partition("=")
     path = path.strip()
-    parts = path.split(".")
+    index, inner = stages.split_stage_path(path, "--set ")
+    parts = inner.split(".")
     if len(parts) != 2 or not all(parts):
-        raise ConfigError(f"--set {text!r}: the key path must be section.key, got {path!r}")
+        raise ConfigError(f"--set {text!r}: the key path must be section.key (or "
+                          f"stage.K.section.key), got {path!r}")
     section, key = (part.strip() for part in parts)
-    known_key(section, key, prefix="--set ")
+    known_key(section, key, prefix="--set " if index is None else f"--set stage.{index}.")
+    if index is not None:
+        section = stages.stage_label(index, section)
     try:
         value = parse_toml_value(raw)
     except ValueError as exc:
@@ -73,6 +81,11 @@ def apply_overrides(raw: dict[str, Any], overrides: list[str] | tuple[str, ...])
     data = {k: (dict(v) if isinstance(v, dict) else v) for k, v in raw.items()}
     for text in overrides:
         section, key, value = parse_override(text)
+        index, inner = stages.split_stage_path(section)
+        if index is not None:
+            stages.stage_override(data, index, inner, key, value)
+            continue
+        stages.refuse_top_level_stage_key(data, section, key)
         table = data.setdefault(section, {})
         if not isinstance(table, dict):
             raise ConfigError(f"--set {section}.{key}: [{section}] in the file is not a table")
@@ -298,6 +311,9 @@ def config_from_mapping(raw: dict[str, Any], *, base_dir: Path | str = ".",
                         overrides=(), extra_gas_dirs=(), source: Path | None = None) -> PlanConfig:
     """Validate a parsed TOML mapping (after ``overrides``) and build the SI specs."""
     data = apply_overrides(raw, list(overrides))
+    if stages.is_staged(data):
+        return _staged_config(data, base_dir=Path(base_dir), overrides=tuple(overrides),
+                              extra_gas_dirs=extra_gas_dirs, source=source)
     present = {s for s in data if isinstance(data[s], dict)}
     resolved = validate_raw(data)
     crosschecks.check_fiber(resolved)
@@ -309,6 +325,22 @@ def config_from_mapping(raw: dict[str, Any], *, base_dir: Path | str = ".",
              if s in present or s in REQUIRED_SECTIONS}
     return PlanConfig(**specs, resolved=shown, present_sections=tuple(sorted(present)),
                       source=source, overrides=tuple(overrides))
+
+
+def _staged_config(data: dict, *, base_dir: Path, overrides: tuple, extra_gas_dirs,
+                   source: Path | None) -> PlanConfig:
+    """A ``[[stage]]`` config: each stage built as a single-stage config (the shared sections
+    plus its own), returned as stage 0's config with ``stages`` holding all of them and
+    ``resolved`` the whole staged table."""
+    built = []
+    for index, mapping in enumerate(stages.stage_mappings(data)):
+        try:
+            built.append(config_from_mapping(mapping, base_dir=base_dir,
+                                             extra_gas_dirs=extra_gas_dirs, source=source))
+        except ConfigError as exc:
+            raise stages.prefixed_error(index, exc) from None
+    resolved = stages.staged_resolved(built[0].resolved, [c.resolved for c in built])
+    return replace(built[0], resolved=resolved, stages=tuple(built), overrides=overrides)
 
 
 def load_config(path: str | Path, overrides=(), extra_gas_dirs=()) -> PlanConfig:

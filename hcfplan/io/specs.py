@@ -213,3 +213,7 @@ class PlanConfig:
     present_sections: tuple[str, ...]
     source: Path | None = None
     overrides: tuple[str, ...] = field(default=())
+    #: cascaded stages (``[[stage]]``): one single-stage config per stage, in order; empty for
+    #: a single-stage config. A staged config's own specs are those of stage 0 and its
+    #: ``resolved`` holds the shared sections and ``stage`` (a list of the stage sections).
+    stages: tuple[PlanConfig, ...] = field(default=())

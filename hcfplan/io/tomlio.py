@@ -161,18 +161,32 @@ def dump_toml(data: dict[str, dict[str, Any]], comments: dict[str, str] | None =
     """Write a two-level mapping (sections of scalars/lists/inline tables) as TOML text.
 
     Values of ``None`` are written as comments (``# key = (not set)``) since TOML has no null.
+    A list of mappings of sections (``stage``) is written as an array of tables:
+    ``[[stage]]`` followed by ``[stage.fiber]``, ... for each item.
     """
     comments = comments or {}
     lines: list[str] = []
     for section, table in data.items():
+        if isinstance(table, list):  # an array of tables of sections ([[stage]])
+            for item in table:
+                lines += ["", f"[[{section}]]"] if lines else [f"[[{section}]]"]
+                for sub, sub_table in item.items():
+                    _table_lines(lines, f"{section}.{sub}", sub_table, {})
+            continue
         if lines:
             lines.append("")
-        lines.append(f"[{section}]")
-        for key, value in table.items():
-            note = comments.get(f"{section}.{key}")
-            suffix = f"  # {note}" if note else ""
-            if value is None:
-                lines.append(f"# {key} = (not set){suffix}")
-            else:
-                lines.append(f"{key} = {_format_value(value)}{suffix}")
+        _table_lines(lines, section, table, comments)
     return "\n".join(lines) + "\n"
+
+
+def _table_lines(lines: list[str], section: str, table: dict[str, Any],
+                 comments: dict[str, str]) -> None:
+    """Append ``[section]`` and its keys (None values as comments) to ``lines``."""
+    lines.append(f"[{section}]")
+    for key, value in table.items():
+        note = comments.get(f"{section}.{key}")
+        suffix = f"  # {note}" if note else ""
+        if value is None:
+            lines.append(f"# {key} = (not set){suffix}")
+        else:
+            lines.append(f"{key} = {_format_value(value)}{suffix}")

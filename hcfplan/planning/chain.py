@@ -59,6 +59,9 @@ class ChainResult:
     #: the convergence checks of the run and the grid refinements made
     #: (:class:`hcfplan.planning.convergence.Convergence`)
     convergence: Any = None
+    #: cascaded stages (:mod:`hcfplan.planning.stages`): the result of every stage run, in
+    #: order; this result is then the final stage's. Empty for a single-stage run.
+    stages: tuple = ()
 
 
 def _broadening_estimate(report: dict) -> float:
@@ -67,12 +70,17 @@ def _broadening_estimate(report: dict) -> float:
     return float(max(1.0, factor))
 
 
-def _input_field(config, grid, energy: float):
+def _input_field(config, grid, energy: float, given=None):
+    """The launched envelope on ``grid`` carrying ``energy``: ``given`` (an input field such
+    as :class:`hcfplan.planning.stages.HandoverField`, with ``on_grid(grid, energy)``), else
+    the measured spectrum or the analytic shape of ``[laser]``; then the entrance window."""
     from hcfplan.planning.hardware import with_entrance_window
     from hcfplan.pulse import fields as pulse
 
     laser = config.laser
-    if laser.spectrum is not None:  # read while the config was loaded
+    if given is not None:
+        field = given.on_grid(grid, energy)
+    elif laser.spectrum is not None:  # read while the config was loaded
         field = pulse.field_from_measured_spectrum(grid, laser.spectrum.wavelength,
                                                    laser.spectrum.values, energy, gdd=laser.gdd)
     else:
@@ -81,8 +89,15 @@ def _input_field(config, grid, energy: float):
 
 
 def run_chain(config, *, progress: Callable[[float, float, int], None] | None = None,
-              workers: int = 1) -> ChainResult:
+              workers: int = 1, input_field=None) -> ChainResult:
     """Run fiber -> compressor -> THz for a validated :class:`~hcfplan.io.config.PlanConfig`.
+
+    ``input_field`` replaces the pulse of ``[laser]`` at the fiber entrance (an object with
+    ``on_grid(grid, energy)`` returning the envelope and ``band``, the angular frequencies
+    the grid must hold, or None); its energy is ``laser.energy`` times the coupling
+    efficiency. A config with cascaded stages (``config.stages``) runs them in order
+    (:func:`hcfplan.planning.stages.run_stages`) and returns the final stage's result with
+    ``stages`` holding every stage's.
 
     Material fits are evaluated over the whole (broad) grid; their per-call range warnings are
     replaced by one range check against the -40 dB extent of the output spectrum
@@ -92,11 +107,15 @@ def run_chain(config, *, progress: Callable[[float, float, int], None] | None = 
     """
     from hcfplan.planning.convergence import refine_until_converged
 
+    if config.stages and input_field is None:
+        from hcfplan.planning.stages import run_staged
+
+        return run_staged(config, run_chain, progress=progress, workers=workers)
     caught: list[str] = []
 
     def run_once(grid):
         with collect_warnings() as lines, quiet_validity_of_materials():
-            chain = _run_chain(config, progress, workers, grid)
+            chain = _run_chain(config, progress, workers, grid, input_field)
         caught[:] = lines  # the warnings of the last run only
         return chain
 
@@ -125,16 +144,21 @@ def _grid_notes(chain: ChainResult, caught: list[str]) -> list[str]:
     return [w for w in caught if edge or not w.startswith("grid: the expected spectrum")]
 
 
-def _first_grid(config, report: dict, omega0: float):
-    """The grid of a run's first attempt: the broadening estimate and the dispersive wave."""
+def _first_grid(config, report: dict, omega0: float, given=None):
+    """The grid of a run's first attempt: the broadening estimate, the dispersive wave and
+    the band and duration of a given input field (:func:`~hcfplan.planning.stages.held`)."""
     from hcfplan.numerics.grid import choose_grid
     from hcfplan.planning.convergence import dispersive_wave_band
+    from hcfplan.planning.stages import held
 
-    return choose_grid(omega0, config.laser.duration_fwhm,
-                       broadening_factor=_broadening_estimate(report),
-                       band=dispersive_wave_band(report, omega0),
-                       points=config.grid.points, time_window=config.grid.time_window,
-                       center=_center_omega(config.grid.center_wavelength))
+    band, input_band = dispersive_wave_band(report, omega0), getattr(given, "band", None)
+    if input_band is not None:
+        band = input_band if band is None else (min(band[0], input_band[0]),
+                                                max(band[1], input_band[1]))
+    return held(config, given, choose_grid(
+        omega0, config.laser.duration_fwhm, broadening_factor=_broadening_estimate(report),
+        band=band, points=config.grid.points, time_window=config.grid.time_window,
+        center=_center_omega(config.grid.center_wavelength)))
 
 
 def _center_omega(wavelength: float | None) -> float | None:
@@ -142,7 +166,7 @@ def _center_omega(wavelength: float | None) -> float | None:
     return None if wavelength is None else 2 * math.pi * C_LIGHT / wavelength
 
 
-def _run_chain(config, progress, workers, grid=None) -> ChainResult:
+def _run_chain(config, progress, workers, grid=None, input_field=None) -> ChainResult:
     from hcfplan.planning.reports.fiber import fiber_report
     from hcfplan.propagation.options import SolverOptions
     from hcfplan.propagation.solve import propagate
@@ -157,8 +181,9 @@ def _run_chain(config, progress, workers, grid=None) -> ChainResult:
     efficiency, _, _ = coupling(config)
     energy = laser.energy * efficiency
     report = fiber_report(config)
-    grid = _first_grid(config, report, omega0) if grid is None else grid
-    field0 = _input_field(config, grid, energy)
+    if grid is None:
+        grid = _first_grid(config, report, omega0, input_field)
+    field0 = _input_field(config, grid, energy, input_field)
     peak_in = peak_power(field0)
     options = SolverOptions(rtol=config.grid.rtol, z_samples=config.grid.z_samples,
                             ionization_model=rate_model(config) if config.gas else None,
@@ -497,6 +522,10 @@ def summary_dict(chain: ChainResult) -> dict:
     from hcfplan.planning.verdict import verdict_fields
 
     summary.update(verdict_fields(chain, summary))
+    if chain.stages:  # stages.K.* of each stage (hcfplan.planning.stages)
+        from hcfplan.planning.stages import stage_summaries
+
+        return stage_summaries(chain, nest(summary), summary_dict)
     return nest(summary)
 
 
@@ -556,4 +585,8 @@ def field_arrays(chain: ChainResult) -> dict[str, np.ndarray]:
         from hcfplan.planning.reports.thz import chain_arrays
 
         arrays.update(chain_arrays(chain.config, thz))  # E(t), the focus, the EO waveform
+    if chain.stages:  # stage_K_* arrays of each stage (hcfplan.planning.stages)
+        from hcfplan.planning.stages import stage_arrays
+
+        arrays.update(stage_arrays(chain.stages))
     return arrays

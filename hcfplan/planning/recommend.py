@@ -28,6 +28,7 @@ from pathlib import Path
 from typing import Literal
 
 from hcfplan.errors import ConfigError
+from hcfplan.io.stages import split_stage_path, stage_label
 from hcfplan.planning import recommend_search as search
 from hcfplan.planning.recommend_points import (
     CRYSTAL_LIMITED_GOALS,
@@ -94,19 +95,40 @@ class Recommendation:
 
 def unit(key: str) -> str:
     """Display unit of a search key."""
-    return "bar" if key in PRESSURE_KEYS else "uJ"
+    return "bar" if is_pressure(key) else "uJ"
 
 
 def _si(key: str) -> float:
-    return 1e5 if key in PRESSURE_KEYS else 1e-6
+    return 1e5 if is_pressure(key) else 1e-6
+
+
+def is_pressure(key: str) -> bool:
+    """Whether a search key is a pressure (of the single stage or of a stage,
+    ``stage.K.gas.pressure_bar``)."""
+    return split_stage_path(key)[1] in PRESSURE_KEYS
+
+
+def stage_config(config, key: str):
+    """The config of the stage a search key belongs to (the config itself for a key without
+    ``stage.K.``, or a single-stage config)."""
+    index = split_stage_path(key)[0]
+    if index is None or not config.stages:
+        return config
+    if index >= len(config.stages):
+        raise ConfigError(f"--vary {key}: the config has {len(config.stages)} stages "
+                          f"(stage.0 to stage.{len(config.stages) - 1})")
+    return config.stages[index]
 
 
 def parse_range(text: str) -> tuple[str, tuple[float, float]]:
     """``section.key=LO:HI`` for one of :data:`SEARCH_KEYS`."""
     key, _, spec = text.partition("=")
     key = key.strip()
-    if key not in SEARCH_KEYS:
-        raise ConfigError(f"--vary {key!r}: recommend searches {' or '.join(SEARCH_KEYS)}")
+    index, inner = split_stage_path(key, "--vary ")
+    if inner not in SEARCH_KEYS or (index is not None and inner not in PRESSURE_KEYS):
+        raise ConfigError(f"--vary {key!r}: recommend searches {' or '.join(SEARCH_KEYS)} "
+                          "(of a config with stages: stage.K.gas.pressure_bar or "
+                          "stage.K.gas.exit_pressure_bar, or laser.energy_uj)")
     try:
         lo, hi = (float(x) for x in spec.split(":"))
     except ValueError:
@@ -123,7 +145,7 @@ def parse_ranges(texts: Sequence[str]) -> list[tuple[str, tuple[float, float]]]:
     out = [parse_range(t) for t in texts]
     if len(out) == 2 and out[0][0] == out[1][0]:
         raise ConfigError(f"--vary {out[0][0]}: the same key is given twice")
-    if len(out) == 2 and out[0][0] in PRESSURE_KEYS and out[1][0] in PRESSURE_KEYS:
+    if len(out) == 2 and is_pressure(out[0][0]) and is_pressure(out[1][0]):
         raise ConfigError(f"--vary {out[0][0]} and {out[1][0]}: give one pressure range and "
                           "one energy range")
     return out
@@ -144,7 +166,10 @@ def default_range(config) -> tuple[float, float]:
 
 def default_key(config) -> str:
     """The key searched when none is given: the fill pressure, or a gradient's exit pressure
-    (entrance fixed)."""
+    (entrance fixed); of a config with stages, that of the final stage."""
+    if config.stages:
+        final = config.stages[-1]
+        return stage_label(len(config.stages) - 1, default_key(final))
     return "gas.exit_pressure_bar" if config.gas.is_gradient else "gas.pressure_bar"
 
 
@@ -186,15 +211,18 @@ def analytic_bound(make_config, key: str, lo: float, hi: float) -> tuple[float, 
 
     ``make_config(value)`` returns the config at one value. Returns (bound, reason); the
     bound is below ``lo`` when the whole range is beyond a limit; reason "" when ``hi`` is
-    allowed.
+    allowed. A key of stage 1 or later has no input-side bound before a run (its input is
+    the previous stage's output): ``(hi, "")``; its runs are judged in full.
     """
     from hcfplan.planning.scan import limits_values
 
     config = make_config(lo)
+    if (split_stage_path(key)[0] or 0) > 0:  # its input is the run of the stage before
+        return hi, ""
     report = limits_values(config)
     lim, u, si = config.limits, unit(key), _si(key)
     candidates = [(hi, "")]
-    if key in PRESSURE_KEYS:  # a gradient: the highest pressure, its exit when rising
+    if is_pressure(key):  # a gradient: the highest pressure, its exit when rising
         sf = report.get("limits.self_focusing.max_pressure_pa")
     else:
         sf = report.get("limits.self_focusing.max_energy_j")
@@ -237,19 +265,21 @@ class _Setup:
 
 def _allowed(runner: PointRunner, setup: _Setup, config):
     """(allowed spans or None, bound reason, pressure cap [bar] or None)."""
-    cap = rating_cap(config)
     fraction = config.limits.rating_fraction
-    cap_reason = (f"{fraction:g} x the cell rating {config.cell.rated_pressure / 1e5:g} bar "
+    keyed = next((k for k, _ in setup.spans if is_pressure(k)), setup.spans[0][0])
+    cell = stage_config(config, keyed)
+    cap = rating_cap(cell)
+    cap_reason = (f"{fraction:g} x the cell rating {cell.cell.rated_pressure / 1e5:g} bar "
                   "(limits.rating_fraction)") if cap is not None else ""
     allowed, reasons = [], []
     for key, (lo, hi) in setup.spans:
         top = hi
-        if key in PRESSURE_KEYS and cap is not None and cap < hi:
+        if is_pressure(key) and cap is not None and cap < hi:
             top = cap
             reasons.append(f"{key} up to {cap:.4g} bar: {cap_reason}")
         allowed.append((lo, top))
-    top_fill = config.gas.highest_pressure / 1e5  # a gradient: its higher end
-    if not any(k in PRESSURE_KEYS for k, _ in setup.spans) and cap is not None \
+    top_fill = cell.gas.highest_pressure / 1e5  # a gradient: its higher end
+    if not any(is_pressure(k) for k, _ in setup.spans) and cap is not None \
             and top_fill > cap * (1 + 1e-12):
         return None, (f"fill pressure {top_fill:g} bar is above "
                       f"{cap_reason} = {cap:.4g} bar"), cap
@@ -389,12 +419,19 @@ def recommend(config_path: str | Path, goal: Goal, *,
         raise ConfigError(f"--workers = {workers}: must be >= 1")
     path = Path(config_path)
     raw = read_toml(path)
+    first = config_from_mapping(raw, base_dir=path.parent, overrides=tuple(overrides),
+                                extra_gas_dirs=extra_gas_dirs, source=path)
+    searched = ranges[0][0] if ranges else default_key(first)
+    species = "gas.species"  # of the searched stage in a config with stages
+    if first.stages:
+        species = stage_label(split_stage_path(searched)[0] or 0, species)
     runs = [(None, tuple(overrides))] if not gases else [
-        (g, tuple(overrides) + (f"gas.species={g}",)) for g in gases]
+        (g, tuple(overrides) + (f"{species}={g}",)) for g in gases]
     out = []
     for gas, over in runs:
-        config = config_from_mapping(raw, base_dir=path.parent, overrides=over,
-                                     extra_gas_dirs=extra_gas_dirs, source=path)
+        whole = config_from_mapping(raw, base_dir=path.parent, overrides=over,
+                                    extra_gas_dirs=extra_gas_dirs, source=path)
+        config = stage_config(whole, searched)
         if config.gas is None:
             raise ConfigError(f"recommend: fiber.kind = {config.fiber.kind!r} has no gas; "
                               "the search needs a gas-filled fiber")
@@ -402,7 +439,7 @@ def recommend(config_path: str | Path, goal: Goal, *,
                                     or config.thz.beam_waist is None):
             raise ConfigError("--goal thz_field: needs a [thz] section with thz.beam_waist_um "
                               "(the peak field is absolute)")
-        spans = tuple(ranges) if ranges else ((default_key(config), default_range(config)),)
+        spans = tuple(ranges) if ranges else ((default_key(whole), default_range(config)),)
         setup = _Setup((raw, path.parent, tuple(over), tuple(extra_gas_dirs), path), goal,
                        spans, None if target_thz is None else target_thz * 1e12, coarse,
                        budget, tolerance, workers)

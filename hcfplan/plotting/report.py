@@ -251,6 +251,8 @@ def figure_jobs(out_dir: Path, chain, spread=None, names: tuple[str, ...] | None
         The run (:func:`hcfplan.planning.chain.run_chain`).
     spread : SpreadResult, optional
         Corner runs of ``--spread``; with corners, ``spread.png`` is drawn too.
+        A run with cascaded stages adds :func:`stage_jobs` (the final stage's figures keep
+        their plain names).
     names : tuple of str, optional
         The figures to draw (:func:`select_figures`); default :data:`DEFAULT_FIGURES`.
 
@@ -265,4 +267,19 @@ def figure_jobs(out_dir: Path, chain, spread=None, names: tuple[str, ...] | None
             for name, draw in FIGURES.items() if name in names and applies(name, chain)]
     if spread is not None and spread.corners:
         jobs.insert(min(2, len(jobs)), (out_dir / "spread.png", draw_spread, (chain, spread)))
+    if getattr(chain, "stages", ()):
+        jobs += stage_jobs(out_dir, chain, names)
+    return jobs
+
+
+def stage_jobs(out_dir: Path, chain, names: tuple[str, ...]) -> list[tuple[Path, Callable, tuple]]:
+    """Figure jobs of a run with cascaded stages: ``stages_overview.png`` and, for each stage
+    K before the final one, the figures ``names`` drawn from that stage as
+    ``stage_K_<name>.png`` (the final stage's are the run's own, plain names)."""
+    from hcfplan.plotting.stages import draw_stages_overview
+
+    jobs = [(out_dir / "stages_overview.png", draw_stages_overview, (chain,))]
+    for index, stage in enumerate(chain.stages[:-1]):
+        jobs += [(out_dir / f"stage_{index}_{name}.png", draw, (stage,))
+                 for name, draw in FIGURES.items() if name in names and applies(name, stage)]
     return jobs

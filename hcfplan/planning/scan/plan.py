@@ -1,6 +1,7 @@
 """What a scan varies, and every point of it validated and keyed before anything runs.
 
-A scan varies one or two config keys (``section.key``) over a linear range or a list of values.
+A scan varies one or two config keys (``section.key``, or ``stage.K.section.key`` of a config
+with cascaded stages) over a linear range or a list of values.
 Each point is identified by a short hash of its resolved config (:func:`config_key`), so a
 finished point is found again whatever the order of the points.
 """
@@ -62,10 +63,13 @@ def _schema_key(path: str, option: str):
     import difflib
 
     from hcfplan.io.schema import SCHEMA
+    from hcfplan.io.stages import split_stage_path
 
-    parts = path.split(".")
+    _, inner = split_stage_path(path, f"{option} ")  # stage.K.section.key: a key of stage K
+    parts = inner.split(".")
     if len(parts) != 2 or not all(parts):
-        raise ConfigError(f"{option} {path!r}: the key path must be section.key")
+        raise ConfigError(f"{option} {path!r}: the key path must be section.key (or "
+                          "stage.K.section.key)")
     section, key = parts
     if section not in SCHEMA:
         close = difflib.get_close_matches(section, list(SCHEMA), n=1)
