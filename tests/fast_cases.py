@@ -115,3 +115,15 @@ pressure_bar = 0.5
 points = 1024
 z_samples = 5
 """
+
+
+def two_stage_text(one: str, second: str) -> str:
+    """``one`` with its stage sections moved into a first [[stage]], and ``second`` added."""
+    shared, stage, current = [], [], None
+    for line in one.splitlines():
+        if line.startswith("["):
+            current = line.strip("[]")
+        target = stage if current in ("fiber", "gas", "cell", "compressor") else shared
+        target.append(line.replace(f"[{current}]", f"[stage.{current}]")
+                      if line.startswith("[") and target is stage else line)
+    return "\n".join(shared) + "\n[[stage]]\n" + "\n".join(stage) + "\n" + second

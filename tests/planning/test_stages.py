@@ -13,7 +13,7 @@ import math
 
 import numpy as np
 import pytest
-from fast_cases import FAST_CONFIG
+from fast_cases import FAST_CONFIG, two_stage_text
 
 from hcfplan.constants import c
 from hcfplan.io.config import config_from_mapping
@@ -39,18 +39,6 @@ pressure_bar = 1e-9
 """
 
 
-def _two_stage_text(one: str, second: str) -> str:
-    """``one`` with its stage sections moved into a first [[stage]], and ``second`` added."""
-    shared, stage, current = [], [], None
-    for line in one.splitlines():
-        if line.startswith("["):
-            current = line.strip("[]")
-        target = stage if current in ("fiber", "gas", "cell", "compressor") else shared
-        target.append(line.replace(f"[{current}]", f"[stage.{current}]")
-                      if line.startswith("[") and target is stage else line)
-    return "\n".join(shared) + "\n[[stage]]\n" + "\n".join(stage) + "\n" + second
-
-
 def _load(text):
     return config_from_mapping(parse_toml(text, "t.toml"))
 
@@ -58,7 +46,7 @@ def _load(text):
 @pytest.fixture(scope="module")
 def runs():
     one = run_chain(_load(ONE_STAGE))
-    two = run_chain(_load(_two_stage_text(ONE_STAGE, EVACUATED_SECOND)))
+    two = run_chain(_load(two_stage_text(ONE_STAGE, EVACUATED_SECOND)))
     return one, two, summary_dict(one), summary_dict(two)
 
 

@@ -14,7 +14,7 @@ from unittest import mock
 
 import numpy as np
 import pytest
-from fast_cases import FAST, TINY, write_fast_config
+from fast_cases import FAST, FAST_CONFIG, TINY, two_stage_text, write_fast_config
 
 matplotlib = pytest.importorskip("matplotlib")
 matplotlib.use("Agg")
@@ -184,6 +184,17 @@ def test_envelope_figure_layout(chains):
 
     result = envelope_map(chains[1].config, points=(30, 30))
     _check(lambda fig, r: plot_envelope(fig.subplots(), r, contours="both"), result)
+
+
+def test_stages_overview_layout(tmp_path):
+    # a two-stage run (the fast capillary, then a short helium capillary): the overview figure
+    from hcfplan.plotting.stages import draw_stages_overview
+
+    second = ("[[stage]]\n[stage.fiber]\nkind = \"capillary\"\ncore_diameter_um = 250.0\n"
+              "length_m = 0.3\n[stage.gas]\nspecies = \"He\"\npressure_bar = 2.0\n")
+    text = two_stage_text(FAST_CONFIG.format(energy_uj=200.0, rated_bar=20.0), second)
+    (tmp_path / "two.toml").write_text(text, encoding="utf-8")
+    _check(draw_stages_overview, run_chain(load_config(tmp_path / "two.toml")))
 
 
 def test_layout_check_finds_an_overlap_and_a_cut_text():
