@@ -7,15 +7,16 @@ suffixes, files and the terminal. Importing the package has no side effects.
 
 The Python API (:mod:`hcfplan.api`) is reached from here: ``hcfplan.load_config``,
 ``hcfplan.simulate``, ``hcfplan.scan``, ``hcfplan.envelope``, ``hcfplan.recommend``,
-``hcfplan.compare`` and ``hcfplan.ConfigError``; they are imported on first use, so ``import
-hcfplan`` stays light. ``hcfplan.limits`` is the physics package of the limits, so the limits
-report of a config is ``hcfplan.api.limits``.
+``hcfplan.compare``, ``hcfplan.calibrate`` and ``hcfplan.ConfigError``; they are imported on
+first use, so ``import hcfplan`` stays light. ``hcfplan.limits`` is the physics package of the
+limits, so the limits report of a config is ``hcfplan.api.limits``.
 """
 
 from hcfplan.version import __version__
 
 #: Names of :mod:`hcfplan.api` offered at the top level (imported on first use).
 API_NAMES = ("load_config", "simulate", "scan", "envelope", "recommend", "compare",
+             "calibrate",
              "Run", "ScanTable", "Table", "Comparison", "Envelope", "Recommendations",
              "ConfigError", "HcfplanError")
 

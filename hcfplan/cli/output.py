@@ -302,6 +302,7 @@ def print_simulation(s: dict, out_dir: Path) -> None:
         echo(f"grid refined {grid['refinements']}x ({'; then '.join(grid['refinement_reasons'])})")
     print_verdict(verdict)
     echo(f"\nWritten to {out_dir}/: summary.json, fields.npz"
+         + (", compressed_field.csv" if (out_dir / "compressed_field.csv").exists() else "")
          + (" and figures" if any(out_dir.glob("*.png")) else ""))
     print_spread(s)
     limits = _flat_limits(s["limits"]) if "limits" in s else None

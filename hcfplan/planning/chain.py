@@ -68,16 +68,9 @@ def _broadening_estimate(report: dict) -> float:
 
 
 def _input_field(config, grid, energy: float):
-    from hcfplan.planning.hardware import with_entrance_window
-    from hcfplan.pulse import fields as pulse
+    from hcfplan.planning.input_field import input_field
 
-    laser = config.laser
-    if laser.spectrum is not None:  # read while the config was loaded
-        field = pulse.field_from_measured_spectrum(grid, laser.spectrum.wavelength,
-                                                   laser.spectrum.values, energy, gdd=laser.gdd)
-    else:
-        field = pulse.pulse_field(grid, laser.shape, laser.duration_fwhm, energy, gdd=laser.gdd)
-    return with_entrance_window(config, grid, field)
+    return input_field(config, grid, energy)
 
 
 def run_chain(config, *, progress: Callable[[float, float, int], None] | None = None,

@@ -30,6 +30,7 @@ from hcfplan.numerics.lifeline import Lifeline, exit_at_eof, ignore_interrupts, 
 WORKER_PRELOAD = [
     "hcfplan.cli.app",
     "hcfplan.planning.chain",
+    "hcfplan.planning.input_field",
     "hcfplan.propagation.solve",
     "hcfplan.thz.generation",
     "hcfplan.compression.compressor",
