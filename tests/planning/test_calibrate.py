@@ -56,6 +56,24 @@ def test_energy_is_fitted_back_within_its_uncertainty(config_path):
     assert result.evaluations <= cal.MAX_EVALUATIONS + 1
 
 
+@pytest.mark.parametrize(("names", "truth"), [
+    (("fwhm",), {"laser.fwhm_fs": 170.0}),
+    (("n2",), {"gas.n2_scale": 1.3}),
+    (("energy", "fwhm"), {"laser.energy_uj": 170.0, "laser.fwhm_fs": 230.0}),
+])
+def test_other_parameters_are_fitted_back_within_their_uncertainties(config_path, names,
+                                                                     truth):
+    measured = synthetic(config_path, [f"{k}={v}" for k, v in truth.items()], seed=3)
+    result = cal.calibrate_config(_loader(config_path), load_config(config_path), names,
+                                  [measured])
+    for name in names:
+        value, sigma = result.values[name], result.uncertainties[name]
+        expected = truth[cal.FIT_PARAMETERS[name].path]
+        assert abs(value - expected) <= 2 * sigma, name  # 2 standard errors (95 %)
+        assert 0 < sigma < 0.05 * expected, name
+    assert result.quality == "good"
+
+
 def test_density_factor_from_two_spectra_at_two_pressures(config_path):
     truth = 0.8
     at = (("gas.pressure_bar=1",), ("gas.pressure_bar=3",))

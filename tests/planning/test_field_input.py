@@ -129,3 +129,38 @@ def test_n2_scale_scales_the_electronic_kerr_coefficient_only(tmp_path):
     scaled = build_medium(load_config(path, overrides=["gas.n2_scale=1.7"]).gas)
     assert scaled.n2 == pytest.approx(1.7 * plain.n2, rel=1e-12)
     assert scaled.number_density == plain.number_density
+
+
+def _spectral_csv(path, centre_nm, fwhm_fs=200.0, gdd_fs2=0.0):
+    """A Gaussian pulse's spectrum per nm with a GDD phase (invented test data)."""
+    wavelength_nm = np.linspace(centre_nm - 40, centre_nm + 40, 401)
+    omega = 2 * np.pi * c / (wavelength_nm * 1e-9)
+    omega0 = 2 * np.pi * c / (centre_nm * 1e-9)
+    t0 = fwhm_fs * 1e-15 / (2 * np.sqrt(np.log(2)))
+    intensity = np.exp(-((omega - omega0) * t0) ** 2) * omega**2
+    phase = 0.5 * gdd_fs2 * 1e-30 * (omega - omega0) ** 2
+    rows = "\n".join(f"{w:.4f},{i:.8e},{p:.8f}" for w, i, p in
+                     zip(wavelength_nm, intensity, phase, strict=True))
+    path.write_text("wavelength_nm,intensity,phase_rad\n" + rows + "\n", encoding="utf-8")
+
+
+def test_spectral_layout_loads_and_its_fwhm_includes_the_phase(tmp_path):
+    # analytic: 200 fs Gaussian with 20000 fs^2 of GDD lasts 200 sqrt(1 + (4 ln2 GDD /
+    # FWHM^2)^2) = 341.8 fs (Agrawal, Nonlinear Fiber Optics, 6th ed., Eq. (3.2.12), equation
+    # number from memory)
+    _spectral_csv(tmp_path / "compressed_field.csv", 1030.0, gdd_fs2=20000.0)
+    text = EVACUATED.format(fwhm_fs=342.0, energy_uj=100.0)
+    (tmp_path / "s.toml").write_text(text, encoding="utf-8")
+    config = load_config(tmp_path / "s.toml")
+    assert config.laser.field.axis == "wavelength" and config.laser.spectrum is None
+    (tmp_path / "s.toml").write_text(text.replace("fwhm_fs = 342.0", "fwhm_fs = 200.0"))
+    with pytest.raises(ConfigError, match=r"intensity FWHM of 341\.[89] fs"):
+        load_config(tmp_path / "s.toml")
+
+
+def test_spectral_layout_must_hold_the_pump(tmp_path):
+    _spectral_csv(tmp_path / "compressed_field.csv", 800.0)
+    (tmp_path / "s.toml").write_text(EVACUATED.format(fwhm_fs=200.0, energy_uj=100.0))
+    with pytest.raises(ConfigError, match=r"laser\.wavelength_nm = 1030\.0: outside the "
+                                          r"measured spectrum of laser\.field_csv"):
+        load_config(tmp_path / "s.toml")
