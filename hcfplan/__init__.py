@@ -7,9 +7,9 @@ suffixes, files and the terminal. Importing the package has no side effects.
 
 The Python API (:mod:`hcfplan.api`) is reached from here: ``hcfplan.load_config``,
 ``hcfplan.simulate``, ``hcfplan.scan``, ``hcfplan.envelope``, ``hcfplan.recommend``,
-``hcfplan.compare`` and ``hcfplan.ConfigError``; they are imported on first use, so ``import
-hcfplan`` stays light. ``hcfplan.limits`` is both the package of the limit formulas
-(``hcfplan.limits.beam``…) and, called, the limits report of a config
+``hcfplan.compare``, ``hcfplan.calibrate`` and ``hcfplan.ConfigError``; they are imported on
+first use, so ``import hcfplan`` stays light. ``hcfplan.limits`` is both the package of the
+limit formulas (``hcfplan.limits.beam``…) and, called, the limits report of a config
 (``hcfplan.limits(config)`` = :func:`hcfplan.api.limits`).
 """
 
@@ -33,6 +33,7 @@ _limits_package.__class__ = _CallableLimits
 
 #: Names of :mod:`hcfplan.api` offered at the top level (imported on first use).
 API_NAMES = ("load_config", "simulate", "scan", "envelope", "recommend", "compare",
+             "calibrate",
              "Run", "ScanTable", "Table", "Comparison", "Envelope", "Recommendations",
              "ConfigError", "HcfplanError")
 

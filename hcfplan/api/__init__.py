@@ -6,12 +6,14 @@ package on first use), so the import stays as light as the command line's:
 - :func:`load_config` — a TOML file or a mapping, with overrides, validated;
 - :func:`simulate` -> :class:`Run` (``summary``, ``arrays``, ``verdict``, ``plot``, ``save``);
 - :func:`scan` -> :class:`ScanTable` (rows as dicts, ``to_pandas()``);
-- :func:`limits`, :func:`envelope`, :func:`recommend`, :func:`compare`.
+- :func:`limits`, :func:`envelope`, :func:`recommend`, :func:`compare`;
+- :func:`calibrate` -> fitted values against measured output spectra.
 
 Bad input raises :class:`hcfplan.errors.ConfigError` naming the key, as the command line's
 exit code 2 does.
 """
 
+from hcfplan.api.calibration import calibrate
 from hcfplan.api.config import load_config
 from hcfplan.api.run import Run, simulate
 from hcfplan.api.table import Table
@@ -29,5 +31,5 @@ from hcfplan.api.workflows import (
 from hcfplan.errors import ConfigError, HcfplanError
 
 __all__ = ["Comparison", "ConfigError", "Envelope", "HcfplanError", "Recommendations", "Run",
-           "ScanTable", "Table", "compare", "envelope", "limits", "load_config", "recommend",
-           "scan", "simulate"]
+           "ScanTable", "Table", "calibrate", "compare", "envelope", "limits", "load_config",
+           "recommend", "scan", "simulate"]

@@ -9,7 +9,7 @@ interrupted (Ctrl-C: one line on stderr saying what was kept, no traceback), 143
 SIGTERM or SIGHUP (the same line).
 Heavy modules (scipy, CoolProp, numba, matplotlib) are imported inside the commands so that
 ``hcfplan --help`` starts quickly. Imports of the command line flow one way:
-app -> thz_command, workflows -> common, output.
+app -> thz_command, calibrate_command, workflows -> common, output.
 """
 
 from __future__ import annotations
@@ -20,6 +20,7 @@ from pathlib import Path
 
 import typer
 
+from hcfplan.cli.calibrate_command import register as register_calibrate
 from hcfplan.cli.common import (
     JSON_HELP,
     NO_REPORT_HELP,
@@ -428,6 +429,7 @@ def envelope_command(
 # thz (from a measured spectrum) lives in its own module
 
 register_thz(app)
+register_calibrate(app)
 
 
 # ---------------------------------------------------------------------------------------------

@@ -316,6 +316,8 @@ def print_simulation(s: dict, out_dir: Path) -> None:
         echo(f"grid refined {grid['refinements']}x ({'; then '.join(grid['refinement_reasons'])})")
     print_verdict(verdict)
     written = ["summary.json", "fields.npz"]
+    if (out_dir / "compressed_field.csv").exists():
+        written.append("compressed_field.csv")
     figures = len(list(out_dir.glob("*.png")))
     if figures:
         written.append(f"{figures} figure{'s' if figures > 1 else ''}")

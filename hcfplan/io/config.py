@@ -35,6 +35,7 @@ from hcfplan.io.specs import (
     LaserSpec,
     LimitsSpec,
     MeasuredCurve,
+    MeasuredField,
     PlanConfig,
     SpreadDefaults,
     ThzSpec,
@@ -137,6 +138,22 @@ def _measured_curve(value: str | None, base: Path, key: str,
     return MeasuredCurve(source=path, wavelength=wavelength, values=values)
 
 
+def _measured_field(value: str | None, base: Path, resolved: dict) -> MeasuredField | None:
+    """``laser.field_csv`` read now; its FWHM must match ``laser.fwhm_fs`` (which sizes the
+    grid and the first-look estimates)."""
+    path = _resolve_path(value, base, "laser.field_csv")
+    if path is None:
+        return None
+    from hcfplan.io.csvdata import read_field_csv
+
+    try:
+        field = MeasuredField(path, *read_field_csv(path))
+    except ConfigError as exc:
+        raise ConfigError(f"laser.field_csv: {exc}") from None
+    crosschecks.check_field_duration(field, resolved)
+    return field
+
+
 # ---------------------------------------------------------------------------------------------
 # SI specs
 
@@ -213,7 +230,8 @@ def _build_gas(g: dict, present: set[str], table_dirs: tuple[Path, ...]) -> GasS
     return GasSpec(components=components, pressure=pressure,
                    temperature=g["temperature_k"], equation_of_state=g["equation_of_state"],
                    ionization_model=g["ionization_model"], table_dirs=table_dirs,
-                   entrance_pressure=ends[0], exit_pressure=ends[1])
+                   entrance_pressure=ends[0], exit_pressure=ends[1],
+                   density_scale=g["density_scale"], n2_scale=g["n2_scale"])
 
 
 def _crystal_dirs(table_dir, base: Path) -> tuple[Path, ...]:
@@ -238,7 +256,11 @@ def _build_specs(r: dict, present: set[str], base: Path, extra_gas_dirs) -> dict
     crosschecks.check_names(r, present, table_dirs, crystal_dirs)
     crosschecks.check_crystal_absorption(r, present, crystal_dirs)
     band = comp["mirror_band_nm"]
+    field = _measured_field(las["field_csv"], base, r)
     spectrum = _measured_curve(las["spectrum_csv"], base, "laser.spectrum_csv", None)
+    if field is not None and field.axis == "wavelength":  # checked as a measured spectrum
+        spectrum = MeasuredCurve(source=field.source, wavelength=field.x,
+                                 values=field.intensity)
     if spectrum is not None:
         crosschecks.check_measured_spectrum(spectrum.wavelength, r)
         if band is not None:
@@ -257,9 +279,9 @@ def _build_specs(r: dict, present: set[str], base: Path, extra_gas_dirs) -> dict
             energy=units.to_si(las["energy_uj"], "uj"),
             repetition_rate=_si(las["repetition_khz"], "khz"),
             gdd=units.to_si(las["gdd_fs2"], "fs2"),
-            spectrum=spectrum,
+            spectrum=None if field is not None else spectrum,
             beam_waist=_si(las["beam_waist_um"], "um"),
-            polarization=las["polarization"]),
+            polarization=las["polarization"], field=field),
         fiber=_build_fiber(r["fiber"], base, las["wavelength_nm"]),
         gas=_build_gas(r["gas"], present, table_dirs),
         cell=CellSpec(rated_pressure=_si(cell["rated_pressure_bar"], "bar"),

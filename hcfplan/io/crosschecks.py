@@ -114,7 +114,8 @@ def check_compressor(resolved: dict) -> None:
         raise ConfigError(f"compressor.mirror_band_nm = {describe(band)}: must contain the pump, "
                           f"laser.wavelength_nm = {describe(pump)} (all light outside the band "
                           "is lost)")
-    if band is not None and resolved["laser"]["spectrum_csv"] is None:
+    if (band is not None and resolved["laser"]["spectrum_csv"] is None
+            and resolved["laser"]["field_csv"] is None):
         check_band_share(band, resolved, band_share_analytic(band, resolved["laser"]))
     if comp["wedge_max_insertion_mm"] > 0 and comp["wedge_material"] is None:
         raise ConfigError("compressor.wedge_material: required when wedge_max_insertion_mm > 0")
@@ -193,7 +194,9 @@ def check_band_share(band_nm, resolved: dict, share: float) -> None:
     if share >= MIN_BAND_SHARE:
         return
     laser = resolved["laser"]
-    source = ("the measured spectrum of laser.spectrum_csv" if laser["spectrum_csv"] else
+    measured = "spectrum_csv" if laser["spectrum_csv"] else "field_csv"
+    source = (f"the measured spectrum of laser.{measured}"
+              if laser["spectrum_csv"] or laser["field_csv"] else
               f"the input spectrum (laser.wavelength_nm = {describe(laser['wavelength_nm'])}, "
               f"laser.fwhm_fs = {describe(laser['fwhm_fs'])}, laser.shape = "
               f"{laser['shape']!r})")
@@ -268,11 +271,35 @@ def check_measured_spectrum(wavelength, resolved: dict) -> None:
     """The measured input spectrum (wavelengths [m]) must hold the pump wavelength, which
     centres the simulation grid."""
     pump = resolved["laser"]["wavelength_nm"]
+    key = "spectrum_csv" if resolved["laser"]["spectrum_csv"] else "field_csv"
     lo, hi = float(wavelength[0]) * 1e9, float(wavelength[-1]) * 1e9
     if not lo <= pump <= hi:
         raise ConfigError(f"laser.wavelength_nm = {describe(pump)}: outside the measured "
-                          f"spectrum of laser.spectrum_csv ({lo:.6g}-{hi:.6g} nm); the pump "
+                          f"spectrum of laser.{key} ({lo:.6g}-{hi:.6g} nm); the pump "
                           "wavelength centres the grid and must lie within the spectrum")
+
+
+#: Largest relative difference between ``laser.fwhm_fs`` and the FWHM of ``laser.field_csv``
+#: (common practice, no source: the grid sized for one must hold the other).
+FIELD_FWHM_TOLERANCE = 0.2
+
+
+def check_field_duration(field, resolved: dict) -> None:
+    """``laser.fwhm_fs`` must match the intensity FWHM of the measured pulse of
+    ``laser.field_csv`` (a :class:`~hcfplan.io.specs.MeasuredField`) within
+    :data:`FIELD_FWHM_TOLERANCE`; only one of ``spectrum_csv`` and ``field_csv`` is given."""
+    from hcfplan.pulse.fields import measured_field_fwhm
+
+    laser = resolved["laser"]
+    if laser["spectrum_csv"] is not None:
+        raise ConfigError("laser.spectrum_csv and laser.field_csv: give one of them, not both")
+    width_fs = measured_field_fwhm(field.axis, field.x, field.intensity, field.phase) * 1e15
+    given = laser["fwhm_fs"]
+    if not abs(given - width_fs) <= FIELD_FWHM_TOLERANCE * width_fs:
+        raise ConfigError(f"laser.fwhm_fs = {describe(given)}: the pulse of laser.field_csv "
+                          f"({field.source}) has an intensity FWHM of {width_fs:.4g} fs; set "
+                          f"laser.fwhm_fs within {FIELD_FWHM_TOLERANCE:.0%} of it (it sizes "
+                          "the grid and the first-look estimates)")
 
 
 def check_mirror_curve(wavelength, resolved: dict) -> None:

@@ -250,3 +250,153 @@ def read_curve_csv(path: str | Path, value_name: str) -> tuple[np.ndarray, np.nd
     if suffix is not None and np.isfinite(SUFFIXES[suffix][0]):
         values = values * SUFFIXES[suffix][0]
     return wavelength, values
+
+
+# ---------------------------------------------------------------------------------------------
+# A measured field: intensity and phase versus wavelength or time
+
+#: The two layouts of a measured field, detected from the header: axis column -> axis kind.
+FIELD_AXES = {"wavelength_nm": "wavelength", "time_fs": "time"}
+FIELD_COLUMNS = ("intensity", "phase_rad")
+#: Time columns in another unit than fs: header words -> the unit's name.
+_TIME_UNITS = (({"ps", "picosecond", "picoseconds"}, "picoseconds"),
+               ({"as", "attosecond", "attoseconds"}, "attoseconds"),
+               ({"ns", "nanosecond", "nanoseconds"}, "nanoseconds"),
+               ({"s", "sec", "second", "seconds"}, "seconds"))
+#: Where the intensity FWHM of a pulse in fs may lie: the range of ``laser.fwhm_fs``. [fs]
+PLAUSIBLE_FWHM_FS = (1.0, 1.0e5)
+
+
+def _field_header(path: Path, number: int, first: list[str]) -> tuple[str, list[int]]:
+    """Axis kind and the indices of the axis, intensity and phase columns of a field file."""
+    names = [f.strip().lower() for f in first]
+    if all(_is_number(f) for f in first):
+        raise ConfigError(f"{path}:{number}: no header; a measured field needs one naming "
+                          "the columns 'wavelength_nm,intensity,phase_rad' or "
+                          "'time_fs,intensity,phase_rad'")
+    axes = [name for name in FIELD_AXES if name in names]
+    if not axes:
+        for name in names:
+            words = set(re.findall(r"[a-z\u00b5]+", name))
+            if words & {"time", "delay", "t"}:
+                for hints, unit in _TIME_UNITS:
+                    if words & hints:
+                        raise ConfigError(f"{path}:{number}: column {name!r} looks like time "
+                                          f"in {unit}; convert it to a column 'time_fs'")
+            for unit, hints, _ in _UNITS:
+                if words & hints:
+                    raise ConfigError(f"{path}:{number}: column {name!r} looks like {unit}; "
+                                      "convert it to a column 'wavelength_nm' (the intensity "
+                                      "to intensity per unit wavelength)")
+        raise ConfigError(f"{path}:{number}: header {first} names neither 'wavelength_nm' nor "
+                          "'time_fs'; expected 'wavelength_nm,intensity,phase_rad' or "
+                          "'time_fs,intensity,phase_rad'")
+    if len(axes) > 1:
+        raise ConfigError(f"{path}:{number}: header {first} names both 'wavelength_nm' and "
+                          "'time_fs'; give one axis")
+    if "phase_deg" in names or "phase_degrees" in names:
+        raise ConfigError(f"{path}:{number}: the phase column is in degrees; convert it to a "
+                          "column 'phase_rad' (radians)")
+    missing = [n for n in FIELD_COLUMNS if n not in names]
+    if missing:
+        raise ConfigError(f"{path}:{number}: header {first} lacks column(s) {missing}; "
+                          f"expected '{axes[0]},intensity,phase_rad'")
+    return FIELD_AXES[axes[0]], [names.index(n) for n in (axes[0], *FIELD_COLUMNS)]
+
+
+def _field_rows(path: Path, rows: list, indices: list[int], unit: str) -> np.ndarray:
+    """The data rows as an (n, 3) array; the axis (first index) must increase strictly."""
+    width = max(indices) + 1
+    out: list[list[float]] = []
+    for number, fields in rows:
+        if len(fields) < width:
+            raise ConfigError(f"{path}:{number}: {len(fields)} column(s) {fields}; need the "
+                              "axis, intensity and phase_rad on every line")
+        try:
+            values = [float(fields[i]) for i in indices]
+        except ValueError:
+            raise ConfigError(f"{path}:{number}: non-numeric value in {fields}") from None
+        if not all(np.isfinite(values)):
+            raise ConfigError(f"{path}:{number}: non-finite value in {fields}")
+        if out and not values[0] > out[-1][0]:
+            kind = "duplicated" if values[0] == out[-1][0] else "unsorted"
+            raise ConfigError(f"{path}:{number}: {kind} axis value {values[0]} {unit} after "
+                              f"{out[-1][0]} {unit}; the axis must increase strictly")
+        if values[1] < 0:
+            raise ConfigError(f"{path}:{number}: negative intensity {values[1]:g}; intensities "
+                              "must be >= 0 (subtract the background and clip at zero)")
+        out.append(values)
+    return np.array(out, dtype=float)
+
+
+def _check_time_unit(path: Path, time_fs: np.ndarray, intensity: np.ndarray) -> None:
+    """Refuse a time column whose pulse FWHM is no plausible number of femtoseconds."""
+    from hcfplan.pulse.metrics import fwhm
+
+    width = fwhm(time_fs, intensity)
+    lo, hi = PLAUSIBLE_FWHM_FS
+    if np.isfinite(width) and lo <= width <= hi:
+        return
+    guess = ("picoseconds or nanoseconds" if width < lo else "attoseconds") \
+        if np.isfinite(width) else "no single pulse"
+    raise ConfigError(f"{path}: the intensity FWHM is {width:.4g} in the units of column "
+                      f"time_fs, outside {lo:g}-{hi:g} fs (the range of laser.fwhm_fs); it "
+                      f"looks like {guess}; the column must be time in fs")
+
+
+def read_field_csv(path: str | Path) -> tuple[str, np.ndarray, np.ndarray, np.ndarray]:
+    """Read a measured field: intensity and phase versus wavelength or versus time.
+
+    Parameters
+    ----------
+    path : str or Path
+        CSV file whose header names the columns ``wavelength_nm, intensity, phase_rad`` (a
+        spectrum: intensity per unit wavelength and the spectral phase) or ``time_fs,
+        intensity, phase_rad`` (the temporal intensity and phase of the envelope).
+
+    Returns
+    -------
+    axis : {"wavelength", "time"}
+        Which layout the header names.
+    x : ndarray
+        Strictly increasing vacuum wavelengths [m] or times [s].
+    intensity : ndarray
+        The intensity column as in the file, >= 0. [arb.]
+    phase : ndarray
+        The phase column. [rad]
+
+    Raises
+    ------
+    ConfigError
+        No header or a header naming neither or both axes, a column in another unit (time in
+        ps, as or s; phase in degrees; wavelength in um, THz, cm^-1, eV), fewer than 3 samples,
+        non-numeric or non-finite entries, an unsorted axis, negative or all-zero intensity,
+        or a pulse whose peak (wavelength) or FWHM (time) lies outside the range of the
+        matching ``laser`` key; the message names the file and, where one line is at fault,
+        the line.
+    """
+    path = Path(path)
+    rows = _rows(path)
+    if not rows:
+        raise ConfigError(f"{path}: empty (no data lines)")
+    axis, indices = _field_header(path, *rows[0])
+    unit = "nm" if axis == "wavelength" else "fs"
+    if len(rows) < 2:
+        raise ConfigError(f"{path}: header only, no data lines")
+    data = _field_rows(path, rows[1:], indices, unit)
+    x, intensity, phase = data[:, 0], data[:, 1], data[:, 2]
+    _check_count(path, intensity, MIN_SPECTRUM_SAMPLES)
+    if not np.max(intensity) >= np.finfo(float).tiny:
+        raise ConfigError(f"{path}: every intensity is 0 (or denormal); the field holds no "
+                          "light")
+    if axis == "wavelength":
+        if x[0] <= 0:
+            raise ConfigError(f"{path}: wavelength {x[0]:g} nm: must be > 0")
+        if x[-1] < MICROMETRE_SUSPICION:
+            raise ConfigError(f"{path}: all wavelengths are < {MICROMETRE_SUSPICION:g} "
+                              f"(largest {x[-1]:g}): they look like micrometres (or photon "
+                              "energies in eV); the column must be in nm")
+        _check_unit(path, float(x[np.argmax(intensity)]), "the intensity's peak")
+        return axis, x * 1e-9, intensity, phase
+    _check_time_unit(path, x, intensity)
+    return axis, x * 1e-15, intensity, phase

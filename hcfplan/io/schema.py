@@ -72,6 +72,13 @@ SCHEMA: dict[str, dict[str, Key]] = {
         "spectrum_csv": Key("path", None,
                             "Measured input spectrum, CSV columns wavelength_nm, intensity; "
                             "replaces the analytic shape (flat phase plus gdd_fs2)."),
+        "field_csv": Key("path", None,
+                         "Measured pulse (intensity and phase), CSV columns wavelength_nm, "
+                         "intensity, phase_rad (spectral phase) or time_fs, intensity, "
+                         "phase_rad (temporal phase), told apart by the header; replaces the "
+                         "analytic shape (gdd_fs2 is added); energy_uj sets its energy; "
+                         "fwhm_fs must match its FWHM within 20 % (it sizes the grid). A run "
+                         "writes compressed_field.csv in this format."),
         "beam_waist_um": Key(F, None,
                              "1/e^2 intensity radius of the focused beam at the fiber entrance; "
                              "default: the coupling optimum 0.64 a.", 1.0, 1.0e5, low_open=False),
@@ -136,6 +143,13 @@ SCHEMA: dict[str, dict[str, Key]] = {
                                  "(0: evacuated); give with entrance_pressure_bar.", 0.0,
                                  1000.0, low_open=False),
         "temperature_k": Key(F, 293.15, "Gas temperature.", 1.0, 2000.0),
+        "density_scale": Key(F, 1.0, "Calibration factor on the fill's number density (index, "
+                             "n2, ionisation) over the equation of state's value at the "
+                             "configured pressure; written by calibrate (fit name pressure).",
+                             1.0e-3, 1.0e3),
+        "n2_scale": Key(F, 1.0, "Calibration factor on the gas's electronic Kerr coefficient "
+                        "n2 (the delayed rotational response keeps its table value); "
+                        "written by calibrate (fit name n2).", 1.0e-3, 1.0e3),
         "equation_of_state": Key("choice", "coolprop", "Density model.",
                                  choices=("coolprop", "ideal")),
         "ionization_model": Key("choice", "ppt", "Photoionisation rate.",

@@ -33,6 +33,29 @@ class MeasuredCurve:
             object.__setattr__(self, name, array)
 
 
+@dataclass(frozen=True, eq=False)
+class MeasuredField:
+    """A measured pulse read from ``laser.field_csv`` while the config was loaded.
+
+    ``axis`` is ``"wavelength"`` (``x`` wavelengths [m], ``intensity`` per unit wavelength,
+    ``phase`` the spectral phase [rad]) or ``"time"`` (``x`` times [s], ``intensity`` the
+    temporal intensity, ``phase`` the temporal phase of the envelope [rad]). Compared by
+    identity; the arrays are read-only.
+    """
+
+    source: Path  #: the file it was read from (for messages and reports only)
+    axis: str
+    x: np.ndarray
+    intensity: np.ndarray
+    phase: np.ndarray
+
+    def __post_init__(self) -> None:
+        for name in ("x", "intensity", "phase"):
+            array = np.array(getattr(self, name), dtype=float)  # a private copy
+            array.setflags(write=False)
+            object.__setattr__(self, name, array)
+
+
 @dataclass(frozen=True)
 class LaserSpec:
     wavelength: float  #: [m]
@@ -44,6 +67,7 @@ class LaserSpec:
     spectrum: MeasuredCurve | None  #: measured input spectrum (values: intensity per wavelength)
     beam_waist: float | None  #: [m]
     polarization: str = "linear"  #: "linear" or "circular"
+    field: MeasuredField | None = None  #: measured pulse (``laser.field_csv``)
 
 
 @dataclass(frozen=True)
@@ -88,6 +112,8 @@ class GasSpec:
     table_dirs: tuple[Path, ...]
     entrance_pressure: float | None = None  #: gradient only: at the fiber entrance [Pa]
     exit_pressure: float | None = None  #: gradient only: at the fiber exit [Pa]
+    density_scale: float = 1.0  #: calibration factor on the number density [1]
+    n2_scale: float = 1.0  #: calibration factor on the electronic n2 [1]
 
     @property
     def is_gradient(self) -> bool:

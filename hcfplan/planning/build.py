@@ -40,12 +40,32 @@ def build_medium(gas_spec, polarization: str = "linear"):
     fill = gases.GasFill(components=gas_spec.components, pressure=gas_spec.pressure,
                          temperature=gas_spec.temperature, eos=gas_spec.equation_of_state)
     try:
-        return polarized_medium(gases.gas_medium(fill, search_dirs=gas_spec.table_dirs),
-                                polarization)
+        medium = gases.gas_medium(fill, search_dirs=gas_spec.table_dirs)
     except GasPhaseError as exc:
         raise ConfigError(f"gas.pressure_bar = {gas_spec.pressure / 1e5:.10g}, "
                           f"gas.temperature_k = {gas_spec.temperature:.10g}: {_reason(exc)}"
                           ) from None
+    return polarized_medium(calibrated_medium(medium, gas_spec.density_scale,
+                                              gas_spec.n2_scale), polarization)
+
+
+def calibrated_medium(medium, density_scale: float = 1.0, n2_scale: float = 1.0):
+    """The medium with the calibration factors ``gas.density_scale`` and ``gas.n2_scale``.
+
+    ``density_scale`` multiplies every number density (and so the index, n2 and ionisation,
+    which follow the density); ``n2_scale`` multiplies the electronic Kerr coefficient only.
+    Both are 1 unless a calibration against measured spectra set them
+    (:mod:`hcfplan.planning.calibrate`).
+    """
+    if density_scale == 1.0 and n2_scale == 1.0:
+        return medium
+    import dataclasses
+
+    components = tuple(dataclasses.replace(k, number_density=k.number_density * density_scale)
+                       for k in medium.components)
+    return dataclasses.replace(medium, components=components,
+                               number_density=medium.number_density * density_scale,
+                               n2=medium.n2 * density_scale * n2_scale)
 
 
 def rate_model(config) -> str:

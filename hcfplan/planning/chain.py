@@ -73,19 +73,10 @@ def _broadening_estimate(report: dict) -> float:
 def _input_field(config, grid, energy: float, given=None):
     """The launched envelope on ``grid`` carrying ``energy``: ``given`` (an input field such
     as :class:`hcfplan.planning.stages.HandoverField`, with ``on_grid(grid, energy)``), else
-    the measured spectrum or the analytic shape of ``[laser]``; then the entrance window."""
-    from hcfplan.planning.hardware import with_entrance_window
-    from hcfplan.pulse import fields as pulse
+    the input of ``[laser]`` (:func:`hcfplan.planning.input_field.input_field`)."""
+    from hcfplan.planning.input_field import input_field
 
-    laser = config.laser
-    if given is not None:
-        field = given.on_grid(grid, energy)
-    elif laser.spectrum is not None:  # read while the config was loaded
-        field = pulse.field_from_measured_spectrum(grid, laser.spectrum.wavelength,
-                                                   laser.spectrum.values, energy, gdd=laser.gdd)
-    else:
-        field = pulse.pulse_field(grid, laser.shape, laser.duration_fwhm, energy, gdd=laser.gdd)
-    return with_entrance_window(config, grid, field)
+    return input_field(config, grid, energy, given)
 
 
 def run_chain(config, *, progress: Callable[[float, float, int], None] | None = None,

@@ -1,4 +1,5 @@
-"""Writing one chain run to its output folder: fields.npz, config.resolved.toml, the figures
+"""Writing one chain run to its output folder: fields.npz, compressed_field.csv (the compressed
+pulse in the layout of ``laser.field_csv``), config.resolved.toml, the figures
 and summary.json (last, so a folder with a summary is complete).
 
 Every file is written atomically (:mod:`hcfplan.io.results`). The figures come from the caller
@@ -14,6 +15,7 @@ from hcfplan.io.results import FigureJob, write_figures, write_json
 from hcfplan.io.tomlio import dump_toml
 from hcfplan.numerics.storage import write_npz, write_text
 from hcfplan.planning.chain import ChainResult, field_arrays, summary_dict
+from hcfplan.planning.field_export import compressed_field_csv
 
 
 def write_run(out_dir: Path, chain: ChainResult, *, figures: list[FigureJob] | None = None,
@@ -36,6 +38,9 @@ def write_run(out_dir: Path, chain: ChainResult, *, figures: list[FigureJob] | N
         summary["spread"] = spread_summary(spread)
         summary.setdefault("limits", {}).update(worst_case_limits(spread, chain.config.limits))
     write_npz(out_dir / "fields.npz", field_arrays(chain))
+    csv_text = compressed_field_csv(chain)
+    if csv_text is not None:
+        write_text(out_dir / "compressed_field.csv", csv_text)
     write_text(out_dir / "config.resolved.toml", dump_toml(chain.config.resolved))
     if figures is not None:
         (figure_writer or write_figures)(figures)

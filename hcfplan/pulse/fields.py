@@ -164,8 +164,9 @@ def field_from_measured_spectrum(
     intensity: np.ndarray,
     energy: float,
     gdd: float = 0.0,
+    phase: np.ndarray | None = None,
 ) -> np.ndarray:
-    """Temporal envelope from a measured spectrum with a flat (or GDD) phase.
+    """Temporal envelope from a measured spectrum with a flat (or GDD) or measured phase.
 
     Parameters
     ----------
@@ -179,11 +180,15 @@ def field_from_measured_spectrum(
         Pulse energy the field is scaled to. [J]
     gdd : float
         Group-delay dispersion added as a spectral phase about ``grid.omega_pump``. [s^2]
+    phase : ndarray, optional
+        Measured spectral phase at ``wavelength``, multiplying the spectrum as
+        ``exp(i phase)`` (module docstring: positive curvature in omega is a positive GDD);
+        interpolated linearly in frequency. None: flat. [rad]
 
     Returns
     -------
     ndarray of complex
-        A(t) on ``grid.time``, centred at t = 0 for ``gdd = 0``. [sqrt(W)]
+        A(t) on ``grid.time``, centred at t = 0 for a flat phase and ``gdd = 0``. [sqrt(W)]
 
     Notes
     -----
@@ -218,6 +223,12 @@ def field_from_measured_spectrum(
             "grid's frequency window"
         )
     spectrum = np.sqrt(on_grid) * np.exp(-1j * grid.domega * grid.time[0])  # centre at t = 0
+    if phase is not None:
+        phase = np.asarray(phase, dtype=float)
+        if phase.shape != wavelength.shape or not np.all(np.isfinite(phase)):
+            raise ConfigError("measured spectrum: the phase needs one finite value per "
+                              "wavelength")
+        spectrum = spectrum * np.exp(1j * np.interp(grid.frequency, nu, phase[::-1]))
     field = grid.to_time(_apply_gdd(grid, spectrum.astype(complex), gdd))
     return field * np.sqrt(energy / grid.energy_t(field))
 
@@ -235,3 +246,122 @@ def _warn_if_cut(grid: Grid, nu: np.ndarray, density: np.ndarray) -> None:
             ValidityWarning,
             stacklevel=3,
         )
+
+
+def field_from_measured_time(
+    grid: Grid,
+    time: np.ndarray,
+    intensity: np.ndarray,
+    phase: np.ndarray,
+    energy: float,
+    gdd: float = 0.0,
+) -> np.ndarray:
+    """Temporal envelope from a measured temporal intensity and phase.
+
+    Parameters
+    ----------
+    grid : Grid
+        Time/frequency grid.
+    time : ndarray
+        Measured times, strictly increasing (t = 0 is kept as the grid's t = 0). [s]
+    intensity : ndarray
+        Temporal intensity, >= 0 (any scale). [arb.]
+    phase : ndarray
+        Temporal phase of the envelope about the pump carrier: the field is
+        ``sqrt(I) exp(i phase)`` times the pump carrier, so under the exp(-i omega t)
+        convention of :mod:`hcfplan.numerics.grid` the instantaneous angular frequency is
+        ``omega_pump - d(phase)/dt``. [rad]
+    energy : float
+        Pulse energy the field is scaled to. [J]
+    gdd : float
+        Group-delay dispersion added as a spectral phase about ``grid.omega_pump``. [s^2]
+
+    Returns
+    -------
+    ndarray of complex
+        A(t) on ``grid.time``. [sqrt(W)]
+
+    Notes
+    -----
+    Intensity and phase are interpolated linearly onto ``grid.time`` (intensity zero outside
+    the measured range). A ``ValidityWarning`` is issued if more than
+    ``SPECTRUM_CUT_TOLERANCE`` of the measured energy lies outside the grid's time window.
+
+    References
+    ----------
+    none: interpolation, no published model.
+    """
+    time, intensity, phase = (np.asarray(a, dtype=float) for a in (time, intensity, phase))
+    _check_positive("energy", energy, "J")
+    if not (time.shape == intensity.shape == phase.shape) or time.size < 2:
+        raise ConfigError("measured field: need equal-length time, intensity and phase arrays "
+                          "of >= 2 samples")
+    if not np.all(np.diff(time) > 0):
+        raise ConfigError("measured field: times must increase strictly")
+    if np.any(intensity < 0) or not np.all(np.isfinite(intensity) & np.isfinite(phase)):
+        raise ConfigError("measured field: intensities must be finite and >= 0, phases finite")
+    total = np.trapezoid(intensity, time)
+    inside = (time >= grid.time[0]) & (time <= grid.time[-1])
+    cut = total - np.trapezoid(np.where(inside, intensity, 0.0), time)
+    if total > 0 and cut > SPECTRUM_CUT_TOLERANCE * total:
+        warnings.warn(f"measured field: {cut / total:.2%} of its energy lies outside the grid's "
+                      f"time window {grid.time[0]:.4g}-{grid.time[-1]:.4g} s and is cut; "
+                      "use a longer window", ValidityWarning, stacklevel=2)
+    on_grid = np.interp(grid.time, time, intensity, left=0.0, right=0.0)
+    if not np.any(on_grid > 0):
+        raise ConfigError(f"measured field ({time[0]:.4g}-{time[-1]:.4g} s) lies outside the "
+                          "grid's time window")
+    field = np.sqrt(on_grid) * np.exp(1j * np.interp(grid.time, time, phase)) * grid.carrier()
+    field = grid.to_time(_apply_gdd(grid, grid.to_spectrum(field), gdd))
+    return field * np.sqrt(energy / grid.energy_t(field))
+
+
+#: Samples of the uniform frequency axis on which a measured spectrum's pulse is built for its
+#: FWHM (:func:`measured_field_fwhm`), and the padding of that axis (times the measured span).
+FWHM_POINTS = 8192
+FWHM_PADDING = 8.0
+
+
+def measured_field_fwhm(axis: str, x: np.ndarray, intensity: np.ndarray,
+                        phase: np.ndarray) -> float:
+    """Intensity FWHM of a measured pulse given versus time or wavelength.
+
+    Parameters
+    ----------
+    axis : {"time", "wavelength"}
+        What ``x`` is.
+    x : ndarray
+        Times [s] or vacuum wavelengths [m], strictly increasing.
+    intensity : ndarray
+        Temporal intensity, or spectral intensity per unit wavelength. [arb.]
+    phase : ndarray
+        Temporal or spectral phase. [rad]
+
+    Returns
+    -------
+    float
+        FWHM of the temporal intensity (nan when it has no contiguous half maximum). [s]
+
+    Notes
+    -----
+    A spectrum is put on a uniform frequency axis (:data:`FWHM_POINTS` samples over
+    :data:`FWHM_PADDING` times its span, S_nu = S_lambda lambda^2 / c, phase interpolated
+    linearly) and transformed to time.
+
+    References
+    ----------
+    none: change of variables and discrete Fourier transform, no published model.
+    """
+    from hcfplan.pulse.metrics import fwhm
+
+    x, intensity, phase = (np.asarray(a, dtype=float) for a in (x, intensity, phase))
+    if axis == "time":
+        return float(fwhm(x, intensity))
+    nu, density = (c / x)[::-1], (intensity * x**2 / c)[::-1]
+    centre, span = 0.5 * (nu[0] + nu[-1]), (nu[-1] - nu[0]) * FWHM_PADDING
+    axis_nu = centre + span * (np.arange(FWHM_POINTS) / FWHM_POINTS - 0.5)
+    amplitude = np.sqrt(np.interp(axis_nu, nu, density, left=0.0, right=0.0))
+    spectrum = amplitude * np.exp(1j * np.interp(axis_nu, nu, phase[::-1]))
+    power = np.abs(np.fft.fftshift(np.fft.fft(np.fft.ifftshift(spectrum)))) ** 2
+    time = (np.arange(FWHM_POINTS) - FWHM_POINTS // 2) / span
+    return float(fwhm(time, power))

@@ -109,7 +109,8 @@ def test_save_writes_the_run_folder(fast):
     folder, _, run = fast
     out = run.save(folder / "saved", figures=False)
     names = sorted(p.name for p in out.iterdir())
-    assert names == ["config.resolved.toml", "fields.npz", "report.html", "summary.json"]
+    assert names == ["compressed_field.csv", "config.resolved.toml", "fields.npz",
+                     "report.html", "summary.json"]
     assert _flat(json.loads((out / "summary.json").read_text())) == run.summary
     with pytest.raises(ConfigError, match="not empty"):
         run.save(out)

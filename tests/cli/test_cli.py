@@ -280,6 +280,10 @@ _EARLY_CALLS = {
                   "hcfplan.planning.recommend", "recommend"),
     "compare": ([str(DEMOS[0]), "--set-b", "laser.energy_uj=10"], "hcfplan.io.config",
                 "load_config"),
+    "calibrate": ([str(DEMOS[0]), "--measured",
+                   str(ROOT / "configs" / "demo_broadened_spectrum.csv"), "--fit", "energy",
+                   "--out", "{tmp}/calibrated.toml"], "hcfplan.planning.calibrate",
+                  "calibrate_files"),
 }
 
 

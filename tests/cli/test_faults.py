@@ -146,9 +146,10 @@ def test_simulate_on_a_full_disk(tmp_path, capsys, monkeypatch, tiny):
     code, err = run(capsys, "simulate", tiny, "--out", out, "--quiet", "--no-figures")
     assert code == 1
     assert one_line(err) == (f"hcfplan: error: cannot write {out / 'summary.json'}: No space "
-                             f"left on device; kept {out}/: config.resolved.toml, fields.npz "
-                             "(complete files only)")
-    assert sorted(p.name for p in out.iterdir()) == ["config.resolved.toml", "fields.npz"]
+                             f"left on device; kept {out}/: compressed_field.csv, "
+                             "config.resolved.toml, fields.npz (complete files only)")
+    assert sorted(p.name for p in out.iterdir()) == ["compressed_field.csv",
+                                                     "config.resolved.toml", "fields.npz"]
 
 
 def test_scan_on_a_full_disk(tmp_path, capsys, monkeypatch):
@@ -287,7 +288,8 @@ def test_commands_started_together_write_one_run(tmp_path, tiny):
             line = one_line(err)
             assert ("another hcfplan command is writing into this folder" in line
                     or "folder exists and is not empty; use --force" in line), line
-    assert sorted(p.name for p in out.iterdir()) == ["config.resolved.toml", "fields.npz",
+    assert sorted(p.name for p in out.iterdir()) == ["compressed_field.csv",
+                                                     "config.resolved.toml", "fields.npz",
                                                      "report.html", "summary.json"]
 
 

@@ -22,6 +22,7 @@ import pytest
 from fast_cases import TINY
 
 from hcfplan.cli.app import main
+from hcfplan.io.csvdata import read_field_csv
 from hcfplan.io.tomlio import parse_toml
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -122,6 +123,8 @@ def _assert_complete_or_absent(out: Path) -> list[str]:
             assert blob.startswith(PNG_START) and blob.endswith(PNG_END), path
         elif path.suffix == ".html":
             assert path.read_text(encoding="utf-8").rstrip().endswith("</html>"), path
+        elif path.suffix == ".csv":
+            read_field_csv(path)  # compressed_field.csv: complete and readable
         else:
             pytest.fail(f"unexpected file {path.name}")
     return names

@@ -145,8 +145,8 @@ def test_interrupt_during_the_figures_names_the_kept_files(tmp_path, capsys, mon
     code = main(["simulate", str(config), "--out", str(out), "--quiet", "--force"])
     err = capsys.readouterr().err
     assert code == 130
-    assert err.strip() == (f"hcfplan: interrupted; kept {out}/: config.resolved.toml, "
-                           "fields.npz (complete files only)"), err
+    assert err.strip() == (f"hcfplan: interrupted; kept {out}/: compressed_field.csv, "
+                           "config.resolved.toml, fields.npz (complete files only)"), err
     assert "Traceback" not in err
 
 

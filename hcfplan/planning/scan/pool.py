@@ -31,6 +31,7 @@ WORKER_PRELOAD = [
     "hcfplan.cli.app",
     "hcfplan.planning.chain",
     "hcfplan.planning.stages",
+    "hcfplan.planning.input_field",
     "hcfplan.propagation.solve",
     "hcfplan.thz.generation",
     "hcfplan.compression.compressor",
