@@ -35,17 +35,41 @@ from hcfplan.io.results import FigureJob, figure_helpers, write_figure, write_fi
 from hcfplan.numerics.storage import termination_held
 
 #: Most drawers of a run's figures: two draw on both cores after the run while this process
-#: waits; where the cores are busy with other work (load average + 1 above the cores free to
-#: this process) one draws them all (at load average 10-13 on 2 cores the demo command took
-#: 14.7 s with two helpers importing matplotlib each against 11.9 s with one, medians of three
-#: alternated runs; the second drawer now shares the first one's import).
+#: waits. The second drawer is forked from the first after its matplotlib import and costs no
+#: import of its own, so two are used on a busy machine too (at load average 3 on 2 cores the
+#: demo command took 2.50-2.58 s with two against 2.67-2.80 s with one, the same CPU time;
+#: when each helper imported matplotlib itself, one was better there).
 HELPER_COUNT = 2
 
 
 def helper_count() -> int:
-    """Drawers to use: :data:`HELPER_COUNT`, or one on a machine busy with other work."""
-    cores = len(os.sched_getaffinity(0))
-    return HELPER_COUNT if os.getloadavg()[0] + 1 <= cores else 1
+    """Drawers to use: :data:`HELPER_COUNT`, at most one per core free to this process."""
+    return max(1, min(HELPER_COUNT, len(os.sched_getaffinity(0))))
+
+
+#: Modules of the results a figure job carries (a run's ChainResult), imported here before the
+#: helper is forked: unpickling the jobs imported them in the helper otherwise, numba and
+#: scipy.optimize among them (0.24 s of CPU there, measured; this process imports them for
+#: the run anyway).
+RESULT_MODULES = (
+    "hcfplan.io.config",
+    "hcfplan.materials.gases",
+    "hcfplan.planning.chain",
+    "hcfplan.planning.convergence",
+    "hcfplan.propagation.result",
+    "hcfplan.pulse.metrics",
+    "hcfplan.fibers",
+    "hcfplan.compression.compressor",
+    "hcfplan.thz.generation",
+)
+
+
+def _import_result_modules() -> None:
+    import importlib
+
+    for name in RESULT_MODULES:
+        with contextlib.suppress(ImportError):  # a module that moved: only costs the helper
+            importlib.import_module(name)
 
 
 #: Most figure jobs one :meth:`FigureHelpers.write` hands to the helpers (the rest are drawn
@@ -153,6 +177,7 @@ class FigureHelpers:
             return None
         import multiprocessing
 
+        _import_result_modules()
         context = multiprocessing.get_context("fork")
         turn = context.Value("i", 0)
         done = context.Array("b", MAX_JOBS)
