@@ -90,6 +90,7 @@ def test_the_jobs_of_a_run_unpickle_without_new_imports(tmp_path):
     import sys
 
     from fast_cases import write_fast_config
+
     from hcfplan.io.config import load_config
     from hcfplan.planning.chain import run_chain
     from hcfplan.plotting.report import figure_jobs
