@@ -21,8 +21,6 @@ import hashlib
 import importlib.util
 import json
 import numbers
-import os
-import tempfile
 from pathlib import Path
 
 #: Most answers kept in the file (beyond, it starts again empty: a scan over many fills).
@@ -68,20 +66,14 @@ def _load() -> dict[str, float | str]:
 
 
 def _store(memo: dict[str, float | str]) -> None:
-    """Write the answers atomically (a half-written file is never read); errors are ignored."""
-    path = _memo_path
-    if path is None:
+    """Write the answers atomically (:func:`hcfplan.numerics.storage.write_text`: a
+    half-written file is never read); a folder that cannot be written is ignored."""
+    from hcfplan.numerics.storage import write_text
+
+    if _memo_path is None:
         return
     try:
-        path.parent.mkdir(parents=True, exist_ok=True)
-        fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
-        try:
-            with os.fdopen(fd, "w", encoding="utf-8") as handle:
-                json.dump(memo, handle)
-            os.replace(tmp, path)
-        finally:
-            if os.path.exists(tmp):
-                os.unlink(tmp)
+        write_text(_memo_path, json.dumps(memo))
     except OSError:
         pass  # a cache that cannot be written only costs the time of asking again
 
