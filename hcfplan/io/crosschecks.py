@@ -434,7 +434,7 @@ def check_triple_point(table, temperature_k: float, key: str = "gas.temperature_
     doi:10.1021/ie4033999 (CoolProp ``Ttriple``; the reference EOS of each fluid is cited in the
     [eos] block of its gas table).
     """
-    from CoolProp.CoolProp import PropsSI  # lazy: the import takes a fraction of a second
+    from hcfplan.materials.coolprop_calls import props_si as PropsSI  # cached on disk
 
     triple = float(PropsSI("Ttriple", table.coolprop_name))
     if temperature_k < triple:

@@ -53,7 +53,7 @@ def _density_ideal(coolprop_name: str, pressure: float, temperature: float) -> f
 
 
 def _density_coolprop(coolprop_name: str, pressure: float, temperature: float) -> float:
-    from CoolProp.CoolProp import PropsSI  # lazy: the import takes seconds
+    from hcfplan.materials.coolprop_calls import props_si as PropsSI  # cached on disk
 
     if pressure == 0:
         return 0.0
@@ -222,7 +222,7 @@ def coolprop_mixture_density(
            thermophysical property evaluation and the open-source thermophysical property
            library CoolProp," Ind. Eng. Chem. Res. 53, 2498-2508 (2014), doi:10.1021/ie4033999.
     """
-    from CoolProp.CoolProp import PropsSI
+    from hcfplan.materials.coolprop_calls import props_si as PropsSI  # cached on disk
 
     fluid = "HEOS::" + "&".join(
         f"{t.coolprop_name}[{x!r}]" for t, x in zip(tables, fractions, strict=True)

@@ -222,10 +222,18 @@ def _join(delta: Callable[[np.ndarray], np.ndarray], band: tuple[float, float],
     lam = wavelength[beyond]
     top = np.minimum(lam, hi)
     half = 0.5 * (top - lo)
-    s = lo + half[:, None] * (1.0 + _GL_X[None, :])  # nodes on [lo, top]
-    values = delta(s.ravel()).reshape(s.shape)
-    kernel = ((lam[:, None] - s) * switch_weight(s, band, 2)
-              - 2.0 * switch_weight(s, band, 1))
+    # every point beyond the band has the same nodes (top = hi): the fits and the weights are
+    # evaluated on one row of them, the same numbers as on each row (elementwise arithmetic)
+    inside = lam < hi
+    row = np.where(inside, np.cumsum(inside), 0)  # row 0: the nodes on the whole band
+    first = np.concatenate(([np.argmin(inside) if not np.all(inside) else 0],
+                            np.flatnonzero(inside)))
+    half_rows = half[first]
+    s_rows = lo + half_rows[:, None] * (1.0 + _GL_X[None, :])  # nodes on [lo, top]
+    values = delta(s_rows.ravel()).reshape(s_rows.shape)[row]
+    s = s_rows[row]
+    kernel = ((lam[:, None] - s) * switch_weight(s_rows, band, 2)[row]
+              - 2.0 * switch_weight(s_rows, band, 1)[row])
     integral = half * np.sum(_GL_W[None, :] * kernel * values, axis=1)
     out[beyond] = switch_weight(lam, band) * delta(lam) + integral
     return out

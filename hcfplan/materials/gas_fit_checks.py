@@ -136,13 +136,15 @@ def check_eos_name(name: str, where: str, path: str) -> None:
     [3] (module docstring): ``PropsSI("Tcrit", name)`` fails for a name CoolProp does not know;
     the suggestions come from its ``FluidsList``.
     """
-    from CoolProp.CoolProp import PropsSI, get_global_param_string  # lazy: 0.2-0.4 s
+    from hcfplan.materials.coolprop_calls import props_si  # cached on disk
 
     try:
-        PropsSI("Tcrit", name)
+        props_si("Tcrit", name)
         return
     except ValueError:
         pass
+    from CoolProp.CoolProp import get_global_param_string  # lazy: 0.2-0.4 s
+
     fluids = get_global_param_string("FluidsList").split(",")
     close = difflib.get_close_matches(name, fluids, n=1, cutoff=0.5)
     hint = f"; did you mean {close[0]!r}?" if close else ""

@@ -60,14 +60,14 @@ _REFUSED_PHASES = ("liquid", "two-phase", "unknown")
 @lru_cache(maxsize=32)
 def _critical_point(coolprop_name: str) -> tuple[float, float, float, float]:
     """(Tc [K], pc [Pa], Tmax [K], pmax [Pa]) of the CoolProp fluid."""
-    from CoolProp.CoolProp import PropsSI  # lazy: the import takes seconds
+    from hcfplan.materials.coolprop_calls import props_si as PropsSI  # cached on disk
 
     return tuple(PropsSI(key, coolprop_name) for key in ("Tcrit", "pcrit", "Tmax", "pmax"))
 
 
 def _saturation_pressure(coolprop_name: str, temperature: float) -> float:
     """Bubble-point pressure below Tc (NaN where CoolProp has none). [Pa]"""
-    from CoolProp.CoolProp import PropsSI
+    from hcfplan.materials.coolprop_calls import props_si as PropsSI  # cached on disk
 
     try:
         return float(PropsSI("P", "T", temperature, "Q", 0, coolprop_name))
@@ -94,7 +94,7 @@ def coolprop_phase(coolprop_name: str, pressure: float, temperature: float) -> s
            library CoolProp," Ind. Eng. Chem. Res. 53, 2498-2508 (2014), doi:10.1021/ie4033999
            (``PhaseSI``).
     """
-    from CoolProp.CoolProp import PhaseSI
+    from hcfplan.materials.coolprop_calls import phase_si as PhaseSI  # cached on disk
 
     return PhaseSI("T", temperature, "P", pressure, coolprop_name)
 

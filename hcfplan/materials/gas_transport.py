@@ -66,7 +66,7 @@ def heat_transport(table, pressure: float, temperature: float) -> HeatTransport 
     .. [1] I. H. Bell et al., Ind. Eng. Chem. Res. 53, 2498 (2014).
     .. [2] E. W. Lemmon and R. T. Jacobsen, Int. J. Thermophys. 25, 21 (2004) [from memory].
     """
-    from CoolProp.CoolProp import PropsSI  # lazy: heavy import
+    from hcfplan.materials.coolprop_calls import props_si as PropsSI  # cached on disk
 
     name = table.coolprop_name
     try:

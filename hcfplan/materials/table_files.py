@@ -6,6 +6,7 @@ failure becomes one :class:`~hcfplan.errors.ConfigError` line that names the fil
 
 from __future__ import annotations
 
+import copy
 from pathlib import Path
 from typing import Any
 
@@ -15,6 +16,12 @@ try:  # Python >= 3.11
     import tomllib
 except ModuleNotFoundError:  # pragma: no cover - Python 3.10
     import tomli as tomllib
+
+
+#: Parsed table files kept in this process, keyed by path, modification time and size (the
+#: crystal tables were read again for every run of the chain: 5 ms of a warm demo call).
+MAX_PARSED = 256
+_parsed: dict[tuple[str, int, int], dict[str, Any]] = {}
 
 
 def read_table_toml(path: str | Path, label: str | None = None) -> dict[str, Any]:
@@ -32,7 +39,13 @@ def read_table_toml(path: str | Path, label: str | None = None) -> dict[str, Any
     path = Path(path)
     name = str(path) if label is None else label
     try:
-        return tomllib.loads(path.read_text(encoding="utf-8"))
+        stat = path.stat()
+        key = (str(path), stat.st_mtime_ns, stat.st_size)
+        if key not in _parsed:  # a file is parsed again only when it changed
+            if len(_parsed) >= MAX_PARSED:
+                _parsed.clear()
+            _parsed[key] = tomllib.loads(path.read_text(encoding="utf-8"))
+        return copy.deepcopy(_parsed[key])  # a caller may change what it gets
     except tomllib.TOMLDecodeError as exc:
         raise ConfigError(f"{name}: not valid TOML: {exc}") from None
     except UnicodeDecodeError as exc:

@@ -10,6 +10,11 @@ completes (a helper failed, was killed or the jobs could not be pickled) is draw
 process afterwards, so an error is raised here as without helpers. A helper ends when this
 process closes its end of the pipe (:meth:`FigureHelpers.close`, or this process ending).
 
+One helper process is forked before the run; it imports matplotlib once and, given two or
+more figures, forks the second drawer itself after the import (which the drawer then shares,
+copy-on-write), so the import is paid once instead of once per drawer (0.4-0.6 s of CPU). The
+second drawer ends with the first (Linux parent-death signal) and the first waits for it.
+
 Helpers are only started where :func:`hcfplan.io.results.figure_helpers` allows a forked
 helper (Linux, more than one core free to this process).
 """
@@ -29,18 +34,42 @@ from pathlib import Path
 from hcfplan.io.results import FigureJob, figure_helpers, write_figure, write_figures
 from hcfplan.numerics.storage import termination_held
 
-#: Most helpers started before a run: two draw on both cores after the run while this process
-#: waits; where the cores are busy with other work (load average + 1 above the cores free to
-#: this process) one is started, since a second one then only adds its matplotlib import
-#: (0.4 s of CPU; at load average 10-13 on 2 cores the demo command took 14.7 s with two
-#: against 11.9 s with one, medians of three alternated runs).
+#: Most drawers of a run's figures: two draw on both cores after the run while this process
+#: waits. The second drawer is forked from the first after its matplotlib import and costs no
+#: import of its own, so two are used on a busy machine too (at load average 3 on 2 cores the
+#: demo command took 2.50-2.58 s with two against 2.67-2.80 s with one, the same CPU time;
+#: when each helper imported matplotlib itself, one was better there).
 HELPER_COUNT = 2
 
 
 def helper_count() -> int:
-    """Helpers to start: :data:`HELPER_COUNT`, or one on a machine busy with other work."""
-    cores = len(os.sched_getaffinity(0))
-    return HELPER_COUNT if os.getloadavg()[0] + 1 <= cores else 1
+    """Drawers to use: :data:`HELPER_COUNT`, at most one per core free to this process."""
+    return max(1, min(HELPER_COUNT, len(os.sched_getaffinity(0))))
+
+
+#: Modules of the results a figure job carries (a run's ChainResult), imported here before the
+#: helper is forked: unpickling the jobs imported them in the helper otherwise, numba and
+#: scipy.optimize among them (0.24 s of CPU there, measured; this process imports them for
+#: the run anyway).
+RESULT_MODULES = (
+    "hcfplan.io.config",
+    "hcfplan.materials.gases",
+    "hcfplan.planning.chain",
+    "hcfplan.planning.convergence",
+    "hcfplan.propagation.result",
+    "hcfplan.pulse.metrics",
+    "hcfplan.fibers",
+    "hcfplan.compression.compressor",
+    "hcfplan.thz.generation",
+)
+
+
+def _import_result_modules() -> None:
+    import importlib
+
+    for name in RESULT_MODULES:
+        with contextlib.suppress(ImportError):  # a module that moved: only costs the helper
+            importlib.import_module(name)
 
 
 #: Most figure jobs one :meth:`FigureHelpers.write` hands to the helpers (the rest are drawn
@@ -71,32 +100,60 @@ def _preload() -> None:
         plt.close(fig)
 
 
-def _serve(reader, writers, turn, done) -> None:
-    """A helper's life: preload, wait for the jobs, draw them in turn with the other helpers.
+def _draw_in_turn(jobs, turn, done) -> None:
+    """Take the next job (shared counter ``turn``) and draw it, until none is left."""
+    while True:
+        with turn.get_lock():
+            index = turn.value
+            turn.value = index + 1
+        if index >= len(jobs):
+            return
+        path, draw, args = jobs[index]
+        with termination_held():  # SIGTERM ends the drawer once its file is complete
+            write_figure(path, draw, *args)
+            done[index] = 1
 
-    ``writers``: the parent's ends of every helper's pipe, closed here at once (a copy kept
-    open would keep the helper's own pipe from ever reporting the parent's close)."""
+
+def _end_with_parent() -> None:
+    """Have the kernel send this process SIGTERM when its parent ends (Linux ``prctl``
+    PR_SET_PDEATHSIG; common practice, no source); end now if the parent already has."""
+    import ctypes
+
+    parent = os.getppid()
+    with contextlib.suppress(OSError, AttributeError):
+        ctypes.CDLL(None, use_errno=True).prctl(1, int(signal.SIGTERM), 0, 0, 0)
+    if os.getppid() != parent:
+        os._exit(0)
+
+
+def _serve(reader, writers, turn, done, drawers: int = 1) -> None:
+    """A helper's life: preload, wait for the jobs, draw them in turn, with a second drawer
+    forked here after the import when ``drawers`` > 1 and there are two or more jobs.
+
+    ``writers``: the parent's ends of the pipe, closed here at once (a copy kept open would
+    keep the helper's own pipe from ever reporting the parent's close)."""
     for writer in writers:
         writer.close()
     signal.signal(signal.SIGINT, signal.SIG_IGN)  # Ctrl-C: the parent stops the helpers
-    code = 0
+    code, child = 0, None
     try:
         _preload()
         jobs = pickle.loads(reader.recv_bytes())
-        while True:
-            with turn.get_lock():
-                index = turn.value
-                turn.value = index + 1
-            if index >= len(jobs):
-                break
-            path, draw, args = jobs[index]
-            with termination_held():  # SIGTERM ends the helper once its file is complete
-                write_figure(path, draw, *args)
-                done[index] = 1
+        reader.close()
+        if drawers > 1 and len(jobs) > 1:
+            child = os.fork()  # shares the import and the jobs
+            if child == 0:
+                _end_with_parent()
+        _draw_in_turn(jobs, turn, done)
     except EOFError:  # the parent closed the pipe: no figures wanted
         pass
     except BaseException:  # noqa: BLE001 - the parent draws what is left and raises there
         code = 1
+    if child == 0:  # the second drawer
+        os._exit(code)
+    if child:
+        with contextlib.suppress(ChildProcessError, InterruptedError):
+            os.waitpid(child, 0)
     os._exit(code)
 
 
@@ -111,8 +168,8 @@ class FigureHelpers:
 
     @classmethod
     def start(cls, count: int | None = None) -> FigureHelpers | None:
-        """Fork ``count`` helpers (default :func:`helper_count`), or return None where a forked
-        helper is not allowed."""
+        """Fork the helper that draws with ``count`` drawers (default :func:`helper_count`),
+        or return None where a forked helper is not allowed."""
         if figure_helpers(2) == 0:
             return None
         count = helper_count() if count is None else count
@@ -120,22 +177,18 @@ class FigureHelpers:
             return None
         import multiprocessing
 
+        _import_result_modules()
         context = multiprocessing.get_context("fork")
         turn = context.Value("i", 0)
         done = context.Array("b", MAX_JOBS)
-        pipes = [context.Pipe(duplex=False) for _ in range(count)]
-        writers = [writer for _, writer in pipes]
-        processes = []
+        reader, writer = context.Pipe(duplex=False)
         sys.stdout.flush()
         sys.stderr.flush()  # nothing buffered is written twice by a helper
-        for reader, _ in pipes:
-            process = context.Process(target=_serve, args=(reader, writers, turn, done),
-                                      daemon=True)
-            process.start()
-            processes.append(process)
-        for reader, _ in pipes:
-            reader.close()
-        return cls(processes, writers, turn, done)
+        process = context.Process(target=_serve, args=(reader, [writer], turn, done, count),
+                                  daemon=True)
+        process.start()
+        reader.close()
+        return cls([process], [writer], turn, done)
 
     def write(self, jobs: list[FigureJob]) -> None:
         """Draw ``jobs`` in the helpers (and here whatever they did not complete)."""

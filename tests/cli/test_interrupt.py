@@ -88,7 +88,8 @@ def _wait_for(condition, proc: subprocess.Popen, timeout: float = 60.0) -> None:
 
 
 def _running_physics(proc: subprocess.Popen):
-    """True once the child has loaded CoolProp, i.e. left the imports and config loading."""
+    """True once the child has loaded numba's LLVM library (the solver's kernels), i.e. left the
+    config loading (CoolProp is no sign of it: a repeat run reads its answers from the cache)."""
     maps = Path(f"/proc/{proc.pid}/maps")
     start = time.monotonic()
 
@@ -96,7 +97,7 @@ def _running_physics(proc: subprocess.Popen):
         if not maps.exists():  # no /proc: fall back to a fixed delay
             return time.monotonic() - start > 3.0
         try:
-            return "CoolProp" in maps.read_text(errors="replace")
+            return "llvmlite" in maps.read_text(errors="replace")
         except OSError:
             return False
     return condition

@@ -122,10 +122,15 @@ def _loss_part(waveguide, config) -> tuple[dict, list[str]]:
 
 
 def fiber_report(config) -> dict:
-    """Analytic summary of the configured fiber at the pump (see module docstring)."""
+    """Analytic summary of the configured fiber at the pump (see module docstring); kept for
+    a config met again in this process (:func:`hcfplan.planning.memo.remembered`)."""
+    from hcfplan.planning.memo import remembered
 
-    with quiet_validity():
-        return _fiber_report(config)
+    def compute() -> dict:
+        with quiet_validity():
+            return _fiber_report(config)
+
+    return remembered("fiber_report", config, compute)
 
 
 def _fiber_report(config) -> dict:

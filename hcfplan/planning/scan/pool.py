@@ -52,6 +52,8 @@ WORKER_PRELOAD = [
     "hcfplan.compression.losses",
     "hcfplan.materials.kerr_polarization",
     "hcfplan.materials.gas_transport",
+    "hcfplan.materials.coolprop_calls",
+    "hcfplan.planning.memo",
     "hcfplan.ionization.rates",
     "hcfplan.ionization.tables",
     "hcfplan.ionization.fraction",
