@@ -88,12 +88,17 @@ def _interrupted_line(err: str) -> str:
     return lines[0]
 
 
-def _complete_files_only(out: Path) -> None:
+def _complete_files_only(out: Path, killed: bool = False) -> None:
+    """Every result file parses; no temporary is left, except after SIGKILL, which no process
+    can catch: a temporary being written at that instant stays (named ``.<file>.*``, never read
+    as a result)."""
     if not out.exists():
         return
-    assert not list(out.rglob(".*")), sorted(out.rglob("*"))
+    if not killed:
+        assert not list(out.rglob(".*")), sorted(out.rglob("*"))
     for path in out.rglob("*.json"):
-        json.loads(path.read_text(encoding="utf-8"))
+        if not path.name.startswith("."):
+            json.loads(path.read_text(encoding="utf-8"))
 
 
 def _scan(tmp_path: Path) -> tuple[list[str], Path]:
@@ -125,7 +130,7 @@ def test_killed_scan_leaves_no_process(tmp_path):
     start_wait = time.monotonic()
     _end(proc)  # workers and fork server gone, the pipes closed
     assert time.monotonic() - start_wait < 30
-    _complete_files_only(out)
+    _complete_files_only(out, killed=True)
 
 
 @pytest.mark.parametrize(("command", "signum"), [("simulate", signal.SIGINT),
