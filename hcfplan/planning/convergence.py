@@ -9,7 +9,7 @@ A planner's numbers are only as good as the grid they were computed on. After a 
 * ``frequency_edge_energy`` (code ``window_edge_energy``): the same for the outer 5 % of the
   frequency window;
 * ``spectrum_edge_level`` (code ``window_edge_energy``): the spectral density in those outer 5 %
-  of the frequency window stays below :data:`EDGE_LEVEL_DB` (-40 dB) of the spectral peak at
+  of the frequency window stays below :data:`EDGE_LEVEL_DB` (-45 dB) of the spectral peak at
   every record, i.e. the spectrum has fallen off before the window ends;
 * ``pulse_sampling`` (code ``unresolved_pulse``): the shortest pulse of interest (the
   compressed pulse, its transform limit, the transform limit of the fiber output) spans at
@@ -46,7 +46,7 @@ EDGE_ZONE = 0.05
 EDGE_ENERGY_LIMIT = 1e-4
 #: Highest spectral level allowed in the edge zones of the frequency window, relative to the
 #: spectral peak (common practice, no source). [dB]
-EDGE_LEVEL_DB = -40.0
+EDGE_LEVEL_DB = -45.0
 #: Fewest raw time steps per FWHM of the shortest pulse of interest (common practice, no
 #: source). [1]
 MIN_POINTS_PER_FWHM = 4.0
