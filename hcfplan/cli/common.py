@@ -12,6 +12,7 @@ from __future__ import annotations
 import contextlib
 import os
 import signal
+import sys
 import threading
 from collections.abc import Iterator
 from pathlib import Path
@@ -241,8 +242,13 @@ def signals_as_interrupt(received: list[int]) -> Iterator[None]:
         yield
         return
 
+    hook = sys.unraisablehook
+
     def handler(signum, frame):
         received.append(signum)
+        # objects of a library torn down half-built by the interrupt (e.g. llvmlite's while
+        # numba compiles) may fail in __del__: that is no news for a user who stopped the run
+        sys.unraisablehook = _ignore_unraisable
         raise CommandInterrupted(signum)
 
     previous = {sig: signal.signal(sig, handler) for sig in INTERRUPTING}
@@ -251,6 +257,12 @@ def signals_as_interrupt(received: list[int]) -> Iterator[None]:
     finally:
         for sig, old in previous.items():
             signal.signal(sig, signal.SIG_DFL if old is None else old)
+        if not received:  # after an interrupt the torn-down objects are freed later, with
+            sys.unraisablehook = hook  # the exception that carries their frames
+
+
+def _ignore_unraisable(unraisable) -> None:
+    """An ``sys.unraisablehook`` that prints nothing (after an interrupt, and at exit)."""
 
 
 def end_quietly() -> None:
@@ -259,6 +271,7 @@ def end_quietly() -> None:
     ``hcfplan`` process itself, never for a caller of :func:`hcfplan.cli.app.main`."""
     for sig in INTERRUPTING:
         signal.signal(sig, signal.SIG_DFL)
+    sys.unraisablehook = _ignore_unraisable  # clean-up at exit of what a command left behind
 
 
 def check_plot(plot: Path | None) -> None:
