@@ -22,7 +22,7 @@ PATIENCE = 120.0
 
 
 def env() -> dict:
-    """The environment of a child ``python -m hcfplan``: this worktree first on the path."""
+    """The environment of a child ``python -m hcfplan``: this checkout first on the path."""
     return dict(os.environ,
                 PYTHONPATH=str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", ""))
 

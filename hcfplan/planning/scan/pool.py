@@ -159,7 +159,7 @@ class KeptPool:
     """The local process pool kept between runs of one parent process.
 
     :meth:`lend` gives a run the pool of the previous run when it has the same size and is not
-    broken (a session that runs several scans, or ``compare --spread``, which runs the corners
+    broken (a process that runs several scans, or ``compare --spread``, which runs the corners
     of each side in turn): its processes are warm, so a run does not wait for a new process
     (30-90 ms from the fork server) nor pay a new process's first point (about twice a warm
     point at 1024 points: per-process tables and plans; ``bench/scan.py``). Otherwise the kept
