@@ -190,31 +190,13 @@ def modelled_output(config, grid):
     """The fiber's output spectrum (``grid.to_spectrum`` convention) for ``config`` on the
     given grid: the chain's fiber run without its first-look report, grid refinement,
     compressor or THz, at the solver tolerance :data:`FIT_RTOL`. A failed run is refused."""
-    from hcfplan.planning.build import (
-        build_fill_segments,
-        build_medium,
-        build_waveguide,
-        check_transmission,
-        coupling,
-        pump_omega,
-        rate_model,
-    )
+    from hcfplan.planning.fiber_run import fiber_setup, run_fiber
     from hcfplan.planning.input_field import input_field
-    from hcfplan.propagation.options import SolverOptions
-    from hcfplan.propagation.solve import propagate
 
-    laser = config.laser
-    omega0 = pump_omega(laser)
-    medium = build_medium(config.gas, laser.polarization) if config.gas is not None else None
-    waveguide = build_waveguide(config.fiber, medium, omega0)
-    check_transmission(config, waveguide, omega0)
-    efficiency, _, _ = coupling(config)
-    field0 = input_field(config, grid, laser.energy * efficiency)
-    options = SolverOptions(rtol=max(FIT_RTOL, config.grid.rtol), z_samples=FIT_Z_SAMPLES,
-                            ionization_model=rate_model(config) if config.gas else None,
-                            stop_ionization_fraction=config.grid.stop_ionization_fraction)
-    result = propagate(field0, grid, waveguide, gas=medium, options=options,
-                       segments=build_fill_segments(config, omega0))
+    setup = fiber_setup(config)
+    field0 = input_field(config, grid, setup.energy)
+    result = run_fiber(config, setup, grid, field0, rtol=max(FIT_RTOL, config.grid.rtol),
+                       z_samples=FIT_Z_SAMPLES)
     if not result.success:
         raise ConfigError(f"calibrate: the fiber run failed ({result.message}); narrow the "
                           "fit or check the config")

@@ -17,15 +17,6 @@ import numpy as np
 
 from hcfplan.constants import P_1ATM, T_ROOM
 from hcfplan.constants import c as C_LIGHT
-from hcfplan.planning.build import (
-    build_fill_segments,
-    build_medium,
-    build_waveguide,
-    check_transmission,
-    coupling,
-    pump_omega,
-    rate_model,
-)
 from hcfplan.planning.validity import (
     collect_warnings,
     light_band,
@@ -158,30 +149,20 @@ def _center_omega(wavelength: float | None) -> float | None:
 
 
 def _run_chain(config, progress, workers, grid=None, input_field=None) -> ChainResult:
+    from hcfplan.planning.fiber_run import fiber_setup, run_fiber
     from hcfplan.planning.reports.fiber import fiber_report
-    from hcfplan.propagation.options import SolverOptions
-    from hcfplan.propagation.solve import propagate
     from hcfplan.pulse.metrics import peak_power
 
-    laser = config.laser
-    omega0 = pump_omega(laser)
-    medium = (build_medium(config.gas, laser.polarization) if config.gas is not None
-              else None)
-    waveguide = build_waveguide(config.fiber, medium, omega0)
-    check_transmission(config, waveguide, omega0)
-    efficiency, _, _ = coupling(config)
-    energy = laser.energy * efficiency
+    setup = fiber_setup(config)
+    omega0, medium, waveguide = setup.omega0, setup.medium, setup.waveguide
+    efficiency, energy = setup.efficiency, setup.energy
     report = fiber_report(config)
     if grid is None:
         grid = _first_grid(config, report, omega0, input_field)
     field0 = _input_field(config, grid, energy, input_field)
     peak_in = peak_power(field0)
-    options = SolverOptions(rtol=config.grid.rtol, z_samples=config.grid.z_samples,
-                            ionization_model=rate_model(config) if config.gas else None,
-                            stop_ionization_fraction=config.grid.stop_ionization_fraction,
-                            workers=workers)
-    result = propagate(field0, grid, waveguide, gas=medium, options=options, progress=progress,
-                       segments=build_fill_segments(config, omega0))
+    result = run_fiber(config, setup, grid, field0, rtol=config.grid.rtol,
+                       z_samples=config.grid.z_samples, workers=workers, progress=progress)
     warnings = list(report["warnings"]) + list(result.warnings)
     compression = None
     if result.success:

@@ -176,12 +176,12 @@ def _module_function(module: str, source: str, name: str):
 def test_numpy_warning_in_a_run_names_numpy_and_the_module(tmp_path, monkeypatch):
     # contract: a numpy floating-point warning raised inside a run reaches the run's warning
     # list as "numpy (in <hcfplan module>): <numpy's text>"
-    import hcfplan.planning.chain as chain_module
+    import hcfplan.planning.fiber_run as fiber_run_module  # the fiber part of run_chain
 
     check = _module_function("hcfplan.fibers.stand_in", (
         "def check(config, waveguide, omega0):\n"
         "    return float(np.sqrt(np.array(-1.0)))\n"), "check")
-    monkeypatch.setattr(chain_module, "check_transmission", check)
+    monkeypatch.setattr(fiber_run_module, "check_transmission", check)
     chain = run_chain(_config(tmp_path, FAST, ["grid.points=512", "fiber.length_m=0.05"]))
     assert "numpy (in hcfplan.fibers.stand_in): invalid value encountered in sqrt" in \
         chain.warnings

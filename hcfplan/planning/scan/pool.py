@@ -32,6 +32,7 @@ WORKER_PRELOAD = [
     "hcfplan.planning.chain",
     "hcfplan.planning.stages",
     "hcfplan.planning.input_field",
+    "hcfplan.planning.fiber_run",
     "hcfplan.propagation.solve",
     "hcfplan.thz.generation",
     "hcfplan.compression.compressor",
