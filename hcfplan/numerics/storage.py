@@ -4,8 +4,8 @@ Each write goes to a temporary file in the target folder, is flushed to disk (``
 file) before it is renamed over the target, and the folder is synced after the rename (which
 makes the rename itself durable; a folder created for the file is synced into its parent
 too), so a crash, a power cut or a full disk leaves either the old file or the new one.
-SIGTERM/SIGHUP are held back during the write. A write that fails (full disk, read-only file
-system, a folder where the file should be) removes its temporary file and raises
+SIGTERM, SIGHUP and SIGINT are held back during the write. A write that fails (full disk,
+read-only file system, a folder where the file should be) removes its temporary file and raises
 :class:`WriteError`, which names the target file and the cause. Used by the disk cache
 (:mod:`hcfplan.numerics.cache`) and every output writer (:mod:`hcfplan.io.results`).
 """
@@ -20,14 +20,17 @@ import threading
 from collections.abc import Iterator
 from pathlib import Path
 
-#: Signals that end the process without clean-up by default; held back during a write.
-HELD_SIGNALS = tuple(getattr(signal, name) for name in ("SIGTERM", "SIGHUP")
+#: Signals held back during a write: SIGTERM/SIGHUP end the process without clean-up by
+#: default, and SIGINT (Ctrl-C, raised as an exception) could land between the creation of the
+#: temporary file and its clean-up, leaving it behind.
+HELD_SIGNALS = tuple(getattr(signal, name) for name in ("SIGTERM", "SIGHUP", "SIGINT")
                      if hasattr(signal, name))
 
 
 @contextlib.contextmanager
 def termination_held() -> Iterator[None]:
-    """Hold SIGTERM/SIGHUP inside the block; deliver them, to the previous handlers, after it.
+    """Hold SIGTERM, SIGHUP and SIGINT inside the block; deliver them, to the previous
+    handlers, after it.
 
     Only the main thread can set signal handlers; elsewhere the block runs unprotected.
     """
