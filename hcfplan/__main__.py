@@ -11,10 +11,21 @@ helper) and frees little, so the cyclic garbage collector's first generation is 
 often than Python's default (:data:`GC_THRESHOLDS`; the demo ``simulate`` took about 5 % less
 CPU time, measured in alternated runs). Programs that import :mod:`hcfplan` keep their own
 settings.
+
+When the command has ended, :func:`leave` ends the process without the interpreter's tear-down:
+the exit functions registered with :mod:`atexit` run (they stop worker pools and child
+processes), the standard streams are flushed, then ``os._exit``. The tear-down freed module by
+module what the process imported and took 0.14 s after numba had loaded a kernel, 0.06 s for
+scipy (measured from the last line written to the end of the process); every file of a command
+is already complete (written atomically and synced), so nothing is lost by skipping it. A
+thread still running at that point (none of the commands leaves one) gets the usual exit.
 """
 
+import atexit
 import gc
+import os
 import sys
+import threading
 
 #: Thresholds of the cyclic garbage collector in the ``hcfplan`` process (Python's default is
 #: 700, 10, 10): objects allocated before a first-generation collection, and collections of
@@ -33,5 +44,25 @@ def entry() -> int:
     return main()
 
 
+def leave(code: int) -> None:
+    """End the ``hcfplan`` process with exit code ``code``: the :mod:`atexit` functions, the
+    standard streams flushed, then ``os._exit`` (no tear-down of the imported modules); the
+    usual ``sys.exit`` where a thread other than this one still runs."""
+    if threading.active_count() > 1:
+        sys.exit(code)
+    atexit._run_exitfuncs()
+    for stream in (sys.stdout, sys.stderr):
+        try:
+            stream.flush()
+        except (OSError, ValueError):  # a closed pipe (``| head``): nothing more to say there
+            pass
+    os._exit(code)
+
+
+def run() -> None:
+    """The console entry point: :func:`entry`, then :func:`leave` with its exit code."""
+    leave(entry())
+
+
 if __name__ == "__main__":
-    sys.exit(entry())
+    run()

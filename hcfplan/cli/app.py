@@ -307,23 +307,27 @@ def simulate_command(
     workers: int = typer.Option(0, "--workers", help=SPREAD_WORKERS_HELP),
 ) -> None:
     """Run fiber (GNLSE) -> compressor -> THz and write summary.json, fields.npz and figures."""
-    from hcfplan.planning.chain import run_chain
-    from hcfplan.planning.run_folder import write_run
-
-    cfg = load_cli_config(config, set_ or [])
-    plan = spread_plan(cfg, spread, set_ or [])
     figure_names = helpers = None
     if not no_figures:
         from hcfplan.plotting.report import select_figures
 
         figure_names = select_figures(figures)
-    out_dir = _claim_out_dir(out, config, force)
-    if figure_names and plan is None:
+    if figure_names and spread is None:
         from hcfplan.plotting.helpers import FigureHelpers
 
-        # matplotlib is imported on the other core during the run; helpers that get no
-        # figures (an error, Ctrl-C) end when the pipe closes with this process or its frame
+        # forked first: matplotlib is imported on the other core while this process imports
+        # the run's modules, reads the config and runs; helpers that get no figures (an error,
+        # Ctrl-C) end when the pipe closes with this process or its frame
         helpers = FigureHelpers.start()
+    from hcfplan.planning.chain import run_chain
+    from hcfplan.planning.run_folder import write_run
+
+    cfg = load_cli_config(config, set_ or [])
+    plan = spread_plan(cfg, spread, set_ or [])
+    out_dir = _claim_out_dir(out, config, force)
+    if helpers is not None and plan is not None:  # a spread draws its figures the usual way
+        helpers.close()
+        helpers = None
     WRITTEN.watch(out_dir)
     if plan is not None:
         start_workers(workers)  # imports on another core while the nominal chain runs

@@ -248,13 +248,14 @@ def rate_table_is_sound(arrays: dict[str, np.ndarray]) -> bool:
 
 def cached_rate_table(model: RateModel, wavelength: float, ip: float, l: int,  # noqa: E741
                       m: int, charge: int, intensity_min: float,
-                      intensity_max: float) -> RateTable:
-    """:func:`tabulate_rate` with its default accuracy, kept in hcfplan's cache folder.
+                      intensity_max: float, *, points: int = 241,
+                      rtol: float = 2e-4) -> RateTable:
+    """:func:`tabulate_rate`, kept in hcfplan's cache folder.
 
     Parameters
     ----------
-    model, wavelength, ip, l, m, charge, intensity_min, intensity_max :
-        As in :func:`tabulate_rate`.
+    model, wavelength, ip, l, m, charge, intensity_min, intensity_max, points, rtol :
+        As in :func:`tabulate_rate` (``points`` and ``rtol`` default to its defaults).
 
     Returns
     -------
@@ -274,11 +275,12 @@ def cached_rate_table(model: RateModel, wavelength: float, ip: float, l: int,  #
     none: caching wrapper (the rate models carry their own references).
     """
     def compute() -> dict[str, np.ndarray]:
-        table = tabulate_rate(model, wavelength, ip, l, m, charge, intensity_min, intensity_max)
+        table = tabulate_rate(model, wavelength, ip, l, m, charge, intensity_min, intensity_max,
+                              points=points, rtol=rtol)
         return {"log_intensity": table.log_intensity, "log_rate": table.log_rate}
 
     inputs = (model, float(wavelength), float(ip), int(l), int(m), int(charge),
-              float(intensity_min), float(intensity_max))
+              float(intensity_min), float(intensity_max), int(points), float(rtol))
     sources = (Path(constants.__file__), Path(rates.__file__), Path(__file__))
     arrays = cached_arrays("rate-table", inputs, sources, compute, rate_table_is_sound)
     x, y = arrays["log_intensity"], arrays["log_rate"]

@@ -15,6 +15,12 @@ more figures, forks the second drawer itself after the import (which the drawer 
 copy-on-write), so the import is paid once instead of once per drawer (0.4-0.6 s of CPU). The
 second drawer ends with the first (Linux parent-death signal) and the first waits for it.
 
+The ``simulate`` command forks the helper first, before it imports the run's modules or reads
+the config: the helper then imports matplotlib, the figure modules and the modules of the
+results (which unpickling the jobs needs) on the other core while this process does all that
+and the run. Forked after those imports, the helper's matplotlib import (0.4 s) had not ended
+when a small run had (measured on the demo config).
+
 Helpers are only started where :func:`hcfplan.io.results.figure_helpers` allows a forked
 helper (Linux, more than one core free to this process).
 """
@@ -47,10 +53,8 @@ def helper_count() -> int:
     return max(1, min(HELPER_COUNT, len(os.sched_getaffinity(0))))
 
 
-#: Modules of the results a figure job carries (a run's ChainResult), imported here before the
-#: helper is forked: unpickling the jobs imported them in the helper otherwise, numba and
-#: scipy.optimize among them (0.24 s of CPU there, measured; this process imports them for
-#: the run anyway).
+#: Modules of the results a figure job carries (a run's ChainResult), imported by the helper
+#: while it waits for the jobs (unpickling the jobs imports them otherwise, after the run).
 RESULT_MODULES = (
     "hcfplan.io.config",
     "hcfplan.materials.gases",
@@ -82,7 +86,8 @@ STALL_LIMIT = 120.0
 
 def _preload() -> None:
     """What a helper imports while the run computes: matplotlib with the Agg back end, pyplot,
-    the figure modules, and the fonts of the house style (one text drawn)."""
+    the figure modules, the modules of the results (:data:`RESULT_MODULES`) and the fonts of
+    the house style (one text drawn)."""
     import matplotlib
 
     matplotlib.use("Agg", force=False)
@@ -91,6 +96,8 @@ def _preload() -> None:
     import hcfplan.plotting.compression  # noqa: F401
     import hcfplan.plotting.report  # noqa: F401
     import hcfplan.plotting.thz  # noqa: F401
+
+    _import_result_modules()
 
     style = Path(__file__).resolve().parent.parent / "styles" / "hcfplan.mplstyle"
     with plt.style.context(str(style)):
@@ -177,7 +184,6 @@ class FigureHelpers:
             return None
         import multiprocessing
 
-        _import_result_modules()
         context = multiprocessing.get_context("fork")
         turn = context.Value("i", 0)
         done = context.Array("b", MAX_JOBS)

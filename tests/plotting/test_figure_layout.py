@@ -21,6 +21,7 @@ matplotlib.use("Agg")
 import matplotlib.pyplot as plt  # noqa: E402
 from matplotlib.text import Text  # noqa: E402
 
+from hcfplan.io import results  # noqa: E402
 from hcfplan.io.config import load_config  # noqa: E402
 from hcfplan.planning.chain import run_chain  # noqa: E402
 from hcfplan.plotting import report  # noqa: E402
@@ -68,6 +69,11 @@ def layout_problems(fig) -> list[str]:
         if _overlap(a, b) > TOLERANCE_PX:
             problems.append(f"overlap: {ta.get_text()!r} and {tb.get_text()!r}")
     saved = fig.get_tightbbox(renderer).transformed(fig.dpi_scale_trans)
+    width, height = fig.get_size_inches() * fig.dpi
+    margin, right = results.PNG_MARGIN_IN * fig.dpi, results.PNG_MARGIN_RIGHT_IN * fig.dpi
+    if (saved.x0 < -margin or saved.y0 < -margin or saved.x1 > width + right
+            or saved.y1 > height + margin):
+        problems.append("the tight box reaches beyond the margin drawn by save_png")
     for text, box in texts:
         if (box.x0 < saved.x0 - TOLERANCE_PX or box.x1 > saved.x1 + TOLERANCE_PX
                 or box.y0 < saved.y0 - TOLERANCE_PX or box.y1 > saved.y1 + TOLERANCE_PX):

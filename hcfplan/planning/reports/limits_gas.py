@@ -89,11 +89,12 @@ def condensation_ceiling(medium, temperature: float, upper: float) -> float:
 
 @lru_cache(maxsize=32)
 def _rate_table(model: str, wavelength: float, ip: float, l: int, m: int, charge: int):
-    """Tabulated rate (pure function of scalars, cached; the table arrays are read-only)."""
-    from hcfplan.ionization.tables import tabulate_rate
+    """Tabulated rate (pure function of scalars, cached in memory and in hcfplan's cache
+    folder, as it took 67 ms of the demo command; the table arrays are read-only)."""
+    from hcfplan.ionization.tables import cached_rate_table
 
-    return tabulate_rate(model, wavelength, ip, l, m, charge, *RATE_TABLE_RANGE, points=41,
-                         rtol=RATE_TABLE_RTOL)
+    return cached_rate_table(model, wavelength, ip, l, m, charge, *RATE_TABLE_RANGE, points=41,
+                             rtol=RATE_TABLE_RTOL)
 
 
 def weighted_rates(medium, wavelength: float, model: str) -> list:
