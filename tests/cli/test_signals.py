@@ -138,7 +138,10 @@ def test_killed_scan_leaves_no_process(tmp_path):
 def test_interrupted_spread(tmp_path, command, signum):
     config = write_fast_config(tmp_path)
     out = tmp_path / "out"
-    spread = ["--spread", "energy=5%,pressure=2%,fwhm=5%", "--workers", "3"]
+    # corner runs on a grid 8 times the fast config's, so that they are still running when
+    # the test looks for them on a loaded machine (with 1024 points a spread could end first)
+    spread = ["--spread", "energy=5%,pressure=2%,fwhm=5%", "--workers", "3", "--set",
+              "grid.points=8192"]
     argv = {"simulate": ["simulate", str(config), "--out", str(out), "--quiet", *spread],
             "compare": ["compare", str(config), "--set-b", "laser.energy_uj=150", "--out",
                         str(out), "--json", *spread]}[command]
