@@ -249,10 +249,10 @@ class NonlinearTerms:
         backend: str = "scipy",
     ) -> None:
         from hcfplan.numerics.fft import FFT_BACKENDS, work_array
-        from hcfplan.propagation import kernels
+        from hcfplan.propagation.kernel_sets import solver_kernels
 
         n, dt = grid.points, grid.dt
-        self.kernels = kernels
+        self.kernels = solver_kernels(n, new_run=True)  # the steppers use this set too
         self.fft = FFT_BACKENDS[backend](n, workers)
         self.input = self.fft.spectrum_in
         self.scale = n * dt  # grid spectrum = scale * ifft(A)
