@@ -9,9 +9,9 @@ its target context and the machine code from numba's cache); the numpy twins cos
 start. The policy of this process says which set runs:
 
 ``"numba"``
-    Always the compiled kernels: the library's default (a Python session and the scan and
-    ``--spread`` worker processes, which load the kernels on purpose before their first point,
-    :mod:`hcfplan.planning.scan.warmup`).
+    Always the compiled kernels: the library's default (a Python program or notebook, and the
+    scan and ``--spread`` worker processes, which load the kernels on purpose before their
+    first point, :mod:`hcfplan.planning.scan.warmup`).
 ``"numpy"``
     Always the numpy twins.
 ``"auto"``

@@ -48,9 +48,9 @@ def helper_count() -> int:
 
 
 #: Modules of the results a figure job carries (a run's ChainResult), imported here before the
-#: helper is forked: unpickling the jobs imported them in the helper otherwise, numba and
-#: scipy.optimize among them (0.24 s of CPU there, measured; this process imports them for
-#: the run anyway).
+#: helper is forked: unpickling the jobs imported them in the helper otherwise, scipy.optimize
+#: among them (0.24 s of CPU there with numba, which these modules no longer import, measured;
+#: this process imports them for the run anyway).
 RESULT_MODULES = (
     "hcfplan.io.config",
     "hcfplan.materials.gases",

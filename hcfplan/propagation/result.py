@@ -10,6 +10,7 @@ import numpy as np
 from hcfplan.constants import c
 from hcfplan.numerics.fft import shared_transforms
 from hcfplan.numerics.grid import Grid
+from hcfplan.propagation.kernel_sets import solver_kernels
 from hcfplan.pulse import bandlimited
 from hcfplan.units import db_to_power_ratio
 
@@ -149,8 +150,6 @@ class Recorder:
         self._in_band, self._resonances = _resonance_bands(grid, waveguide)
         self._band = np.zeros(grid.points, bool) if self._in_band is None else self._in_band
         self._band_wavelength = np.where(self._band, grid.wavelength, 0.0)
-        from hcfplan.propagation.kernel_sets import solver_kernels
-
         self._kernels = solver_kernels(grid.points)  # the solver's set for this grid
 
     def record(self, z: float, u: np.ndarray) -> None:

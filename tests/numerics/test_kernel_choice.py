@@ -16,7 +16,8 @@ from hcfplan.numerics import kernel_choice
 def _restore(monkeypatch):
     """Each test starts from the library's default with no override, and leaves it so."""
     monkeypatch.delenv(kernel_choice.VARIABLE, raising=False)
-    saved = dict(kernel_choice._chosen)
+    saved = dict(kernel_choice._chosen)  # a command run in this process may have set "auto"
+    kernel_choice._chosen.update(policy=kernel_choice.DEFAULT_POLICY, runs=0)
     yield
     kernel_choice._chosen.update(saved)
 
