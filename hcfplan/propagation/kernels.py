@@ -20,8 +20,9 @@ the twins for a small grid in a one-shot command, which then never imports numba
 kernel gets its twin there and a test against it
 (``tests/propagation/test_solver_kernels_numpy.py``).
 
-Only :mod:`.kernel_sets` imports this module (lazily), so importing :mod:`hcfplan` does not load
-numba. Compiled code is cached on disk (``cache=True``): the first run on a machine compiles
+Only :mod:`.kernel_sets` (lazily) and the scan workers' warm-up
+(:mod:`hcfplan.planning.scan.warmup`) import this module, so importing :mod:`hcfplan` does not
+load numba. Compiled code is cached on disk (``cache=True``): the first run on a machine compiles
 (4.0 s on our 2 shared cores, including ``import numba``; ``bench/solver.py`` prints it), later
 processes load numba and the cached code in about 0.45 s before the first kernel runs
 (``bench/kernels.py`` prints it).
