@@ -6,8 +6,10 @@ that import prints one line instead of a traceback, then runs
 :func:`hcfplan.cli.app.main`. A SIGTERM or SIGHUP during the import ends the process with the
 default action of the signal, as before any command started (nothing is written yet).
 
-A command is a short process that imports much (numpy, scipy, numba, matplotlib in the figure
-helper) and frees little, so the cyclic garbage collector's first generation is collected less
+A command is a short process that imports much (numpy, scipy, matplotlib in the figure helper;
+numba only where a problem is large enough for the compiled kernels, see the ``"auto"`` kernel
+policy of :mod:`hcfplan.numerics.kernel_choice`, which the command line sets) and frees
+little, so the cyclic garbage collector's first generation is collected less
 often than Python's default (:data:`GC_THRESHOLDS`; the demo ``simulate`` took about 5 % less
 CPU time, measured in alternated runs). Programs that import :mod:`hcfplan` keep their own
 settings.

@@ -8,7 +8,10 @@ verdict of its result is invalid (:mod:`hcfplan.planning.verdict`; results saved
 interrupted (Ctrl-C: one line on stderr saying what was kept, no traceback), 143 or 129 for
 SIGTERM or SIGHUP (the same line).
 Heavy modules (scipy, CoolProp, numba, matplotlib) are imported inside the commands so that
-``hcfplan --help`` starts quickly. Imports of the command line flow one way:
+``hcfplan --help`` starts quickly. The commands run with the ``"auto"`` kernel policy
+(:mod:`hcfplan.numerics.kernel_choice`): a run on a small grid takes the numpy twins of the
+compiled kernels and never imports numba (its start-up, about 0.4 s, is more than such a run
+gains from it); ``HCFPLAN_KERNELS`` overrides it. Imports of the command line flow one way:
 app -> thz_command, calibrate_command, workflows -> common, output.
 """
 
@@ -55,6 +58,7 @@ from hcfplan.cli.output import (
 from hcfplan.cli.thz_command import register as register_thz
 from hcfplan.cli.workflows import register as register_workflows
 from hcfplan.errors import ConfigError, HcfplanError
+from hcfplan.numerics.kernel_choice import set_policy as set_kernel_policy
 
 app = typer.Typer(
     add_completion=False,
@@ -489,6 +493,7 @@ def main(argv: list[str] | None = None) -> int:
 def _run(argv: list[str] | None) -> int:
     """The command of ``argv``; its exit code (see :func:`main`)."""
     try:
+        set_kernel_policy("auto")  # a one-shot command: numpy kernels on small problems
         result = app(args=argv, prog_name="hcfplan", standalone_mode=False)
     except HcfplanError as exc:
         message = " ".join(str(exc).split())

@@ -1,4 +1,4 @@
-"""Fused elementwise kernels of the steppers and of the nonlinear terms (numba).
+"""Fused elementwise kernels of the steppers and of the nonlinear terms, compiled (numba).
 
 Each kernel does in one pass over the spectrum what would take numpy three to six passes with
 temporaries. The stepper kernels also apply the gain g of the nonlinear term (N = i g raw, g
@@ -13,10 +13,19 @@ the array allow ``reassoc`` (:data:`_SUM_JIT`) so the sum is split into vector l
 fast-math flag is set, so NaN and Inf propagate and are detected. The arrays must be
 C-contiguous (all work arrays of the solver are).
 
-Only the solver imports this module (lazily), so importing :mod:`hcfplan` does not load numba.
-Compiled code is cached on disk (``cache=True``): the first run on a machine compiles (4.0 s on
-our 2 shared cores, including ``import numba``; ``bench/solver.py`` prints it), later runs load
-the cache in 0.9 s (most of it the numba import).
+Each kernel has a numpy twin of the same name, signature and in-place semantics in
+:mod:`.kernels_numpy`; the solver takes one set or the other from :mod:`.kernel_sets`, as the
+process's kernel policy says (:mod:`hcfplan.numerics.kernel_choice`: the compiled set by default,
+the twins for a small grid in a one-shot command, which then never imports numba). A new
+kernel gets its twin there and a test against it
+(``tests/propagation/test_solver_kernels_numpy.py``).
+
+Only :mod:`.kernel_sets` (lazily) and the scan workers' warm-up
+(:mod:`hcfplan.planning.scan.warmup`) import this module, so importing :mod:`hcfplan` does not
+load numba. Compiled code is cached on disk (``cache=True``): the first run on a machine compiles
+(4.0 s on our 2 shared cores, including ``import numba``; ``bench/solver.py`` prints it), later
+processes load numba and the cached code in about 0.45 s before the first kernel runs
+(``bench/kernels.py`` prints it).
 """
 
 from __future__ import annotations

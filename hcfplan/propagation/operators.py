@@ -78,6 +78,7 @@ from hcfplan.constants import c, e, epsilon_0, m_e
 from hcfplan.numerics.derivatives import derivative
 from hcfplan.numerics.grid import Grid
 from hcfplan.propagation.ionizing import IonizingSpecies
+from hcfplan.propagation.kernel_sets import solver_kernels
 from hcfplan.propagation.raman import raman_response_blowwood1989, rotational_raman_response
 
 #: Part of the frequency window, on each side, covered by the edge absorber.
@@ -249,10 +250,9 @@ class NonlinearTerms:
         backend: str = "scipy",
     ) -> None:
         from hcfplan.numerics.fft import FFT_BACKENDS, work_array
-        from hcfplan.propagation import kernels
 
         n, dt = grid.points, grid.dt
-        self.kernels = kernels
+        self.kernels = solver_kernels(n, new_run=True)  # the steppers use this set too
         self.fft = FFT_BACKENDS[backend](n, workers)
         self.input = self.fft.spectrum_in
         self.scale = n * dt  # grid spectrum = scale * ifft(A)

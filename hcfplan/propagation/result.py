@@ -10,6 +10,7 @@ import numpy as np
 from hcfplan.constants import c
 from hcfplan.numerics.fft import shared_transforms
 from hcfplan.numerics.grid import Grid
+from hcfplan.propagation.kernel_sets import solver_kernels
 from hcfplan.pulse import bandlimited
 from hcfplan.units import db_to_power_ratio
 
@@ -149,16 +150,15 @@ class Recorder:
         self._in_band, self._resonances = _resonance_bands(grid, waveguide)
         self._band = np.zeros(grid.points, bool) if self._in_band is None else self._in_band
         self._band_wavelength = np.where(self._band, grid.wavelength, 0.0)
-        from hcfplan.propagation import kernels  # numba, loaded by the solver anyway
-
-        self._kernels = kernels
+        self._kernels = solver_kernels(grid.points)  # the solver's set for this grid
 
     def record(self, z: float, u: np.ndarray) -> None:
         """Store the spectrum and the tracked quantities of spectrum ``u`` at ``z``.
 
-        Two compiled passes (:func:`~.kernels.spectrum_sums`, :func:`~.kernels.power_sums`)
-        give the spectral density, the power and their sums; the numpy expressions they
-        replace took 0.25 ms per record at 2048 points (20 % of the demo config's run).
+        Two fused passes (:func:`~.kernels.spectrum_sums`, :func:`~.kernels.power_sums`, or
+        their numpy twins) give the spectral density, the power and their sums; the numpy
+        expressions the compiled ones replace took 0.25 ms per record at 2048 points (20 % of
+        the demo config's run).
 
         References
         ----------

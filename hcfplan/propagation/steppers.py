@@ -22,8 +22,9 @@ The half-step propagators exp(L h/2) are cached per step length (the solver keep
 fixed within a sampling interval unless the controller asks for a shorter one, so only a few
 distinct lengths occur; one complex exp over the grid costs about three FFTs).
 
-All stages are fused numba kernels (:mod:`.kernels`): per step 4 N evaluations (2 FFTs each
-without Raman or plasma) and 5 passes over the spectrum.
+All stages are fused kernels: the compiled ones of :mod:`.kernels` (numba) or their numpy twins
+(:mod:`.kernels_numpy`), the set of the nonlinear terms (:mod:`.kernel_sets`); per step 4 N
+evaluations (2 FFTs each without Raman or plasma) and 5 passes over the spectrum.
 
 References
 ----------
@@ -73,9 +74,7 @@ class _InteractionPicture:
 
     def __init__(self, linear: np.ndarray, nonlinear, rtol: float, atol: float,
                  norm: str = "relative_l2") -> None:
-        from hcfplan.propagation import kernels
-
-        self.kernels = kernels
+        self.kernels = nonlinear.kernels  # the set chosen for the run (kernel_sets.py)
         self.linear = linear
         self.nonlinear = nonlinear
         self.rtol, self.atol, self.norm = rtol, atol, norm

@@ -20,7 +20,10 @@ Two evaluations are provided:
 * :func:`peak_power` -- only the highest point, from fine samples within one grid step of the
   highest samples, each a dot product of the N samples with a precomputed kernel (about
   ``2 * PEAK_OVERSAMPLING`` dot products of length N per candidate peak, cheaper than one FFT
-  of the fine grid); the compressor search and the solver's records use it.
+  of the fine grid); the compressor search and the solver's records use it. The search runs
+  compiled (:mod:`hcfplan.pulse.bandlimited_compiled`, numba) or as its numpy twin
+  (:mod:`hcfplan.pulse.bandlimited_numpy`), as :mod:`hcfplan.numerics.kernel_choice` says;
+  importing this module imports neither numba nor the compiled part.
 
 References
 ----------
@@ -33,8 +36,9 @@ from __future__ import annotations
 from functools import lru_cache
 
 import numpy as np
-from numba import njit
 from scipy import fft as sfft
+
+from hcfplan.numerics.kernel_choice import compiled
 
 #: Fine samples per FWHM aimed at by :func:`oversampling_factor`: linear interpolation of the
 #: half-maximum crossings on the fine grid then errs by at most 0.193 / 32^2 = 1.9e-4 relative
@@ -133,85 +137,14 @@ def _peak_kernels(points: int) -> np.ndarray:
     return kernels
 
 
-@njit(cache=True, nogil=True, fastmath={"reassoc"})
-def _fine_power(field, centre, row):  # pragma: no cover - compiled
-    """|sum_p row[p] field[(centre + p) mod N]|^2: the interpolant at one fine offset."""
-    n = field.size
-    head = n - centre
-    acc = 0.0 + 0.0j
-    for p in range(head):
-        acc += row[p] * field[centre + p]
-    for p in range(head, n):
-        acc += row[p] * field[centre + p - n]
-    return acc.real * acc.real + acc.imag * acc.imag
-
-
-@njit(cache=True, nogil=True)
-def _vertex(left, mid, right):  # pragma: no cover - compiled
-    """Peak of the parabola through three equally spaced values (``mid`` the highest) and its
-    offset from ``mid`` in units of the spacing."""
-    curvature = 2.0 * mid - left - right
-    if not curvature > 0:
-        return mid, 0.0
-    return mid + (right - left) ** 2 / (8.0 * curvature), 0.5 * (right - left) / curvature
-
-
-@njit(cache=True, nogil=True)
-def _candidates(power, level, most):  # pragma: no cover - compiled
-    """Indices of the coarse local maxima (at least ``level`` times the highest sample, the
-    ``most`` highest of them; circular) that may hide the highest band-limited peak."""
-    n = power.size
-    top = power.max()
-    found = []
-    for k in range(n):
-        value = power[k]
-        if value >= level * top and value >= power[k - 1] and value >= power[(k + 1) % n]:
-            found.append(k)
-    picked = np.array(found)
-    if picked.size > most:
-        picked = picked[np.argsort(-power[picked])[:most]]
-    return picked
-
-
-@njit(cache=True, nogil=True)
-def _refine(field, power, kernels, factor, level, most):  # pragma: no cover - compiled
-    """The search of :func:`peak_location` (numba: a handful of short loops per call, which as
-    numpy operations cost several times more in call overhead, measured)."""
-    n = field.size
-    fine = np.empty(2 * factor + 1)  # fine[m]: the interpolant at centre + (m - factor) / factor
-    i_top = int(np.argmax(power))
-    best, where = power[i_top], float(i_top)
-    for start in _candidates(power, level, most):
-        if power[start] < level * best:  # cannot rise above the best found (CANDIDATE_LEVEL)
-            continue
-        centre, i, h = start, factor, factor // 2
-        for _ in range(4):  # moves on at most a few steps from a coarse local maximum
-            fine[0] = power[(centre - 1) % n]
-            fine[factor] = power[centre % n]
-            fine[2 * factor] = power[(centre + 1) % n]
-            fine[h] = _fine_power(field, centre % n, kernels[h])
-            fine[factor + h] = _fine_power(field, centre % n, kernels[factor + h])
-            i = factor + h * (int(np.argmax(fine[::h])) - 2)
-            if 0 < i < 2 * factor:
-                break
-            centre += 1 if i > 0 else -1
-        if not 0 < i < 2 * factor:
-            continue
-        while h > 1:  # halve the spacing around the best fine sample
-            h //= 2
-            fine[i - h] = _fine_power(field, centre % n, kernels[i - h])
-            fine[i + h] = _fine_power(field, centre % n, kernels[i + h])
-            if fine[i - h] > fine[i] and fine[i - h] >= fine[i + h]:
-                i -= h
-            elif fine[i + h] > fine[i]:
-                i += h
-            if h > 1 and not h <= i <= 2 * factor - h:
-                break
-        j = min(max(i, 1), 2 * factor - 1)
-        value, shift = _vertex(fine[j - 1], fine[j], fine[j + 1])
-        if value > best:
-            best, where = value, centre + (j - factor + shift) / factor
-    return best, where
+def _peak_search(points: int):
+    """The search of :func:`peak_location` for a grid of ``points``: the compiled one or its
+    numpy twin, as :mod:`hcfplan.numerics.kernel_choice` says (numba is imported only here)."""
+    if compiled(points):
+        from hcfplan.pulse.bandlimited_compiled import refine_peak
+    else:
+        from hcfplan.pulse.bandlimited_numpy import refine_peak
+    return refine_peak
 
 
 def peak_location(field_t: np.ndarray) -> tuple[float, float]:
@@ -254,8 +187,8 @@ def peak_location(field_t: np.ndarray) -> tuple[float, float]:
         return float("nan"), float("nan")
     if not power.max() > 0:
         return 0.0, float(np.argmax(power))
-    best, where = _refine(field_t, power, _peak_kernels(field_t.size), PEAK_OVERSAMPLING,
-                          CANDIDATE_LEVEL, MAX_CANDIDATES)
+    best, where = _peak_search(field_t.size)(field_t, power, _peak_kernels(field_t.size),
+                                             PEAK_OVERSAMPLING, CANDIDATE_LEVEL, MAX_CANDIDATES)
     return float(best), float(where)
 
 

@@ -1,7 +1,9 @@
 """Compiled kernel of the THz estimate's exact phase-matching sum (:mod:`hcfplan.thz.mixing`).
 
 Kept apart so that importing :mod:`hcfplan.thz.mixing` and :mod:`hcfplan.thz.generation` does not
-import numba; :func:`hcfplan.thz.mixing.mixing_sum_full` imports it where the sum is done.
+import numba; :func:`hcfplan.thz.mixing.mixing_sum_full` imports it where the sum is done on the
+compiled kernels, else its numpy twin :mod:`hcfplan.thz.kernels_numpy`, as
+:mod:`hcfplan.numerics.kernel_choice` says.
 
 References
 ----------
@@ -17,10 +19,7 @@ import numba
 import numpy as np
 
 from hcfplan.thz.detection import SERIES_LIMIT
-
-#: |delta_k L| from which :func:`mixing_sums` uses the product form (relative error
-#: eps k_opt L / |delta_k L|, 3e-12 for 1 mm of GaP at 800 nm).
-_PRODUCT_LIMIT = 1.0
+from hcfplan.thz.kernels_numpy import PRODUCT_LIMIT
 
 
 @numba.njit(cache=True, nogil=True)
@@ -31,7 +30,7 @@ def mixing_sums(band, k_opt, k_thz, thickness, count, out):  # pragma: no cover 
 
     ``k_opt`` is real (no optical absorption), so exp(i q L) = P[k + m] conj(P[k]) with P =
     exp(i k_opt L) computed once, and exp(i k_out L) is the same for every k: no exponential
-    in the double loop where |delta_k L| >= :data:`_PRODUCT_LIMIT`. Below that the product form
+    in the double loop where |delta_k L| >= :data:`PRODUCT_LIMIT`. Below that the product form
     would lose eps k_opt L / |delta_k L| of relative accuracy (2.6e-8 at the series limit for
     1 mm of GaP), so exp(i delta_k L) - 1 is taken from delta_k itself. The numpy form, with two
     exponentials and temporaries per term, took 64 % of a scan point (profile of
@@ -56,7 +55,7 @@ def mixing_sums(band, k_opt, k_thz, thickness, count, out):  # pragma: no cover 
         c_re[k] = b_re[k] * cos - b_im[k] * sin
         c_im[k] = b_re[k] * sin + b_im[k] * cos
     series2 = (SERIES_LIMIT / thickness) ** 2  # the limits on |delta_k|^2
-    product2 = (_PRODUCT_LIMIT / thickness) ** 2
+    product2 = (PRODUCT_LIMIT / thickness) ** 2
     for m in range(count):
         k_out = k_thz[m]
         exit_phase = cmath.exp(1j * k_out * thickness)

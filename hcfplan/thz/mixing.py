@@ -11,7 +11,9 @@ referenced to a frame moving with the pump group velocity:
 
 * ``"full"``: L(omega, Omega) with the exact optical k(omega) of the Sellmeier; a compiled sum over
   omega on the band-limited part of the grid for every THz sample
-  (:func:`hcfplan.thz.kernels.mixing_sums`).
+  (:func:`hcfplan.thz.kernels.mixing_sums`, or its numpy twin
+  :func:`hcfplan.thz.kernels_numpy.mixing_sums` where :mod:`hcfplan.numerics.kernel_choice`
+  says so).
 * ``"group_velocity"``: k(omega + Omega) - k(omega) ~ Omega n_g(omega_c) / c, so L depends on
   Omega only and the sum is an autocorrelation done by FFT. Exact for a dispersion-free crystal;
   a good approximation when the group-velocity dispersion over the band times L is small.
@@ -41,7 +43,9 @@ from hcfplan.materials.crystals import (
     optical_index,
     thz_index,
 )
+from hcfplan.numerics.kernel_choice import compiled
 from hcfplan.thz.detection import phase_matching_integral, spectral_autocorrelation
+from hcfplan.thz.kernels_numpy import AUTO_NUMPY_TERMS
 
 PhaseMatchingName = Literal["full", "group_velocity"]
 
@@ -147,8 +151,6 @@ def mixing_sum_full(
            and experiment," J. Opt. Soc. Am. B 23, 1822 (2006) [equations from memory, not
            retrieved].
     """
-    from hcfplan.thz.kernels import mixing_sums  # numba: imported where the sum is done
-
     k_opt = optical_index(crystal, omega) * omega / c
     if not np.all(np.isfinite(k_opt)):
         raise ConfigError(
@@ -159,8 +161,13 @@ def mixing_sum_full(
     k_thz = np.asarray(thz_index(crystal, Omega) * Omega / c, dtype=complex)
     frame = np.exp(-1j * optical_group_index(crystal, omega_c) * Omega / c * thickness)
     out = np.zeros(len(Omega), dtype=complex)
+    count = min(len(Omega), len(band))
+    if compiled(count * len(band), AUTO_NUMPY_TERMS):
+        from hcfplan.thz.kernels import mixing_sums  # numba: imported where the sum is done
+    else:
+        from hcfplan.thz.kernels_numpy import mixing_sums
     mixing_sums(np.ascontiguousarray(band, dtype=complex), np.asarray(k_opt, dtype=float),
-                k_thz, thickness, min(len(Omega), len(band)), out)
+                k_thz, thickness, count, out)
     return out * frame * dnu
 
 

@@ -68,9 +68,9 @@ def _default_sigint() -> None:
     signal.signal(signal.SIGINT, signal.SIG_DFL)
 
 
-def _start(config: Path, out: Path) -> subprocess.Popen:
+def _start(config: Path, out: Path, **env) -> subprocess.Popen:
     return subprocess.Popen([sys.executable, "-m", "hcfplan", "simulate", str(config), "--out",
-                             str(out), "--quiet"], env=_env(), cwd=config.parent,
+                             str(out), "--quiet"], env=dict(_env(), **env), cwd=config.parent,
                             stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True,
                             preexec_fn=_default_sigint)
 
@@ -141,7 +141,8 @@ def slow_config(tmp_path) -> Path:
 @pytest.mark.parametrize("signum", [signal.SIGINT, signal.SIGTERM], ids=["SIGINT", "SIGTERM"])
 def test_signal_during_propagation(slow_config, tmp_path, signum):
     out = tmp_path / "run"
-    proc = _start(slow_config, out)
+    # the compiled kernels, whose loading shows that the run has reached the physics
+    proc = _start(slow_config, out, HCFPLAN_KERNELS="numba")
     _wait_for(_running_physics(proc), proc)
     time.sleep(0.5)
     proc.send_signal(signum)

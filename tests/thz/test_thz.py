@@ -535,9 +535,9 @@ def test_plots_draw_and_return_axes():
 # ------------------------------------------------------------------------------ docstrings
 
 
-@pytest.mark.parametrize("module", ["detection", "generation", "kernels", "measured",
-                                    "measures", "mixing", "sampling", "setup", "tilted",
-                                    "crystal_limits", "waveforms"])
+@pytest.mark.parametrize("module", ["detection", "generation", "kernels", "kernels_numpy",
+                                    "measured", "measures", "mixing", "sampling", "setup",
+                                    "tilted", "crystal_limits", "waveforms"])
 def test_public_functions_name_their_source(module):
     """House rule: every public function of hcfplan.thz has a References section in its own
     docstring (a published source, or "None: ..." for a numerical helper)."""

@@ -1,0 +1,131 @@
+"""The compiled (numba) part of the band-limited peak search of :mod:`hcfplan.pulse.bandlimited`.
+
+Kept apart so that importing :mod:`hcfplan.pulse.bandlimited` (and the metrics) does not import
+numba: :func:`hcfplan.pulse.bandlimited.peak_location` imports this module where the search
+runs on the compiled kernels (:mod:`hcfplan.numerics.kernel_choice`); its numpy twin is
+:mod:`hcfplan.pulse.bandlimited_numpy`.
+
+References
+----------
+.. [1] C. E. Shannon, "Communication in the presence of noise," Proc. IRE, vol. 37, no. 1,
+       pp. 10-21, 1949, doi:10.1109/JRPROC.1949.232969 (sampling theorem, sinc interpolation).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from numba import njit
+
+
+@njit(cache=True, nogil=True, fastmath={"reassoc"})
+def fine_power(field, centre, row):  # pragma: no cover - compiled
+    """|sum_p row[p] field[(centre + p) mod N]|^2: the interpolant at one fine offset.
+
+    References
+    ----------
+    none: numerical helper
+    """
+    n = field.size
+    head = n - centre
+    acc = 0.0 + 0.0j
+    for p in range(head):
+        acc += row[p] * field[centre + p]
+    for p in range(head, n):
+        acc += row[p] * field[centre + p - n]
+    return acc.real * acc.real + acc.imag * acc.imag
+
+
+@njit(cache=True, nogil=True)
+def parabola_vertex(left, mid, right):  # pragma: no cover - compiled
+    """Peak of the parabola through three equally spaced values (``mid`` the highest) and its
+    offset from ``mid`` in units of the spacing.
+
+    References
+    ----------
+    none: numerical helper
+    """
+    curvature = 2.0 * mid - left - right
+    if not curvature > 0:
+        return mid, 0.0
+    return mid + (right - left) ** 2 / (8.0 * curvature), 0.5 * (right - left) / curvature
+
+
+@njit(cache=True, nogil=True)
+def peak_candidates(power, level, most):  # pragma: no cover - compiled
+    """Indices of the coarse local maxima (at least ``level`` times the highest sample, the
+    ``most`` highest of them; circular) that may hide the highest band-limited peak.
+
+    References
+    ----------
+    none: numerical helper
+    """
+    n = power.size
+    top = power.max()
+    found = []
+    for k in range(n):
+        value = power[k]
+        if value >= level * top and value >= power[k - 1] and value >= power[(k + 1) % n]:
+            found.append(k)
+    picked = np.array(found)
+    if picked.size > most:
+        picked = picked[np.argsort(-power[picked])[:most]]
+    return picked
+
+
+@njit(cache=True, nogil=True)
+def refine_peak(field, power, kernels, factor, level, most):  # pragma: no cover - compiled
+    """The search of :func:`hcfplan.pulse.bandlimited.peak_location` (numba: a handful of short
+    loops per call, which as numpy operations cost several times more in call overhead,
+    measured). Returns (peak, position in grid steps).
+
+    References
+    ----------
+    none: numerical helper
+    """
+    n = field.size
+    fine = np.empty(2 * factor + 1)  # fine[m]: the interpolant at centre + (m - factor) / factor
+    i_top = int(np.argmax(power))
+    best, where = power[i_top], float(i_top)
+    for start in peak_candidates(power, level, most):
+        if power[start] < level * best:  # cannot rise above the best found (CANDIDATE_LEVEL)
+            continue
+        centre, i, h = start, factor, factor // 2
+        for _ in range(4):  # moves on at most a few steps from a coarse local maximum
+            fine[0] = power[(centre - 1) % n]
+            fine[factor] = power[centre % n]
+            fine[2 * factor] = power[(centre + 1) % n]
+            fine[h] = fine_power(field, centre % n, kernels[h])
+            fine[factor + h] = fine_power(field, centre % n, kernels[factor + h])
+            i = factor + h * (int(np.argmax(fine[::h])) - 2)
+            if 0 < i < 2 * factor:
+                break
+            centre += 1 if i > 0 else -1
+        if not 0 < i < 2 * factor:
+            continue
+        while h > 1:  # halve the spacing around the best fine sample
+            h //= 2
+            fine[i - h] = fine_power(field, centre % n, kernels[i - h])
+            fine[i + h] = fine_power(field, centre % n, kernels[i + h])
+            if fine[i - h] > fine[i] and fine[i - h] >= fine[i + h]:
+                i -= h
+            elif fine[i + h] > fine[i]:
+                i += h
+            if h > 1 and not h <= i <= 2 * factor - h:
+                break
+        j = min(max(i, 1), 2 * factor - 1)
+        value, shift = parabola_vertex(fine[j - 1], fine[j], fine[j + 1])
+        if value > best:
+            best, where = value, centre + (j - factor + shift) / factor
+    return best, where
+
+
+def warm_kernels() -> None:
+    """Call the compiled search once on a tiny field (loads its machine code from numba's cache;
+    used by :mod:`hcfplan.planning.scan.warmup`).
+
+    References
+    ----------
+    none: numerical helper
+    """
+    field = np.exp(-((np.arange(16.0) - 7.3) ** 2) / 4.0) + 0j
+    refine_peak(field, field.real**2, np.full((33, 16), 1.0 / 16, complex), 16, 0.4, 4)
