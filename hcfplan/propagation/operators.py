@@ -274,6 +274,11 @@ class NonlinearTerms:
         if species:  # work arrays and packed rate tables of the fused plasma kernel
             self.plasma_time, self.plasma_spectrum = self.new_work(), self.new_work()
             self.tables = _packed_tables(species)
+            # the power [W] from which some rate of the tables is above 0: the plasma kernel's
+            # own test (below it every rate is 0, no electrons, no plasma terms)
+            log_i, starts = self.tables[0], self.tables[2]
+            self.rate_floor = min(intensity_area * np.exp(log_i[k]) * (1 - 1e-12)
+                                  for k in starts[:-1])
 
     def evaluate(self, out: np.ndarray) -> np.ndarray:
         """Raw nonlinear spectrum of the spectrum in :attr:`input` into ``out`` (N = i gain out).
@@ -305,6 +310,14 @@ class NonlinearTerms:
             kn.delayed_in_place(a, power, delayed, self.instantaneous)
             fft.backward(a, out)
             return out
+        if np.max(power) * (1.0 / self.scale**2) < self.rate_floor:
+            # no sample reaches the rate tables: the plasma terms are 0 (the kernel's result,
+            # without its pass, the plasma transform and the sum; a NaN takes the kernel)
+            kn.delayed_in_place(a, power, delayed, self.instantaneous)
+            fft.backward(a, out)
+            np.multiply(out, self.kerr_gain, out=out)
+            self.ionization_fraction = self.electron_line_density = 0.0
+            return out
         end = kn.plasma_in_place(a, self.plasma_time, power, delayed, self.instantaneous,
                                  *self.tables, 1.0 / self.scale**2, self.intensity_area,
                                  self.dt, self.refraction)
@@ -333,6 +346,9 @@ class NonlinearTerms:
         M. Geissler et al., Phys. Rev. Lett. 83, 2930 (1999).
         M. F. Saleh et al., Phys. Rev. Lett. 107, 203902 (2011) [from memory].
         """
+        if np.max(power) < self.rate_floor:  # no sample reaches the rate tables
+            self.ionization_fraction = self.electron_line_density = 0.0
+            return 0.0, 0.0
         end = self.kernels.plasma_in_place(
             self.plasma_spectrum, self.plasma_time, power, self.no_delay, 0.0, *self.tables, 1.0,
             self.intensity_area, self.dt, self.refraction)  # work arrays as scratch

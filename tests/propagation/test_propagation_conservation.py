@@ -175,3 +175,38 @@ def test_fused_plasma_kernel_blocks_match_numpy_reference(where):
     np.testing.assert_array_equal(kerr, a * power)
     line = terms.electron_line_density / area  # set by the reference
     assert end == pytest.approx(line, rel=1e-12) or (np.isnan(end) and np.isnan(line))
+
+
+@pytest.mark.parametrize("energy", [1e-12, 1e-9])
+def test_a_field_below_the_rate_tables_skips_the_plasma_pass(energy, monkeypatch):
+    # contract: where no sample reaches the rate tables' lowest intensity, evaluate() skips the
+    # plasma kernel and its transform; N(u) and the ionisation are those of the kernel path
+    # (which then gives plasma terms of exactly 0), and the recorder's entry point agrees
+    from hcfplan.propagation.ionizing import ionizing_gas
+    from hcfplan.propagation.operators import NonlinearTerms
+
+    gas = gas_medium(GasFill((("Ar", 1.0),), 2e5, 293.15))
+    area = CapillaryFiber(core_radius=50e-6, length=0.02, gas=gas).peak_intensity_area
+    fiber = TaylorFiber(omega0=OMEGA_800, betas=(-5e-30,), gamma=1e-6, length=0.02,
+                        mode_area=area)
+    grid = Grid(points=2**10, dt=1.5e-15, omega0=OMEGA_800)
+    species = ionizing_gas(grid, fiber, gas, "ppt").species
+    rng = np.random.default_rng(3)
+    terms = NonlinearTerms(grid, np.full(grid.points, 1e-6), 0.8,
+                           rng.random(grid.points) * 1e-3, species, area)
+    field = pulse_field(grid, "sech2", 30e-15, energy)
+    power = np.abs(field) ** 2
+    assert np.max(power) < terms.rate_floor  # below the tables: the skip applies
+    u = grid.to_spectrum(field)
+    skipped = terms(u, np.empty(grid.points, complex)).copy()
+    assert terms.ionization_fraction == 0.0
+    calls = []
+    original = terms.kernels.plasma_in_place
+    monkeypatch.setattr(terms, "rate_floor", -np.inf)  # the skip disabled: the kernel runs
+    monkeypatch.setattr(terms.kernels, "plasma_in_place",
+                        lambda *args: calls.append(1) or original(*args))
+    full = terms(u, np.empty(grid.points, complex))
+    assert calls == [1] and terms.ionization_fraction == 0.0
+    np.testing.assert_array_equal(skipped, full)
+    monkeypatch.undo()
+    assert terms.ionization_of(power) == (0.0, 0.0)
