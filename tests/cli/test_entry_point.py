@@ -68,3 +68,16 @@ def test_a_running_thread_gets_the_usual_exit():
                          timeout=120)
     assert out.returncode == 0
     assert "thread done" in out.stdout
+
+
+def test_a_profiled_command_keeps_its_profile(tmp_path):
+    """Under ``python -m cProfile`` the process takes the usual exit, so the profile is
+    written."""
+    out = tmp_path / "profile.out"
+    code = ("import cProfile, sys; sys.argv = ['hcfplan', '--version']; "
+            "from hcfplan.__main__ import run; "
+            f"cProfile.run('run()', {str(out)!r})")
+    proc = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                          timeout=120)
+    assert proc.returncode == 0, proc.stderr
+    assert out.stat().st_size > 0

@@ -99,3 +99,31 @@ def test_dispersion_coefficients_order_checked():
     fiber = TaylorFiber(2e15, (1e-27,), gamma=0.0, length=1.0)
     with pytest.raises(ConfigError, match="order = 9"):
         derived.dispersion_coefficients(fiber, 2e15, order=9)
+
+
+def test_zdws_refined_together_equal_those_refined_one_by_one(monkeypatch):
+    # contract: the elementwise root finder (all brackets at once) and Brent's method one
+    # bracket at a time (the fallback for scipy < 1.15) give the same zero-dispersion
+    # wavelengths within their tolerance, for an anti-resonant fiber with many zeros
+    import builtins
+
+    from hcfplan.fibers import AntiresonantFiber
+    from hcfplan.materials.gases import GasFill, gas_medium
+
+    gas = gas_medium(GasFill((("Ar", 1.0),), 3e5, 293.15))
+    fiber = AntiresonantFiber(17.5e-6, 0.7e-6, 0.8, gas)
+    with pytest.warns(Warning):  # the gas fits are extrapolated beyond 2 um
+        together = derived.zero_dispersion_wavelengths(fiber, (300e-9, 3000e-9))
+    real_import = builtins.__import__
+
+    def without_elementwise(name, *args, **kwargs):
+        if name == "scipy.optimize.elementwise":
+            raise ImportError(name)
+        return real_import(name, *args, **kwargs)
+
+    monkeypatch.setattr(builtins, "__import__", without_elementwise)
+    with pytest.warns(Warning):
+        one_by_one = derived.zero_dispersion_wavelengths(fiber, (300e-9, 3000e-9))
+    assert len(together) == len(one_by_one) >= 4
+    np.testing.assert_allclose(together, one_by_one, rtol=0, atol=3 * derived.ZDW_XTOL)
+    assert list(together) == sorted(together)
