@@ -53,9 +53,6 @@ from hcfplan.propagation.solve import (
     run_stepping,
 )
 
-#: The ConfigError text for gradient fills when they cannot be modelled (the contract's).
-SEGMENTS_REFUSED = "segments: gradient fills are not modelled with more than one mode"
-
 
 @dataclass(frozen=True)
 class ModeSegment:

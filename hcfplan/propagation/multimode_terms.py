@@ -31,14 +31,14 @@ Q_p = sum_lmn S_plmn A_l A_m A_n^*, or computed on a radial grid of K nodes: E a
 (K N real x complex multiply-adds), E |E|^2 there, and the projection (K N again). With the
 symmetries of S (products B_lm = A_l A_m for l <= m, then G_pn = sum S B, symmetric in p, n,
 then sum_n G_pn A_n^*) the tensor costs about N(N+1)/2 x N(N+1)/2 + N^2 multiply-adds; the
-grid 2 K N + K. With the K of :func:`radial_nodes` (quadrature error of S below 1e-8):
+grid 2 K N + K. With the K of :func:`radial_nodes` (quadrature error of S below 1e-7):
 
 =====  ==  ==============  ============
 N      K   tensor (~)      radial grid
 =====  ==  ==============  ============
-2      12  13              60
-4      18  116             162
-6      25  477             325
+2      11  13              55
+4      17  116             153
+6      24  477             312
 =====  ==  ==============  ============
 
 (In flops the two are closer for N = 4 since the radial multiply-adds are real x complex and
@@ -54,14 +54,17 @@ product of J0(u r/a), an even, entire function of r, i.e. a power series in s; K
 s integrate polynomials of degree 2K - 1 in s = 4K - 2 in r exactly, twice the degree of K
 Gauss nodes in r with the weight r (which treats the even integrand as a general polynomial).
 The product of four profiles of EH1N varies like cos(4 u_1N r / a), so K grows like u_1N:
-K = ceil(u_1N) + 7 keeps the error of every S_plmn below 1e-8 of the largest (checked for
-N = 1..6 against scipy.integrate.quad in tests/propagation/test_multimode_quadrature.py).
+K = ceil(u_1N) + 5 keeps the error of every S_plmn below 1e-7 of the largest for N <= 8 (6e-8
+for N <= 6; with + 4 it reaches 2.5e-6, with + 6 8e-9 at one node more; checked for N = 1..6
+against scipy.integrate.quad in tests/propagation/test_multimode_quadrature.py). That is below
+the default rtol (1e-6) and far below the accuracy of the J0 profiles themselves (corrections
+of order wavelength / a, Marcatili & Schmeltzer [2]).
 
 Delayed (Raman) term through the mode products: the delayed index at node k is
 h * |E_k|^2 = sum_{m<=n} c_mn F_km F_kn (h * Re(A_m A_n^*)) (c = 1 on the diagonal, 2 off it),
 i.e. N(N+1)/2 real convolutions (one real FFT pair each) and a (K x N(N+1)/2) combination per
 sample, instead of K convolutions at the nodes: 3, 10, 21 FFT pairs for N = 2, 4, 6 against
-K = 12, 18, 25.
+K = 11, 17, 24.
 
 References
 ----------
@@ -90,8 +93,8 @@ from hcfplan.propagation.operators import (
     plasma_refraction_coefficient,
 )
 
-#: Radial nodes beyond ceil(u_1N) (module docstring: quadrature error of S below 1e-8).
-EXTRA_NODES = 6
+#: Radial nodes beyond ceil(u_1N) (module docstring: quadrature error of S below 1e-7).
+EXTRA_NODES = 5
 #: How the plasma is computed: from the local intensity at every radial node, or (the
 #: single-mode approximation of :mod:`.operators`) from the on-axis intensity for the whole beam.
 PLASMA_PROFILES = ("radial", "on_axis")
@@ -249,22 +252,18 @@ class ModeCoupling:
 
     def _plasma_buffers(self, x, w, eigenvalues, a, pairs) -> None:
         """Node set with the axis first (weight 0: it gives the on-axis fraction) and the work
-        arrays of the plasma path."""
+        rows of the plasma path."""
         n = self.points
         self.node_profiles = mode_profiles(x, eigenvalues, a)
         self.node_weighted = (a**2 * w)[:, None] * self.node_profiles
         self.node_area = a**2 * w
-        nodes = x.size if self.plasma_profile == "radial" else 1
-        self.node_pair_weights = np.zeros((nodes, len(pairs) if self.pairs.size else 0))
+        self.node_pair_weights = np.zeros((x.size, 0))
         if self.pairs.size:
             self.node_pair_weights = np.array(
-                [(1.0 if m == k else 2.0) * self.node_profiles[:nodes, m]
-                 * self.node_profiles[:nodes, k] for m, k in pairs]).T.copy()
-        self.fields = np.zeros((nodes, n), complex)
-        self.plasma = np.zeros((nodes, n), complex)
-        self.power = np.zeros((nodes, n))
-        self.delays = np.zeros((nodes, n))
-        self.ones = np.ones(n, complex)
+                [(1.0 if m == k else 2.0) * self.node_profiles[:, m] * self.node_profiles[:, k]
+                 for m, k in pairs]).T.copy()
+        self.ends = np.zeros(x.size)
+        self.rows = (np.zeros(n, complex), np.zeros(n, complex), np.zeros(n), np.zeros(n))
         self.qp = np.zeros((self.modes, n), complex)
 
     def _delayed_pairs(self, a: np.ndarray) -> np.ndarray:
@@ -307,35 +306,28 @@ class ModeCoupling:
             self.kn.add_scaled_product(out, self.kerr_gain, spectrum, 1.0 / self.points)
         return out
 
-    def _ionize(self, node: int, a_node: np.ndarray, out: np.ndarray, delays) -> float:
-        """The fused Kerr + plasma kernel of :mod:`.kernels` at one node (intensity in W/m^2:
-        area 1). Returns the electron density at the window's end there. [1/m^3]"""
-        return self.kn.plasma_in_place(a_node, out, self.power[node], delays,
-                                       self.instantaneous, *self.tables, 1.0 / self.scale**2,
-                                       1.0, self.dt, self.refraction)
-
     def _radial_plasma(self, a: np.ndarray, pairs: np.ndarray) -> None:
-        mk = self.mk
-        fields = self.fields.view(np.float64)
-        mk.node_fields(a.view(np.float64), self.node_profiles, fields)
-        mk.node_power(fields, self.power)
-        if pairs.size:
-            mk.node_delays(pairs, self.node_pair_weights, self.delays)
-        ends = np.array([self._ionize(k, self.fields[k], self.plasma[k], self.delays[k])
-                         for k in range(self.fields.shape[0])])
-        self._store(ends[0], float(np.sum(self.node_area * ends)))
-        mk.project(fields, self.node_weighted, self.q.view(np.float64))
-        mk.project(self.plasma.view(np.float64), self.node_weighted, self.qp.view(np.float64))
+        """Kerr, delayed and plasma terms at every node, projected into ``q`` and ``qp``
+        (:func:`~.multimode_kernels.radial_plasma_projection`)."""
+        self.mk.radial_plasma_projection(
+            a.view(np.float64), self.node_profiles, self.node_weighted, pairs,
+            self.node_pair_weights, self.instantaneous, *self.tables, 1.0 / self.scale**2,
+            self.dt, self.refraction, self.q.view(np.float64), self.qp.view(np.float64),
+            self.ends, *self.rows)
+        self._store(self.ends[0], float(np.sum(self.node_area * self.ends)))
 
     def _axis_plasma(self, a: np.ndarray) -> None:
         """The single-mode approximation: rho from the on-axis intensity acts on the whole beam
         (c(t) = -i kappa rho - damping, the plasma term of every mode is a_p c)."""
-        axis = self.fields[0]
-        np.dot(self.axis, a, out=axis)
-        self.kn.power_of(axis, self.power[0])
-        ones = self.ones.copy()
-        end = self._ionize(0, ones, self.plasma[0], self.delays[0])
-        np.multiply(a, self.plasma[0][None, :], out=self.qp)
+        axis, c_t, power, zero = self.rows
+        np.multiply(a[0], self.axis[0], out=axis)  # sum_m F_m(0) a_m
+        for m in range(1, self.modes):
+            axis += self.axis[m] * a[m]
+        self.kn.power_of(axis, power)
+        axis[...] = 1.0  # the kernel's "field" 1: its plasma output is c(t) itself
+        end = self.kn.plasma_in_place(axis, c_t, power, zero, 0.0, *self.tables,
+                                      1.0 / self.scale**2, 1.0, self.dt, self.refraction)
+        np.multiply(a, c_t[None, :], out=self.qp)
         self._store(end, end * self.intensity_area)
 
     def _store(self, axis_end: float, line: float) -> None:
@@ -352,13 +344,7 @@ class ModeCoupling:
         M. F. Saleh et al., Phys. Rev. Lett. 107, 203902 (2011) [from memory].
         """
         if self.plasma_profile == "radial":
-            fields = self.fields.view(np.float64)
-            self.mk.node_fields(a.view(np.float64), self.node_profiles, fields)
-            self.mk.node_power(fields, self.power)
-            zero = np.zeros(self.points)
-            ends = np.array([self._ionize(k, self.fields[k], self.plasma[k], zero)
-                             for k in range(self.fields.shape[0])])
-            self._store(ends[0], float(np.sum(self.node_area * ends)))
+            self._radial_plasma(a, np.zeros((0, self.points)))
         else:
             self._axis_plasma(a)
         return self.ionization_fraction, self.electron_line_density
