@@ -12,7 +12,14 @@ The N spectra are stacked into one flat state, so the solver's interaction-pictu
 (:mod:`.steppers`), step control and stepping loop (:func:`~.solve.run_stepping`, with its
 faults: non-finite field, step collapse, step budget, ionisation stop) are the single-mode ones;
 only the terms and the recorder are specific. The local error is measured over all modes
-together (relative L2 norm: relative to the whole beam).
+together (relative L2 norm: relative to the whole beam). The N spectra are transformed together
+by scipy.fft along the last axis (``options.fft_backend`` is not used).
+
+Cost: besides N times the transforms and the plasma at every radial node, the step has to
+follow the beat of the modes: the coupling terms oscillate as exp(i (beta_1m - beta_1n) z) in
+the interaction picture, so a run takes about 15-20 steps per beat length 2 pi / (beta11 -
+beta12) (e.g. 2.8 times the steps of one mode on the demo capillary config, where the beat
+length is 6 cm in 1 m); ``bench/multimode.py`` measures it.
 
 References
 ----------

@@ -10,8 +10,10 @@ Quantum Electron. 4, 35 (1975), from /work/shared/REFERENCES.md section 6, const
   S_2111 A1^3 is phase-mismatched by beta11 - beta12, the amplitude it drives scales as
   gamma P / (beta11 - beta12), i.e. as P / P_cr since gamma P_cr / (beta11 - beta12) does not
   depend on a, lambda or n2).
-* The largest part of the energy outside EH11 along the fiber grows with P / P_cr and becomes
-  large near P_cr: near 0 at P / P_cr = 0.1, a few per cent at 0.5, more than 10 % at 0.9.
+* The part of the energy outside EH11, at the exit and at its largest along the fiber (the
+  exit value also depends on the phase of the beat of the modes there), grows with P / P_cr
+  and becomes large near P_cr: near 0 at P / P_cr = 0.1, a few per cent at 0.5, more than
+  10 % at 0.9.
   Published statements this is set against (qualitative, both "from memory" in
   REFERENCES.md section 6 and PRACTICE.md section 2.1): Fibich & Gaeta (Opt. Lett. 25, 335
   (2000)) argue that the critical power in a hollow waveguide is about the bulk value, i.e. that
@@ -64,7 +66,12 @@ def test_low_power_eh11_input_stays_in_eh11():
 
 
 def test_eh11_fraction_falls_as_the_power_approaches_the_critical_power():
-    lowest = {ratio: float(np.min(_eh11_fraction(ratio))) for ratio in (0.1, 0.5, 0.9)}
+    fractions = {ratio: _eh11_fraction(ratio) for ratio in (0.1, 0.5, 0.9)}
+    # the exit fraction (it also oscillates with the beat of the modes along z) ...
+    exit_fraction = {ratio: float(f[-1]) for ratio, f in fractions.items()}
+    assert exit_fraction[0.1] > 0.999 > exit_fraction[0.5] > exit_fraction[0.9]
+    # ... and the lowest fraction along the fiber, which does not depend on where it ends
+    lowest = {ratio: float(np.min(f)) for ratio, f in fractions.items()}
     assert lowest[0.1] > 0.999
     assert lowest[0.1] > lowest[0.5] > lowest[0.9]
     assert 0.9 < lowest[0.5] < 0.995  # a few per cent at P / P_cr = 0.5

@@ -96,3 +96,26 @@ def test_ionisation_stop_ends_the_run_with_a_message(case):
     assert not result.success and result.status == "ionization_stop"
     assert "ionisation fraction" in result.message and "remedy" in result.message
     assert result.ionization_fraction_z[-1] > 1e-6
+
+
+def test_overflow_with_a_fixed_step_ends_the_run_as_non_finite(case):
+    medium, fiber, g, fields0 = case
+    result = quiet(propagate_modes, fields0 * 1e9, g, modes(fiber, 2), gas=medium,
+                   options=SolverOptions(stepper="rk4ip", step=0.05, z_samples=2,
+                                         ionization_model=None))
+    assert not result.success and result.status == "nonfinite"
+    assert "non-finite" in result.message and "z = 0 m" in result.message
+    assert np.all(np.isfinite(result.mode_spectra_out))  # the last good field is kept
+
+
+def test_mode_spectra_along_z_are_kept_when_asked(case):
+    medium, fiber, g, fields0 = case
+    result = quiet(propagate_modes, fields0, g, modes(fiber, 2), gas=medium,
+                   options=SolverOptions(z_samples=3, ionization_model=None),
+                   mode_spectra_z=True)
+    assert result.mode_spectrum_z.shape == (3, 2, g.points)
+    assert result.mode_spectrum_z.dtype == np.float32
+    np.testing.assert_allclose(result.mode_spectrum_z.sum(axis=1), result.spectrum_z,
+                               rtol=1e-6, atol=1e-7 * result.spectrum_z.max())
+    np.testing.assert_allclose(result.mode_spectrum_z.sum(axis=2) * g.dnu, result.mode_energy_z,
+                               rtol=1e-5)
