@@ -218,7 +218,10 @@ def propagate_modes(
         Called as ``progress(z, length, n_steps)`` after every accepted step.
     segments : sequence of ModeSegment, optional
         A gradient fill: consecutive stretches from 0 to the length, each with its own N
-        waveguides and gas (:class:`ModeSegment`). None: one uniform fill.
+        waveguides and gas (:class:`ModeSegment`; from the single-mode
+        :class:`~.solve.FillSegment` s of a fill profile: ``ModeSegment(s.start, s.end,
+        tuple(dataclasses.replace(s.waveguide, mode=(1, m)) for m in 1..N), s.gas)``). None:
+        one uniform fill.
     mode_spectra_z : bool
         Also keep the spectrum of every mode at every record (``mode_spectrum_z``; N times the
         memory of ``spectrum_z``).
