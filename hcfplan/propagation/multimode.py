@@ -12,8 +12,8 @@ The N spectra are stacked into one flat state, so the solver's interaction-pictu
 (:mod:`.steppers`), step control and stepping loop (:func:`~.solve.run_stepping`, with its
 faults: non-finite field, step collapse, step budget, ionisation stop) are the single-mode ones;
 only the terms and the recorder are specific. The local error is measured over all modes
-together (relative L2 norm: relative to the whole beam). The N spectra are transformed together
-by scipy.fft along the last axis (``options.fft_backend`` is not used).
+together (relative L2 norm: relative to the whole beam). The N spectra are transformed together,
+as one planned multi-transform (:mod:`.multimode_fft`, the back end of ``options.fft_backend``).
 
 Cost: besides N times the transforms and the plasma at every radial node, the step has to
 follow the beat of the modes: the coupling terms oscillate as exp(i (beta_1m - beta_1n) z) in
@@ -178,7 +178,8 @@ def _builder(plasma_profile: str):
         n2 = float(getattr(first, "kerr_n2", 0.0) or 0.0)
         nonlinear = ModeCoupling(grid, n2, lin.valid, float(first.core_radius),
                                  [float(wg.u) for wg in waveguides], f_inst, response,
-                                 plasma.species, options.workers, plasma_profile)
+                                 plasma.species, options.workers, plasma_profile,
+                                 options.fft_backend)
         return lin, nonlinear, notes + list(plasma.notes)
 
     return build

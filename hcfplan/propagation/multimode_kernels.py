@@ -23,62 +23,8 @@ from numba import njit
 from hcfplan.propagation.kernels import plasma_in_place
 
 _JIT = {"cache": True, "fastmath": False, "nogil": True}
-#: Time samples per block of :func:`kerr_projection`.
+#: Time samples per block of :func:`mode_terms`.
 BLOCK = 256
-
-
-@njit(**_JIT)
-def kerr_projection(A, F, WF, pairs, G, instantaneous, Q, work):  # pragma: no cover
-    """Q[p] = sum_k WF[k, p] E_k (f_i |E_k|^2 + D_k), E_k = sum_m F[k, m] a_m.
-
-    ``A`` (N, 2P) and ``Q`` (N, 2P) are float views of complex (N, P) arrays; ``pairs``
-    (M, P) holds the delayed response convolved with the mode products (M = 0 without a
-    delayed response) and ``G`` (K, M) their weights at the nodes, so that the delayed index
-    at node k is D_k = sum_j G[k, j] pairs[j]; ``work`` is a float scratch array of at least
-    3 * BLOCK.
-
-    References
-    ----------
-    Kerr coupling of the modes through the overlap of their profiles: F. Poletti and P.
-    Horak, J. Opt. Soc. Am. B 25, 1645 (2008), evaluated on a radial grid (module docstring of
-    :mod:`hcfplan.propagation.multimode_terms`).
-    """
-    modes, two_p = A.shape
-    nodes, n_pairs = F.shape[0], pairs.shape[0]
-    points = two_p // 2
-    e = work[:2 * BLOCK]
-    d = work[2 * BLOCK:3 * BLOCK]
-    for b0 in range(0, points, BLOCK):
-        b1 = min(b0 + BLOCK, points)
-        nb = b1 - b0
-        for p in range(modes):
-            q = Q[p, 2 * b0:2 * b1]
-            for j in range(2 * nb):
-                q[j] = 0.0
-        for k in range(nodes):
-            for j in range(2 * nb):
-                e[j] = 0.0
-            for m in range(modes):
-                f = F[k, m]
-                am = A[m, 2 * b0:2 * b1]
-                for j in range(2 * nb):
-                    e[j] += f * am[j]
-            for t in range(nb):
-                d[t] = 0.0
-            for i in range(n_pairs):
-                g = G[k, i]
-                row = pairs[i, b0:b1]
-                for t in range(nb):
-                    d[t] += g * row[t]
-            for t in range(nb):
-                er, ei = e[2 * t], e[2 * t + 1]
-                v = instantaneous * (er * er + ei * ei) + d[t]
-                e[2 * t], e[2 * t + 1] = er * v, ei * v
-            for p in range(modes):
-                w = WF[k, p]
-                q = Q[p, 2 * b0:2 * b1]
-                for j in range(2 * nb):
-                    q[j] += w * e[j]
 
 
 @njit(**_JIT)
@@ -93,8 +39,8 @@ def radial_plasma_projection(A, F, WF, pairs, G, instantaneous, log_i, log_w, st
     [W/m^2]) gives the Kerr term in ``e`` and the plasma term in ``p``, and
     Q[p] += WF[k, p] e, QP[p] += WF[k, p] p. ``ends[k]`` is the electron density at the
     window's end at node k [1/m^3]. ``A``, ``Q``, ``QP`` are float views (N, 2P); the rate
-    tables as in :func:`~.kernels.plasma_in_place`. One call for all nodes: calling that
-    kernel per node from Python cost about 15 us of argument handling each (measured).
+    tables as in :func:`~.kernels.plasma_in_place`. The per-node reference of
+    :func:`mode_terms` (the solver uses that one; the tests compare the two).
 
     References
     ----------
@@ -139,6 +85,232 @@ def radial_plasma_projection(A, F, WF, pairs, G, instantaneous, log_i, log_w, st
                 pm = QP[m]
                 for j in range(two_p):
                     pm[j] += w * P[j]
+
+
+@njit(**_JIT)
+def table_rate(li, x, y, first, top, slope_top):  # pragma: no cover - compiled
+    """Rate [1/s] of the log-log table (x, y)[first:top + 1] at ln(intensity) ``li`` >=
+    x[first], extended above the table with the slope ``slope_top`` (the lookup of
+    :class:`hcfplan.ionization.tables.RateTable` for one value, as the single-mode kernel does
+    it).
+
+    References
+    ----------
+    none: numerical helper (linear interpolation in log-log)
+    """
+    if li > x[top]:
+        return np.exp(y[top] + slope_top * (li - x[top]))
+    lo, hi = first, top
+    while hi - lo > 1:  # x[lo] <= li <= x[hi]
+        mid = (lo + hi) // 2
+        if x[mid] <= li:
+            lo = mid
+        else:
+            hi = mid
+    if li == x[hi]:
+        return np.exp(y[hi])
+    return np.exp(y[lo] + (y[hi] - y[lo]) / (x[hi] - x[lo]) * (li - x[lo]))
+
+
+@njit(**_JIT)
+def _node_rates(e, pw, row, k, nb, watt_min, to_watt, log_i, log_w, starts, slopes,
+                densities, potentials, dt, refraction, survive, before, settled,
+                ends):  # pragma: no cover - compiled
+    """Plasma of node k over one time block: the electron density of every species carried in
+    ``survive`` (exp(-int W dt)) and ``before`` (density at the sample's start) [1/m^3], the
+    plasma term e (-i refraction rho - damping) into ``row`` (float view; of size 0: only the
+    densities advance). Returns True when the node holds electrons.
+
+    References
+    ----------
+    M. Geissler et al., Phys. Rev. Lett. 83, 2930 (1999); M. F. Saleh et al., Phys. Rev.
+    Lett. 107, 203902 (2011) [from memory].
+    """
+    count = densities.size
+    end = ends[k]
+    for t in range(nb):
+        watt = pw[t] * to_watt
+        if not watt >= watt_min:  # below every table (or NaN): no rate, no logarithm
+            rho, end, damping = settled[k], settled[k], 0.0
+        else:
+            li = np.log(watt)
+            rho, loss, end = 0.0, 0.0, 0.0
+            changed = False
+            for s in range(count):
+                first, w_dt = starts[s], 0.0
+                if li >= log_i[first]:  # below this table the rate is 0
+                    w_dt = table_rate(li, log_i, log_w, first, starts[s + 1] - 1,
+                                       slopes[s]) * dt
+                increment = 0.0
+                if w_dt > 0:
+                    lost = np.expm1(-w_dt)  # exp(-W dt) - 1
+                    increment = densities[s] * survive[k, s] * (-lost)
+                    survive[k, s] *= 1.0 + lost
+                rho += before[k, s] + 0.5 * increment
+                loss += potentials[s] * increment
+                end += before[k, s] + increment
+                if w_dt > 0:
+                    before[k, s] += increment
+                    changed = True
+            if changed:
+                total = 0.0
+                for s in range(count):
+                    total += before[k, s]
+                settled[k] = total
+            damping = loss * (1.0 / dt) / (2.0 * watt) if loss > 0 and watt > 0 else 0.0
+        if row.size:
+            er, ei = e[2 * t], e[2 * t + 1]
+            cr, ci = -damping, -refraction * rho
+            row[2 * t], row[2 * t + 1] = er * cr - ei * ci, er * ci + ei * cr
+    ends[k] = end
+    return settled[k] > 0.0
+
+
+@njit(**_JIT)
+def mode_terms(A, F, WF, pairs, G, instantaneous, project, log_i, log_w, starts, slopes,
+               densities, potentials, to_watt, dt, refraction, Q, QP, ends, survive, before,
+               settled, E, power, row, M):  # pragma: no cover - compiled
+    """Kerr, delayed and plasma terms at the K radial nodes, projected on the N modes, in one
+    pass over blocks of :data:`BLOCK` time samples (the block of every node stays in the
+    cache: the field at the nodes never goes to memory).
+
+    Per block: E_k = sum_m F[k, m] a_m and |E_k|^2 at every node (``E`` (K, 2 BLOCK),
+    ``power`` (K, BLOCK)); the Kerr and delayed term Q[p] += WF[k, p] E_k (f_i |E_k|^2 + D_k)
+    (D_k = sum_j G[k, j] pairs[j]: ``pairs`` (M, points) holds the delayed response convolved
+    with the mode products, ``G`` (K, M) their weights at the nodes); then the plasma (when the
+    rate tables are not empty), with the density of each node carried from block to block in
+    ``survive``, ``before`` (K, species) and ``settled`` (K,), which this call resets:
+
+    * a block in which no node has a sample above the tables' first intensity: every node's
+      density is its settled value, the damping is 0, and the plasma term is
+      QP[p] += -i refraction sum_m M[p, m] a_m with M[p, m] = sum_k WF[k, p] settled_k F[k, m]
+      (N^2 multiply-adds per sample instead of 2 K N; nothing at all before the first
+      electrons);
+    * otherwise the rates of :func:`~.kernels.plasma_in_place` at each node, sample by sample
+      (the samples below the tables at the rate 0), and QP[p] += WF[k, p] P_k.
+
+    The densities follow the piecewise-constant-rate solution of the single-mode kernel, with
+    exp(-int W dt) kept as a running product and the density as a running sum of the
+    increments (one exponential per sample and species instead of three; equal to rounding).
+    With ``project`` False only the densities are computed (``ends`` [1/m^3], the density at
+    the window's end at each node; Q and QP untouched). A node with WF[k] = 0 (the axis) gives
+    only its density. ``row`` (2 BLOCK) and ``M`` (N, N) are work arrays.
+
+    References
+    ----------
+    Kerr coupling through the mode profiles on a radial grid: F. Poletti and P. Horak, J. Opt.
+    Soc. Am. B 25, 1645 (2008). Plasma terms of M. Geissler et al., Phys. Rev. Lett. 83, 2930
+    (1999), in the envelope form of M. F. Saleh et al., Phys. Rev. Lett. 107, 203902 (2011)
+    [from memory], at the local intensity.
+    """
+    modes, two_p = A.shape
+    nodes, n_pairs = F.shape[0], pairs.shape[0]
+    points = two_p // 2
+    plasma = densities.size > 0
+    watt_min = np.inf
+    for s in range(densities.size):
+        watt_min = min(watt_min, np.exp(log_i[starts[s]]) * (1 - 1e-12))
+    for k in range(nodes):
+        settled[k] = 0.0
+        ends[k] = 0.0
+        for s in range(densities.size):
+            survive[k, s] = 1.0
+            before[k, s] = 0.0
+    stale = True  # M does not hold the settled densities
+    charged = False  # some node holds electrons
+    nothing = row[:0]
+    for b0 in range(0, points, BLOCK):
+        b1 = min(b0 + BLOCK, points)
+        nb = b1 - b0
+        if project:
+            for p in range(modes):
+                q = Q[p, 2 * b0:2 * b1]
+                for j in range(2 * nb):
+                    q[j] = 0.0
+                if plasma:
+                    q = QP[p, 2 * b0:2 * b1]
+                    for j in range(2 * nb):
+                        q[j] = 0.0
+        above = 0
+        for k in range(nodes):
+            e, pw = E[k], power[k]
+            for j in range(2 * nb):
+                e[j] = 0.0
+            for m in range(modes):
+                f = F[k, m]
+                am = A[m, 2 * b0:2 * b1]
+                for j in range(2 * nb):
+                    e[j] += f * am[j]
+            for t in range(nb):
+                pw[t] = e[2 * t] * e[2 * t] + e[2 * t + 1] * e[2 * t + 1]
+            if plasma:
+                for t in range(nb):
+                    if pw[t] * to_watt >= watt_min:
+                        above += 1
+        if project:
+            for k in range(nodes):
+                weighted = False
+                for p in range(modes):
+                    if WF[k, p] != 0.0:
+                        weighted = True
+                if not weighted:  # the axis node: only its density
+                    continue
+                e, pw = E[k], power[k]
+                for t in range(nb):
+                    row[2 * t] = instantaneous * pw[t]
+                for i in range(n_pairs):
+                    g = G[k, i]
+                    pair = pairs[i, b0:b1]
+                    for t in range(nb):
+                        row[2 * t] += g * pair[t]
+                for t in range(nb):
+                    v = row[2 * t]
+                    row[2 * t], row[2 * t + 1] = e[2 * t] * v, e[2 * t + 1] * v
+                for p in range(modes):
+                    w = WF[k, p]
+                    q = Q[p, 2 * b0:2 * b1]
+                    for j in range(2 * nb):
+                        q[j] += w * row[j]
+        if not plasma:
+            continue
+        if above == 0:
+            for k in range(nodes):
+                ends[k] = settled[k]
+            if not (project and charged):
+                continue
+            if stale:
+                for p in range(modes):
+                    for m in range(modes):
+                        total = 0.0
+                        for k in range(nodes):
+                            total += WF[k, p] * settled[k] * F[k, m]
+                        M[p, m] = total
+                stale = False
+            for p in range(modes):
+                qp = QP[p, 2 * b0:2 * b1]
+                for m in range(modes):
+                    c = refraction * M[p, m]
+                    am = A[m, 2 * b0:2 * b1]
+                    for t in range(nb):  # -i c a_m
+                        qp[2 * t] += c * am[2 * t + 1]
+                        qp[2 * t + 1] -= c * am[2 * t]
+            continue
+        stale = True
+        for k in range(nodes):
+            out = row if project else nothing
+            holds = _node_rates(E[k], power[k], out, k, nb, watt_min, to_watt, log_i,
+                                log_w, starts, slopes, densities, potentials, dt, refraction,
+                                survive, before, settled, ends)
+            charged = charged or holds
+            if not (project and holds):
+                continue
+            for p in range(modes):
+                w = WF[k, p]
+                if w == 0.0:
+                    continue
+                qp = QP[p, 2 * b0:2 * b1]
+                for j in range(2 * nb):
+                    qp[j] += w * row[j]
 
 
 @njit(**_JIT)
@@ -194,8 +366,7 @@ def warm_kernels() -> None:
     a = np.ones((2, 8))
     f = np.ones((3, 2))
     pairs, g = np.ones((3, 4)), np.ones((3, 3))
-    q, work = np.zeros((2, 8)), np.zeros(3 * BLOCK)
-    kerr_projection(a, f, f, pairs, g, 1.0, q, work)
+    q = np.zeros((2, 8))
     pair_products(a, pairs)
     beam_power_at(np.ones((2, 4), complex), np.ones(4, complex), np.ones(4, complex), 3,
                   np.zeros(3))
@@ -204,3 +375,12 @@ def warm_kernels() -> None:
     rows = np.ones(4, complex), np.ones(4, complex), np.ones(4), np.zeros(4)
     radial_plasma_projection(a, f, f, pairs, g, 1.0, *table, 1.0, 1e-15, 1e-3, q, q.copy(),
                              np.zeros(3), *rows)
+    state = np.ones((3, 1)), np.zeros((3, 1)), np.zeros(3)
+    blocks = np.zeros((3, 2 * BLOCK)), np.zeros((3, BLOCK)), np.zeros(2 * BLOCK), np.zeros((2, 2))
+    for project in (True, False):
+        mode_terms(a, f, f, pairs, g, 1.0, project, *table, 1.0, 1e-15, 1e-3, q, q.copy(),
+                   np.zeros(3), *state, *blocks)
+    empty = (np.zeros(0), np.zeros(0), np.zeros(1, dtype=np.int64), np.zeros(0), np.zeros(0),
+             np.zeros(0))
+    mode_terms(a, f, f, pairs, g, 1.0, True, *empty, 1.0, 1e-15, 0.0, q, q, np.zeros(3),
+               np.ones((3, 0)), np.zeros((3, 0)), np.zeros(3), *blocks)

@@ -87,6 +87,7 @@ from scipy import special
 
 from hcfplan.constants import c
 from hcfplan.numerics.grid import Grid
+from hcfplan.propagation.multimode_fft import ModeTransforms
 from hcfplan.propagation.operators import (
     linear_terms,
     packed_tables,
@@ -98,6 +99,10 @@ EXTRA_NODES = 5
 #: How the plasma is computed: from the local intensity at every radial node, or (the
 #: single-mode approximation of :mod:`.operators`) from the on-axis intensity for the whole beam.
 PLASMA_PROFILES = ("radial", "on_axis")
+#: Empty rate tables (no ionising species) in the layout of
+#: :func:`~.operators.packed_tables`.
+NO_TABLES = (np.zeros(0), np.zeros(0), np.zeros(1, dtype=np.int64), np.zeros(0), np.zeros(0),
+             np.zeros(0))
 
 
 def radial_nodes(eigenvalues) -> tuple[np.ndarray, np.ndarray]:
@@ -206,7 +211,8 @@ class ModeCoupling:
 
     def __init__(self, grid: Grid, n2: float, valid: np.ndarray, core_radius: float,
                  eigenvalues, instantaneous: float = 1.0, response=None, species=(),
-                 workers: int = 1, plasma_profile: str = "radial") -> None:
+                 workers: int = 1, plasma_profile: str = "radial",
+                 fft_backend: str | None = None) -> None:
         from hcfplan.propagation import kernels, multimode_kernels
 
         self.kn, self.mk = kernels, multimode_kernels
@@ -217,38 +223,42 @@ class ModeCoupling:
         self.kerr_gain = np.where(valid, gamma[None, :], 0.0).reshape(-1)
         self.species = tuple(species)
         self.gain = self.kerr_gain if not self.species else np.ones(modes * n)
-        self.input = np.zeros(modes * n, complex)
-        self._input2 = self.input.reshape(modes, n)
-        self.new_work = lambda: np.zeros(modes * n, complex)
+        pairs = [(m, k) for m in range(modes) for k in range(m, modes)]
+        self.fft = ModeTransforms(modes, n, len(pairs) if response is not None else 0,
+                                  fft_backend, workers)
+        self.input = self.fft.spectrum_in.reshape(-1)  # a view: the transform's input
+        self.new_work = lambda: self.fft.empty().reshape(-1)
         self.instantaneous = float(instantaneous)
         a = core_radius
         x, w = radial_nodes(eigenvalues)
         self.profiles = mode_profiles(x, eigenvalues, a)  # (K, N)
         self.weighted = (a**2 * w)[:, None] * self.profiles
         self.axis = mode_profiles(np.zeros(1), eigenvalues, a)[0]  # F_m(0), (N,)
-        pairs = [(m, k) for m in range(modes) for k in range(m, modes)]
         self.response_rfft = None if response is None else sfft.rfft(response) / n
         self.pair_weights = np.zeros((x.size, 0))
         self.pairs = np.zeros((0, n))
         if response is not None:
             self.pair_weights = np.array([(1.0 if m == k else 2.0) * self.profiles[:, m]
                                           * self.profiles[:, k] for m, k in pairs]).T.copy()
-            self.pairs = np.zeros((len(pairs), n))
-        self.q = np.zeros((modes, n), complex)
-        self.work = np.zeros(3 * multimode_kernels.BLOCK)
+        self.q = self.fft.empty()
         self.ionization_fraction = 0.0
         self.electron_line_density = 0.0
         self.n_calls = 0
         self.intensity_area = float(1.0 / self.axis[0] ** 2)  # A_I of the first mode [m^2]
+        self.plasma_profile = plasma_profile
+        self.refraction = 0.0
+        self.tables = NO_TABLES
+        # the nodes of the Kerr (and plasma) pass: profiles, weighted profiles, pair weights
+        self.nodes = (self.profiles, self.weighted, self.pair_weights)
         if self.species:
             if plasma_profile not in PLASMA_PROFILES:
                 raise ValueError(f"plasma_profile = {plasma_profile!r}: {PLASMA_PROFILES}")
-            self.plasma_profile = plasma_profile
             self.tables = packed_tables(self.species)
             self.neutral_density = sum(s.number_density for s in self.species)
             self.refraction = plasma_refraction_coefficient(grid.omega_pump)
             self._plasma_buffers(np.concatenate([[0.0], x]), np.concatenate([[0.0], w]),
                                  eigenvalues, a, pairs)
+        self._work(self.nodes[0].shape[0], self.tables[4].size if self.species else 0)
 
     def _plasma_buffers(self, x, w, eigenvalues, a, pairs) -> None:
         """Node set with the axis first (weight 0: it gives the on-axis fraction) and the work
@@ -258,23 +268,33 @@ class ModeCoupling:
         self.node_weighted = (a**2 * w)[:, None] * self.node_profiles
         self.node_area = a**2 * w
         self.node_pair_weights = np.zeros((x.size, 0))
-        if self.pairs.size:
+        if self.pair_weights.size:
             self.node_pair_weights = np.array(
                 [(1.0 if m == k else 2.0) * self.node_profiles[:, m] * self.node_profiles[:, k]
                  for m, k in pairs]).T.copy()
-        self.ends = np.zeros(x.size)
         self.rows = (np.zeros(n, complex), np.zeros(n, complex), np.zeros(n), np.zeros(n))
-        self.qp = np.zeros((self.modes, n), complex)
+        self.qp = self.fft.empty()
+        self.qp_time = self.fft.empty().reshape(-1)
+        if self.plasma_profile == "radial":
+            self.nodes = (self.node_profiles, self.node_weighted, self.node_pair_weights)
+
+    def _work(self, nodes: int, count: int) -> None:
+        """Work arrays of :func:`~.multimode_kernels.mode_terms` for ``nodes`` nodes and
+        ``count`` ionising species."""
+        block = self.mk.BLOCK
+        self.ends = np.zeros(nodes)
+        self.state = (np.ones((nodes, count)), np.zeros((nodes, count)), np.zeros(nodes))
+        self.blocks = (np.zeros((nodes, 2 * block)), np.zeros((nodes, block)),
+                       np.zeros(2 * block), np.zeros((self.modes, self.modes)))
 
     def _delayed_pairs(self, a: np.ndarray) -> np.ndarray:
         """The delayed response convolved with Re(a_m a_n^*) for m <= n, (M, points)."""
         if self.response_rfft is None:
             return self.pairs
-        self.mk.pair_products(a.view(np.float64), self.pairs)
-        half = sfft.rfft(self.pairs, axis=-1, workers=self.workers)
+        self.mk.pair_products(a.view(np.float64), self.fft.real_in)
+        half = self.fft.real_forward()
         half *= self.response_rfft
-        return sfft.irfft(half, n=self.points, axis=-1, norm="forward", overwrite_x=True,
-                          workers=self.workers)
+        return self.fft.real_backward(half)
 
     def evaluate(self, out: np.ndarray) -> np.ndarray:
         """Raw nonlinear spectrum of the flat spectrum in :attr:`input` into ``out``.
@@ -287,34 +307,31 @@ class ModeCoupling:
         Saleh et al., Phys. Rev. Lett. 107, 203902 (2011) [from memory].
         """
         self.n_calls += 1
-        a = sfft.fft(self._input2, axis=-1, workers=self.workers)  # = scale * A_m(t)
+        a = self.fft.forward()  # = scale * A_m(t)
         pairs = self._delayed_pairs(a)
-        out2 = out.reshape(self.modes, self.points)
-        if self.species and self.plasma_profile == "radial":
-            self._radial_plasma(a, pairs)
-        else:
-            self.mk.kerr_projection(a.view(np.float64), self.profiles, self.weighted, pairs,
-                                    self.pair_weights, self.instantaneous,
-                                    self.q.view(np.float64), self.work)
-            if self.species:
-                self._axis_plasma(a)
-        out2[...] = sfft.ifft(self.q, axis=-1, norm="forward", overwrite_x=True,
-                              workers=self.workers)
+        radial = self.species and self.plasma_profile == "radial"
+        self._terms(a, pairs, True)
+        if self.species and not radial:
+            self._axis_plasma(a)
+        self.fft.backward(self.q, out)
         if self.species:
-            spectrum = sfft.ifft(self.qp, axis=-1, norm="forward", overwrite_x=True,
-                                 workers=self.workers).reshape(-1)
-            self.kn.add_scaled_product(out, self.kerr_gain, spectrum, 1.0 / self.points)
+            self.fft.backward(self.qp, self.qp_time)
+            self.kn.add_scaled_product(out, self.kerr_gain, self.qp_time, 1.0 / self.points)
         return out
 
-    def _radial_plasma(self, a: np.ndarray, pairs: np.ndarray) -> None:
-        """Kerr, delayed and plasma terms at every node, projected into ``q`` and ``qp``
-        (:func:`~.multimode_kernels.radial_plasma_projection`)."""
-        self.mk.radial_plasma_projection(
-            a.view(np.float64), self.node_profiles, self.node_weighted, pairs,
-            self.node_pair_weights, self.instantaneous, *self.tables, 1.0 / self.scale**2,
-            self.dt, self.refraction, self.q.view(np.float64), self.qp.view(np.float64),
-            self.ends, *self.rows)
-        self._store(self.ends[0], float(np.sum(self.node_area * self.ends)))
+    def _terms(self, a: np.ndarray, pairs: np.ndarray, project: bool) -> None:
+        """Kerr, delayed and (radial) plasma terms at the nodes, projected into ``q`` and
+        ``qp`` (:func:`~.multimode_kernels.mode_terms`); with ``project`` False only the
+        electron densities at the nodes."""
+        profiles, weighted, pair_weights = self.nodes
+        qp = self.qp if self.species else self.q
+        self.mk.mode_terms(
+            a.view(np.float64), profiles, weighted, pairs, pair_weights, self.instantaneous,
+            project, *self.tables, 1.0 / self.scale**2, self.dt, self.refraction,
+            self.q.view(np.float64), qp.view(np.float64), self.ends, *self.state,
+            *self.blocks)
+        if self.species and self.plasma_profile == "radial":
+            self._store(self.ends[0], float(np.sum(self.node_area * self.ends)))
 
     def _axis_plasma(self, a: np.ndarray) -> None:
         """The single-mode approximation: rho from the on-axis intensity acts on the whole beam
@@ -344,7 +361,7 @@ class ModeCoupling:
         M. F. Saleh et al., Phys. Rev. Lett. 107, 203902 (2011) [from memory].
         """
         if self.plasma_profile == "radial":
-            self._radial_plasma(a, np.zeros((0, self.points)))
+            self._terms(a, self.pairs[:0], False)
         else:
             self._axis_plasma(a)
         return self.ionization_fraction, self.electron_line_density
