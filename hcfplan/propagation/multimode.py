@@ -19,7 +19,14 @@ Cost: besides N times the transforms and the plasma at every radial node, the st
 follow the beat of the modes: the coupling terms oscillate as exp(i (beta_1m - beta_1n) z) in
 the interaction picture, so a run takes about 15-20 steps per beat length 2 pi / (beta11 -
 beta12) (e.g. 2.8 times the steps of one mode on the demo capillary config, where the beat
-length is 6 cm in 1 m); ``bench/multimode.py`` measures it.
+length is 6 cm in 1 m; 2.1 times with EH11 alone at the input, whose Kerr effect drives
+EH12..EH1N at their own beats). That is set by the tolerance: the local error of those steps
+lies mostly in the small EH12..EH14 parts (95 % of the error norm at N = 4), which the relative
+L2 norm weighs as errors of the whole beam, as it should, while the single-mode run of that
+config takes one step per record interval (its tolerance would allow longer ones). The run
+therefore costs at least (steps ratio) x N single-mode runs (N times the transforms per
+evaluation): about 11x for N = 4 there. ``bench/multimode.py`` measures the ratios and prints
+this floor.
 
 References
 ----------
