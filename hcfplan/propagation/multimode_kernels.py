@@ -167,9 +167,37 @@ def _node_rates(e, pw, row, k, nb, watt_min, to_watt, log_i, log_w, starts, slop
 
 
 @njit(**_JIT)
+def _mix(dst, src, c, lo, n):  # pragma: no cover - compiled
+    """dst[j] = sum_i c[i] src[i, lo + j] for j < n, rows taken four (two, one) at a time, so
+    ``dst`` is loaded and stored once per four rows (the loops over j vectorise)."""
+    rows, i = c.size, 0
+    for j in range(n):
+        dst[j] = 0.0
+    while i < rows:
+        if rows - i >= 4:
+            c0, c1, c2, c3 = c[i], c[i + 1], c[i + 2], c[i + 3]
+            s0, s1 = src[i, lo:lo + n], src[i + 1, lo:lo + n]
+            s2, s3 = src[i + 2, lo:lo + n], src[i + 3, lo:lo + n]
+            for j in range(n):
+                dst[j] += (c0 * s0[j] + c1 * s1[j]) + (c2 * s2[j] + c3 * s3[j])
+            i += 4
+        elif rows - i >= 2:
+            c0, c1 = c[i], c[i + 1]
+            s0, s1 = src[i, lo:lo + n], src[i + 1, lo:lo + n]
+            for j in range(n):
+                dst[j] += c0 * s0[j] + c1 * s1[j]
+            i += 2
+        else:
+            c0, s0 = c[i], src[i, lo:lo + n]
+            for j in range(n):
+                dst[j] += c0 * s0[j]
+            i += 1
+
+
+@njit(**_JIT)
 def mode_terms(A, F, WF, pairs, G, instantaneous, project, log_i, log_w, starts, slopes,
                densities, potentials, to_watt, dt, refraction, Q, QP, ends, survive, before,
-               settled, E, power, row, M):  # pragma: no cover - compiled
+               settled, E, power, row, M, KE):  # pragma: no cover - compiled
     """Kerr, delayed and plasma terms at the K radial nodes, projected on the N modes, in one
     pass over blocks of :data:`BLOCK` time samples (the block of every node stays in the
     cache: the field at the nodes never goes to memory).
@@ -194,7 +222,9 @@ def mode_terms(A, F, WF, pairs, G, instantaneous, project, log_i, log_w, starts,
     increments (one exponential per sample and species instead of three; equal to rounding).
     With ``project`` False only the densities are computed (``ends`` [1/m^3], the density at
     the window's end at each node; Q and QP untouched). A node with WF[k] = 0 (the axis) gives
-    only its density. ``row`` (2 BLOCK) and ``M`` (N, N) are work arrays.
+    only its density. ``row`` (2 BLOCK), ``M`` (N, N) and ``KE`` (K, 2 BLOCK) are work arrays.
+    The sums over the modes (synthesis) and over the nodes (projection) take four rows at a
+    time (:func:`_mix`).
 
     References
     ----------
@@ -219,28 +249,19 @@ def mode_terms(A, F, WF, pairs, G, instantaneous, project, log_i, log_w, starts,
     stale = True  # M does not hold the settled densities
     charged = False  # some node holds electrons
     nothing = row[:0]
+    WT = np.ascontiguousarray(WF.T)  # (N, K): the projection's coefficients per mode
     for b0 in range(0, points, BLOCK):
         b1 = min(b0 + BLOCK, points)
         nb = b1 - b0
-        if project:
+        if project and plasma:
             for p in range(modes):
-                q = Q[p, 2 * b0:2 * b1]
+                q = QP[p, 2 * b0:2 * b1]
                 for j in range(2 * nb):
                     q[j] = 0.0
-                if plasma:
-                    q = QP[p, 2 * b0:2 * b1]
-                    for j in range(2 * nb):
-                        q[j] = 0.0
         above = 0
         for k in range(nodes):
             e, pw = E[k], power[k]
-            for j in range(2 * nb):
-                e[j] = 0.0
-            for m in range(modes):
-                f = F[k, m]
-                am = A[m, 2 * b0:2 * b1]
-                for j in range(2 * nb):
-                    e[j] += f * am[j]
+            _mix(e, A, F[k], 2 * b0, 2 * nb)
             for t in range(nb):
                 pw[t] = e[2 * t] * e[2 * t] + e[2 * t + 1] * e[2 * t + 1]
             if plasma:
@@ -253,24 +274,24 @@ def mode_terms(A, F, WF, pairs, G, instantaneous, project, log_i, log_w, starts,
                 for p in range(modes):
                     if WF[k, p] != 0.0:
                         weighted = True
-                if not weighted:  # the axis node: only its density
+                ke = KE[k]
+                if not weighted:  # the axis node: only its density (its row weighs 0)
+                    for j in range(2 * nb):
+                        ke[j] = 0.0
                     continue
                 e, pw = E[k], power[k]
                 for t in range(nb):
-                    row[2 * t] = instantaneous * pw[t]
+                    row[t] = instantaneous * pw[t]
                 for i in range(n_pairs):
                     g = G[k, i]
                     pair = pairs[i, b0:b1]
                     for t in range(nb):
-                        row[2 * t] += g * pair[t]
+                        row[t] += g * pair[t]
                 for t in range(nb):
-                    v = row[2 * t]
-                    row[2 * t], row[2 * t + 1] = e[2 * t] * v, e[2 * t + 1] * v
-                for p in range(modes):
-                    w = WF[k, p]
-                    q = Q[p, 2 * b0:2 * b1]
-                    for j in range(2 * nb):
-                        q[j] += w * row[j]
+                    v = row[t]
+                    ke[2 * t], ke[2 * t + 1] = e[2 * t] * v, e[2 * t + 1] * v
+            for p in range(modes):
+                _mix(Q[p, 2 * b0:2 * b1], KE, WT[p], 0, 2 * nb)
         if not plasma:
             continue
         if above == 0:
@@ -376,7 +397,8 @@ def warm_kernels() -> None:
     radial_plasma_projection(a, f, f, pairs, g, 1.0, *table, 1.0, 1e-15, 1e-3, q, q.copy(),
                              np.zeros(3), *rows)
     state = np.ones((3, 1)), np.zeros((3, 1)), np.zeros(3)
-    blocks = np.zeros((3, 2 * BLOCK)), np.zeros((3, BLOCK)), np.zeros(2 * BLOCK), np.zeros((2, 2))
+    blocks = (np.zeros((3, 2 * BLOCK)), np.zeros((3, BLOCK)), np.zeros(2 * BLOCK),
+              np.zeros((2, 2)), np.zeros((3, 2 * BLOCK)))
     for project in (True, False):
         mode_terms(a, f, f, pairs, g, 1.0, project, *table, 1.0, 1e-15, 1e-3, q, q.copy(),
                    np.zeros(3), *state, *blocks)

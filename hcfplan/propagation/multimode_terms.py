@@ -296,7 +296,8 @@ class ModeCoupling:
         self.ends = np.zeros(nodes)
         self.state = (np.ones((nodes, count)), np.zeros((nodes, count)), np.zeros(nodes))
         self.blocks = (np.zeros((nodes, 2 * block)), np.zeros((nodes, block)),
-                       np.zeros(2 * block), np.zeros((self.modes, self.modes)))
+                       np.zeros(2 * block), np.zeros((self.modes, self.modes)),
+                       np.zeros((nodes, 2 * block)))
 
     def _delayed_pairs(self, a: np.ndarray) -> np.ndarray:
         """The delayed response convolved with Re(a_m a_n^*) for m <= n, (M, points)."""
