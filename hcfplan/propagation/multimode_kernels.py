@@ -353,28 +353,23 @@ def pair_products(A, out):  # pragma: no cover - compiled
 
 
 @njit(**_JIT)
-def beam_power_at(coefficients, first, step, count, out):  # pragma: no cover - compiled
-    """out[o] = sum_m |sum_j c[m, j] first[j] step[j]^o|^2 for o = 0..count-1: the summed
-    power of the band-limited envelopes at equally spaced instants (``first`` the phases of
-    the first instant, ``step`` those of the spacing; ``phase`` is a work copy).
+def beam_power_of(coefficients, row):  # pragma: no cover - compiled
+    """sum_m |sum_j c[m, j] row[j]|^2: the summed power of the band-limited envelopes at the
+    instant whose phases exp(-i dw_j t) are ``row``.
 
     References
     ----------
     Band-limited (sinc) interpolation: C. E. Shannon, Proc. IRE 37, 10 (1949).
     """
     modes, n = coefficients.shape
-    phase = first.copy()
-    for o in range(count):
-        total = 0.0
-        for m in range(modes):
-            acc = 0.0 + 0.0j
-            row = coefficients[m]
-            for j in range(n):
-                acc += row[j] * phase[j]
-            total += acc.real * acc.real + acc.imag * acc.imag
-        out[o] = total
+    total = 0.0
+    for m in range(modes):
+        acc = 0.0 + 0.0j
+        c = coefficients[m]
         for j in range(n):
-            phase[j] *= step[j]
+            acc += c[j] * row[j]
+        total += acc.real * acc.real + acc.imag * acc.imag
+    return total
 
 
 def warm_kernels() -> None:
@@ -389,8 +384,7 @@ def warm_kernels() -> None:
     pairs, g = np.ones((3, 4)), np.ones((3, 3))
     q = np.zeros((2, 8))
     pair_products(a, pairs)
-    beam_power_at(np.ones((2, 4), complex), np.ones(4, complex), np.ones(4, complex), 3,
-                  np.zeros(3))
+    beam_power_of(np.ones((2, 4), complex), np.ones(4, complex))
     table = (np.array([30.0, 31.0]), np.array([1.0, 2.0]), np.array([0, 2], dtype=np.int64),
              np.array([1.0]), np.array([1e25]), np.array([2.5e-18]))
     rows = np.ones(4, complex), np.ones(4, complex), np.ones(4), np.zeros(4)
