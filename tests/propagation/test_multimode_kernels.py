@@ -103,3 +103,38 @@ def test_fftw_and_scipy_back_ends_agree(species, model):
         assert nl.fft.name == backend
     assert np.max(np.abs(out[0])) > 0
     assert _relative(out[1], out[0]) < ROUNDING
+
+
+def _scanned_peak(g, a: np.ndarray, at: int, r: int) -> float:
+    """Reference: the band-limited summed power at all 2 r + 1 offsets within one step of
+    sample ``at`` (direct sums over the spectrum, convention 2 of hcfplan.numerics.grid), and
+    the parabola through the highest three."""
+    c = np.fft.ifft(a, axis=-1)
+    offsets = at + np.arange(-r, r + 1) / r
+    phases = np.exp(-1j * np.outer(offsets * g.dt, g.domega))
+    power = np.sum(np.abs(c @ phases.T) ** 2, axis=0)
+    i = int(np.argmax(power))
+    if not 0 < i < power.size - 1:
+        return float(power[i])
+    left, mid, right = power[i - 1], power[i], power[i + 1]
+    return float(mid + (right - left) ** 2 / (8.0 * (2.0 * mid - left - right)))
+
+
+@pytest.mark.parametrize("seed", [1, 2, 3, 4])
+def test_whole_beam_peak_search_equals_the_full_offset_scan(seed):
+    # the halving search (6 evaluations) finds what the scan of all offsets finds
+    from hcfplan.propagation.multimode_record import BEAM_PEAK_OVERSAMPLING, ModeRecorder
+
+    g, nl = _coupling("Ar", 3, None)
+    rng = np.random.default_rng(seed)
+    a = _fields(g, 3, 1e-6, seed) * np.exp(1j * rng.normal(size=(3, 1)))
+    a[1:] = np.roll(a[1:], rng.integers(-3, 4), axis=-1)  # the modes' peaks apart
+    band = np.abs(g.domega) < 0.3 * np.max(g.domega)  # band-limited well inside the window
+    shift = np.exp(-1j * g.domega * 0.37 * g.dt)  # and delayed by 0.37 steps (off the samples)
+    a = np.fft.fft(np.fft.ifft(a, axis=-1) * band * shift, axis=-1)
+    at = int(np.argmax(np.sum(np.abs(a) ** 2, axis=0)))
+    recorder = ModeRecorder(g, 2, nl)
+    found = recorder._beam_peak(a, at)
+    reference = _scanned_peak(g, a, at, BEAM_PEAK_OVERSAMPLING)
+    assert found == pytest.approx(reference, rel=1e-12)
+    assert found > np.sum(np.abs(a[:, at]) ** 2)  # between the samples (not void)
