@@ -138,3 +138,27 @@ def test_whole_beam_peak_search_equals_the_full_offset_scan(seed):
     reference = _scanned_peak(g, a, at, BEAM_PEAK_OVERSAMPLING)
     assert found == pytest.approx(reference, rel=1e-12)
     assert found > np.sum(np.abs(a[:, at]) ** 2)  # between the samples (not void)
+
+
+def test_trimmed_rate_tables_change_the_terms_below_the_tolerance():
+    # the entries with W dt < 1e-20 dropped: the same nonlinear terms to 1e-13 (derived: the
+    # electrons dropped are < 1e-20 of the neutral density per sample)
+    from hcfplan.propagation.multimode_terms import NEGLIGIBLE_IONIZATION, trimmed_tables
+    from hcfplan.propagation.operators import packed_tables
+
+    g, nl = _coupling("Ar", 3, "ppt")
+    full = packed_tables(nl.species)
+    trimmed = nl.tables
+    assert trimmed[0].size < full[0].size  # entries were dropped (not void)
+    first = full[1][full[0] < trimmed[0][0]]
+    assert np.all(first + np.log(g.dt) < np.log(NEGLIGIBLE_IONIZATION))
+    assert trimmed[1][0] + np.log(g.dt) >= np.log(NEGLIGIBLE_IONIZATION)
+    u = np.array([g.to_spectrum(f) for f in _fields(g, 3, 300e-6)]).reshape(-1)
+    out_trimmed = nl(u, nl.new_work())
+    ends_trimmed = nl.ends.copy()
+    nl.tables = full
+    out_full = nl(u, nl.new_work())
+    assert nl.ends[0] / nl.neutral_density > 1e-8  # it ionises
+    assert _relative(out_trimmed, out_full) < 1e-13
+    np.testing.assert_allclose(ends_trimmed[0], nl.ends[0], rtol=1e-13)
+    assert trimmed_tables(full, g.dt, 0.0)[0].size == full[0].size  # nothing below W dt = 0
