@@ -372,7 +372,11 @@ class ModeCoupling:
         if self.species and not radial:
             self._axis_plasma(a)
         self.fft.backward(self.q, out)
-        if self.species:
+        if self.species and radial and not self.ends.any():
+            # no electrons at any node (every sample below the rate tables): the plasma term
+            # is 0, the raw spectrum the Kerr one times its gain (no transform of qp)
+            np.multiply(out, self.kerr_gain, out=out)
+        elif self.species:
             self.fft.backward(self.qp, self.qp_time)
             self.kn.add_scaled_product(out, self.kerr_gain, self.qp_time, 1.0 / self.points)
         return out

@@ -89,6 +89,25 @@ def test_fused_kernel_below_the_rate_tables_has_no_plasma_term():
     assert np.max(np.abs(nl.q)) > 0
 
 
+@pytest.mark.parametrize("energy", [1e-9, 300e-6], ids=["below_tables", "ionising"])
+def test_evaluation_without_electrons_skips_the_plasma_transform(energy):
+    # the nonlinear term N = i gain raw with and without the ionising species: equal (to
+    # rounding: the plasma path's node set holds the axis with weight 0) when nothing ionises,
+    # different when the pulse ionises (the check is not void)
+    g, ionising = _coupling("Ar", 3, "ppt")
+    _, kerr_only = _coupling("Ar", 3, None)
+    u = np.array([g.to_spectrum(f) for f in _fields(g, 3, energy)]).reshape(-1)
+    with_plasma = ionising(u, ionising.new_work())
+    without = kerr_only(u, kerr_only.new_work())
+    difference = _relative(with_plasma, without)
+    if energy < 1e-6:
+        assert not ionising.ends.any()
+        assert difference < 1e-14
+    else:
+        assert ionising.ends.any()
+        assert difference > 1e-6
+
+
 @pytest.mark.skipif(not fftw_available(), reason="pyFFTW is not installed")
 @pytest.mark.parametrize(("species", "model"), [("Ar", "ppt"), ("N2", None)],
                          ids=["plasma", "raman"])
