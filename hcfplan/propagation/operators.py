@@ -273,7 +273,7 @@ class NonlinearTerms:
         self.no_delay = np.zeros(n)  # the delayed term without a delayed response
         if species:  # work arrays and packed rate tables of the fused plasma kernel
             self.plasma_time, self.plasma_spectrum = self.new_work(), self.new_work()
-            self.tables = _packed_tables(species)
+            self.tables = packed_tables(species)
             # the power [W] from which some rate of the tables is above 0: the plasma kernel's
             # own test (below it every rate is 0, no electrons, no plasma terms)
             log_i, starts = self.tables[0], self.tables[2]
@@ -383,10 +383,15 @@ class NonlinearTerms:
         return rho, loss
 
 
-def _packed_tables(species: tuple[IonizingSpecies, ...]) -> tuple[np.ndarray, ...]:
+def packed_tables(species: tuple[IonizingSpecies, ...]) -> tuple[np.ndarray, ...]:
     """Rate tables of the species for :func:`~.kernels.plasma_in_place`: the concatenated
     (ln I, ln W) nodes, the start index of each species (and the end), the top slopes, neutral
-    densities [1/m^3] and ionisation potentials [J]."""
+    densities [1/m^3] and ionisation potentials [J].
+
+    References
+    ----------
+    none: numerical helper (the rates cite their sources in :mod:`hcfplan.ionization.rates`)
+    """
     sizes = [sp.rate.log_intensity.size for sp in species]
     return (np.concatenate([sp.rate.log_intensity for sp in species]),
             np.concatenate([sp.rate.log_rate for sp in species]),
