@@ -273,6 +273,9 @@ class ModeCoupling:
         from hcfplan.propagation import kernels, multimode_kernels
 
         self.kn, self.mk = kernels, multimode_kernels
+        # the stepper's kernels (steppers.py takes them from here): the compiled set, as the
+        # mode terms are compiled anyway
+        self.kernels = kernels
         modes, n, dt = len(eigenvalues), grid.points, grid.dt
         self.modes, self.points, self.workers, self.dt = modes, n, workers, dt
         self.scale = n * dt
