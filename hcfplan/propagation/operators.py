@@ -310,7 +310,7 @@ class NonlinearTerms:
             kn.delayed_in_place(a, power, delayed, self.instantaneous)
             fft.backward(a, out)
             return out
-        if np.max(power) * (1.0 / self.scale**2) < self.rate_floor:
+        if power.max() * (1.0 / self.scale**2) < self.rate_floor:
             # no sample reaches the rate tables: the plasma terms are 0 (the kernel's result,
             # without its pass, the plasma transform and the sum; a NaN takes the kernel)
             kn.delayed_in_place(a, power, delayed, self.instantaneous)
@@ -346,7 +346,7 @@ class NonlinearTerms:
         M. Geissler et al., Phys. Rev. Lett. 83, 2930 (1999).
         M. F. Saleh et al., Phys. Rev. Lett. 107, 203902 (2011) [from memory].
         """
-        if np.max(power) < self.rate_floor:  # no sample reaches the rate tables
+        if power.max() < self.rate_floor:  # no sample reaches the rate tables
             self.ionization_fraction = self.electron_line_density = 0.0
             return 0.0, 0.0
         end = self.kernels.plasma_in_place(
