@@ -309,7 +309,9 @@ def print_simulation(s: dict, out_dir: Path) -> None:
             rows.append(("detected THz cutoff", thz_shown(verdict, thz, "detected_cutoff_hz"),
                          "EO detection"))
         rows += thz_absolute_rows(thz)
-    rows += stage_rows(s)
+    from hcfplan.cli.output_modes import mode_rows
+
+    rows += mode_rows(s, verdict, fmt) + stage_rows(s)
     print_rows(rows)
     grid = s["grid"]
     if grid.get("refinements"):
