@@ -273,7 +273,7 @@ class NonlinearTerms:
         self.no_delay = np.zeros(n)  # the delayed term without a delayed response
         if species:  # work arrays and packed rate tables of the fused plasma kernel
             self.plasma_time, self.plasma_spectrum = self.new_work(), self.new_work()
-            self.tables = _packed_tables(species)
+            self.tables = packed_tables(species)
 
     def evaluate(self, out: np.ndarray) -> np.ndarray:
         """Raw nonlinear spectrum of the spectrum in :attr:`input` into ``out`` (N = i gain out).
@@ -367,10 +367,15 @@ class NonlinearTerms:
         return rho, loss
 
 
-def _packed_tables(species: tuple[IonizingSpecies, ...]) -> tuple[np.ndarray, ...]:
+def packed_tables(species: tuple[IonizingSpecies, ...]) -> tuple[np.ndarray, ...]:
     """Rate tables of the species for :func:`~.kernels.plasma_in_place`: the concatenated
     (ln I, ln W) nodes, the start index of each species (and the end), the top slopes, neutral
-    densities [1/m^3] and ionisation potentials [J]."""
+    densities [1/m^3] and ionisation potentials [J].
+
+    References
+    ----------
+    none: numerical helper (the rates cite their sources in :mod:`hcfplan.ionization.rates`)
+    """
     sizes = [sp.rate.log_intensity.size for sp in species]
     return (np.concatenate([sp.rate.log_intensity for sp in species]),
             np.concatenate([sp.rate.log_rate for sp in species]),

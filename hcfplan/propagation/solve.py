@@ -80,7 +80,7 @@ class _Counters:
 
 
 @dataclass(frozen=True)
-class _Run:
+class RunSettings:
     """What the stepping loop needs besides the stepper: the options and the callback."""
 
     options: SolverOptions
@@ -203,7 +203,7 @@ def propagate(
     segments = _check_segments(segments, float(waveguide.length))
     if segments is None:
         segments = (FillSegment(0.0, float(waveguide.length), waveguide, gas),)
-    stages = _Stages(grid, segments, options, float(waveguide.length))
+    stages = Stages(grid, segments, options, float(waveguide.length))
     lin = stages.lin
     u0 = grid.to_spectrum(field)
     removed = grid.energy_w(np.where(lin.valid, 0, u0)) / grid.energy_w(u0)
@@ -212,35 +212,57 @@ def propagate(
                             "gives no valid beta/alpha and was removed")
     u0 = np.where(lin.valid, u0, 0)
     stages.atol = options.absolute_tolerance(float(np.max(np.abs(u0))))
-    return _run(u0, field, grid, waveguide, stages, _Run(options, progress))
+    return _run(u0, field, grid, waveguide, stages, RunSettings(options, progress))
 
 
-class _Stages:
-    """The stepper of each stretch of uniform fill, built when the run reaches it."""
+class Stages:
+    """The stepper of each stretch of uniform fill, built when the run reaches it (``build``
+    makes its linear and nonlinear terms; default: the single-mode ones)."""
 
-    def __init__(self, grid, segments, options: SolverOptions, length: float) -> None:
+    def __init__(self, grid, segments, options: SolverOptions, length: float,
+                 build=None) -> None:
         self.grid, self.segments, self.options, self.length = grid, segments, options, length
+        # build(grid, waveguide, gas, options, length) -> (linear terms, nonlinear terms,
+        # notes); the multimode solver passes its own
+        self.build = _build if build is None else build
         self.index, self.atol, self.notes, self.rhs_before = 0, 0.0, [], 0
         self._make(0)
 
     def _make(self, index: int) -> None:
         seg = self.segments[index]
-        self.lin, self.nonlinear, notes = _build(self.grid, seg.waveguide, seg.gas,
-                                                 self.options, self.length)
+        self.lin, self.nonlinear, notes = self.build(self.grid, seg.waveguide, seg.gas,
+                                                     self.options, self.length)
         self.notes += [n for n in notes if n not in self.notes]
         self.end = float(seg.end)
 
     def runner(self):
+        """The stepper of the current stretch (not started).
+
+        References
+        ----------
+        none: numerical helper (the steppers cite theirs in :mod:`.steppers`)
+        """
         o = self.options
         return STEPPERS[o.stepper](self.lin.operator, self.nonlinear, o.rtol, self.atol,
                                    o.error_norm)
 
     @property
     def boundaries(self) -> np.ndarray:
+        """Positions of the boundaries between the stretches. [m]
+
+        References
+        ----------
+        none: numerical helper
+        """
         return np.array([float(s.end) for s in self.segments[:-1]])
 
     def advance(self):
-        """Move to the next stretch; returns its runner (not started)."""
+        """Move to the next stretch; returns its runner (not started).
+
+        References
+        ----------
+        none: numerical helper
+        """
         self.rhs_before += self.nonlinear.n_calls
         self.index += 1
         self._make(self.index)
@@ -248,29 +270,22 @@ class _Stages:
 
     @property
     def n_rhs_evals(self) -> int:
+        """Evaluations of the nonlinear terms over all stretches so far.
+
+        References
+        ----------
+        none: numerical helper
+        """
         return self.rhs_before + self.nonlinear.n_calls
 
 
-def _run(u0, field, grid, waveguide, stages: _Stages, run: _Run) -> PropagationResult:
-    length = float(waveguide.length)
-    samples = run.options.z_samples
-    records = np.linspace(0.0, length, samples)
-    targets = np.union1d(records, stages.boundaries)
-    is_record = np.isin(targets, records)
+def _run(u0, field, grid, waveguide, stages: Stages, run: RunSettings) -> PropagationResult:
     nonlinear = stages.nonlinear
     plasma = nonlinear if nonlinear.species else None
-    recorder = Recorder(grid, samples + 1, nonlinear.intensity_area, plasma, waveguide,
-                        transforms=nonlinear.fft)  # its buffers are free between steps
-    recorder.record(0.0, u0)
-    runner = stages.runner()
-    runner.start(u0)
-    h0 = run.options.step or _first_step(u0, nonlinear, targets[1])
-    state = StepState(u=u0.copy(), z=0.0, h=h0)
-    counters = _Counters()
-    status, message = _advance(state, runner, stages, (targets, is_record), recorder, counters,
-                               run)
-    if status != "completed" and state.z > recorder.z[recorder.count - 1]:
-        recorder.record(state.z, state.u)
+    recorder = Recorder(grid, run.options.z_samples + 1, nonlinear.intensity_area, plasma,
+                        waveguide, transforms=nonlinear.fft)  # its buffers are free between steps
+    state, counters, status, message = run_stepping(u0, float(waveguide.length), stages,
+                                                    recorder, run)
     notes = stages.notes
     return PropagationResult(
         grid=grid,
@@ -289,6 +304,44 @@ def _run(u0, field, grid, waveguide, stages: _Stages, run: _Run) -> PropagationR
     )
 
 
+def run_stepping(u0: np.ndarray, length: float, stages: Stages, recorder, run: RunSettings):
+    """Step the spectrum ``u0`` from 0 to ``length``, recording at ``z_samples`` positions.
+
+    The loop shared by :func:`propagate` and the multimode solver
+    (:mod:`hcfplan.propagation.multimode`): ``stages`` gives the runner and the nonlinear
+    terms of each stretch, ``recorder`` has ``record(z, u)``, ``z``, ``count`` and ``plasma``
+    (the :class:`~.result.Recorder` interface). After a fault the position reached is recorded
+    too.
+
+    Returns
+    -------
+    state : StepState
+        The final spectrum ``u``, position ``z`` and step ``h``.
+    counters : object
+        ``n_steps`` (accepted) and ``n_rejected``.
+    status, message : str
+        As in :class:`~.result.PropagationResult`.
+
+    References
+    ----------
+    none: numerical helper (the steppers cite theirs in :mod:`.steppers`)
+    """
+    records = np.linspace(0.0, length, run.options.z_samples)
+    targets = np.union1d(records, stages.boundaries)
+    is_record = np.isin(targets, records)
+    recorder.record(0.0, u0)
+    runner = stages.runner()
+    runner.start(u0)
+    h0 = run.options.step or _first_step(u0, stages.nonlinear, targets[1])
+    state = StepState(u=u0.copy(), z=0.0, h=h0)
+    counters = _Counters()
+    status, message = _advance(state, runner, stages, (targets, is_record), recorder, counters,
+                               run)
+    if status != "completed" and state.z > recorder.z[recorder.count - 1]:
+        recorder.record(state.z, state.u)
+    return state, counters, status, message
+
+
 def _next_step(state, target: float, current: float | None) -> float:
     """Step for the next attempt: equal steps to the target, kept unless the proposal is
     shorter or longer by ``REPLAN_GROWTH`` (a new step length costs a new exp(L h/2))."""
@@ -298,8 +351,8 @@ def _next_step(state, target: float, current: float | None) -> float:
     return remaining / max(1, round(remaining / current))
 
 
-def _advance(state, runner, stages: _Stages, positions, recorder, counters,
-             run: _Run) -> tuple[str, str]:
+def _advance(state, runner, stages: Stages, positions, recorder, counters,
+             run: RunSettings) -> tuple[str, str]:
     """The stepping loop; returns (status, message). ``positions`` = (targets, is_record):
     the step ends (record positions and stretch boundaries) and which of them are records."""
     options, progress = run.options, run.progress
@@ -341,7 +394,7 @@ def _advance(state, runner, stages: _Stages, positions, recorder, counters,
     return "completed", ""
 
 
-def _next_stretch(stages: _Stages, state, recorder):
+def _next_stretch(stages: Stages, state, recorder):
     """Runner and nonlinear terms of the next stretch of fill, started from ``state.u``."""
     runner = stages.advance()
     runner.start(state.u)
