@@ -69,9 +69,8 @@ _SINGLE_MODE_KEYS = ("loss_db_per_m", "loss_csv", "gvd_csv")
 
 def check_modes(resolved: dict) -> None:
     """``fiber.modes`` > 1: the launch is projected on EH11...EH1N, so ``fiber.mode`` must
-    be EH11; measured loss or GVD (one mode's), a gradient fill (the multimode solver takes one
-    static fill) and a circularly polarised pump (the modes are linearly polarised) are
-    refused, each naming ``fiber.modes``."""
+    be EH11; measured loss or GVD (one mode's) and a circularly polarised pump (the modes are
+    linearly polarised) are refused, each naming ``fiber.modes``."""
     fiber = resolved["fiber"]
     count = fiber.get("modes", 1)
     if count is None or count <= 1:
@@ -85,11 +84,6 @@ def check_modes(resolved: dict) -> None:
         raise ConfigError(f"{head} with fiber.{given[0]}: a measured loss or GVD is that of one "
                           "mode and is not carried over to the higher modes; drop it or use "
                           "fiber.modes = 1")
-    gas = resolved.get("gas") or {}
-    if gas.get("entrance_pressure_bar") is not None or gas.get("exit_pressure_bar") is not None:
-        raise ConfigError(f"{head} with a gradient fill (gas.entrance_pressure_bar, "
-                          "gas.exit_pressure_bar): multimode runs take a static fill "
-                          "(gas.pressure_bar)")
     if resolved.get("laser", {}).get("polarization") == "circular":
         raise ConfigError(f"{head} with laser.polarization = 'circular': the modes are "
                           "modelled linearly polarised")

@@ -99,7 +99,9 @@ def run_modes(config, setup, grid, field0: np.ndarray, options, progress=None):
     """The multimode GNLSE run of a config.
 
     ``field0`` is the EH11 part of the launch (the input pulse at laser.energy x c_1^2, as a
-    single-mode run launches it); mode m starts as (c_m / c_1) ``field0``.
+    single-mode run launches it); mode m starts as (c_m / c_1) ``field0``. A gradient fill
+    runs as the stretches of uniform fill of the single-mode run
+    (:func:`hcfplan.planning.build.build_fill_segments`), each with its N modes.
 
     References
     ----------
@@ -107,14 +109,20 @@ def run_modes(config, setup, grid, field0: np.ndarray, options, progress=None):
     :mod:`hcfplan.propagation.multimode`.
     """
     from hcfplan.fibers.capillary_modes import mode_waveguides
-    from hcfplan.propagation.multimode import propagate_modes
+    from hcfplan.planning.build import build_fill_segments
+    from hcfplan.propagation.multimode import ModeSegment, propagate_modes
 
+    count = config.fiber.modes
     launch = mode_launch(config)
     amplitudes = launch.amplitudes / launch.amplitudes[0]
     fields0 = amplitudes[:, None] * np.asarray(field0)[None, :]
-    waveguides = mode_waveguides(setup.waveguide, config.fiber.modes)
-    return propagate_modes(fields0, grid, waveguides, gas=setup.medium, options=options,
-                           progress=progress)
+    segments = build_fill_segments(config, setup.omega0)
+    if segments is not None:
+        segments = tuple(ModeSegment(s.start, s.end, mode_waveguides(s.waveguide, count), s.gas)
+                         for s in segments)
+    return propagate_modes(fields0, grid, mode_waveguides(setup.waveguide, count),
+                           gas=setup.medium, options=options, progress=progress,
+                           segments=segments)
 
 
 # ---------------------------------------------------------------------------------------------
