@@ -107,3 +107,15 @@ def test_min_eh11_needs_several_modes(tmp_path):
     (tmp_path / "tiny.toml").write_text(TINY, encoding="utf-8")
     with pytest.raises(ConfigError, match=r"--min-eh11 = 0.95: needs fiber.modes > 1"):
         hcfplan.recommend(tmp_path / "tiny.toml", "shortest", min_eh11=0.95)
+
+
+def test_spread_ranges_carry_the_eh11_share(capsys, tmp_path):
+    config = write_multimode_config(tmp_path, modes=2)
+    out = tmp_path / "run"
+    code, stdout, err = run(capsys, "simulate", config, "--out", out, "--spread", "energy=5%",
+                            "--workers", "1", "--no-figures", "--no-report")
+    assert code in (0, 3), err
+    ranges = json.loads((out / "summary.json").read_text())["spread"]["ranges"]
+    share = ranges["output.eh11_fraction"]
+    assert 0 < share["low"] <= share["high"] <= 1 and 0 < share["nominal"] <= 1
+    assert "output.eh11_fraction" in stdout

@@ -171,3 +171,14 @@ def test_gradient_fill_with_equal_ends_is_the_static_run(tmp_path):
     b = flat_summary(summary_dict(run_chain(gradient)))
     assert b["output.mode_fractions"] == pytest.approx(a["output.mode_fractions"], rel=1e-9)
     assert b["output.energy_j"] == pytest.approx(a["output.energy_j"], rel=1e-9)
+
+
+def test_calibration_model_of_a_multimode_run_is_the_whole_beam(multimode):
+    # contract: calibrate compares a measured spectrum with the whole beam (a spectrometer fed
+    # with the whole beam), i.e. the modes' spectral densities summed
+    from hcfplan.planning.calibrate import modelled_output
+
+    config, chain, flat, arrays = multimode
+    spectrum = modelled_output(config, chain.grid)
+    np.testing.assert_allclose(np.abs(spectrum) ** 2, arrays["beam_spectrum_out"],
+                               rtol=1e-3, atol=1e-3 * arrays["beam_spectrum_out"].max())
