@@ -119,3 +119,18 @@ def test_spread_ranges_carry_the_eh11_share(capsys, tmp_path):
     share = ranges["output.eh11_fraction"]
     assert 0 < share["low"] <= share["high"] <= 1 and 0 < share["nominal"] <= 1
     assert "output.eh11_fraction" in stdout
+
+
+def test_fiber_report_shows_the_launch_on_the_modes(capsys, tmp_path):
+    from hcfplan.fibers.capillary_modes import eh_launch_amplitudes
+
+    config = write_multimode_config(tmp_path, modes=3)
+    code, stdout, err = run(capsys, "fiber", config, "--json")
+    assert code == 0, err
+    report = json.loads(stdout)
+    shares = eh_launch_amplitudes(60e-6, 125e-6, 3) ** 2
+    assert report["coupling.mode_fractions"] == pytest.approx(list(shares), rel=1e-12)
+    assert report["coupling.lost_fraction"] == pytest.approx(1 - shares.sum(), abs=1e-12)
+    assert report["coupling.efficiency"] == pytest.approx(shares[0], rel=1e-12)
+    code, stdout, err = run(capsys, "fiber", config)
+    assert "EH11-EH13 share" in stdout
