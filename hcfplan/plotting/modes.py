@@ -100,22 +100,35 @@ def draw_mode_spectra(fig, chain):
 # scans
 
 
-def _eh11(record: dict) -> float:
-    """``output.eh11_fraction`` of a point record, nan where its verdict voids it or it has
-    none (a failed run)."""
-    from hcfplan.planning.verdict import verdict_of_record
-
+def _eh11_value(record: dict) -> float:
+    """``output.eh11_fraction`` of a point record (nan where there is none)."""
     value = record.get("summary", {}).get("output", {}).get("eh11_fraction")
     if isinstance(value, bool) or not isinstance(value, (int, float)):
-        return np.nan
-    if verdict_of_record(record).void_reason("output.eh11_fraction") is not None:
         return np.nan
     return float(value)
 
 
+def _eh11_void(record: dict) -> bool:
+    """Whether the point's verdict voids its EH11 share (a failed run: always)."""
+    from hcfplan.planning.verdict import verdict_of_record
+
+    verdict = verdict_of_record(record)
+    return verdict.invalid or verdict.void_reason("output.eh11_fraction") is not None
+
+
+def _eh11(record: dict) -> float:
+    """The EH11 share of a point, nan where it has none or its verdict voids it."""
+    return np.nan if _eh11_void(record) else _eh11_value(record)
+
+
+def _beyond(record: dict) -> bool:
+    """Whether a point is beyond a modelled limit (or its run failed)."""
+    return bool(record.get("margins", {}).get("binding")) or record.get("status") != "ok"
+
+
 def has_eh11(records) -> bool:
     """Whether the points of a scan carry ``output.eh11_fraction`` (multimode runs)."""
-    return any(np.isfinite(_eh11(r)) for r in records)
+    return any(np.isfinite(_eh11_value(r)) for r in records)
 
 
 def _numeric(values: tuple) -> tuple[np.ndarray, list[str] | None]:
@@ -126,23 +139,34 @@ def _numeric(values: tuple) -> tuple[np.ndarray, list[str] | None]:
 
 def draw_eh11_fraction(fig, keys: tuple[str, ...], values: tuple[tuple, ...], records):
     """EH11 share of the exit energy against one varied key (a line) or two (a map), with the
-    level below which the verdict cautions; points without a number (failed or void) are
-    drawn as hollow grey markers at the foot of the panel."""
+    level below which the verdict cautions. A share the point's verdict voids is a hollow grey
+    marker at its value (at the foot of the panel without a number); points beyond a modelled
+    limit are shaded (a map: crossed)."""
     from hcfplan.planning.mode_run import EH11_FRACTION_FLOOR
 
     ax = fig.subplots()
     y = np.array([_eh11(r) for r in records]) * 100
+    raw = np.array([_eh11_value(r) for r in records]) * 100
+    beyond = np.array([_beyond(r) for r in records], dtype=bool)
     floor = EH11_FRACTION_FLOOR * 100
     if len(keys) == 1:
         x, labels = _numeric(values[0])
-        ax.plot(x[np.isfinite(y)], y[np.isfinite(y)], "o-", color="C0", label="EH11 share")
-        if np.any(~np.isfinite(y)):
-            ax.plot(x[~np.isfinite(y)], np.full(int(np.sum(~np.isfinite(y))), 0.04), "o",
-                    mfc="none", color="0.6", transform=ax.get_xaxis_transform(),
-                    clip_on=False, label="no result (void or failed)")
+        ok = np.isfinite(y)
+        ax.plot(x[ok], y[ok], "o-", color="C0", label="EH11 share")
+        at = ~ok & np.isfinite(raw)  # void numbers where they lie, the others at the foot
+        if np.any(~ok):
+            ax.plot(x[at], raw[at], "o", mfc="none", color="0.6", label="void or failed")
+            ax.plot(x[~ok & ~at], np.full(int(np.sum(~ok & ~at)), 0.04), "o", mfc="none",
+                    color="0.6", transform=ax.get_xaxis_transform(), clip_on=False)
+        half = np.min(np.diff(x)) / 2 if x.size > 1 else 0.5
+        for xi in x[beyond]:
+            ax.axvspan(xi - half, xi + half, color="C3", alpha=0.15, lw=0)
+        if np.any(beyond):
+            ax.fill_between([], [], color="C3", alpha=0.15, lw=0,
+                            label="beyond a modelled\nlimit (or failed)")
         ax.axhline(floor, color="C3", ls="--", lw=1,
                    label=textwrap.fill(f"caution below {floor:.0f} % (verdict)", 20))
-        low = np.nanmin(np.append(y, floor))
+        low = np.nanmin(np.concatenate([y, raw, [floor]]))
         ax.set_ylim(max(0.0, low - 0.1 * (100 - low) - 1), 100.5)
         if labels:
             ax.set_xticks(x, labels)
@@ -160,6 +184,8 @@ def draw_eh11_fraction(fig, keys: tuple[str, ...], values: tuple[tuple, ...], re
             ax.contour(x, yy, grid.T, levels=[floor], colors="C3", linestyles="--")
         gx, gy = np.meshgrid(x, yy, indexing="ij")
         missing = ~np.isfinite(grid)
+        outside = beyond.reshape(x.size, yy.size)
+        ax.plot(gx[outside], gy[outside], "x", color="C3", ms=8)
         ax.plot(gx[missing], gy[missing], "o", mfc="none", color="0.6", ms=8)
         if xlabels:
             ax.set_xticks(x, xlabels)
@@ -167,6 +193,9 @@ def draw_eh11_fraction(fig, keys: tuple[str, ...], values: tuple[tuple, ...], re
             ax.set_yticks(yy, ylabels)
         ax.set_xlabel(key_label(keys[0]))
         ax.set_ylabel(key_label(keys[1]))
-    ax.set_title(textwrap.fill("EH11 share of the exit energy (multimode runs); red dashed: "
-                               f"verdict caution below {floor:.0f} %", 60), fontsize="small")
+    marks = ("shaded: beyond a modelled limit" if len(keys) == 1
+             else "x: beyond a modelled limit; grey circle: void or failed")
+    ax.set_title(textwrap.fill("EH11 share of the exit energy (multimode runs); "
+                               f"{marks}; red dashed: verdict caution below {floor:.0f} %",
+                               60), fontsize="small")
     return ax
