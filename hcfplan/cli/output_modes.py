@@ -28,13 +28,13 @@ def mode_rows(s: dict, verdict, fmt) -> list[tuple[str, str, str]]:
              f"{fmt(inp.get('beam_waist_m'), 1e-6, 3)} um"),
             ("exit energy per mode", _shares(outp.get("mode_fractions") or []),
              "EH11 share " + _shown(verdict, "output.eh11_fraction",
-                                       f"{fmt(outp.get('eh11_fraction'), 0.01, 4)} %"))]
+                                    f"{fmt(outp.get('eh11_fraction'), 0.01, 4)} %"))]
     comp = s.get("compressed") or {}
     if "beam_fwhm_s" in comp:
         rows.append(("compressed, whole beam",
                      _shown(verdict, "compressed.beam_fwhm_s",
-                               f"{fmt(comp['beam_fwhm_s'], 1e-15)} fs"),
+                            f"{fmt(comp['beam_fwhm_s'], 1e-15)} fs"),
                      _shown(verdict, "compressed.beam_peak_power_w",
-                               f"{fmt(comp['beam_peak_power_w'], 1e9)} GW")
+                            f"{fmt(comp['beam_peak_power_w'], 1e9)} GW")
                      + " (the compressed and THz rows above: the EH11 part)"))
     return rows

@@ -28,8 +28,8 @@ CRYSTAL_LIMITED_GOALS = ("thz_field",)
 #: energy in the main lobe: a short spike on a broad pedestal is not a short pulse for a lab
 #: (common practice, no source).
 MIN_MAIN_LOBE_FRACTION = 0.5
-#: Reason of a point whose EH11 share of the exit energy is below ``--min-eh11`` (or that has
-#: none: a failed run).
+#: Reason of a point whose EH11 share of the exit energy is below ``--min-eh11``, or that has
+#: no such share standing (none in its summary, or void by its verdict).
 BELOW_MIN_EH11 = "EH11 share below --min-eh11"
 #: Reason of a point whose THz cutoff stays below the ``--target-thz`` value.
 NOT_REACHED = "goal not reached"
