@@ -111,7 +111,9 @@ def run_chain(config, *, progress: Callable[[float, float, int], None] | None = 
     caught += lines
     extra = _grid_notes(chain, caught)
     grid, prop = chain.grid, chain.propagation
-    band = light_band(grid.frequency, np.abs(prop.field_out_spectrum) ** 2)
+    from hcfplan.planning.mode_run import exit_density
+
+    band = light_band(grid.frequency, exit_density(prop))  # multimode: the whole beam
     notes = range_notes(config, chain.medium, band, "the output spectrum at -40 dB")
     merged = tuple(dict.fromkeys(list(chain.warnings) + notes + extra))
     return dataclasses.replace(chain, warnings=merged, convergence=convergence)

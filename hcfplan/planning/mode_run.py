@@ -74,6 +74,15 @@ class ModeOutcome:
     beam: BeamPulse | None  #: None without a compressed pulse
 
 
+def exit_density(result) -> np.ndarray:
+    """Spectral energy density at the fiber exit, FFT order [J/Hz]: the whole beam's (the
+    modes' densities summed) for a multimode result, abs(field_out_spectrum)^2 otherwise."""
+    modes = getattr(result, "mode_spectra_out", None)
+    if modes is None:
+        return np.abs(np.asarray(result.field_out_spectrum)) ** 2
+    return np.sum(np.abs(np.asarray(modes)) ** 2, axis=0)
+
+
 def is_multimode(config) -> bool:
     """Whether a config runs several capillary modes (``fiber.modes`` > 1)."""
     return getattr(config.fiber, "modes", 1) > 1

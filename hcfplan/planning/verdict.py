@@ -523,11 +523,12 @@ def measured_of_chain(chain) -> dict:
     """
     import numpy as np
 
+    from hcfplan.planning.mode_run import exit_density
     from hcfplan.planning.validity import light_band, quiet_validity, range_notes
 
     config, grid, prop = chain.config, chain.grid, chain.propagation
     measured: dict[str, Any] = {"pump_wavelength_m": float(config.laser.wavelength)}
-    power = np.abs(np.asarray(prop.field_out_spectrum)) ** 2
+    power = exit_density(prop)  # multimode: the whole beam
     notes: list[str] = []
     if np.any(power > 0):
         band = light_band(grid.frequency, power)

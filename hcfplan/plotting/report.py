@@ -139,7 +139,9 @@ def draw_spread(fig, chain, spread):
     grid = chain.grid
     order = np.argsort(grid.frequency)
     freq = grid.frequency[order]
-    nominal = np.abs(chain.propagation.field_out_spectrum[order]) ** 2
+    from hcfplan.planning.mode_run import exit_density
+
+    nominal = exit_density(chain.propagation)[order]  # multimode: the whole beam
     curves = [np.interp(freq, r["spectrum"]["frequency_hz"],
                         r["spectrum"]["energy_density_j_per_hz"], left=0.0, right=0.0)
               for r in spread.corners if r["spectrum"]["frequency_hz"]]

@@ -67,6 +67,12 @@ def test_scan_carries_the_eh11_share_and_draws_its_figure(capsys, tmp_path):
     assert "output.eh11_fraction" in header and "compressed.beam_fwhm_s" in header
     assert (out / "eh11_fraction.png").stat().st_size > 10_000
     assert "EH11 share" in (out / "report.html").read_text(encoding="utf-8")
+    # the stored output spectrum of a point is the whole beam's: it holds the exit energy of
+    # all modes, not the EH11 share of it (about 89 % here)
+    record = json.loads(next((out / "points").glob("*.json")).read_text())
+    spectrum = record["spectrum"]
+    energy = np.trapezoid(spectrum["energy_density_j_per_hz"], spectrum["frequency_hz"])
+    assert energy == pytest.approx(record["summary"]["output"]["energy_j"], rel=0.02)
 
 
 def test_compare_has_the_eh11_row(capsys, tmp_path):
