@@ -127,3 +127,45 @@ def two_stage_text(one: str, second: str) -> str:
         target.append(line.replace(f"[{current}]", f"[stage.{current}]")
                       if line.startswith("[") and target is stage else line)
     return "\n".join(shared) + "\n[[stage]]\n" + "\n".join(stage) + "\n" + second
+
+
+#: An invented multimode scenario (three capillary modes, a focus below the EH11 optimum so
+#: that EH12 and EH13 carry a visible share), as small as TINY: the multimode tests.
+MULTIMODE = """
+[laser]
+wavelength_nm = 800.0
+fwhm_fs = 60.0
+shape = "gaussian"
+energy_uj = {energy_uj}
+beam_waist_um = {waist_um}
+
+[fiber]
+kind = "capillary"
+core_diameter_um = 250.0
+length_m = 0.1
+modes = {modes}
+
+[gas]
+species = "Ar"
+pressure_bar = 0.5
+
+[cell]
+rated_pressure_bar = 5.0
+
+[compressor]
+mirror_gdd_fs2 = -40.0
+max_bounces = 10
+
+[grid]
+points = 1024
+z_samples = 5
+"""
+
+
+def write_multimode_config(folder: Path, name: str = "multimode.toml", modes: int = 3,
+                           energy_uj: float = 50.0, waist_um: float = 60.0) -> Path:
+    """The fast multimode test config (``fiber.modes = modes``)."""
+    path = Path(folder) / name
+    path.write_text(MULTIMODE.format(modes=modes, energy_uj=energy_uj, waist_um=waist_um),
+                    encoding="utf-8")
+    return path

@@ -249,7 +249,7 @@ class Recommendations:
 
 def recommend(config: ConfigLike, goal: str, *, vary=None, gases=(), target_thz=None,
               overrides=None, budget: int | None = None, coarse: int | None = None,
-              workers: int = 1) -> Recommendations:
+              workers: int = 1, min_eh11: float | None = None) -> Recommendations:
     """The pressure (or energy, or gas) that best meets ``goal`` within the limits.
 
     Parameters
@@ -260,6 +260,9 @@ def recommend(config: ConfigLike, goal: str, *, vary=None, gases=(), target_thz=
         Searched ranges, ``"gas.pressure_bar=LO:HI"`` and/or ``"laser.energy_uj=LO:HI"``.
     gases, target_thz, budget, coarse, workers
         As the options of ``hcfplan recommend``.
+    min_eh11 : float, optional
+        Smallest EH11 share of the exit energy a point may have (``--min-eh11``; a multimode
+        config, ``fiber.modes`` > 1). [1]
 
     References
     ----------
@@ -277,7 +280,7 @@ def recommend(config: ConfigLike, goal: str, *, vary=None, gases=(), target_thz=
             recs = search(source.path, goal, search=vary, gases=tuple(gases),
                           target_thz=target_thz, overrides=source.overrides,
                           extra_gas_dirs=gas_dirs(), budget=budget, coarse=coarse,
-                          workers=count)
+                          workers=count, min_eh11=min_eh11)
         finally:
             release_workers()
     return Recommendations(recs, overall_best(recs))

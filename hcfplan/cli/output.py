@@ -130,7 +130,10 @@ def print_fiber(r: dict) -> None:
         ("coupling", f"{fmt(r['coupling.efficiency'], 0.01, 3)} %",
          "" if r["coupling.beam_waist_m"] is None else
          f"waist {fmt(r['coupling.beam_waist_m'], 1e-6, 3)} um (optimum "
-         f"{fmt(r['coupling.optimum_beam_waist_m'], 1e-6, 3)} um)"),
+         f"{fmt(r['coupling.optimum_beam_waist_m'], 1e-6, 3)} um)"
+         + (f"; EH11-EH1{len(r['coupling.mode_fractions'])} share " + " / ".join(
+             f"{100 * f:.3g}" for f in r["coupling.mode_fractions"]) + " %"
+            if r.get("coupling.mode_fractions") else "")),
         ("coupled energy", f"{fmt(r['input.coupled_energy_j'], 1e-6)} uJ",
          f"peak power {fmt(r['input.peak_power_w'], 1e9)} GW"),
         ("dispersion length L_D", f"{fmt(r['fiber.dispersion_length_m'])} m", ""),
@@ -309,7 +312,9 @@ def print_simulation(s: dict, out_dir: Path) -> None:
             rows.append(("detected THz cutoff", thz_shown(verdict, thz, "detected_cutoff_hz"),
                          "EO detection"))
         rows += thz_absolute_rows(thz)
-    rows += stage_rows(s)
+    from hcfplan.cli.output_modes import mode_rows
+
+    rows += mode_rows(s, verdict, fmt) + stage_rows(s)
     print_rows(rows)
     grid = s["grid"]
     if grid.get("refinements"):

@@ -73,6 +73,10 @@ def scan_figures(out_dir: Path, plan, records) -> list[str]:
                 (out_dir / "results.png", plots.draw_results_1d, (keys[0], values[0], records))]
     else:
         jobs = [(out_dir / "results_map.png", plots.draw_results_2d, (keys, values, records))]
+    from hcfplan.plotting.modes import draw_eh11_fraction, has_eh11
+
+    if has_eh11(records):  # multimode runs: the EH11 share against the varied keys
+        jobs.append((out_dir / "eh11_fraction.png", draw_eh11_fraction, (keys, values, records)))
     write_figures(jobs)
     return [path.name for path, _, _ in jobs]
 
@@ -100,6 +104,9 @@ def scan_rows(plan, records) -> tuple[list[str], list[list[str]]]:
                      "THz field (kV/cm)",
                      "SF margin P_cr/P" + (f" (req. >= {required:g})" if required else ""),
                      "ion. fraction", "beyond limits"]
+    eh11 = any("eh11_fraction" in r["summary"].get("output", {}) for r in records)
+    if eh11:  # multimode runs
+        header.insert(len(keys) + 4, "EH11 share (%)")
     from hcfplan.planning.verdict import verdict_of_record
 
     rows = []
@@ -112,7 +119,7 @@ def scan_rows(plan, records) -> tuple[list[str], list[list[str]]]:
             code = void_code(verdict, key, value)
             return f"void ({code})" if code else fmt(value, scale)
 
-        rows.append([str(r["values"][k]) for k in keys] + [
+        row = [str(r["values"][k]) for k in keys] + [
             r["status"], " ".join([verdict.status, *verdict.codes]),
             shown("compressed.fwhm_s", comp.get("fwhm_s"), 1e-15),
             shown("compressed.peak_power_w", comp.get("peak_power_w"), 1e9),
@@ -120,7 +127,11 @@ def scan_rows(plan, records) -> tuple[list[str], list[list[str]]]:
             shown("thz.peak_field_v_per_m", thz.get("peak_field_v_per_m"), 1e5),
             fmt(m.get("self_focusing"), 1, 3),
             fmt(m.get("ionization_fraction"), 1, 3),
-            m.get("binding") or ("-" if r["status"] == "ok" else r["message"][:60])])
+            m.get("binding") or ("-" if r["status"] == "ok" else r["message"][:60])]
+        if eh11:
+            row.insert(len(keys) + 4, shown("output.eh11_fraction",
+                                            s.get("output", {}).get("eh11_fraction"), 1e-2))
+        rows.append(row)
     return header, rows
 
 
@@ -226,6 +237,9 @@ def recommend_command(
     target_thz: Optional[float] = typer.Option(  # noqa: UP007, UP045
         None, "--target-thz", help="With --goal thz_cutoff: the smallest pressure (or energy) "
         "whose THz cutoff reaches this value."),
+    min_eh11: Optional[float] = typer.Option(  # noqa: UP007, UP045
+        None, "--min-eh11", help="Multimode configs (fiber.modes > 1): the smallest share of "
+        "the exit energy in EH11 a point may have, e.g. 0.95."),
     vary: Optional[list[str]] = typer.Option(  # noqa: UP007, UP045
         None, "--vary", help="Searched range: gas.pressure_bar=LO:HI (a gradient fill: "
         "gas.exit_pressure_bar=LO:HI, entrance fixed) or laser.energy_uj=LO:HI; "
@@ -260,7 +274,7 @@ def recommend_command(
     try:
         recs = recommend(config, goal, search=vary, gases=gas_list, target_thz=target_thz,
                          overrides=tuple(set_ or ()), extra_gas_dirs=gas_dirs(),
-                         budget=budget, coarse=coarse, workers=count,
+                         budget=budget, coarse=coarse, workers=count, min_eh11=min_eh11,
                          on_batch=lambda done, size: bar.draw(
                              0.0, f"{done} runs done, {size} running"))
     finally:
@@ -296,7 +310,8 @@ def _rec_json(rec) -> dict:
         "bound": rec.bound_reason, "rating_fraction": rec.rating_fraction,
         "pressure_cap_pa": None if rec.pressure_cap is None else rec.pressure_cap * 1e5,
         "tolerance": dict(zip(rec.keys, rec.tolerance, strict=True)),
-        "target_thz": rec.target_thz, "reason": rec.reason, "coarse_points": rec.coarse,
+        "target_thz": rec.target_thz, "min_eh11": rec.min_eh11, "reason": rec.reason,
+        "coarse_points": rec.coarse,
         "runs": rec.runs, "best": _point_json(rec, rec.best), "binding": list(rec.binding),
         "closest": _point_json(rec, rec.closest),
         "excluded": [{"reason": why, "points": n} for why, n in rec.excluded],
@@ -330,6 +345,9 @@ def _print_recommendation(rec, chosen: bool) -> None:
                    "bounded by one; give the lowest rating of cell, windows and fittings")
     if rec.allowed and rec.bound_reason:
         typer.echo(f"  allowed range cut: {rec.bound_reason}")
+    if rec.min_eh11 is not None:
+        typer.echo(f"  points need at least {rec.min_eh11:.3g} of the exit energy in EH11 "
+                   "(--min-eh11)")
     best = rec.best
     if best is not None:
         from hcfplan.planning.verdict import verdict_of_record
@@ -347,12 +365,15 @@ def _print_recommendation(rec, chosen: bool) -> None:
         tol = ", ".join(f"{t:.2g} {u}" for t, u in zip(rec.tolerance, rec.units, strict=True))
         typer.echo(f"  chosen {_values_text(rec, best.values)} (search tolerance {tol}; "
                    f"verdict {best.verdict}){mark}")
+        eh11 = best.record["summary"].get("output", {}).get("eh11_fraction")
         typer.echo(f"  compressed {shown('compressed', 'fwhm_s', 1e-15)} fs, "
                    f"{shown('compressed', 'peak_power_w', 1e9)} GW; THz cutoff "
                    f"{shown('thz', 'cutoff_hz', 1e12)} THz"
                    + (f"; THz peak field {shown('thz', 'peak_field_v_per_m', 1e5)} kV/cm, "
                       f"efficiency {shown('thz', 'efficiency', 1.0)}"
-                      if thz.get("peak_field_v_per_m") is not None else ""))
+                      if thz.get("peak_field_v_per_m") is not None else "")
+                   + (f"; EH11 share {fmt(eh11, 0.01, 4)} % of the exit energy"
+                      if eh11 is not None else ""))
         for line in verdict_lines(verdict, "  ")[1:] if verdict.reasons else ():
             typer.echo(line)
         for i, c in enumerate(rec.binding):

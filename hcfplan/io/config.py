@@ -208,6 +208,7 @@ def _build_fiber(f: dict, base: Path, pump_nm: float) -> FiberSpec:
         flat_loss=None if flat is None else units.power_loss_db_per_m_to_field_attenuation(flat),
         loss_curve=_fiber_loss_curve(f, base),
         gvd_curve=_fiber_gvd_curve(f, base, pump_nm),
+        modes=f["modes"],
     )
 
 
@@ -339,6 +340,7 @@ def config_from_mapping(raw: dict[str, Any], *, base_dir: Path | str = ".",
     present = {s for s in data if isinstance(data[s], dict)}
     resolved = validate_raw(data)
     crosschecks.check_fiber(resolved)
+    crosschecks.check_modes(resolved)
     crosschecks.check_gas(resolved, present)
     crosschecks.check_compressor(resolved)
     crosschecks.check_grid(resolved)
@@ -361,6 +363,7 @@ def _staged_config(data: dict, *, base_dir: Path, overrides: tuple, extra_gas_di
                                              extra_gas_dirs=extra_gas_dirs, source=source))
         except ConfigError as exc:
             raise stages.prefixed_error(index, exc) from None
+    crosschecks.check_staged_modes([c.fiber.modes for c in built])
     resolved = stages.staged_resolved(built[0].resolved, [c.resolved for c in built])
     return replace(built[0], resolved=resolved, stages=tuple(built), overrides=overrides)
 

@@ -62,6 +62,42 @@ def check_fiber(resolved: dict) -> None:
     mode_order(fiber["mode"])
 
 
+#: Keys a multimode run (``fiber.modes`` > 1) refuses: a measured loss or GVD is that of one
+#: mode (the one measured); no rule carries it over to the higher modes.
+_SINGLE_MODE_KEYS = ("loss_db_per_m", "loss_csv", "gvd_csv")
+
+
+def check_modes(resolved: dict) -> None:
+    """``fiber.modes`` > 1: the launch is projected on EH11...EH1N, so ``fiber.mode`` must
+    be EH11; measured loss or GVD (one mode's) and a circularly polarised pump (the modes are
+    linearly polarised) are refused, each naming ``fiber.modes``."""
+    fiber = resolved["fiber"]
+    count = fiber.get("modes", 1)
+    if count is None or count <= 1:
+        return
+    head = f"fiber.modes = {count}"
+    if mode_order(fiber["mode"]) != 1:
+        raise ConfigError(f"{head}: needs fiber.mode = 'EH11' (the launch is projected on "
+                          f"EH11...EH1{count}), got fiber.mode = {describe(fiber['mode'])}")
+    given = [k for k in _SINGLE_MODE_KEYS if fiber.get(k) is not None]
+    if given:
+        raise ConfigError(f"{head} with fiber.{given[0]}: a measured loss or GVD is that of one "
+                          "mode and is not carried over to the higher modes; drop it or use "
+                          "fiber.modes = 1")
+    if resolved.get("laser", {}).get("polarization") == "circular":
+        raise ConfigError(f"{head} with laser.polarization = 'circular': the modes are "
+                          "modelled linearly polarised")
+
+
+def check_staged_modes(counts) -> None:
+    """Cascaded stages hand one field over: a stage with ``fiber.modes`` > 1 is refused."""
+    for index, count in enumerate(counts):
+        if count > 1:
+            raise ConfigError(f"stage.{index}.fiber.modes = {count}: cascaded stages hand one "
+                              "field to the next stage; multimode runs are single-stage "
+                              "configs")
+
+
 def check_gas(resolved: dict, present: set[str]) -> None:
     """A [gas] section for gas-filled fibers, with exactly one of species and mixture."""
     gas = resolved["gas"]

@@ -100,6 +100,11 @@ SCHEMA: dict[str, dict[str, Key]] = {
                              1.0e6, low_open=False, fiber_kinds=_CAP),
         "mode": Key("str", "EH11", "Capillary mode EH1m (EH11 is the fundamental).",
                     fiber_kinds=_CAP),
+        "modes": Key("int", 1, "Capillary: number N of radially symmetric modes EH11...EH1N "
+                     "propagated together (multimode GNLSE); the Gaussian launch is projected "
+                     "on them. 1: the single-mode run of fiber.mode. At most 8 (cost grows "
+                     "with N; common practice, no source).", 1, 8, low_open=False,
+                     fiber_kinds=_CAP),
         "betas_fs_n_per_mm": Key("float_list", None,
                                  "Taylor fiber: [beta2, beta3, ...] about the pump in fs^n/mm.",
                                  fiber_kinds=_TAYLOR),

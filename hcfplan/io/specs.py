@@ -93,6 +93,8 @@ class FiberSpec:
     loss_curve: MeasuredCurve | None = None
     #: measured GVD (``fiber.gvd_csv``), values beta2 [s^2/m]
     gvd_curve: MeasuredCurve | None = None
+    #: capillary modes EH11...EH1N propagated together (``fiber.modes``; 1: single mode)
+    modes: int = 1
 
 
 @dataclass(frozen=True)

@@ -189,7 +189,9 @@ def spectrum_per_wavelength(grid, spectrum: np.ndarray, wavelength: np.ndarray) 
 def modelled_output(config, grid):
     """The fiber's output spectrum (``grid.to_spectrum`` convention) for ``config`` on the
     given grid: the chain's fiber run without its first-look report, grid refinement,
-    compressor or THz, at the solver tolerance :data:`FIT_RTOL`. A failed run is refused."""
+    compressor or THz, at the solver tolerance :data:`FIT_RTOL`. A failed run is refused.
+    A multimode run (``fiber.modes`` > 1) gives the whole beam, sqrt of the modes' spectral
+    densities summed (phase dropped), as a spectrometer fed with the whole beam sees it."""
     from hcfplan.planning.fiber_run import fiber_setup, run_fiber
     from hcfplan.planning.input_field import input_field
 
@@ -200,6 +202,9 @@ def modelled_output(config, grid):
     if not result.success:
         raise ConfigError(f"calibrate: the fiber run failed ({result.message}); narrow the "
                           "fit or check the config")
+    modes = getattr(result, "mode_spectra_out", None)
+    if modes is not None:
+        return np.sqrt(np.sum(np.abs(modes) ** 2, axis=0))
     return result.field_out_spectrum
 
 

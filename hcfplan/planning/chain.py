@@ -53,6 +53,9 @@ class ChainResult:
     #: cascaded stages (:mod:`hcfplan.planning.stages`): the result of every stage run, in
     #: order; this result is then the final stage's. Empty for a single-stage run.
     stages: tuple = ()
+    #: multimode runs (``fiber.modes`` > 1): the launch and the whole-beam compressed pulse
+    #: (:class:`hcfplan.planning.mode_run.ModeOutcome`); None for one mode
+    modes: Any = None
 
 
 def _broadening_estimate(report: dict) -> float:
@@ -108,7 +111,9 @@ def run_chain(config, *, progress: Callable[[float, float, int], None] | None = 
     caught += lines
     extra = _grid_notes(chain, caught)
     grid, prop = chain.grid, chain.propagation
-    band = light_band(grid.frequency, np.abs(prop.field_out_spectrum) ** 2)
+    from hcfplan.planning.mode_run import exit_density
+
+    band = light_band(grid.frequency, exit_density(prop))  # multimode: the whole beam
     notes = range_notes(config, chain.medium, band, "the output spectrum at -40 dB")
     merged = tuple(dict.fromkeys(list(chain.warnings) + notes + extra))
     return dataclasses.replace(chain, warnings=merged, convergence=convergence)
@@ -168,11 +173,14 @@ def _run_chain(config, progress, workers, grid=None, input_field=None) -> ChainR
     if result.success:
         compression = compress_output(config, grid, result.field_out_spectrum, peak_in)
         warnings += _compression_warnings(compression)
+    from hcfplan.planning.mode_run import mode_outcome
+
     return ChainResult(config=config, grid=grid, waveguide=waveguide, medium=medium,
                        coupling_efficiency=efficiency, launched_energy=energy,
                        input_peak_power=peak_in, propagation=result, compression=compression,
                        thz=None, phase_matching=None, fiber_report=report,
-                       warnings=tuple(dict.fromkeys(warnings)))
+                       warnings=tuple(dict.fromkeys(warnings)),
+                       modes=mode_outcome(config, grid, result, compression, applied_phase))
 
 
 def _with_thz(config, chain: ChainResult) -> ChainResult:
@@ -243,6 +251,19 @@ def _mirror_phase(config, grid) -> np.ndarray:
     if comp.mirror_gdd is None:
         return np.zeros_like(grid.omega)
     return mirror_phase(grid.omega, grid.omega_pump, comp.mirror_gdd, comp.mirror_tod)
+
+
+def applied_phase(config, grid, bounces: int, insertion: float) -> np.ndarray:
+    """Phase of the whole compressor at a chosen setting: exit window, air path, ``bounces``
+    chirped-mirror bounces and a trim ``insertion`` [m] of the wedge material. [rad]"""
+    from hcfplan.compression.elements import material_phase
+
+    phase = fixed_phase(config, grid) + bounces * _mirror_phase(config, grid)
+    comp = config.compressor
+    if insertion and comp.wedge_material is not None:
+        n = _material_index(comp.wedge_material, grid.omega)
+        phase = phase + material_phase(grid.omega, grid.omega_pump, n, insertion)
+    return phase
 
 
 def compress_output(config, grid, spectrum: np.ndarray, input_peak_power: float):
@@ -478,6 +499,9 @@ def summary_dict(chain: ChainResult) -> dict:
         summary.update(throughput_values(chain.config, chain.compression))
     summary.update(_thz_part(chain.config, chain.thz))
     summary.update(limits_part(chain))
+    from hcfplan.planning.mode_run import mode_summary
+
+    summary.update(mode_summary(chain))  # fiber.modes > 1 only
     summary.update({
         "solver.success": prop.success,
         "solver.status": prop.status,
@@ -557,6 +581,9 @@ def field_arrays(chain: ChainResult) -> dict[str, np.ndarray]:
         from hcfplan.planning.reports.thz import chain_arrays
 
         arrays.update(chain_arrays(chain.config, thz))  # E(t), the focus, the EO waveform
+    from hcfplan.planning.mode_run import mode_arrays
+
+    arrays.update(mode_arrays(chain))  # fiber.modes > 1 only
     if chain.stages:  # stage_K_* arrays of each stage (hcfplan.planning.stages)
         from hcfplan.planning.stages import stage_arrays
 

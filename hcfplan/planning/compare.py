@@ -22,6 +22,9 @@ ROWS: tuple[tuple[str, str, float, str], ...] = (
     ("output bandwidth (-20 dB)", "output.bandwidth_hz", 1e12, "THz"),
     ("compressed FWHM", "compressed.fwhm_s", 1e-15, "fs"),
     ("compressed peak power", "compressed.peak_power_w", 1e9, "GW"),
+    ("EH11 share of the exit energy", "output.eh11_fraction", 1e-2, "%"),
+    ("compressed FWHM, whole beam", "compressed.beam_fwhm_s", 1e-15, "fs"),
+    ("compressed peak power, whole beam", "compressed.beam_peak_power_w", 1e9, "GW"),
     ("THz peak", "thz.peak_hz", 1e12, "THz"),
     ("THz cutoff", "thz.cutoff_hz", 1e12, "THz"),
     ("THz peak field at the focus", "thz.peak_field_v_per_m", 1e5, "kV/cm"),
@@ -36,6 +39,9 @@ ROWS: tuple[tuple[str, str, float, str], ...] = (
     ("ionisation margin limit/fraction (required 1)", "margins.ionization_margin", 1.0, ""),
     ("fill pressure (highest)", "margins.pressure_pa", 1e5, "bar"),
 )
+#: Rows of multimode runs only (``fiber.modes`` > 1), left out when neither side has them.
+MULTIMODE_KEYS = ("output.eh11_fraction", "compressed.beam_fwhm_s",
+                  "compressed.beam_peak_power_w")
 
 
 @dataclass(frozen=True, eq=False)
@@ -83,6 +89,8 @@ def comparison_rows(a: Side, b: Side) -> tuple[dict, ...]:
     verdict_a, verdict_b = a.verdict, b.verdict
     rows = []
     for label, key, scale, unit in ROWS:
+        if key in MULTIMODE_KEYS and key not in flat_a and key not in flat_b:
+            continue
         va, vb = _number(flat_a, key), _number(flat_b, key)
         void_a = verdict_a.void_reason(key) if va is not None else None
         void_b = verdict_b.void_reason(key) if vb is not None else None

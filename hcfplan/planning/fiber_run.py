@@ -50,7 +50,9 @@ def fiber_setup(config) -> FiberSetup:
 def run_fiber(config, setup: FiberSetup, grid, field0, *, rtol: float, z_samples: int,
               workers: int = 1, progress=None):
     """The GNLSE run of ``field0`` through the fiber of ``setup`` on ``grid``, with the
-    config's ionisation model, stop level and fill profile.
+    config's ionisation model, stop level and fill profile. With ``fiber.modes`` > 1 the
+    multimode run of :func:`hcfplan.planning.mode_run.run_modes` (``field0`` is then the
+    EH11 part of the launch).
 
     References
     ----------
@@ -63,5 +65,9 @@ def run_fiber(config, setup: FiberSetup, grid, field0, *, rtol: float, z_samples
                             ionization_model=rate_model(config) if config.gas else None,
                             stop_ionization_fraction=config.grid.stop_ionization_fraction,
                             workers=workers)
+    if getattr(config.fiber, "modes", 1) > 1:
+        from hcfplan.planning.mode_run import run_modes
+
+        return run_modes(config, setup, grid, field0, options, progress)
     return propagate(field0, grid, setup.waveguide, gas=setup.medium, options=options,
                      progress=progress, segments=build_fill_segments(config, setup.omega0))

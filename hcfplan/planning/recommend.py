@@ -83,6 +83,7 @@ class Recommendation:
     excluded: tuple[tuple[str, int], ...] = ()  #: (reason, points)
     spans: tuple[str, ...] = ()  #: which reason excludes which part of the range
     closest: Evaluation | None = None  #: with an unreached target: the highest valid cutoff
+    min_eh11: float | None = None  #: smallest EH11 share of the exit energy allowed [1]
 
     @property
     def key(self) -> str:
@@ -261,6 +262,7 @@ class _Setup:
     budget: int
     tolerance: float
     workers: int
+    min_eh11: float | None = None
 
 
 def _allowed(runner: PointRunner, setup: _Setup, config):
@@ -308,14 +310,15 @@ def _grid_points(allowed, coarse: int) -> list[tuple[float, ...]]:
 def _search(setup: _Setup, gas: str | None, on_batch=None) -> Recommendation:
     keys = tuple(k for k, _ in setup.spans)
     units = tuple(unit(k) for k in keys)
-    runner = PointRunner(setup.args, keys, setup.goal, setup.budget, setup.workers, on_batch)
+    runner = PointRunner(setup.args, keys, setup.goal, setup.budget, setup.workers, on_batch,
+                         setup.min_eh11)
     config = runner.config(tuple(lo for _, (lo, _) in setup.spans))
     fraction = config.limits.rating_fraction
     allowed, bound_reason, cap = _allowed(runner, setup, config)
     requested = tuple(span for _, span in setup.spans)
     common = {"goal": setup.goal, "keys": keys, "gas": gas, "requested": requested,
               "target_thz": None if setup.target is None else setup.target / 1e12,
-              "rating_fraction": fraction, "pressure_cap": cap}
+              "rating_fraction": fraction, "pressure_cap": cap, "min_eh11": setup.min_eh11}
     if allowed is None:
         where = ", ".join(f"{k} in {lo:g}-{hi:g} {unit(k)}" for k, (lo, hi) in setup.spans)
         return Recommendation(**common, allowed=None, bound_reason=bound_reason,
@@ -360,7 +363,8 @@ def _search(setup: _Setup, gas: str | None, on_batch=None) -> Recommendation:
     if best is not None:
         cap_pa = None if cap is None else cap * 1e5
         binding = tuple(binding_constraints(best.record, cap_pa, fraction,
-                                            crystal=setup.goal in CRYSTAL_LIMITED_GOALS))
+                                            crystal=setup.goal in CRYSTAL_LIMITED_GOALS,
+                                            min_eh11=setup.min_eh11))
     return Recommendation(**common, allowed=allowed, bound_reason=bound_reason, tolerance=tol,
                           best=best, reason=reason, evaluations=evals, coarse=len(points),
                           runs=runner.runs, binding=binding,
@@ -397,7 +401,7 @@ def recommend(config_path: str | Path, goal: Goal, *,
               budget: int | None = None, coarse: int | None = None,
               tolerance: float = DEFAULT_TOLERANCE, workers: int = 1,
               on_batch: Callable[[int, int], None] | None = None,
-              ) -> tuple[Recommendation, ...]:
+              min_eh11: float | None = None) -> tuple[Recommendation, ...]:
     """Best point for ``goal`` per gas (one entry without ``gases``).
 
     ``search`` is one or two ranges ``"gas.pressure_bar=LO:HI"`` (a gradient:
@@ -408,6 +412,8 @@ def recommend(config_path: str | Path, goal: Goal, *,
     :data:`COARSE_POINTS`); ``budget``: full runs per gas, at most (default: the coarse pass
     plus :data:`REFINE_RUNS`); ``workers``: points run at a time (1: in this process).
     ``on_batch(runs_done, batch_size)`` is called before each batch of runs.
+    ``min_eh11`` (a multimode config, ``fiber.modes`` > 1) excludes every point whose EH11
+    share of the exit energy (``output.eh11_fraction``) is below it.
     """
     from hcfplan.io.config import config_from_mapping
     from hcfplan.io.tomlio import read_toml
@@ -415,6 +421,9 @@ def recommend(config_path: str | Path, goal: Goal, *,
     texts = [search] if isinstance(search, str) else list(search or ())
     ranges = parse_ranges(texts) if texts else None
     coarse, budget = _validate(goal, target_thz, coarse, budget, len(ranges or [0]))
+    if min_eh11 is not None and not 0 < min_eh11 <= 1:
+        raise ConfigError(f"--min-eh11 = {min_eh11:g}: must be in (0, 1] (a share of the "
+                          "exit energy)")
     if workers < 1:
         raise ConfigError(f"--workers = {workers}: must be >= 1")
     path = Path(config_path)
@@ -435,6 +444,9 @@ def recommend(config_path: str | Path, goal: Goal, *,
         if config.gas is None:
             raise ConfigError(f"recommend: fiber.kind = {config.fiber.kind!r} has no gas; "
                               "the search needs a gas-filled fiber")
+        if min_eh11 is not None and config.fiber.modes < 2:
+            raise ConfigError(f"--min-eh11 = {min_eh11:g}: needs fiber.modes > 1 (a "
+                              "single-mode run has no EH11 share; set fiber.modes)")
         if goal == "thz_field" and ("thz" not in config.present_sections
                                     or config.thz.beam_waist is None):
             raise ConfigError("--goal thz_field: needs a [thz] section with thz.beam_waist_um "
@@ -442,7 +454,7 @@ def recommend(config_path: str | Path, goal: Goal, *,
         spans = tuple(ranges) if ranges else ((default_key(whole), default_range(config)),)
         setup = _Setup((raw, path.parent, tuple(over), tuple(extra_gas_dirs), path), goal,
                        spans, None if target_thz is None else target_thz * 1e12, coarse,
-                       budget, tolerance, workers)
+                       budget, tolerance, workers, min_eh11)
         out.append(_search(setup, gas, on_batch))
     return tuple(out)
 

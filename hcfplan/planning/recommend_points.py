@@ -28,6 +28,9 @@ CRYSTAL_LIMITED_GOALS = ("thz_field",)
 #: energy in the main lobe: a short spike on a broad pedestal is not a short pulse for a lab
 #: (common practice, no source).
 MIN_MAIN_LOBE_FRACTION = 0.5
+#: Reason of a point whose EH11 share of the exit energy is below ``--min-eh11``, or that has
+#: no such share standing (none in its summary, or void by its verdict).
+BELOW_MIN_EH11 = "EH11 share below --min-eh11"
 #: Reason of a point whose THz cutoff stays below the ``--target-thz`` value.
 NOT_REACHED = "goal not reached"
 
@@ -100,14 +103,17 @@ def _checks(record: dict) -> list[dict]:
     return [c for c in checks if isinstance(c, dict)]
 
 
-def point_verdict(record: dict, goal: str) -> tuple[bool, tuple[str, ...], str]:
+def point_verdict(record: dict, goal: str, min_eh11: float | None = None,
+                  ) -> tuple[bool, tuple[str, ...], str]:
     """(valid, reasons, verdict status of the run) of one point record for ``goal``.
 
     A point is valid when the verdict of its run
     (:func:`hcfplan.planning.verdict.verdict_of_record`) is not "invalid", the goal quantity
     is a finite number that the verdict does not void, no check of severity "limit" is beyond
     its limit, and (goal ``shortest``) the compressed pulse holds at least
-    :data:`MIN_MAIN_LOBE_FRACTION` of its energy in the main lobe. Each reason is short and
+    :data:`MIN_MAIN_LOBE_FRACTION` of its energy in the main lobe, and (with ``min_eh11``, a
+    multimode run) EH11 holds at least that share of the exit energy
+    (``output.eh11_fraction``, not void). Each reason is short and
     the same for every point it applies to, so that points can be counted by reason.
     """
     from hcfplan.planning.verdict import CODES, verdict_of_record
@@ -138,14 +144,20 @@ def point_verdict(record: dict, goal: str) -> tuple[bool, tuple[str, ...], str]:
                        .get("main_lobe_energy_fraction"))
         if lobe is None or lobe < MIN_MAIN_LOBE_FRACTION:
             reasons.append(f"main-lobe energy fraction < {MIN_MAIN_LOBE_FRACTION:g}")
+    if min_eh11 is not None and record.get("status") == "ok":
+        eh11 = _finite(record.get("summary", {}).get("output", {}).get("eh11_fraction"))
+        if eh11 is None or eh11 < min_eh11 \
+                or verdict.void_reason("output.eh11_fraction") is not None:
+            reasons.append(f"{BELOW_MIN_EH11} ({min_eh11:g})")
     return not reasons, tuple(dict.fromkeys(reasons)), verdict.status
 
 
-def evaluation(values: tuple[float, ...], record: dict, goal: str) -> Evaluation:
-    """The :class:`Evaluation` of a point record."""
+def evaluation(values: tuple[float, ...], record: dict, goal: str,
+               min_eh11: float | None = None) -> Evaluation:
+    """The :class:`Evaluation` of a point record (``min_eh11``: :func:`point_verdict`)."""
     section, name, _ = GOALS[goal]
     objective = _finite(record.get("summary", {}).get(section, {}).get(name))
-    valid, reasons, status = point_verdict(record, goal)
+    valid, reasons, status = point_verdict(record, goal, min_eh11)
     return Evaluation(tuple(values), record.get("status", "failed"), objective, valid, reasons,
                       record, status)
 
@@ -168,12 +180,13 @@ def constraint_text(check: dict) -> str:
 
 def binding_constraints(record: dict, pressure_cap: float | None = None,
                         fraction: float | None = None, count: int = 2,
-                        crystal: bool = False) -> list[dict]:
+                        crystal: bool = False, min_eh11: float | None = None) -> list[dict]:
     """The constraints closest to their required value at a point, closest first.
 
     Every checked limit of severity "limit" (``limits_report``) and, with ``pressure_cap``
     [Pa], the fill pressure against ``fraction`` x the cell rating; with ``crystal``, the pump
-    fluence on the THz crystal against its binding limit. Returns at most
+    fluence on the THz crystal against its binding limit; with ``min_eh11``, the EH11 share
+    of the exit energy against it (closeness share / minimum). Returns at most
     ``count`` entries ``{"name", "closeness", "text"}`` where closeness = margin / required
     (1 on the limit).
     """
@@ -202,6 +215,11 @@ def binding_constraints(record: dict, pressure_cap: float | None = None,
         label = f"crystal fluence margin ({thz.get('binding_limit')})"
         found.append({"name": "thz.crystal_fluence_margin", "closeness": closeness,
                       "text": margin_text(label, closeness, 1.0, "limit/fluence")})
+    eh11 = _finite(record.get("summary", {}).get("output", {}).get("eh11_fraction"))
+    if min_eh11 is not None and eh11 is not None:
+        found.append({"name": "output.eh11_fraction", "closeness": eh11 / min_eh11,
+                      "text": margin_text("EH11 share of the exit energy against --min-eh11",
+                                          eh11 / min_eh11, 1.0, "share/minimum")})
     found.sort(key=lambda c: c["closeness"])
     return found[:count]
 
@@ -231,8 +249,10 @@ class PointRunner:
 
     def __init__(self, args: tuple, keys: Sequence[str], goal: str, budget: int,
                  workers: int = 1,
-                 on_batch: Callable[[int, int], None] | None = None) -> None:
+                 on_batch: Callable[[int, int], None] | None = None,
+                 min_eh11: float | None = None) -> None:
         self.args = args
+        self.min_eh11 = min_eh11
         self.keys, self.goal, self.budget, self.workers = tuple(keys), goal, budget, workers
         self.done: dict[tuple[float, ...], Evaluation] = {}
         self.runs = 0
@@ -288,6 +308,6 @@ class PointRunner:
         if tasks and self.on_batch is not None:
             self.on_batch(self.runs, len(tasks))
         for p, record in zip(order, run_records(tasks, self.workers), strict=True):
-            self.done[p] = evaluation(p, record, self.goal)
+            self.done[p] = evaluation(p, record, self.goal, self.min_eh11)
         self.runs += len(tasks)
         return [self.done[p] for p in points if p in self.done]

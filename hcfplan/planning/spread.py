@@ -36,6 +36,7 @@ REPORTED = (
     ("THz cutoff", "thz", "cutoff_hz", "min"),
     ("THz peak field", "thz", "peak_field_v_per_m", "min"),
     ("THz efficiency", "thz", "efficiency", "min"),
+    ("EH11 share of the exit energy", "output", "eh11_fraction", "min"),
     ("self-focusing margin", "margins", "self_focusing", "min"),
     ("self-focusing margin in fiber", "margins", "self_focusing_in_fiber", "min"),
     ("ionisation fraction", "margins", "ionization_fraction", "max"),

@@ -47,6 +47,8 @@ code                           status    voids
                                          efficiency and peak field ignore the last two, so
                                          they are upper bounds, and the message says so)
 ``main_lobe_below_half``       caution   nothing (main lobe below half the compressed energy)
+``eh11_fraction_low``          caution   nothing (multimode run: EH11 holds less than
+                                         ``EH11_FRACTION_FLOOR`` of the exit energy)
 ``extrapolated_data``          caution   nothing (a material fit is used outside its range
                                          where the output spectrum carries light)
 =============================  ========  ==================================================
@@ -84,7 +86,9 @@ from dataclasses import dataclass
 from typing import Any
 
 from hcfplan.planning.convergence import EDGE_ENERGY_LIMIT, EDGE_LEVEL_DB, MIN_POINTS_PER_FWHM
+from hcfplan.planning.mode_run import EH11_FRACTION_FLOOR
 from hcfplan.planning.thz_range import THZ_ABSOLUTE_RESULTS, THZ_ABSOLUTE_SETTINGS
+from hcfplan.planning.verdict_modes import check_eh11_fraction
 from hcfplan.planning.verdict_reasons import Reason, first_number, number
 from hcfplan.planning.verdict_thz import (
     check_crystal_limit,
@@ -104,7 +108,7 @@ MAIN_LOBE_FLOOR = 0.5
 
 #: The numbers the fiber stage produces that a reason can void (flat summary keys).
 OUTPUT_RESULT_FIELDS = ("output.bandwidth_hz", "output.transform_limit_fwhm_s",
-                        "output.peak_power_w")
+                        "output.peak_power_w", "output.eh11_fraction")
 #: The numbers of the compressor stage (flat summary keys): the pulse it gives and the mirror
 #: set its search chose for that pulse.
 COMPRESSED_RESULT_FIELDS = (
@@ -115,7 +119,8 @@ COMPRESSED_RESULT_FIELDS = (
     "compressed.peak_power_gain", "compressed.pre_pulse_energy_j",
     "compressed.post_pulse_energy_j", "compressed.best_quadratic_fwhm_s",
     "compressed.best_quadratic_gdd_s2", "compressed.best_quadratic_cubic_fwhm_s",
-    "compressed.best_quadratic_cubic_peak_power_w", "compressed.transform_limit_peak_power_w")
+    "compressed.best_quadratic_cubic_peak_power_w", "compressed.transform_limit_peak_power_w",
+    "compressed.beam_fwhm_s", "compressed.beam_peak_power_w", "compressed.beam_energy_j")
 #: The numbers of the THz stage (flat summary keys).
 THZ_RESULT_FIELDS = ("thz.peak_hz", "thz.cutoff_hz", "thz.bandwidth_3db_hz",
                      "thz.bandwidth_10db_hz", "thz.relative_efficiency",
@@ -140,7 +145,8 @@ DURATION_FIELDS = ("compressed.fwhm_s", "compressed.peak_power_w",
                    "compressed.best_quadratic_cubic_peak_power_w",
                    "compressed.transform_limit_peak_power_w",
                    "compressed.peak_to_transform_limit", "compressed.peak_power_gain",
-                   "compressed.main_lobe_energy_fraction", "output.transform_limit_fwhm_s")
+                   "compressed.main_lobe_energy_fraction", "output.transform_limit_fwhm_s",
+                   "compressed.beam_fwhm_s", "compressed.beam_peak_power_w")
 THZ_CUTOFF_FIELDS = ("thz.cutoff_hz", "thz.detected_cutoff_hz")
 #: ``unresolved_pulse`` voids the numbers of each pulse whose FWHM (the key) is under-sampled.
 UNRESOLVED_GROUPS = {
@@ -189,6 +195,8 @@ CODES: dict[str, Code] = {
     "main_lobe_below_half": Code("caution", (),
                                  f"main lobe below {MAIN_LOBE_FLOOR:.0%} of the compressed "
                                  "energy"),
+    "eh11_fraction_low": Code("caution", (), "multimode run: EH11 holds less than "
+                              f"{EH11_FRACTION_FLOOR:.0%} of the exit energy"),
     "extrapolated_data": Code("caution", (),
                               "a material fit is used outside its range where there is light"),
 }
@@ -397,7 +405,7 @@ def _check_extrapolated(flat: dict, measured: dict) -> list[Reason]:
 #: ones (without light at the fiber end, the grid checks see only numerical noise).
 CHECKS = (_check_run, _check_transmission, _check_resonance, _check_self_focusing,
           _check_barrier, _check_convergence, check_thz_model, check_crystal_limit,
-          _check_main_lobe, _check_extrapolated)
+          _check_main_lobe, check_eh11_fraction, _check_extrapolated)
 
 
 def _verdict(flat: dict, measured: dict) -> Verdict:
@@ -515,11 +523,12 @@ def measured_of_chain(chain) -> dict:
     """
     import numpy as np
 
+    from hcfplan.planning.mode_run import exit_density
     from hcfplan.planning.validity import light_band, quiet_validity, range_notes
 
     config, grid, prop = chain.config, chain.grid, chain.propagation
     measured: dict[str, Any] = {"pump_wavelength_m": float(config.laser.wavelength)}
-    power = np.abs(np.asarray(prop.field_out_spectrum)) ** 2
+    power = exit_density(prop)  # multimode: the whole beam
     notes: list[str] = []
     if np.any(power > 0):
         band = light_band(grid.frequency, power)

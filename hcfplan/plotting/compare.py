@@ -29,14 +29,17 @@ def side_name(label: str) -> str:
 
 
 def draw_spectra(fig, a, b):
-    """Fiber output spectral energy density per wavelength (dB, common reference)."""
+    """Fiber output spectral energy density per wavelength (dB, common reference; the whole
+    beam of a multimode run)."""
+    from hcfplan.planning.mode_run import exit_density
+
     ax = fig.subplots()
     curves = []
     for side in (a, b):
         grid, prop = side.chain.grid, side.chain.propagation
         order = np.argsort(grid.frequency)
         freq = np.asarray(grid.frequency)[order]
-        dens = np.abs(np.asarray(prop.field_out_spectrum)[order]) ** 2
+        dens = exit_density(prop)[order]  # multimode: the whole beam
         keep = freq > 0
         curves.append((c / freq[keep] * 1e9, per_wavelength(freq[keep], dens[keep])))
     peak = max(np.max(d) for _, d in curves)

@@ -73,7 +73,9 @@ def setup_line(config) -> str:
             fiber.kind, f"{fiber.kind} fiber")
         core = (f"{2 * fiber.core_radius * 1e6:.3g} µm core, "
                 if fiber.core_radius is not None else "")
-        parts.append(f"{core}{fiber.length:.3g} m {kind}")
+        modes = getattr(fiber, "modes", 1)
+        parts.append(f"{core}{fiber.length:.3g} m {kind}"
+                     + (f", EH11-EH1{modes}" if modes > 1 else ""))
     return ", ".join(parts)
 
 

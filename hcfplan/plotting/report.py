@@ -14,6 +14,7 @@ from collections.abc import Callable
 from pathlib import Path
 
 from hcfplan.plotting.layout import key_name, setup_line
+from hcfplan.plotting.modes import draw_mode_energy, draw_mode_spectra
 from hcfplan.plotting.propagation import (
     plot_energy_and_ionization,
     plot_spectra_in_out,
@@ -138,7 +139,9 @@ def draw_spread(fig, chain, spread):
     grid = chain.grid
     order = np.argsort(grid.frequency)
     freq = grid.frequency[order]
-    nominal = np.abs(chain.propagation.field_out_spectrum[order]) ** 2
+    from hcfplan.planning.mode_run import exit_density
+
+    nominal = exit_density(chain.propagation)[order]  # multimode: the whole beam
     curves = [np.interp(freq, r["spectrum"]["frequency_hz"],
                         r["spectrum"]["energy_density_j_per_hz"], left=0.0, right=0.0)
               for r in spread.corners if r["spectrum"]["frequency_hz"]]
@@ -197,13 +200,17 @@ FIGURES: dict[str, Callable] = {
     "spectrum_in_out": draw_spectra,
     "temporal_in_out": draw_temporal,
     "thz_waveform": draw_thz_waveform_of_run,
+    "mode_energy": draw_mode_energy,
+    "mode_spectra": draw_mode_spectra,
 }
 
-#: The figures ``simulate`` draws unless ``--figures`` asks for others (``all``, or names).
-DEFAULT_FIGURES: tuple[str, ...] = ("spectrum_in_out", "compressed_pulse", "thz_spectrum")
+#: The figures ``simulate`` draws unless ``--figures`` asks for others (``all``, or names); the
+#: mode figures exist for multimode runs (``fiber.modes`` > 1) only (:func:`applies`).
+DEFAULT_FIGURES: tuple[str, ...] = ("spectrum_in_out", "compressed_pulse", "thz_spectrum",
+                                    "mode_energy", "mode_spectra")
 
 _NEEDS = {"compressed_pulse": "compression", "bounces": "compression", "thz_spectrum": "thz",
-          "thz_waveform": "thz"}
+          "thz_waveform": "thz", "mode_energy": "modes", "mode_spectra": "modes"}
 
 
 def select_figures(choice: str | None) -> tuple[str, ...]:
@@ -236,7 +243,7 @@ def select_figures(choice: str | None) -> tuple[str, ...]:
 def applies(name: str, chain) -> bool:
     """Whether the figure ``name`` can be drawn for ``chain``."""
     stage = _NEEDS.get(name)
-    return stage is None or getattr(chain, stage) is not None
+    return stage is None or getattr(chain, stage, None) is not None
 
 
 def figure_jobs(out_dir: Path, chain, spread=None, names: tuple[str, ...] | None = None

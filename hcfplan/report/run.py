@@ -32,6 +32,9 @@ HEADLINES = (
     ("compressed peak power", "compressed.peak_power_w", 1e9, "GW"),
     ("chirped-mirror bounces", "compressed.bounces", 1.0, ""),
     ("energy in the main lobe", "compressed.main_lobe_energy_fraction", 1e-2, "%"),
+    ("EH11 share of the exit energy", "output.eh11_fraction", 1e-2, "%"),
+    ("compressed FWHM, whole beam", "compressed.beam_fwhm_s", 1e-15, "fs"),
+    ("compressed peak power, whole beam", "compressed.beam_peak_power_w", 1e9, "GW"),
     ("THz peak", "thz.peak_hz", 1e12, "THz"),
     ("THz cutoff", "thz.cutoff_hz", 1e12, "THz"),
     ("THz relative efficiency", "thz.relative_efficiency", 1.0, ""),
@@ -49,6 +52,8 @@ CAPTIONS = {
     "spectrum_in_out": "Spectrum before and after the fiber",
     "bounces": "Peak power against the number of chirped-mirror bounces",
     "spread": "Prediction band over the input uncertainty",
+    "mode_energy": "Energy per mode EH1m along the fiber (multimode run)",
+    "mode_spectra": "Exit spectrum of each mode and of the whole beam (multimode run)",
 }
 
 
@@ -136,6 +141,26 @@ def limits_section(checks: list[dict], note: str | None) -> str:
                   "minimum); a check is met when its margin is at least the required one.</p>")
 
 
+def modes_section(summary: dict) -> str:
+    """A multimode run's share of each mode EH1m at the launch and at the exit, the lost
+    launch share and what the compressed and THz numbers describe ("" for one mode)."""
+    inp, out = summary.get("input") or {}, summary.get("output") or {}
+    launch, exit_ = inp.get("mode_fractions"), out.get("mode_fractions") or []
+    if not launch:
+        return ""
+    energies = out.get("mode_energies_j") or []
+    rows = [[f"EH1{m + 1}", number(f, 1e-2, 4),
+             number(exit_[m] if m < len(exit_) else None, 1e-2, 4),
+             number(energies[m] if m < len(energies) else None, 1e-6, 4)]
+            for m, f in enumerate(launch)]
+    rows.append(["lost at the launch (outside the modes)", number(inp.get("lost_fraction"),
+                                                                  1e-2, 3), "", ""])
+    part = (summary.get("compressed") or {}).get("part")
+    note = (f"<p>Compressed and THz numbers describe the {esc(part)}.</p>" if part else "")
+    return ("<h2>Modes</h2>" + table(["mode", "launch share (%)", "exit share (%)",
+                                      "exit energy (uJ)"], rows, {1, 2, 3}) + note)
+
+
 def run_report_html(folder: Path, summary: dict, command: str | None) -> str:
     """The report page of a run folder holding ``summary`` and its figures."""
     config = summary.get("config") or {}
@@ -148,6 +173,7 @@ def run_report_html(folder: Path, summary: dict, command: str | None) -> str:
     body = "".join([
         verdict_section(summary),
         headline_section(summary),
+        modes_section(summary),
         inputs_section(config),
         limits_section(checks, limits.get("acceptable_note")),
         cautions_section(summary.get("warnings") or []),

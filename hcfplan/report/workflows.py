@@ -35,12 +35,18 @@ SCAN_COLUMNS = (
     ("ion. fraction", "margins.ionization_fraction", 1.0),
     ("rating margin", "margins.rating_margin", 1.0),
 )
+#: Columns of multimode scans (``fiber.modes`` > 1), shown when a point has them.
+MULTIMODE_COLUMNS = (
+    ("EH11 share (%)", "output.eh11_fraction", 1e-2),
+    ("compressed FWHM, whole beam (fs)", "compressed.beam_fwhm_s", 1e-15),
+)
 
 SCAN_CAPTIONS = {
     "spectrum_map": "Output spectrum of every point against the varied key",
     "results": "Main results and margins against the varied key (points beyond a modelled "
                "limit shaded; void results as hollow grey markers)",
     "results_map": "Maps of the main results over the two varied keys",
+    "eh11_fraction": "EH11 share of the exit energy against the varied keys (multimode runs)",
 }
 
 COMPARE_CAPTIONS = {
@@ -100,11 +106,13 @@ def scan_report_html(folder: Path, command: str | None) -> str:
                for r in rows if r.get("verdict_reasons")]
     if reasons:
         body.append(table(["point", "verdict", "reasons"], reasons))
-    header = varied + ["status", "verdict"] + [h for h, _, _ in SCAN_COLUMNS] + ["beyond limits"]
+    columns = SCAN_COLUMNS + tuple(c for c in MULTIMODE_COLUMNS
+                                   if any(r.get(c[1]) not in ("", None) for r in rows))
+    header = varied + ["status", "verdict"] + [h for h, _, _ in columns] + ["beyond limits"]
     lines = []
     for r in rows:
         line = [r.get(k, "") for k in varied] + [r.get("status", ""), badge(r.get("verdict", ""))]
-        line += [number(_float(r.get(col, "")), scale) for _, col, scale in SCAN_COLUMNS]
+        line += [number(_float(r.get(col, "")), scale) for _, col, scale in columns]
         binding = r.get("margins.binding") or ("" if r.get("status") == "ok"
                                                else r.get("message", ""))
         line.append(Markup(f'<span class="exceeds">{esc(binding)}</span>') if binding else "-")

@@ -121,7 +121,7 @@ def test_every_key_has_unit_or_is_dimensionless():
                      "ionization_fraction_limit", "window_safety_factor", "window_mounting",
                      "rating_fraction", "polarization", "entrance_window_material",
                      "window_coating", "mirror_reflectivity", "geometry", "focus_f_number",
-                     "field_csv", "density_scale", "n2_scale"}
+                     "field_csv", "density_scale", "n2_scale", "modes"}
     for section, keys in SCHEMA.items():
         for key in keys:
             assert key in dimensionless or suffix_of(key) is not None, f"{section}.{key}"

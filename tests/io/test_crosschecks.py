@@ -38,7 +38,7 @@ KIND_KEYS = {"capillary": {"core_diameter_um": 250.0},
 VALUES = {"core_diameter_um": 40.0, "wall_thickness_um": 0.7, "bend_radius_m": 1.0,
           "mode": "EH11", "betas_fs_n_per_mm": [-20.0], "gamma_per_w_per_m": 0.01,
           "self_steepening": False, "raman_fraction": 0.18, "raman_tau1_fs": 12.2,
-          "raman_tau2_fs": 32.0, "effective_area_um2": 20.0}
+          "raman_tau2_fs": 32.0, "effective_area_um2": 20.0, "modes": 2}
 LIMITED = [(section, key, spec.fiber_kinds) for section, table in SCHEMA.items()
            for key, spec in table.items() if spec.fiber_kinds]
 

@@ -14,7 +14,14 @@ from unittest import mock
 
 import numpy as np
 import pytest
-from fast_cases import FAST, FAST_CONFIG, TINY, two_stage_text, write_fast_config
+from fast_cases import (
+    FAST,
+    FAST_CONFIG,
+    TINY,
+    two_stage_text,
+    write_fast_config,
+    write_multimode_config,
+)
 
 matplotlib = pytest.importorskip("matplotlib")
 matplotlib.use("Agg")
@@ -99,16 +106,18 @@ def _check(draw, *args):
 
 @pytest.fixture(scope="module")
 def chains(tmp_path_factory):
-    """The chains of two fast invented runs: an Ar capillary at 1030 nm with a GaP stage and a
-    Ti:sapphire capillary with a ZnTe stage and detector."""
+    """The chains of three fast invented runs: an Ar capillary at 1030 nm with a GaP stage, a
+    Ti:sapphire capillary with a ZnTe stage and detector, and a three-mode capillary run (the
+    mode figures)."""
     folder = tmp_path_factory.mktemp("layout")
     (folder / "fast2.toml").write_text(FAST, encoding="utf-8")
-    configs = [load_config(write_fast_config(folder)), load_config(folder / "fast2.toml")]
+    configs = [load_config(write_fast_config(folder)), load_config(folder / "fast2.toml"),
+               load_config(write_multimode_config(folder))]
     return [run_chain(config) for config in configs]
 
 
 @pytest.mark.parametrize("name", list(report.FIGURES))
-@pytest.mark.parametrize("which", [0, 1])
+@pytest.mark.parametrize("which", [0, 1, 2])
 def test_run_figure_layout(chains, name, which):
     chain = chains[which]
     if report.applies(name, chain):
@@ -262,3 +271,28 @@ def test_simulate_figures_option(tmp_path):
     assert main(["simulate", str(config), "--out", str(tmp_path / "bad"), "--quiet",
                  "--figures", "spectra"]) == 2
     assert not (tmp_path / "bad").exists()
+
+
+def test_mode_figures_exist_for_the_multimode_run_only(chains):
+    for name in ("mode_energy", "mode_spectra"):
+        assert name in report.DEFAULT_FIGURES
+        assert [report.applies(name, chain) for chain in chains] == [False, False, True]
+
+
+def test_eh11_scan_figure_layout(tmp_path):
+    from hcfplan.planning.scan import parse_vary, plan_scan, release_workers, run_scan
+    from hcfplan.plotting.modes import draw_eh11_fraction, has_eh11
+
+    config = write_multimode_config(tmp_path, modes=2)
+    plan = plan_scan(config, [parse_vary("laser.energy_uj=30:60:2")])
+    plan_2d = plan_scan(config, [parse_vary("laser.energy_uj=30:60:2"),
+                                 parse_vary("gas.pressure_bar=0.4:0.6:2")])
+    try:
+        records = run_scan(plan, tmp_path / "scan", workers=1).records
+        records_2d = run_scan(plan_2d, tmp_path / "scan2d", workers=1).records
+    finally:
+        release_workers()
+    assert has_eh11(records) and has_eh11(records_2d)
+    _check(draw_eh11_fraction, ("laser.energy_uj",), (plan.varies[0].values,), records)
+    _check(draw_eh11_fraction, ("laser.energy_uj", "gas.pressure_bar"),
+           tuple(v.values for v in plan_2d.varies), records_2d)

@@ -27,6 +27,19 @@ ESTIMATE_NOTE = ("SPM-only estimate: peak nonlinear phase over the effective len
                  "or compress further (soliton self-compression)")
 
 
+def _launch_part(config, waist) -> dict:
+    """``coupling.mode_fractions`` and ``coupling.lost_fraction`` of a multimode config
+    (``fiber.modes`` > 1): the launched beam's share in EH11...EH1N and outside them."""
+    count = getattr(config.fiber, "modes", 1)
+    if count <= 1:
+        return {}
+    from hcfplan.fibers.capillary_modes import eh_launch_amplitudes
+
+    shares = eh_launch_amplitudes(waist, config.fiber.core_radius, count) ** 2
+    return {"coupling.mode_fractions": [float(f) for f in shares],
+            "coupling.lost_fraction": float(max(1.0 - shares.sum(), 0.0))}
+
+
 def _zdw_range(waveguide, config):
     """Search range for the ZDW, limited to where the fiber model is meaningful."""
     lo, hi = ZDW_SEARCH_RANGE
@@ -190,6 +203,7 @@ def _fiber_report(config) -> dict:
         "estimate.output_bandwidth_hz": _bandwidth_estimate(laser, phi),
         "estimate.dispersive_wave_m": _dispersive_wave(waveguide, omega0, peak_power, gamma),
     }
+    report.update(_launch_part(config, waist))
     report.update(_antiresonant_part(waveguide, config))
     loss_part, loss_notes = _loss_part(waveguide, config)
     report.update(loss_part)

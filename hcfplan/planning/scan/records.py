@@ -132,13 +132,16 @@ def flatten(data: dict, prefix: str = "") -> dict:
 
 
 def _spectrum(chain) -> dict:
-    """Output spectrum over its -60 dB extent, binned to <= SPECTRUM_POINTS (bin means)."""
+    """Output spectrum (of the whole beam for a multimode run) over its -60 dB extent, binned
+    to <= SPECTRUM_POINTS (bin means)."""
     import numpy as np
 
     grid = chain.grid
     order = np.argsort(grid.frequency)
     freq = np.asarray(grid.frequency)[order]
-    dens = np.abs(np.asarray(chain.propagation.field_out_spectrum)[order]) ** 2
+    from hcfplan.planning.mode_run import exit_density
+
+    dens = exit_density(chain.propagation)[order]  # multimode: the whole beam
     if not np.any(dens > 0):
         return {"frequency_hz": [], "energy_density_j_per_hz": []}
     above = np.flatnonzero(dens >= SPECTRUM_FLOOR * dens.max())
