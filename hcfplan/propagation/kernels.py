@@ -216,10 +216,17 @@ def delayed_in_place(a, power, delayed, instantaneous):  # pragma: no cover - co
 
 
 @njit(**_JIT)
-def _table_rate(li, x, y, first, top, slope_top):  # pragma: no cover - compiled
-    """Rate of the log-log table (x, y)[first:top + 1] at ln(intensity) ``li`` >= x[first]
-    (RateTable.__call__ for one value). A call with array arguments costs reference counting
-    (about 35 ns): the caller tests li >= x[first] first, and passes indices, not slices."""
+def table_rate(li, x, y, first, top, slope_top):  # pragma: no cover - compiled
+    """Rate [1/s] of the log-log table (x, y)[first:top + 1] at ln(intensity) ``li`` >=
+    x[first], extended above the table with the slope ``slope_top`` (RateTable.__call__ for one
+    value; also used by the multimode kernels). A call with array arguments costs reference
+    counting (about 35 ns): the caller tests li >= x[first] first, and passes indices, not
+    slices.
+
+    References
+    ----------
+    none: numerical helper (linear interpolation in log-log)
+    """
     if li > x[top]:
         return np.exp(y[top] + slope_top * (li - x[top]))
     lo, hi = first, top
@@ -308,7 +315,7 @@ def plasma_in_place(a, p, power, delayed, instantaneous, log_i, log_w, starts, s
                 for s in range(count):
                     first, w_dt = starts[s], 0.0
                     if li >= log_i[first]:  # below this table the rate is 0
-                        w_dt = _table_rate(li, log_i, log_w, first, starts[s + 1] - 1,
+                        w_dt = table_rate(li, log_i, log_w, first, starts[s + 1] - 1,
                                            slopes[s]) * dt
                     increment = 0.0
                     if w_dt > 0:

@@ -194,7 +194,7 @@ def delayed_in_place(a, power, delayed, instantaneous):
 @_quiet
 def table_rates(li, x, y, first, top, slope_top):
     """Rates of the log-log table (x, y)[first:top + 1] at the ln(intensity) values ``li``, all
-    >= x[first] (the compiled kernel's ``_table_rate`` for an array).
+    >= x[first] (the compiled kernel's ``table_rate`` for an array).
 
     References
     ----------

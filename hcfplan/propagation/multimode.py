@@ -64,6 +64,7 @@ from hcfplan.propagation.solve import (
     INVALID_BAND_LIMIT,
     RunSettings,
     Stages,
+    check_stretches,
     run_stepping,
 )
 
@@ -156,18 +157,8 @@ def _check_fields(fields0, grid, modes: int) -> np.ndarray:
 
 
 def _check_segments(segments, length: float, modes: int):
-    if segments is None:
-        return None
-    segments = tuple(segments)
-    ends = [0.0] + [float(s.end) for s in segments]
-    starts = [float(s.start) for s in segments]
-    ok = (segments and all(isinstance(s, ModeSegment) for s in segments)
-          and np.allclose(starts, ends[:-1], rtol=0, atol=1e-12 * length)
-          and abs(ends[-1] - length) <= 1e-12 * length and all(np.diff(ends) > 0))
-    if not ok:
-        raise ConfigError("segments: must be ModeSegments covering 0 to the length without "
-                          "gaps, in order")
-    for s in segments:
+    segments = check_stretches(segments, length, ModeSegment)
+    for s in segments or ():
         guides = _check_number_of(s.waveguide)
         if len(guides) != modes:
             raise ConfigError(f"segments: every stretch needs {modes} mode waveguides")

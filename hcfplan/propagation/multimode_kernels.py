@@ -23,7 +23,7 @@ from __future__ import annotations
 import numpy as np
 from numba import njit
 
-from hcfplan.propagation.kernels import plasma_in_place
+from hcfplan.propagation.kernels import plasma_in_place, table_rate
 
 _JIT = {"cache": True, "fastmath": False, "nogil": True}
 #: Time samples per block of :func:`mode_terms`.
@@ -88,31 +88,6 @@ def radial_plasma_projection(A, F, WF, pairs, G, instantaneous, log_i, log_w, st
                 pm = QP[m]
                 for j in range(two_p):
                     pm[j] += w * P[j]
-
-
-@njit(**_JIT)
-def table_rate(li, x, y, first, top, slope_top):  # pragma: no cover - compiled
-    """Rate [1/s] of the log-log table (x, y)[first:top + 1] at ln(intensity) ``li`` >=
-    x[first], extended above the table with the slope ``slope_top`` (the lookup of
-    :class:`hcfplan.ionization.tables.RateTable` for one value, as the single-mode kernel does
-    it).
-
-    References
-    ----------
-    none: numerical helper (linear interpolation in log-log)
-    """
-    if li > x[top]:
-        return np.exp(y[top] + slope_top * (li - x[top]))
-    lo, hi = first, top
-    while hi - lo > 1:  # x[lo] <= li <= x[hi]
-        mid = (lo + hi) // 2
-        if x[mid] <= li:
-            lo = mid
-        else:
-            hi = mid
-    if li == x[hi]:
-        return np.exp(y[hi])
-    return np.exp(y[lo] + (y[hi] - y[lo]) / (x[hi] - x[lo]) * (li - x[lo]))
 
 
 @njit(**_JIT)

@@ -109,19 +109,31 @@ def _check_inputs(field0, grid, waveguide, options, progress) -> np.ndarray:
     return field.astype(complex)
 
 
-def _check_segments(segments, length: float) -> tuple[FillSegment, ...] | None:
+def check_stretches(segments, length: float, kind: type) -> tuple | None:
+    """``segments`` as a tuple after checking that they are ``kind`` stretches (objects with
+    ``start`` and ``end`` [m]) covering 0 to ``length`` without gaps, in order; None stays None.
+
+    References
+    ----------
+    none: input check
+    """
     if segments is None:
         return None
     segments = tuple(segments)
     ends = [0.0] + [float(s.end) for s in segments]
     starts = [float(s.start) for s in segments]
-    ok = (segments and all(isinstance(s, FillSegment) for s in segments)
+    ok = (segments and all(isinstance(s, kind) for s in segments)
           and np.allclose(starts, ends[:-1], rtol=0, atol=1e-12 * length)
           and abs(ends[-1] - length) <= 1e-12 * length and all(np.diff(ends) > 0))
     if not ok:
-        raise ConfigError("segments: must be FillSegments covering 0 to waveguide.length "
+        raise ConfigError(f"segments: must be {kind.__name__}s covering 0 to the fiber length "
                           "without gaps, in order")
-    for s in segments:
+    return segments
+
+
+def _check_segments(segments, length: float) -> tuple[FillSegment, ...] | None:
+    segments = check_stretches(segments, length, FillSegment)
+    for s in segments or ():
         if not isinstance(s.waveguide, Waveguide):
             raise ConfigError(f"segments: waveguide {type(s.waveguide).__name__} lacks the "
                               "Waveguide interface")

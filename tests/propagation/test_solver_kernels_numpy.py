@@ -232,12 +232,12 @@ def test_table_rates_match_the_compiled_rate():
         nodes = log_i[first:top + 1]
         li = np.concatenate([nodes, 0.5 * (nodes[:-1] + nodes[1:]), [nodes[-1] + 1.3]])
         found = twin.table_rates(li, log_i, log_w, first, top, slopes[s])
-        expected = [compiled._table_rate(v, log_i, log_w, first, top, slopes[s]) for v in li]
+        expected = [compiled.table_rate(v, log_i, log_w, first, top, slopes[s]) for v in li]
         np.testing.assert_allclose(found, expected, rtol=1e-14, atol=0)
     one = (np.array([30.0]), np.array([2.0]), 0, 0, 1.5)  # a table of one node
     for v in (30.0, 30.5):
         assert twin.table_rates(np.array([v]), *one)[0] == pytest.approx(
-            compiled._table_rate(v, *one), rel=1e-15)
+            compiled.table_rate(v, *one), rel=1e-15)
 
 
 @pytest.mark.parametrize("raman", [0.0, 0.18])
