@@ -49,11 +49,15 @@ def entry() -> int:
 def leave(code: int) -> None:
     """End the ``hcfplan`` process with exit code ``code``: the :mod:`atexit` functions, the
     standard streams flushed, then ``os._exit`` (no tear-down of the imported modules); the
-    usual ``sys.exit`` where a thread other than this one still runs, or a profiler or tracer
-    (``python -m cProfile``, coverage) is active and writes its data at the exit."""
-    if threading.active_count() > 1 or sys.getprofile() is not None or sys.gettrace() is not None:
+    usual ``sys.exit`` where a thread other than this one still runs, a profiler or tracer
+    (``python -m cProfile``, coverage) is active and writes its data at the exit, or the
+    interpreter has no ``atexit._run_exitfuncs`` (CPython's function that runs the exit
+    functions; other interpreters need not have it)."""
+    run_exit_functions = getattr(atexit, "_run_exitfuncs", None)  # CPython's, not documented
+    if (run_exit_functions is None or threading.active_count() > 1
+            or sys.getprofile() is not None or sys.gettrace() is not None):
         sys.exit(code)
-    atexit._run_exitfuncs()
+    run_exit_functions()
     for stream in (sys.stdout, sys.stderr):
         try:
             stream.flush()

@@ -58,7 +58,7 @@ from hcfplan.cli.output import (
 from hcfplan.cli.thz_command import register as register_thz
 from hcfplan.cli.workflows import register as register_workflows
 from hcfplan.errors import ConfigError, HcfplanError
-from hcfplan.numerics.kernel_choice import set_policy as set_kernel_policy
+from hcfplan.numerics.kernel_choice import policy_set as kernel_policy_set
 
 app = typer.Typer(
     add_completion=False,
@@ -493,8 +493,8 @@ def main(argv: list[str] | None = None) -> int:
 def _run(argv: list[str] | None) -> int:
     """The command of ``argv``; its exit code (see :func:`main`)."""
     try:
-        set_kernel_policy("auto")  # a one-shot command: numpy kernels on small problems
-        result = app(args=argv, prog_name="hcfplan", standalone_mode=False)
+        with kernel_policy_set("auto"):  # a one-shot command: numpy kernels on small problems
+            result = app(args=argv, prog_name="hcfplan", standalone_mode=False)
     except HcfplanError as exc:
         message = " ".join(str(exc).split())
         typer.echo(f"hcfplan: error: {message}", err=True)

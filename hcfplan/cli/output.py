@@ -132,7 +132,8 @@ def print_fiber(r: dict) -> None:
          f"waist {fmt(r['coupling.beam_waist_m'], 1e-6, 3)} um (optimum "
          f"{fmt(r['coupling.optimum_beam_waist_m'], 1e-6, 3)} um)"
          + (f"; EH11-EH1{len(r['coupling.mode_fractions'])} share " + " / ".join(
-             f"{100 * f:.3g}" for f in r["coupling.mode_fractions"]) + " %"
+             f"{100 * f:.3g}" for f in r["coupling.mode_fractions"])
+            + f" %, lost {100 * r['coupling.lost_fraction']:.3g} %"
             if r.get("coupling.mode_fractions") else "")),
         ("coupled energy", f"{fmt(r['input.coupled_energy_j'], 1e-6)} uJ",
          f"peak power {fmt(r['input.peak_power_w'], 1e9)} GW"),

@@ -356,20 +356,22 @@ def _print_recommendation(rec, chosen: bool) -> None:
         comp = best.record["summary"].get("compressed", {})
         thz = best.record["summary"].get("thz", {})
 
-        def shown(section, name, scale):
+        def shown(section, name, scale, unit=""):
             reason = verdict.void_reason(f"{section}.{name}")
             value = (comp if section == "compressed" else thz).get(name)
-            return fmt(value, scale) if reason is None else f"void ({reason.code})"
+            if reason is not None:  # a void number has no unit
+                return f"void ({reason.code})"
+            return f"{fmt(value, scale)} {unit}".rstrip()
 
         mark = "  <- best" if chosen else ""
         tol = ", ".join(f"{t:.2g} {u}" for t, u in zip(rec.tolerance, rec.units, strict=True))
         typer.echo(f"  chosen {_values_text(rec, best.values)} (search tolerance {tol}; "
                    f"verdict {best.verdict}){mark}")
         eh11 = best.record["summary"].get("output", {}).get("eh11_fraction")
-        typer.echo(f"  compressed {shown('compressed', 'fwhm_s', 1e-15)} fs, "
-                   f"{shown('compressed', 'peak_power_w', 1e9)} GW; THz cutoff "
-                   f"{shown('thz', 'cutoff_hz', 1e12)} THz"
-                   + (f"; THz peak field {shown('thz', 'peak_field_v_per_m', 1e5)} kV/cm, "
+        typer.echo(f"  compressed {shown('compressed', 'fwhm_s', 1e-15, 'fs')}, "
+                   f"{shown('compressed', 'peak_power_w', 1e9, 'GW')}; THz cutoff "
+                   f"{shown('thz', 'cutoff_hz', 1e12, 'THz')}"
+                   + (f"; THz peak field {shown('thz', 'peak_field_v_per_m', 1e5, 'kV/cm')}, "
                       f"efficiency {shown('thz', 'efficiency', 1.0)}"
                       if thz.get("peak_field_v_per_m") is not None else "")
                    + (f"; EH11 share {fmt(eh11, 0.01, 4)} % of the exit energy"

@@ -141,12 +141,15 @@ def save_png(fig, tmp) -> None:
                   [width + PNG_MARGIN_RIGHT_IN, height + PNG_MARGIN_IN]])
     memory = io.BytesIO()
     fig.savefig(memory, format="rgba", dpi=dpi, bbox_inches=drawn, pad_inches=0)
-    columns = round(drawn.width * dpi)
     pixels = np.frombuffer(memory.getbuffer(), dtype=np.uint32)
-    if columns < 3 or pixels.size % columns:
+    # the canvas is the drawn box in pixels, truncated (as the Agg canvas sizes it) or rounded
+    shapes = [(rows, columns) for rows in (int(drawn.height * dpi), round(drawn.height * dpi))
+              for columns in (int(drawn.width * dpi), round(drawn.width * dpi))
+              if rows * columns == pixels.size and columns >= 3]
+    if not shapes:  # a canvas of another size: no guess at its shape
         fig.savefig(tmp, **usual)
         return
-    pixels = pixels.reshape(-1, columns)
+    pixels = pixels.reshape(shapes[0])
     background = pixels[0, 0]
     edge = np.concatenate([pixels[0], pixels[-1], pixels[:, 0], pixels[:, -1]])
     if np.any(edge != background):  # drawn up to the margin's edge: the margin was too small

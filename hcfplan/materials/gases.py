@@ -136,7 +136,8 @@ def _wavelength(omega: np.ndarray) -> np.ndarray:
 #: the index of its fill on the same grid 10-15 times (waveguide, wall model, limits), and a
 #: combined UV/IR record costs about 0.7 ms on the demo grid of 2048 points (measured).
 _TERMS: OrderedDict = OrderedDict()
-#: Most entries of :data:`_TERMS` (16 kB each on the demo grid).
+#: Most entries of :data:`_TERMS` (about 32 kB each on the demo grid: the term and, in its key,
+#: the wavelengths).
 TERM_CACHE_SIZE = 32
 
 

@@ -4,7 +4,7 @@ Every compiled kernel of the solver (:mod:`hcfplan.propagation.kernels`), of the
 peak search (:mod:`hcfplan.pulse.bandlimited`) and of the THz mixing sum
 (:mod:`hcfplan.thz.kernels`) has a numpy twin with the same signature, the same in-place
 semantics and the same formulas (results equal to rounding). The compiled kernels are faster
-per call, but the first one a process calls costs about 0.4 s of start-up (importing numba,
+per call, but the first one a process calls costs about 0.5 s of start-up (importing numba,
 its target context and the machine code from numba's cache); the numpy twins cost nothing to
 start. The policy of this process says which set runs:
 
@@ -18,7 +18,8 @@ start. The policy of this process says which set runs:
     The numpy twins for a small problem (a size up to the caller's limit, by default
     :data:`AUTO_NUMPY_POINTS` grid points) in the first :data:`AUTO_NUMPY_RUNS` solver runs of
     the process, unless numba is already loaded in this process; the compiled kernels
-    otherwise. The command line sets it for its one-shot commands; a command that runs many
+    otherwise. The command line sets it for its one-shot commands (:func:`policy_set`; a
+    multimode run always takes the compiled kernels); a command that runs many
     points in its own process (a serial scan, a calibration) turns to the compiled kernels
     after the first few, where the start-up has paid back.
 
@@ -33,8 +34,10 @@ set).
 
 from __future__ import annotations
 
+import contextlib
 import os
 import sys
+from collections.abc import Iterator
 
 from hcfplan.errors import ConfigError
 
@@ -97,6 +100,25 @@ def set_policy(policy: str) -> None:
     """
     _chosen["policy"] = _checked(policy, "kernel policy")
     environment_policy()
+
+
+@contextlib.contextmanager
+def policy_set(value: str) -> Iterator[None]:
+    """Within the block the process's policy is ``value`` (:func:`set_policy`, so the
+    environment's value is checked on entry); on leaving, the policy and the count of solver
+    runs are what they were before. The command line runs each command in such a block, so a
+    program that calls :func:`hcfplan.cli.app.main` keeps its own policy afterwards.
+
+    References
+    ----------
+    none: numerical helper
+    """
+    saved = dict(_chosen)
+    try:
+        set_policy(value)
+        yield
+    finally:
+        _chosen.update(saved)
 
 
 def policy() -> str:

@@ -215,7 +215,10 @@ def mode_summary(chain) -> dict:
     ``fiber.modes``; ``input.mode_fractions`` (c_m^2 of the launched beam),
     ``input.lost_fraction`` (1 - sum c_m^2), ``input.launched_beam_energy_j`` (into all
     modes); ``output.mode_fractions`` and ``output.mode_energies_j`` (of the exit energy),
-    ``output.eh11_fraction``; ``compressed.part`` (what the compressed and THz keys describe)
+    ``output.eh11_fraction``, ``output.eh11_fraction_lowest`` (the lowest EH11 share of the
+    beam energy along the fiber: the higher modes lose energy faster than EH11, so energy
+    coupled out of EH11 inside the fiber can leave the exit share high); ``compressed.part``
+    (what the compressed and THz keys describe)
     and ``compressed.beam_fwhm_s``, ``compressed.beam_peak_power_w``,
     ``compressed.beam_energy_j`` (the whole beam).
     """
@@ -236,6 +239,7 @@ def mode_summary(chain) -> dict:
         "output.mode_fractions": _fractions(shares),
         "output.mode_energies_j": _fractions(energies),
         "output.eh11_fraction": float(shares[0]),
+        "output.eh11_fraction_lowest": _lowest_share(prop.mode_energy_z),
     }
     if outcome.beam is not None:
         beam = outcome.beam
@@ -243,6 +247,14 @@ def mode_summary(chain) -> dict:
                     "compressed.beam_peak_power_w": beam.peak_power,
                     "compressed.beam_energy_j": beam.energy})
     return out
+
+
+def _lowest_share(mode_energy_z) -> float:
+    """Lowest EH11 share of the beam energy over the records along z (the launch included). [1]"""
+    energies = np.asarray(mode_energy_z, dtype=float)
+    totals = np.sum(energies, axis=1)
+    kept = totals > 0
+    return float(np.min(energies[kept, 0] / totals[kept])) if np.any(kept) else float("nan")
 
 
 def mode_arrays(chain) -> dict[str, np.ndarray]:

@@ -185,8 +185,9 @@ def binding_constraints(record: dict, pressure_cap: float | None = None,
 
     Every checked limit of severity "limit" (``limits_report``) and, with ``pressure_cap``
     [Pa], the fill pressure against ``fraction`` x the cell rating; with ``crystal``, the pump
-    fluence on the THz crystal against its binding limit; with ``min_eh11``, the EH11 share
-    of the exit energy against it (closeness share / minimum). Returns at most
+    fluence on the THz crystal against its binding limit; with ``min_eh11`` = F, the share of
+    the exit energy outside EH11 against the share F allows there (closeness
+    (1 - F) / (1 - share)). Returns at most
     ``count`` entries ``{"name", "closeness", "text"}`` where closeness = margin / required
     (1 on the limit).
     """
@@ -217,9 +218,13 @@ def binding_constraints(record: dict, pressure_cap: float | None = None,
                       "text": margin_text(label, closeness, 1.0, "limit/fluence")})
     eh11 = _finite(record.get("summary", {}).get("output", {}).get("eh11_fraction"))
     if min_eh11 is not None and eh11 is not None:
-        found.append({"name": "output.eh11_fraction", "closeness": eh11 / min_eh11,
-                      "text": margin_text("EH11 share of the exit energy against --min-eh11",
-                                          eh11 / min_eh11, 1.0, "share/minimum")})
+        # the margin of the share outside EH11: allowed (1 - F) over found (1 - share); the
+        # ratio share/F could never exceed 1/F and made --min-eh11 look binding at any share
+        outside = 1.0 - eh11
+        closeness = (1.0 - min_eh11) / outside if outside > 0 else math.inf
+        found.append({"name": "output.eh11_fraction", "closeness": closeness,
+                      "text": margin_text("share of the exit energy outside EH11 against "
+                                          "--min-eh11", closeness, 1.0, "allowed/found")})
     found.sort(key=lambda c: c["closeness"])
     return found[:count]
 

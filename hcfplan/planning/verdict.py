@@ -108,7 +108,8 @@ MAIN_LOBE_FLOOR = 0.5
 
 #: The numbers the fiber stage produces that a reason can void (flat summary keys).
 OUTPUT_RESULT_FIELDS = ("output.bandwidth_hz", "output.transform_limit_fwhm_s",
-                        "output.peak_power_w", "output.eh11_fraction")
+                        "output.peak_power_w", "output.eh11_fraction",
+                        "output.eh11_fraction_lowest")
 #: The numbers of the compressor stage (flat summary keys): the pulse it gives and the mirror
 #: set its search chose for that pulse.
 COMPRESSED_RESULT_FIELDS = (

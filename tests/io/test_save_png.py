@@ -97,3 +97,27 @@ def test_write_figure_saves_png_through_save_png(tmp_path, monkeypatch):
     assert len(calls) == 1
     assert (tmp_path / "f.png").read_bytes() == b"png"
     assert (tmp_path / "f.svg").read_text(encoding="utf-8").lstrip().startswith("<?xml")
+
+
+@pytest.mark.parametrize(("width", "dpi"), [(6.004, 150), (5.123, 137), (7.5, 130)])
+def test_sizes_that_are_not_whole_pixels(tmp_path, width, dpi):
+    # the drawn canvas is truncated to whole pixels: the image is still cut from it (one
+    # draw, no fallback) and has the size savefig gives within the pad's rounding
+    import matplotlib as mpl
+
+    calls = []
+    with plt.style.context(str(STYLE)), mpl.rc_context({"savefig.dpi": dpi}):
+        fig = _figure()
+        fig.set_size_inches(width, 4.8)
+        original = fig.savefig
+        fig.savefig = lambda *a, **k: calls.append(k.get("format")) or original(*a, **k)
+        buffer = io.BytesIO()
+        results.save_png(fig, buffer)
+        fig.savefig = original
+        reference = io.BytesIO()
+        fig.savefig(reference, format="png", dpi=dpi)
+        plt.close(fig)
+    assert calls == ["rgba"]  # drawn once, into memory
+    once = Image.open(io.BytesIO(buffer.getvalue()))
+    usual = Image.open(io.BytesIO(reference.getvalue()))
+    assert abs(once.size[0] - usual.size[0]) <= 8 and abs(once.size[1] - usual.size[1]) <= 8

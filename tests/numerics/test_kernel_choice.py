@@ -16,7 +16,7 @@ from hcfplan.numerics import kernel_choice
 def _restore(monkeypatch):
     """Each test starts from the library's default with no override, and leaves it so."""
     monkeypatch.delenv(kernel_choice.VARIABLE, raising=False)
-    saved = dict(kernel_choice._chosen)  # a command run in this process may have set "auto"
+    saved = dict(kernel_choice._chosen)
     kernel_choice._chosen.update(policy=kernel_choice.DEFAULT_POLICY, runs=0)
     yield
     kernel_choice._chosen.update(saved)
@@ -86,3 +86,22 @@ def test_auto_takes_numba_where_numba_is_loaded():
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                          check=True, timeout=120, env=env).stdout.split()
     assert out == ["False", "True", "True"]
+
+
+def test_a_policy_set_for_a_block_is_undone_after_it():
+    with kernel_choice.policy_set("numpy"):
+        assert kernel_choice.policy() == "numpy"
+        assert not kernel_choice.compiled(16, new_run=True)
+    assert kernel_choice.policy() == "numba"
+    with pytest.raises(RuntimeError), kernel_choice.policy_set("auto"):
+        raise RuntimeError("the block failed")
+    assert kernel_choice.policy() == "numba"
+
+
+def test_a_command_run_in_a_program_leaves_its_policy():
+    # the command line runs with "auto"; a program that calls it keeps its own policy
+    from hcfplan.cli.app import main
+
+    kernel_choice.set_policy("numpy")
+    assert main(["--version"]) == 0
+    assert kernel_choice.policy() == "numpy"

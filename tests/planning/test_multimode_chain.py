@@ -81,6 +81,10 @@ def test_exit_shares_and_arrays_are_consistent(multimode):
     shares = energies[-1] / energies[-1].sum()
     assert flat["output.mode_fractions"] == pytest.approx(list(shares), rel=1e-12)
     assert flat["output.eh11_fraction"] == pytest.approx(shares[0], rel=1e-12)
+    # the lowest EH11 share along the fiber: of every row, so at most the launch and exit ones
+    along = energies[:, 0] / energies.sum(axis=1)
+    assert flat["output.eh11_fraction_lowest"] == pytest.approx(along.min(), rel=1e-12)
+    assert flat["output.eh11_fraction_lowest"] <= min(along[0], shares[0])
     assert sum(flat["output.mode_fractions"]) == pytest.approx(1.0, rel=1e-12)
     assert flat["output.energy_j"] == pytest.approx(energies[-1].sum(), rel=1e-6)
     spectra = arrays["mode_field_out_spectrum"]
