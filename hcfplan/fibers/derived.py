@@ -112,17 +112,18 @@ def zero_dispersion_wavelengths(
     where = np.flatnonzero(np.sign(beta2[:-1]) * np.sign(beta2[1:]) < 0)
     if where.size == 0:
         return []
+    def one_by_one(i: int) -> float:  # Brent's method on the bracket after sample i
+        return optimize.brentq(lambda lam: float(beta2_at(lam)), wavelength[i],
+                               wavelength[i + 1], xtol=ZDW_XTOL)
+
     try:
         from scipy.optimize.elementwise import find_root
     except ImportError:  # scipy < 1.15
-        return [optimize.brentq(lambda lam: float(beta2_at(lam)), wavelength[i],
-                                wavelength[i + 1], xtol=ZDW_XTOL) for i in where]
+        return [one_by_one(i) for i in where]
     found = find_root(beta2_at, (wavelength[where], wavelength[where + 1]),
                       tolerances={"xatol": ZDW_XTOL, "xrtol": 0.0, "fatol": 0.0, "frtol": 0.0})
     roots, ok = np.atleast_1d(found.x), np.atleast_1d(found.success)
-    return [float(x) if good else optimize.brentq(lambda lam: float(beta2_at(lam)),
-                                                  wavelength[i], wavelength[i + 1],
-                                                  xtol=ZDW_XTOL)
+    return [float(x) if good else one_by_one(i)
             for x, good, i in zip(roots, ok, where, strict=True)]
 
 

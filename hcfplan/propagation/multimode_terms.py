@@ -272,10 +272,9 @@ class ModeCoupling:
                  fft_backend: str | None = None) -> None:
         from hcfplan.propagation import kernels, multimode_kernels
 
-        self.kn, self.mk = kernels, multimode_kernels
-        # the stepper's kernels (steppers.py takes them from here): the compiled set, as the
-        # mode terms are compiled anyway
-        self.kernels = kernels
+        # the compiled set, as the mode terms are compiled anyway; the steppers take theirs
+        # from here too (steppers.py)
+        self.kernels, self.mk = kernels, multimode_kernels
         modes, n, dt = len(eigenvalues), grid.points, grid.dt
         self.modes, self.points, self.workers, self.dt = modes, n, workers, dt
         self.scale = n * dt
@@ -381,7 +380,7 @@ class ModeCoupling:
             np.multiply(out, self.kerr_gain, out=out)
         elif self.species:
             self.fft.backward(self.qp, self.qp_time)
-            self.kn.add_scaled_product(out, self.kerr_gain, self.qp_time, 1.0 / self.points)
+            self.kernels.add_scaled_product(out, self.kerr_gain, self.qp_time, 1.0 / self.points)
         return out
 
     def _terms(self, a: np.ndarray, pairs: np.ndarray, project: bool) -> None:
@@ -405,9 +404,9 @@ class ModeCoupling:
         np.multiply(a[0], self.axis[0], out=axis)  # sum_m F_m(0) a_m
         for m in range(1, self.modes):
             axis += self.axis[m] * a[m]
-        self.kn.power_of(axis, power)
+        self.kernels.power_of(axis, power)
         axis[...] = 1.0  # the kernel's "field" 1: its plasma output is c(t) itself
-        end = self.kn.plasma_in_place(axis, c_t, power, zero, 0.0, *self.tables,
+        end = self.kernels.plasma_in_place(axis, c_t, power, zero, 0.0, *self.tables,
                                       1.0 / self.scale**2, 1.0, self.dt, self.refraction)
         np.multiply(a, c_t[None, :], out=self.qp)
         self._store(end, end * self.intensity_area)

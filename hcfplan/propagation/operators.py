@@ -306,17 +306,14 @@ class NonlinearTerms:
             half = fft.real_forward()
             half *= self.response_rfft
             delayed = fft.real_backward(half)
-        if not self.species:
+        # with plasma, no sample reaching the rate tables means plasma terms of 0 (the kernel's
+        # result, without its pass, the plasma transform and the sum; a NaN takes the kernel)
+        if not self.species or power.max() * (1.0 / self.scale**2) < self.rate_floor:
             kn.delayed_in_place(a, power, delayed, self.instantaneous)
             fft.backward(a, out)
-            return out
-        if power.max() * (1.0 / self.scale**2) < self.rate_floor:
-            # no sample reaches the rate tables: the plasma terms are 0 (the kernel's result,
-            # without its pass, the plasma transform and the sum; a NaN takes the kernel)
-            kn.delayed_in_place(a, power, delayed, self.instantaneous)
-            fft.backward(a, out)
-            np.multiply(out, self.kerr_gain, out=out)
-            self.ionization_fraction = self.electron_line_density = 0.0
+            if self.species:  # gain 1 with plasma: the Kerr gain goes into raw
+                np.multiply(out, self.kerr_gain, out=out)
+                self.ionization_fraction = self.electron_line_density = 0.0
             return out
         end = kn.plasma_in_place(a, self.plasma_time, power, delayed, self.instantaneous,
                                  *self.tables, 1.0 / self.scale**2, self.intensity_area,
