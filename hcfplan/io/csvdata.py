@@ -42,7 +42,7 @@ MAX_CSV_BYTES = 50_000_000
 #: Where the peak of a spectrum in nm may lie: the range of ``laser.wavelength_nm``. [nm]
 PLAUSIBLE_NM = (150.0, 20000.0)
 _SPLIT = re.compile(r"[,;\s]+")
-_HC_NM_EV = h * c / e * 1e9  # photon energy 1 eV <-> 1239.84 nm (CODATA via scipy)
+_HC_NM_EV = h * c / e * 1e9  # photon energy 1 eV <-> 1239.84 nm (CODATA, hcfplan.constants)
 _C_NM = c * 1e9  # [nm/s]
 #: Units a first column may be in by mistake: (name, header words, wavelength in nm of x).
 _UNITS = (

@@ -41,7 +41,6 @@ from typing import Literal
 
 import numpy as np
 import numpy.typing as npt
-from scipy import special
 
 from hcfplan.constants import au_energy, au_field, au_time, c, e, epsilon_0, m_e
 from hcfplan.errors import ConfigError
@@ -247,8 +246,8 @@ def _state_constants(ip_au: float, l: int, m: int, charge: int) -> tuple[float, 
     log_c2 = (
         2.0 * n_star * math.log(2.0)
         - math.log(n_star)
-        - special.gammaln(n_star + l_star + 1.0)
-        - special.gammaln(n_star - l_star)
+        - math.lgamma(n_star + l_star + 1.0)
+        - math.lgamma(n_star - l_star)
     )
     am = abs(m)
     # f(l,m) = (2l+1)(l+|m|)! / [2^|m| |m|! (l-|m|)!], Eq. (2) of [1]
@@ -396,6 +395,8 @@ def _w_m(x: np.ndarray, m: int) -> np.ndarray:
     m = 0: the Dawson function. |m| > 0: the closed form B(|m|+1, 1/2) 1F1(|m|+1; |m|+3/2; -x²)
     of the integral (checked against quadrature and the large-x limit |m|!/(2x) in the tests).
     """
+    from scipy import special  # here: the rate tables are computed rarely (disk cache)
+
     am = abs(m)
     if am == 0:
         return special.dawsn(x)

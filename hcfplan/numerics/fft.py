@@ -35,7 +35,6 @@ import sys
 import threading
 
 import numpy as np
-from scipy import fft as sfft
 
 #: Grids of at least this many points get a measured FFTW plan (else an estimated one).
 FFTW_MEASURE_POINTS = 4096
@@ -47,11 +46,16 @@ FFTW_PLANNING_LIMIT = 10.0
 
 
 class ScipyTransforms:
-    """scipy.fft (pocketfft) back end; each transform returns a new array that is reused."""
+    """scipy.fft (pocketfft) back end; each transform returns a new array that is reused.
+    scipy.fft is imported here, when the back end is made (a command run with pyFFTW needs no
+    part of scipy)."""
 
     name = "scipy"
 
     def __init__(self, points: int, workers: int = 1) -> None:
+        from scipy import fft as sfft
+
+        self._fft = sfft
         self.points, self.workers = points, workers
         self.spectrum_in = np.zeros(points, complex)
         self.real_in = np.zeros(points)
@@ -65,7 +69,7 @@ class ScipyTransforms:
         none: numerical helper (scipy.fft)
         """
         self.transforms["c2c"] += 1
-        return sfft.fft(self.spectrum_in, workers=self.workers)
+        return self._fft.fft(self.spectrum_in, workers=self.workers)
 
     def backward(self, source: np.ndarray, out: np.ndarray) -> None:
         """Unnormalised inverse FFT of ``source`` into ``out`` (item 3 of the module docstring).
@@ -75,7 +79,8 @@ class ScipyTransforms:
         none: numerical helper (scipy.fft)
         """
         self.transforms["c2c"] += 1
-        out[...] = sfft.ifft(source, norm="forward", overwrite_x=True, workers=self.workers)
+        out[...] = self._fft.ifft(source, norm="forward", overwrite_x=True,
+                                  workers=self.workers)
 
     def real_forward(self) -> np.ndarray:
         """Unnormalised real FFT of ``real_in`` (item 4 of the module docstring).
@@ -85,7 +90,7 @@ class ScipyTransforms:
         none: numerical helper (scipy.fft)
         """
         self.transforms["r2c"] += 1
-        return sfft.rfft(self.real_in, workers=self.workers)
+        return self._fft.rfft(self.real_in, workers=self.workers)
 
     def real_backward(self, half: np.ndarray) -> np.ndarray:
         """Unnormalised inverse real FFT of ``half`` (item 4 of the module docstring).
@@ -95,7 +100,7 @@ class ScipyTransforms:
         none: numerical helper (scipy.fft)
         """
         self.transforms["c2r"] += 1
-        return sfft.irfft(half, n=self.points, norm="forward", overwrite_x=True,
+        return self._fft.irfft(half, n=self.points, norm="forward", overwrite_x=True,
                           workers=self.workers)
 
 
@@ -149,7 +154,7 @@ class FftwTransforms:
 
     def backward(self, source: np.ndarray, out: np.ndarray) -> None:
         """Unnormalised inverse FFT of ``source`` into ``out`` (item 3 of the module docstring;
-        arrays not aligned for FFTW go through scipy.fft).
+        arrays not aligned for FFTW go through numpy.fft).
 
         References
         ----------
@@ -158,8 +163,8 @@ class FftwTransforms:
         self.transforms["c2c"] += 1
         entry = self._backward.get((id(source), id(out)))
         if entry is None or entry[0] is not source or entry[1] is not out:
-            if not (_aligned(source) and _aligned(out)):  # foreign arrays: plain scipy
-                out[...] = sfft.ifft(source, norm="forward")
+            if not (_aligned(source) and _aligned(out)):  # foreign arrays: plain numpy
+                out[...] = np.fft.ifft(source, norm="forward")
                 return
             plan = self._plan(source, out, "FFTW_BACKWARD")
             entry = self._backward[(id(source), id(out))] = (source, out, plan)

@@ -51,7 +51,6 @@ from dataclasses import dataclass
 from functools import cached_property
 
 import numpy as np
-from scipy import fft as sfft
 
 from hcfplan.constants import c
 from hcfplan.errors import ConfigError, ValidityWarning
@@ -136,7 +135,7 @@ class Grid:
     @cached_property
     def domega(self) -> np.ndarray:
         """Angular-frequency offsets from the reference ``omega0`` in FFT order. [rad/s]"""
-        return 2 * np.pi * sfft.fftfreq(self.points, self.dt)
+        return 2 * np.pi * np.fft.fftfreq(self.points, self.dt)
 
     @cached_property
     def domega_pump(self) -> np.ndarray:
@@ -171,12 +170,17 @@ class Grid:
         return np.exp(-1j * offset * self.time)
 
     def to_spectrum(self, field_t: np.ndarray, *, workers: int | None = None) -> np.ndarray:
-        """Spectral amplitude from the temporal envelope (convention 2); abs()**2 is in J/Hz."""
-        return sfft.ifft(field_t, axis=-1, workers=workers) * (self.points * self.dt)
+        """Spectral amplitude from the temporal envelope (convention 2); abs()**2 is in J/Hz.
+
+        ``workers`` > 1: scipy.fft with that many threads (numpy.fft otherwise, which keeps
+        scipy out of a command that needs no other part of it)."""
+        return _inverse(field_t, workers) * (self.points * self.dt)
 
     def to_time(self, spectrum: np.ndarray, *, workers: int | None = None) -> np.ndarray:
-        """Temporal envelope from the spectral amplitude (convention 2). [sqrt(W)]"""
-        return sfft.fft(spectrum, axis=-1, workers=workers) / (self.points * self.dt)
+        """Temporal envelope from the spectral amplitude (convention 2). [sqrt(W)]
+
+        ``workers``: as in :meth:`to_spectrum`."""
+        return _forward(spectrum, workers) / (self.points * self.dt)
 
     def energy_t(self, field_t: np.ndarray) -> float:
         """Pulse energy from the temporal envelope, sum |A|^2 dt. [J]"""
@@ -188,7 +192,25 @@ class Grid:
 
     def shifted(self, array: np.ndarray) -> np.ndarray:
         """Spectral array reordered from FFT order to ascending frequency."""
-        return sfft.fftshift(array, axes=-1)
+        return np.fft.fftshift(array, axes=-1)
+
+
+def _forward(array: np.ndarray, workers: int | None) -> np.ndarray:
+    """Unnormalised FFT along the last axis (numpy.fft; scipy.fft for ``workers`` > 1)."""
+    if workers is not None and workers != 1:
+        from scipy import fft as sfft
+
+        return sfft.fft(array, axis=-1, workers=workers)
+    return np.fft.fft(array, axis=-1)
+
+
+def _inverse(array: np.ndarray, workers: int | None) -> np.ndarray:
+    """Inverse FFT (with 1/N) along the last axis (numpy.fft; scipy.fft for ``workers`` > 1)."""
+    if workers is not None and workers != 1:
+        from scipy import fft as sfft
+
+        return sfft.ifft(array, axis=-1, workers=workers)
+    return np.fft.ifft(array, axis=-1)
 
 
 def fft_friendly_size(n_min: int) -> int:

@@ -93,7 +93,6 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import fft as sfft
 from scipy import special
 
 from hcfplan.constants import c
@@ -293,7 +292,7 @@ class ModeCoupling:
         self.profiles = mode_profiles(x, eigenvalues, a)  # (K, N)
         self.weighted = (a**2 * w)[:, None] * self.profiles
         self.axis = mode_profiles(np.zeros(1), eigenvalues, a)[0]  # F_m(0), (N,)
-        self.response_rfft = None if response is None else sfft.rfft(response) / n
+        self.response_rfft = None if response is None else np.fft.rfft(response) / n
         self.pair_weights = np.zeros((x.size, 0))
         self.pairs = np.zeros((0, n))
         if response is not None:

@@ -72,7 +72,6 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import fft as sfft
 
 from hcfplan.constants import c, e, epsilon_0, m_e
 from hcfplan.numerics.derivatives import derivative
@@ -261,7 +260,7 @@ class NonlinearTerms:
         self.gain = self.kerr_gain if not species else np.ones(n)  # N = i gain raw
         self.new_work = lambda: work_array(self.fft, n)
         self.instantaneous = instantaneous
-        self.response_rfft = None if response is None else sfft.rfft(response) / n
+        self.response_rfft = None if response is None else np.fft.rfft(response) / n
         self.species = species
         self.intensity_area = intensity_area
         self.dt = dt

@@ -36,7 +36,6 @@ from __future__ import annotations
 from functools import lru_cache
 
 import numpy as np
-from scipy import fft as sfft
 
 from hcfplan.numerics.kernel_choice import compiled
 
@@ -113,12 +112,12 @@ def upsample(field_t: np.ndarray, factor: int) -> np.ndarray:
     if factor == 1:
         return field_t.copy()
     n = field_t.size
-    coefficients = sfft.ifft(field_t)
+    coefficients = np.fft.ifft(field_t)
     padded = np.zeros(factor * n, complex)
     half = n // 2  # bins 0..N/2-1 are positive offsets, N/2..N-1 negative (fftfreq order)
     padded[:half] = coefficients[:half]
     padded[factor * n - (n - half):] = coefficients[half:]
-    return sfft.fft(padded)
+    return np.fft.fft(padded)
 
 
 @lru_cache(maxsize=8)
@@ -129,9 +128,9 @@ def _peak_kernels(points: int) -> np.ndarray:
     With h_m = fft(exp(-i dw tau_m)) / N the interpolant is the circular convolution
     A(t_k + tau_m) = sum_q A_(k-q) h_m[q], so K[m + F, p] = h_m[-p mod N]."""
     factor = PEAK_OVERSAMPLING
-    frequency_index = sfft.fftfreq(points) * points  # j' of each bin (Nyquist negative)
+    frequency_index = np.fft.fftfreq(points) * points  # j' of each bin (Nyquist negative)
     shifts = np.arange(-factor, factor + 1)[:, None] / factor  # tau / dt
-    kernels = sfft.fft(np.exp(-2j * np.pi * frequency_index[None, :] * shifts / points), axis=1)
+    kernels = np.fft.fft(np.exp(-2j * np.pi * frequency_index[None, :] * shifts / points), axis=1)
     kernels = np.ascontiguousarray(np.roll(kernels[:, ::-1], 1, axis=1)) / points
     kernels.setflags(write=False)
     return kernels
