@@ -3,8 +3,8 @@
 Times ``envelope_map`` on a 100 x 100 energy x pressure grid for each gas-filled demo config:
 the first call for each config (includes building its ionisation-rate table and the first
 CoolProp calls of that fluid) and the median of later calls. The one-time module imports
-(scipy.optimize through hcfplan.fibers, about 0.8 s, paid by every command that builds a fiber)
-are timed separately, before. Target: < 1 s per map.
+(hcfplan.fibers and the envelope's own scipy.optimize, paid by every command that builds a
+fiber or a map) are timed separately, before. Target: < 1 s per map.
 
 Run: PYTHONPATH=. python bench/envelope.py
 """
@@ -30,7 +30,7 @@ def _time(config) -> float:
 
 def main() -> None:
     start = time.perf_counter()
-    import scipy.optimize  # noqa: F401  (what hcfplan.fibers pulls in)
+    import scipy.optimize  # noqa: F401  (the envelope's lazy import)
 
     import hcfplan.fibers  # noqa: F401
     print(f"one-time imports (scipy.optimize, hcfplan.fibers): {time.perf_counter() - start:.3f} s")

@@ -14,10 +14,10 @@ from collections.abc import Callable
 from typing import Literal
 
 import numpy as np
-from scipy.optimize import minimize_scalar
 
 from hcfplan.numerics.fft import shared_transforms
 from hcfplan.numerics.grid import Grid
+from hcfplan.numerics.optimize import minimize_bounded
 from hcfplan.pulse import metrics
 
 Objective = Literal["peak_power", "fwhm"]
@@ -117,16 +117,16 @@ def scan_then_refine(fun: Callable[[float], float], lo: float, hi: float) -> tup
 
     References
     ----------
-    None: numerical helper (:data:`SCAN_POINTS` samples, then
-    :func:`scipy.optimize.minimize_scalar` with ``method="bounded"``).
+    None: numerical helper (:data:`SCAN_POINTS` samples, then Brent's bounded minimiser,
+    :func:`~hcfplan.numerics.optimize.minimize_bounded`).
     """
     xs = np.linspace(lo, hi, SCAN_POINTS)
     values = np.array([fun(x) for x in xs])
     i = int(np.argmin(values))
     a, b = xs[max(i - 1, 0)], xs[min(i + 1, xs.size - 1)]
-    res = minimize_scalar(fun, bounds=(a, b), method="bounded", options={"xatol": (hi - lo) * 1e-6})
-    if res.fun <= values[i]:
-        return float(res.x), float(res.fun)
+    x, value, _ = minimize_bounded(fun, a, b, xatol=(hi - lo) * 1e-6)
+    if value <= values[i]:
+        return float(x), float(value)
     return float(xs[i]), float(values[i])
 
 

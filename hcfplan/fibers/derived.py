@@ -20,16 +20,16 @@ from __future__ import annotations
 from collections.abc import Callable
 
 import numpy as np
-from scipy import optimize
 
 from hcfplan.constants import c
 from hcfplan.errors import ConfigError
 from hcfplan.fibers.base import Waveguide
 from hcfplan.numerics.derivatives import derivative, derivative_table
+from hcfplan.numerics.optimize import root_bracketed, roots_bracketed
 from hcfplan.pulse.fields import shape_t0_factor
 from hcfplan.pulse.shapes import PulseShape
 
-#: Samples per ZDW search before each sign change is refined with brentq.
+#: Samples per ZDW search before each sign change is refined by a bracketed root search.
 ZDW_SEARCH_POINTS = 400
 
 
@@ -90,15 +90,16 @@ def zero_dispersion_wavelengths(
     -----
     beta2 is sampled at :data:`ZDW_SEARCH_POINTS` log-spaced wavelengths; two zeros closer than
     the sample spacing (about 0.2 % of the range ratio per step) can be missed. Every bracket
-    is then refined at once where scipy has the elementwise root finder (scipy >= 1.15,
-    Chandrupatla's method: one evaluation of beta2 at all brackets per step), else one by one
-    with Brent's method. An anti-resonant fiber has ten zeros in the default range; one by one
-    they took 0.1-0.2 s of the demo command, all together 0.04 s, for the same roots within
-    the tolerance (measured).
+    is then refined at once by Chandrupatla's method
+    (:func:`~hcfplan.numerics.optimize.roots_bracketed`: one evaluation of beta2 at all
+    brackets per step); a bracket it does not close is refined alone by Brent's method. An
+    anti-resonant fiber has ten zeros in the default range; one by one they took 0.1-0.2 s of
+    the demo command, all together 0.04 s, for the same roots within the tolerance (measured).
 
     References
     ----------
-    none: numerical helper (root search by Chandrupatla's or Brent's method)
+    none: numerical helper (root search by Chandrupatla's or Brent's method,
+    :mod:`hcfplan.numerics.optimize`)
     """
     lo, hi = (float(x) for x in wavelength_range)
     if not 0 < lo < hi:
@@ -112,17 +113,13 @@ def zero_dispersion_wavelengths(
     where = np.flatnonzero(np.sign(beta2[:-1]) * np.sign(beta2[1:]) < 0)
     if where.size == 0:
         return []
-    def one_by_one(i: int) -> float:  # Brent's method on the bracket after sample i
-        return optimize.brentq(lambda lam: float(beta2_at(lam)), wavelength[i],
-                               wavelength[i + 1], xtol=ZDW_XTOL)
 
-    try:
-        from scipy.optimize.elementwise import find_root
-    except ImportError:  # scipy < 1.15
-        return [one_by_one(i) for i in where]
-    found = find_root(beta2_at, (wavelength[where], wavelength[where + 1]),
-                      tolerances={"xatol": ZDW_XTOL, "xrtol": 0.0, "fatol": 0.0, "frtol": 0.0})
-    roots, ok = np.atleast_1d(found.x), np.atleast_1d(found.success)
+    def one_by_one(i: int) -> float:  # Brent's method on the bracket after sample i
+        return root_bracketed(lambda lam: float(beta2_at(lam)), wavelength[i],
+                              wavelength[i + 1], xtol=ZDW_XTOL)
+
+    roots, ok = roots_bracketed(beta2_at, wavelength[where], wavelength[where + 1],
+                                xatol=ZDW_XTOL, xrtol=0.0)
     return [float(x) if good else one_by_one(i)
             for x, good, i in zip(roots, ok, where, strict=True)]
 
@@ -154,7 +151,8 @@ def zero_dispersion_pressure(
 
     References
     ----------
-    none: numerical helper (root search by Brent's method)
+    none: numerical helper (root search by Brent's method,
+    :func:`~hcfplan.numerics.optimize.root_bracketed`)
     """
     lo, hi = (float(p) for p in pressure_range)
     if not 0 <= lo < hi:
@@ -166,7 +164,7 @@ def zero_dispersion_pressure(
     f_lo, f_hi = beta2_at(lo), beta2_at(hi)
     if np.sign(f_lo) == np.sign(f_hi):
         return float("nan")
-    return float(optimize.brentq(beta2_at, lo, hi, rtol=1e-10))
+    return root_bracketed(beta2_at, lo, hi, rtol=1e-10)
 
 
 def t0_from_fwhm(duration_fwhm: float, shape: PulseShape) -> float:
@@ -322,7 +320,8 @@ def dispersive_wave_frequency(waveguide: Waveguide, omega_pump: float, soliton_p
     The phase-matching condition of the soliton (moving at the pump's group velocity with the
     nonlinear wavenumber gamma P / 2) and a linear wave, with the full beta(omega) of the
     waveguide, as in Joly et al. [1]. Searched on ``ZDW_SEARCH_POINTS`` samples (non-finite
-    beta skipped) and refined with brentq.
+    beta skipped) and refined by Brent's method
+    (:func:`~hcfplan.numerics.optimize.root_bracketed`).
 
     References
     ----------
@@ -347,6 +346,6 @@ def dispersive_wave_frequency(waveguide: Waveguide, omega_pump: float, soliton_p
     for k in range(omega.size - 1):
         a, b = values[k], values[k + 1]
         if np.isfinite(a) and np.isfinite(b) and a < 0 <= b:
-            return float(optimize.brentq(lambda w: float(mismatch(np.array([w]))[0]),
-                                         omega[k], omega[k + 1]))
+            return root_bracketed(lambda w: float(mismatch(np.array([w]))[0]),
+                                  omega[k], omega[k + 1])
     return None

@@ -18,9 +18,10 @@ from __future__ import annotations
 from functools import lru_cache
 
 import numpy as np
-from scipy import optimize, special
+from scipy import special
 
 from hcfplan.errors import ConfigError
+from hcfplan.numerics.optimize import minimize_bounded
 
 #: First zero of J0, the transverse eigenvalue u11 of the EH11 mode. [-]
 U11 = float(special.jn_zeros(0, 1)[0])
@@ -191,11 +192,9 @@ def gaussian_coupling_efficiency(
 
 @lru_cache(maxsize=8)
 def _optimum_ratio(u: float) -> float:
-    result = optimize.minimize_scalar(
-        lambda q: -gaussian_coupling_efficiency(q, 1.0, u), bounds=(0.2, 1.2), method="bounded",
-        options={"xatol": 1e-8},
-    )
-    return float(result.x)
+    x, _, _ = minimize_bounded(lambda q: -float(gaussian_coupling_efficiency(q, 1.0, u)),
+                               0.2, 1.2, xatol=1e-8)
+    return x
 
 
 def optimum_beam_waist(core_radius: float, u: float = U11) -> float:

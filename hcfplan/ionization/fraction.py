@@ -27,6 +27,7 @@ import numpy.typing as npt
 
 from hcfplan.errors import ConfigError
 from hcfplan.ionization.rates import check_intensity, check_positive
+from hcfplan.numerics.optimize import root_bracketed
 from hcfplan.pulse.shapes import PulseShape, intensity_envelope, pulse_shape
 
 #: (weight, rate) pairs: the number fraction of the ionising species in the gas [-] and its
@@ -185,7 +186,8 @@ def peak_intensity_for_fraction(
     Notes
     -----
     Solves :math:`\\sum_i x_i[1 - \\exp(-\\int W_i(I_0 s(t))\\,dt)] = \\rho` for :math:`I_0`
-    (s the normalised intensity envelope) by Brent's method (``scipy.optimize.brentq``) in
+    (s the normalised intensity envelope) by Brent's method
+    (:func:`~hcfplan.numerics.optimize.root_bracketed`) in
     :math:`\\ln I_0` on :math:`\\ln(\\rho/\\rho(I_0))`, relative tolerance 1e-12, with the
     fraction from :func:`pulse_ionization_fraction`. The fraction rises monotonically with
     :math:`I_0` for any non-negative rate, so the root is unique.
@@ -199,8 +201,6 @@ def peak_intensity_for_fraction(
            and of atomic ions in an alternating electromagnetic field," Sov. Phys. JETP,
            vol. 64, no. 6, pp. 1191-1194, 1986. [from memory]
     """
-    from scipy.optimize import brentq  # lazy: scipy.optimize adds ~0.4 s to CLI start-up
-
     rates = tuple(rates)
     weights = sum(w for w, _ in rates)
     if not 0 < fraction_limit < weights:
@@ -219,4 +219,5 @@ def peak_intensity_for_fraction(
         return math.inf
     if margin_left(math.log(lo)) < 0:
         return math.nan
-    return math.exp(brentq(margin_left, math.log(lo), math.log(hi), xtol=1e-12, rtol=1e-12))
+    return math.exp(root_bracketed(margin_left, math.log(lo), math.log(hi), xtol=1e-12,
+                                   rtol=1e-12))

@@ -29,6 +29,7 @@ from typing import Literal
 import numpy as np
 
 from hcfplan.errors import ConfigError
+from hcfplan.numerics.optimize import root_bracketed
 from hcfplan.pulse.shapes import PulseShape
 
 SelfFocusingModel = Literal["fibich2000", "marburger1975"]
@@ -217,13 +218,11 @@ def max_pressure_for_self_focusing(
     def excess(log_p: float) -> float:  # ln(P_cr(p) / (margin P_peak)): falls with pressure
         return math.log(critical_power_at(math.exp(log_p)) / target)
 
-    from scipy.optimize import brentq  # lazy: keeps CLI start-up short
-
     if excess(math.log(hi)) >= 0:
         return math.inf
     if excess(math.log(lo)) < 0:
         return math.nan
-    return math.exp(brentq(excess, math.log(lo), math.log(hi), xtol=1e-13, rtol=1e-13))
+    return math.exp(root_bracketed(excess, math.log(lo), math.log(hi), xtol=1e-13, rtol=1e-13))
 
 
 def max_energy_for_self_focusing(
