@@ -22,10 +22,10 @@ from __future__ import annotations
 import dataclasses
 
 import numpy as np
-from scipy import special
 
 from hcfplan.errors import ConfigError
 from hcfplan.fibers.modes import eh_eigenvalue, gaussian_coupling_efficiency
+from hcfplan.numerics.bessel import bessel_j
 
 
 def _check_count(n_modes) -> int:
@@ -80,7 +80,7 @@ def _overlap_sign(ratio: float, u: float) -> float:
     """Sign of int_0^1 exp(-x^2/ratio^2) J0(u x) x dx (Gauss-Legendre, 400 nodes)."""
     x, w = np.polynomial.legendre.leggauss(400)
     x = 0.5 * (x + 1.0)
-    value = np.sum(0.5 * w * x * np.exp(-(x / ratio) ** 2) * special.j0(u * x))
+    value = np.sum(0.5 * w * x * np.exp(-(x / ratio) ** 2) * bessel_j(0, u * x))
     return 1.0 if value >= 0 else -1.0
 
 

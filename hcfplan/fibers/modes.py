@@ -18,13 +18,13 @@ from __future__ import annotations
 from functools import lru_cache
 
 import numpy as np
-from scipy import special
 
 from hcfplan.errors import ConfigError
+from hcfplan.numerics.bessel import bessel_j, bessel_j_zeros
 from hcfplan.numerics.optimize import minimize_bounded
 
 #: First zero of J0, the transverse eigenvalue u11 of the EH11 mode. [-]
-U11 = float(special.jn_zeros(0, 1)[0])
+U11 = float(bessel_j_zeros(0, 1)[0])
 
 _QUADRATURE_NODES = 96  # Gauss-Legendre nodes on [0, 1]; integrands are smooth (J0, Gaussians)
 
@@ -38,7 +38,7 @@ def eh_eigenvalue(m: int) -> float:
     """
     if not (isinstance(m, (int, np.integer)) and m >= 1):
         raise ConfigError(f"mode radial order m = {m!r}: must be an integer >= 1")
-    return float(special.jn_zeros(0, int(m))[-1])
+    return float(bessel_j_zeros(0, int(m))[-1])
 
 
 def _check_radius(core_radius: float) -> None:
@@ -69,7 +69,7 @@ def eh_mode_profile(r: float | np.ndarray, core_radius: float, u: float = U11) -
     """
     _check_radius(core_radius)
     r = np.asarray(r, dtype=float)
-    return np.where(r <= core_radius, special.j0(u * r / core_radius), 0.0)
+    return np.where(r <= core_radius, bessel_j(0, u * r / core_radius), 0.0)
 
 
 @lru_cache(maxsize=1)
@@ -94,8 +94,8 @@ def _unit_disk_integral(integrand) -> float:
 
 @lru_cache(maxsize=8)
 def _effective_area_unit(u: float) -> float:
-    power = _unit_disk_integral(lambda x: special.j0(u * x) ** 2)
-    fourth = _unit_disk_integral(lambda x: special.j0(u * x) ** 4)
+    power = _unit_disk_integral(lambda x: bessel_j(0, u * x) ** 2)
+    fourth = _unit_disk_integral(lambda x: bessel_j(0, u * x) ** 4)
     return power**2 / fourth
 
 
@@ -146,7 +146,7 @@ def peak_intensity_area(core_radius: float, u: float = U11) -> float:
     J0 mode of E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
     """
     _check_radius(core_radius)
-    return float(np.pi * core_radius**2 * special.j1(u) ** 2)
+    return float(np.pi * core_radius**2 * bessel_j(1, u) ** 2)
 
 
 def gaussian_coupling_efficiency(
@@ -183,7 +183,7 @@ def gaussian_coupling_efficiency(
         raise ConfigError(f"beam_waist = {np.min(beam_waist)} m: must be > 0")
     flat = ratio.reshape(-1)
     x, weights = _unit_disk_nodes()
-    mode = special.j0(u * x)
+    mode = bessel_j(0, u * x)
     overlap = np.exp(-(x[None, :] / flat[:, None]) ** 2) @ (weights * mode)
     gauss_power = 0.5 * np.pi * flat**2  # int exp(-2 r^2/w^2) dA over the plane, in units of a^2
     mode_power = np.sum(weights * mode**2)

@@ -93,9 +93,9 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import special
 
 from hcfplan.constants import c
+from hcfplan.numerics.bessel import bessel_j
 from hcfplan.numerics.grid import Grid
 from hcfplan.propagation.multimode_fft import ModeTransforms
 from hcfplan.propagation.operators import (
@@ -207,8 +207,8 @@ def mode_profiles(x: np.ndarray, eigenvalues, core_radius: float) -> np.ndarray:
     E. A. J. Marcatili and R. A. Schmeltzer, Bell Syst. Tech. J. 43, 1783 (1964).
     """
     u = np.asarray(eigenvalues, dtype=float)
-    norm = np.sqrt(np.pi * core_radius**2 * special.j1(u) ** 2)
-    return special.j0(np.outer(np.asarray(x, dtype=float), u)) / norm
+    norm = np.sqrt(np.pi * core_radius**2 * bessel_j(1, u) ** 2)
+    return bessel_j(0, np.outer(np.asarray(x, dtype=float), u)) / norm
 
 
 def overlap_integral(indices, eigenvalues, core_radius: float) -> float:
