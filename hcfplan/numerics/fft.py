@@ -14,10 +14,20 @@ What a back end provides (the nonlinear terms in :mod:`.operators` rely on these
 5. ``transforms`` (dict): count of each kind of transform done, for the benchmark.
 6. ``name`` (str): its key in :data:`FFT_BACKENDS`.
 
-Two back ends, in :data:`FFT_BACKENDS`: ``"fftw"`` (pyFFTW, an optional speed-up: about twice
-as fast as scipy's pocketfft at N = 2^13 on our 2-core test machine, see ``bench/solver.py``,
-and without the ~10-20 us of Python overhead per call) and ``"scipy"`` (always available).
-:func:`default_backend` picks pyFFTW when it is installed.
+Three back ends, in :data:`FFT_BACKENDS`: ``"fftw"`` (pyFFTW, an optional speed-up: about
+twice as fast as scipy's pocketfft at N = 2^13 on our 2-core test machine, see
+``bench/solver.py``, and without the ~10-20 us of Python overhead per call), ``"scipy"``
+(scipy.fft, always available) and ``"numpy"`` (numpy.fft: the slowest per transform, but it
+imports nothing). :func:`default_backend` picks pyFFTW when it is installed, except for the
+small problems of a one-shot command (below).
+
+Importing pyFFTW imports its scipy interfaces, and with them scipy.fft and scipy.special
+(0.13-0.37 s of a command's start-up, measured with ``python -X importtime``); planning, even
+from wisdom, adds 10-40 ms. Where the kernel policy runs a problem on the numpy twins
+(:func:`hcfplan.numerics.kernel_choice.compiled` under ``"auto"``: a small grid in one of the
+first runs of a command), the transforms are numpy's too: at the demo's 2048 points a numpy
+transform takes about 8 us more than FFTW's, some 20 ms over the whole chain, against the
+import and planning saved.
 
 References
 ----------
@@ -35,6 +45,8 @@ import sys
 import threading
 
 import numpy as np
+
+from hcfplan.numerics.kernel_choice import compiled, policy
 
 #: Grids of at least this many points get a measured FFTW plan (else an estimated one).
 FFTW_MEASURE_POINTS = 4096
@@ -102,6 +114,66 @@ class ScipyTransforms:
         self.transforms["c2r"] += 1
         return self._fft.irfft(half, n=self.points, norm="forward", overwrite_x=True,
                           workers=self.workers)
+
+
+class NumpyTransforms:
+    """numpy.fft (pocketfft) back end: no import beyond numpy, no threads; each transform
+    returns a new array that is reused."""
+
+    name = "numpy"
+
+    def __init__(self, points: int, workers: int = 1) -> None:
+        self.points, self.workers = points, workers
+        self.spectrum_in = np.zeros(points, complex)
+        self.real_in = np.zeros(points)
+        self.transforms = {"c2c": 0, "r2c": 0, "c2r": 0}
+
+    def forward(self) -> np.ndarray:
+        """Unnormalised FFT of ``spectrum_in`` (item 2 of the module docstring).
+
+        References
+        ----------
+        none: numerical helper (numpy.fft)
+        """
+        self.transforms["c2c"] += 1
+        return np.fft.fft(self.spectrum_in)
+
+    def backward(self, source: np.ndarray, out: np.ndarray) -> None:
+        """Unnormalised inverse FFT of ``source`` into ``out`` (item 3 of the module docstring).
+
+        References
+        ----------
+        none: numerical helper (numpy.fft)
+        """
+        self.transforms["c2c"] += 1
+        if _NUMPY_FFT_OUT and out.flags.c_contiguous and out.dtype == complex:
+            np.fft.ifft(source, norm="forward", out=out)
+        else:
+            out[...] = np.fft.ifft(source, norm="forward")
+
+    def real_forward(self) -> np.ndarray:
+        """Unnormalised real FFT of ``real_in`` (item 4 of the module docstring).
+
+        References
+        ----------
+        none: numerical helper (numpy.fft)
+        """
+        self.transforms["r2c"] += 1
+        return np.fft.rfft(self.real_in)
+
+    def real_backward(self, half: np.ndarray) -> np.ndarray:
+        """Unnormalised inverse real FFT of ``half`` (item 4 of the module docstring).
+
+        References
+        ----------
+        none: numerical helper (numpy.fft)
+        """
+        self.transforms["c2r"] += 1
+        return np.fft.irfft(half, n=self.points, norm="forward")
+
+
+#: numpy.fft writes into a given array (``out=``) from numpy 2.0 on.
+_NUMPY_FFT_OUT = int(np.__version__.split(".")[0]) >= 2
 
 
 class FftwTransforms:
@@ -214,7 +286,8 @@ def _aligned(array: np.ndarray) -> bool:
 
 
 #: FFT back-end registry: key -> class (numbered list in the module docstring).
-FFT_BACKENDS: dict[str, type] = {"fftw": FftwTransforms, "scipy": ScipyTransforms}
+FFT_BACKENDS: dict[str, type] = {"fftw": FftwTransforms, "scipy": ScipyTransforms,
+                                  "numpy": NumpyTransforms}
 
 
 def fftw_available() -> bool:
@@ -261,13 +334,17 @@ def import_pyfftw():
     return pyfftw
 
 
-def default_backend() -> str:
-    """``"fftw"`` when pyFFTW is installed, else ``"scipy"``.
+def default_backend(points: int | None = None) -> str:
+    """``"numpy"`` for a problem of ``points`` that the ``"auto"`` kernel policy gives to the
+    numpy twins (module docstring); else ``"fftw"`` when pyFFTW is installed, else
+    ``"scipy"``.
 
     References
     ----------
     none: numerical helper
     """
+    if points is not None and policy() == "auto" and not compiled(points):
+        return "numpy"
     return "fftw" if fftw_available() else "scipy"
 
 
@@ -275,7 +352,8 @@ _SHARED = threading.local()
 
 
 def shared_transforms(points: int, backend: str | None = None):
-    """A back end (``backend``, else :func:`default_backend`) for ``points`` samples, kept per
+    """A back end (``backend``, else :func:`default_backend` of ``points``) for ``points``
+    samples, kept per
     thread, back end and size, for code outside the solver's steps that transforms many
     spectra one after the other (the compressor search, the solver's records). Planning, even
     from FFTW wisdom, costs 10-40 ms; a kept back end costs nothing after its first use. The
@@ -289,7 +367,7 @@ def shared_transforms(points: int, backend: str | None = None):
     kept = getattr(_SHARED, "by_points", None)
     if kept is None:
         kept = _SHARED.by_points = {}
-    key = (backend or default_backend(), points)
+    key = (backend or default_backend(points), points)
     if key not in kept:
         if len(kept) >= 4:
             kept.pop(next(iter(kept)))

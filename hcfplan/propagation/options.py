@@ -20,7 +20,7 @@ from hcfplan.propagation import control
 from hcfplan.propagation.steppers import STEPPERS
 
 StepperName = Literal["erk43ip", "rk4ip"]
-FftBackendName = Literal["fftw", "scipy"]
+FftBackendName = Literal["fftw", "scipy", "numpy"]
 IonizationModelName = Literal["ppt", "adk"]
 #: Default atol of the "scaled_rms" norm as a fraction of rtol * max|A~(0)| (common practice,
 #: no source); the "relative_l2" norm has atol = 0 by default.
@@ -75,9 +75,10 @@ class SolverOptions:
     error_norm : {"relative_l2", "scaled_rms"}
         Local-error norm of the adaptive stepper (:data:`~hcfplan.propagation.control.ERROR_NORMS`;
         the module docstring of :mod:`hcfplan.propagation.control` says which and why).
-    fft_backend : {"fftw", "scipy"}, optional
-        FFT back end (:data:`~hcfplan.numerics.fft.FFT_BACKENDS`); None: pyFFTW when
-        installed, else scipy.
+    fft_backend : {"fftw", "scipy", "numpy"}, optional
+        FFT back end (:data:`~hcfplan.numerics.fft.FFT_BACKENDS`); None:
+        :func:`~hcfplan.numerics.fft.default_backend` of the grid (pyFFTW when installed, else
+        scipy; numpy for the small problems of a one-shot command).
 
     Raises
     ------

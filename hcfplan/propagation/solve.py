@@ -147,7 +147,7 @@ def _build(grid, waveguide, gas, options: SolverOptions, length: float | None = 
     f_inst, response, notes = delayed_response(grid, waveguide, gas)
     plasma = ionizing_gas(grid, waveguide, gas, options.ionization_model)
     area = float(getattr(waveguide, "peak_intensity_area", math.nan))
-    backend = options.fft_backend or default_backend()
+    backend = options.fft_backend or default_backend(grid.points)
     nonlinear = NonlinearTerms(grid, gamma, f_inst, response, plasma.species, area,
                                options.workers, backend)
     return lin, nonlinear, notes + list(plasma.notes)
