@@ -9,6 +9,7 @@ printed (micrometre units) and converted when a model is evaluated.
 
 from __future__ import annotations
 
+import copy
 import os
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass
@@ -284,8 +285,31 @@ def load_crystal(name: str, search_dirs: Sequence[str | Path] = ()) -> CrystalTa
             f"crystal = {name!r}: unknown; valid names: "
             f"{', '.join(listed_crystal_names(search_dirs))}"
         )
-    data = read_table_toml(entry, entry.name)
-    return _table_from_dict(data, str(entry))
+    return _built_table(entry)
+
+
+#: Validated tables kept in this process, keyed by path, modification time and size (a table
+#: is immutable: tuples and numbers; a warm demo call loaded GaP five times, 0.16 ms each).
+_built: dict[tuple[str, int, int], CrystalTable] = {}
+
+
+def _built_table(entry) -> CrystalTable:
+    """The validated table of the file ``entry``, built again only when the file changed; each
+    call gets an object of its own (a shallow copy: a generation and a detection crystal
+    loaded from one file stay two crystals, as the THz notes name them)."""
+    try:
+        stat = Path(str(entry)).stat()
+        key = (str(entry), stat.st_mtime_ns, stat.st_size)
+    except OSError:
+        key = None  # not a plain file: read it (read_table_toml names what is wrong)
+    table = _built.get(key) if key is not None else None
+    if table is None:
+        table = _table_from_dict(read_table_toml(entry, entry.name), str(entry))
+        if key is not None:
+            if len(_built) >= 64:
+                _built.clear()
+            _built[key] = table
+    return copy.copy(table)
 
 
 def _fail(path: str, key: str, message: str) -> ConfigError:

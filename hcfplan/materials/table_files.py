@@ -6,7 +6,6 @@ failure becomes one :class:`~hcfplan.errors.ConfigError` line that names the fil
 
 from __future__ import annotations
 
-import copy
 from pathlib import Path
 from typing import Any
 
@@ -45,7 +44,7 @@ def read_table_toml(path: str | Path, label: str | None = None) -> dict[str, Any
             if len(_parsed) >= MAX_PARSED:
                 _parsed.clear()
             _parsed[key] = tomllib.loads(path.read_text(encoding="utf-8"))
-        return copy.deepcopy(_parsed[key])  # a caller may change what it gets
+        return _copied(_parsed[key])  # a caller may change what it gets
     except tomllib.TOMLDecodeError as exc:
         raise ConfigError(f"{name}: not valid TOML: {exc}") from None
     except UnicodeDecodeError as exc:
@@ -54,3 +53,15 @@ def read_table_toml(path: str | Path, label: str | None = None) -> dict[str, Any
         raise ConfigError(f"{name}: cannot read ({exc.strerror})") from None
     except ValueError as exc:  # e.g. an integer literal longer than Python converts
         raise ConfigError(f"{name}: not valid TOML: {str(exc).splitlines()[0]}") from None
+
+
+def _copied(value: Any) -> Any:
+    """A copy of parsed TOML data: new dicts and lists all the way down; the leaves (str, int,
+    float, bool and the date/time types of :mod:`tomllib`) are immutable and shared. What
+    ``copy.deepcopy`` gives for such data, several times faster (no memo, no dispatch; the
+    crystal tables are copied a dozen times per run of the chain)."""
+    if isinstance(value, dict):
+        return {k: _copied(v) for k, v in value.items()}
+    if isinstance(value, list):
+        return [_copied(v) for v in value]
+    return value

@@ -165,6 +165,7 @@ class Recorder:
         none: numerical helper
         """
         i, grid = self.count, self.grid
+        known = self._evaluated_ionization(u)  # before _power writes u into the terms' input
         total, far_sum, band_sum, band_moment = self._kernels.spectrum_sums(
             u, self._rank, self._density_sorted, self.spectra[i], self._far_frequency,
             self._band, self._band_wavelength)
@@ -175,7 +176,8 @@ class Recorder:
         values["energy"][i] = energy
         values["peak_power"][i] = peak
         values["peak_intensity"][i] = peak / self.intensity_area
-        values["ionization"][i], values["electrons"][i] = self._ionization(power)
+        values["ionization"][i], values["electrons"][i] = (
+            self._ionization(power) if known is None else known)
         # metrics.spectral_width, compiled (kernels.outermost_width)
         values["bandwidth"][i] = self._kernels.outermost_width(
             self._frequency_sorted, self._density_sorted, self._bandwidth_level)
@@ -208,6 +210,17 @@ class Recorder:
         fraction = inside * self.grid.dnu / energy
         centre = moment / inside if fraction > 0 else np.nan
         self.resonance.update(fraction, z, centre)
+
+    def _evaluated_ionization(self, u: np.ndarray) -> tuple[float, float] | None:
+        """The ionisation fraction and electron line density of ``u`` when the plasma terms
+        evaluated ``u`` last (their input holds it bit for bit; the steppers evaluate the
+        accepted state last: ERK4(3)-IP's FSAL k5, RK4IP's next k1), else None. Saves a pass
+        of the plasma kernel per record (the multimode recorder does the same)."""
+        plasma = self.plasma
+        terms_input = getattr(plasma, "input", None)
+        if terms_input is None or not np.array_equal(terms_input, u):
+            return None
+        return plasma.ionization_fraction, plasma.electron_line_density
 
     def _ionization(self, power: np.ndarray) -> tuple[float, float]:
         if self.plasma is None:

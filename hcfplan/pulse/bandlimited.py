@@ -139,11 +139,19 @@ def _peak_kernels(points: int) -> np.ndarray:
 def _peak_search(points: int):
     """The search of :func:`peak_location` for a grid of ``points``: the compiled one or its
     numpy twin, as :mod:`hcfplan.numerics.kernel_choice` says (numba is imported only here)."""
-    if compiled(points):
-        from hcfplan.pulse.bandlimited_compiled import refine_peak
-    else:
-        from hcfplan.pulse.bandlimited_numpy import refine_peak
-    return refine_peak
+    use_compiled = compiled(points)
+    search = _SEARCHES.get(use_compiled)
+    if search is None:  # imported once per process (an import statement per call cost 1 us)
+        if use_compiled:
+            from hcfplan.pulse.bandlimited_compiled import field_peak as search
+        else:
+            from hcfplan.pulse.bandlimited_numpy import field_peak as search
+        _SEARCHES[use_compiled] = search
+    return search
+
+
+#: The searches of :func:`_peak_search` imported so far, keyed by "compiled".
+_SEARCHES: dict = {}
 
 
 def peak_location(field_t: np.ndarray) -> tuple[float, float]:
@@ -181,12 +189,10 @@ def peak_location(field_t: np.ndarray) -> tuple[float, float]:
            pp. 10-21, 1949, doi:10.1109/JRPROC.1949.232969.
     """
     field_t = np.ascontiguousarray(field_t, dtype=complex)
-    power = field_t.real**2 + field_t.imag**2
-    if field_t.size < 3 or not np.all(np.isfinite(power)):
+    if field_t.size < 3:
         return float("nan"), float("nan")
-    if not power.max() > 0:
-        return 0.0, float(np.argmax(power))
-    best, where = _peak_search(field_t.size)(field_t, power, _peak_kernels(field_t.size),
+    # the power, its check (nan when a sample is not finite) and the search in one call
+    best, where = _peak_search(field_t.size)(field_t, _peak_kernels(field_t.size),
                                              PEAK_OVERSAMPLING, CANDIDATE_LEVEL, MAX_CANDIDATES)
     return float(best), float(where)
 

@@ -114,3 +114,22 @@ def refine_peak(field, power, kernels, factor, level, most):
         if value > best:
             best, where = value, centre + (j - factor + shift) / factor
     return best, where
+
+
+def field_peak(field, kernels, factor, level, most):
+    """:func:`refine_peak` of the samples ``field`` (at least 3), their power |field|^2 formed
+    here: (nan, nan) when a sample is not finite, (0, index of the first highest sample) when
+    every sample is 0.
+
+    References
+    ----------
+    none: numerical helper
+    """
+    power = np.square(field.real)
+    power += np.square(field.imag)
+    top = power.max()  # a nan anywhere gives nan, an inf inf: all finite iff top is finite
+    if not np.isfinite(top):
+        return np.nan, np.nan
+    if not top > 0:
+        return 0.0, float(np.argmax(power))
+    return refine_peak(field, power, kernels, factor, level, most)

@@ -117,3 +117,19 @@ def test_config_table_dir(tmp_path, monkeypatch):
 def test_check_only_material_still_loads_for_checks():
     assert load_crystal("thin").check_only
     assert not load_crystal("gap").check_only
+
+
+def test_a_loaded_table_is_kept_until_its_file_changes(tmp_path):
+    # contract: an unchanged file gives the table built before (tables are immutable), as an
+    # object of its own per load; a changed file (here: another size) is read and validated
+    # again
+    path = _write(tmp_path, "kept", GOOD)
+    first = load_crystal("kept", [tmp_path])
+    again = load_crystal("KEPT", [tmp_path])
+    assert again == first and again is not first and again.optical is first.optical
+    path.write_text(GOOD.replace('"MyCrystal"', '"MyCrystal, second cut"'), encoding="utf-8")
+    second = load_crystal("kept", [tmp_path])
+    assert second.name == "MyCrystal, second cut" and first.name == "MyCrystal"
+    path.write_text(GOOD.replace("eps_inf = 7.284", "eps_inf = 7284.0"), encoding="utf-8")
+    with pytest.raises(ConfigError, match=r"kept\.toml: thz_permittivity gives n = 8"):
+        load_crystal("kept", [tmp_path])

@@ -1,6 +1,7 @@
-"""Results kept between calls in one process (hcfplan.planning.memo) and the parsed table
-files kept per file state (hcfplan.materials.table_files): equal inputs give equal results,
-independent copies; a changed input or file is computed or read again.
+"""Results kept between calls in one process (hcfplan.planning.memo; the fiber report and
+the config-only limits of the limits report) and the parsed table files kept per file state
+(hcfplan.materials.table_files): equal inputs give equal results, independent copies; a changed
+input or file is computed or read again.
 
 Contract tests; no external source is needed.
 """
@@ -15,6 +16,7 @@ from hcfplan.io.config import load_config
 from hcfplan.materials.table_files import read_table_toml
 from hcfplan.planning import memo
 from hcfplan.planning.reports.fiber import fiber_report
+from hcfplan.planning.reports.limits import limits_report
 
 
 def _config(folder):
@@ -55,3 +57,35 @@ def test_a_changed_table_file_is_read_again(tmp_path):
     assert read_table_toml(path) == {"a": 1}
     path.write_text("a = 22\n", encoding="utf-8")
     assert read_table_toml(path) == {"a": 22}
+
+
+def test_limits_report_with_kept_limits_equals_the_computed_one(tmp_path):
+    memo.forget()
+    config = _config(tmp_path)
+    computed = limits_report(config)
+    kept = limits_report(_config(tmp_path))
+    assert kept == computed
+    memo.forget()
+    assert limits_report(config) == computed
+    # a changed margin is a new key: the highest pressure is searched again, for that margin
+    limits = dataclasses.replace(config.limits,
+                                 self_focusing_margin=4 * config.limits.self_focusing_margin,
+                                 ionization_fraction_limit=config.limits.ionization_fraction_limit
+                                 / 10)
+    stricter = limits_report(dataclasses.replace(config, limits=limits))
+    for key in ("limits.self_focusing.max_pressure_pa",
+                "limits.ionization.limit_intensity_w_per_m2"):
+        assert stricter[key] < computed[key], key
+
+
+def test_a_table_file_copy_is_independent_at_every_depth(tmp_path):
+    path = tmp_path / "nested.toml"
+    path.write_text('name = "x"\n[a]\nb = [1, 2, {c = 3}]\n[[rows]]\nd = 4.5\n',
+                    encoding="utf-8")
+    first = read_table_toml(path)
+    expected = {"name": "x", "a": {"b": [1, 2, {"c": 3}]}, "rows": [{"d": 4.5}]}
+    assert first == expected
+    first["a"]["b"][2]["c"] = 30  # changes of the caller's copy, at every depth
+    first["a"]["b"].append(9)
+    first["rows"][0]["d"] = -1.0
+    assert read_table_toml(path) == expected

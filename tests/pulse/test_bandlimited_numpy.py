@@ -85,3 +85,23 @@ def test_peak_location_is_the_same_on_both_policies(monkeypatch):
         found[policy] = bandlimited.peak_location(field)
     assert found["numpy"] == pytest.approx(found["numba"], rel=1e-12)
     assert found["numpy"][0] >= np.max(np.abs(field) ** 2)
+
+
+@pytest.mark.parametrize("n", [3, 17, 2048])
+def test_field_peak_is_the_search_of_the_field_power(n):
+    # field_peak forms |field|^2 itself: on both sets it is refine_peak of that power (the
+    # compiled one bit for bit), (nan, nan) with any non-finite sample, (0, 0) for zeros
+    field = _field(n, 3, seed=7 * n)
+    args = _search_args(field)
+    rest = args[2:]
+    assert compiled.field_peak(args[0], *rest) == compiled.refine_peak(*args)
+    assert twin.field_peak(args[0], *rest) == twin.refine_peak(*args)
+    for value in (np.nan, np.inf, complex(0.0, -np.inf), 1e200):  # 1e200: |.|^2 overflows
+        broken = args[0].copy()
+        broken[n // 2] = value
+        for module in (compiled, twin):
+            with np.errstate(over="ignore"):  # the twin's square overflows, as it should
+                found = module.field_peak(broken, *rest)
+            assert all(np.isnan(found)), (module.__name__, value)
+    zero = np.zeros(n, complex)
+    assert compiled.field_peak(zero, *rest) == twin.field_peak(zero, *rest) == (0.0, 0.0)

@@ -67,6 +67,21 @@ def test_peak_location_matches_a_dense_interpolation() -> None:
         assert bandlimited.peak_power(field) == pytest.approx(dense, rel=1e-5)
 
 
+@pytest.mark.parametrize("value", [np.nan, np.inf, -np.inf, complex(np.nan, 0.0),
+                                   complex(0.0, np.inf)])
+def test_peak_location_of_a_nonfinite_field_is_nan(value) -> None:
+    # contract (none of the candidates is searched): one non-finite sample, anywhere, gives
+    # (nan, nan), as does a field too short to bracket a peak; an all-zero field gives 0
+    for where in (0, 17, 63):
+        field = np.exp(-((np.arange(64.0) - 30.2) ** 2) / 20.0).astype(complex)
+        field[where] = value
+        peak, position = bandlimited.peak_location(field)
+        assert np.isnan(peak) and np.isnan(position)
+    assert np.isnan(bandlimited.peak_location(np.ones(2, complex))[0])
+    assert bandlimited.peak_location(np.zeros(64, complex))[0] == 0.0
+
+
+
 @pytest.mark.parametrize(("samples_per_fwhm", "factor"), [(2, 16), (3, 11), (20, 2), (40, 1),
                                                           (np.nan, 16)])
 def test_oversampling_factor(samples_per_fwhm: float, factor: int) -> None:

@@ -36,6 +36,7 @@ from hcfplan.planning.build import (
     pump_omega,
     rate_model,
 )
+from hcfplan.planning.memo import remembered
 from hcfplan.planning.reports.limits_checks import check_entry as _check
 from hcfplan.planning.reports.limits_checks import finite_or_none as _finite
 from hcfplan.planning.reports.limits_checks import not_checked as _not_checked
@@ -173,9 +174,11 @@ def _self_focusing_part(s: _Setup, run) -> tuple[dict, list, list]:
         n0 = float(scaled.refractive_index(np.array([s.omega0]))[0])
         return float(limits.self_focusing_power(laser.wavelength, n0, scaled.n2 * sf_ratio))
 
-    p_max = limits.max_pressure_for_self_focusing(
-        s.peak_power_coupled, critical_at, margin=margin,
-        pressure_range=(min(1e2, gas.pressure / 10), ceiling))
+    # depends on the config only: kept per config (memo.remembered) for a program's next call
+    p_max = remembered("limits.self_focusing.max_pressure", s.config, lambda: (
+        limits.max_pressure_for_self_focusing(s.peak_power_coupled, critical_at, margin=margin,
+                                              pressure_range=(min(1e2, gas.pressure / 10),
+                                                              ceiling))))
     at_input = s.entrance.critical_power  # the entrance pressure (a gradient's p0)
     values = {
         "limits.self_focusing.critical_power_w": at_input,
@@ -233,8 +236,9 @@ def _ionization_part(s: _Setup, run) -> tuple[dict, list, list]:
     # magnitude sqrt(I/(c eps0)), so it reaches the same field at twice the intensity
     bsi = lowest_barrier_suppression(s.medium) * (
         2.0 if laser.polarization == "circular" else 1.0)
-    i_lim = peak_intensity_for_fraction(level, laser.duration_fwhm, laser.shape, s.rates,
-                                        RATE_TABLE_RANGE)
+    i_lim = remembered("limits.ionization.limit_intensity", s.config, lambda: (  # as p_max
+        peak_intensity_for_fraction(level, laser.duration_fwhm, laser.shape, s.rates,
+                                    RATE_TABLE_RANGE)))
 
     def fraction(i: float) -> float:
         return pulse_ionization_fraction(i, laser.duration_fwhm, laser.shape, s.rates)
