@@ -154,21 +154,31 @@ def _edge_zones(grid: Grid) -> tuple[np.ndarray, np.ndarray]:
     return x < -inner, x > inner
 
 
+def _as_slice(mask: np.ndarray):
+    """``mask`` as a slice when its True entries are one contiguous run (a view instead of a
+    copy), else the mask itself."""
+    where = np.flatnonzero(mask)
+    if where.size and where[-1] - where[0] + 1 == where.size:
+        return slice(int(where[0]), int(where[-1]) + 1)
+    return mask
+
+
 def _edge_levels(grid: Grid, spectra: np.ndarray) -> tuple[float, float, float, float]:
     """Largest (over records) energy fraction and peak-relative level [dB] in the lower and
     upper edge zones: (fraction_low, fraction_high, level_low_db, level_high_db)."""
-    low, high = _edge_zones(grid)
-    s = np.asarray(spectra, dtype=float)
+    low, high = (_as_slice(zone) for zone in _edge_zones(grid))
+    s = np.asarray(spectra)  # float32 rows of the records: summed in float64, not copied
     s = s.reshape(-1, grid.points)
-    total = s.sum(axis=1)
-    peak = s.max(axis=1)
+    total = s.sum(axis=1, dtype=float)
+    peak = s.max(axis=1).astype(float)
     ok = (total > 0) & (peak > 0)
     if not np.any(ok):
         return 0.0, 0.0, LEVEL_FLOOR_DB, LEVEL_FLOOR_DB
-    s, total, peak = s[ok], total[ok], peak[ok]
+    if not np.all(ok):
+        s, total, peak = s[ok], total[ok], peak[ok]
     with np.errstate(divide="ignore"):
-        frac_lo = float(np.max(s[:, low].sum(axis=1) / total))
-        frac_hi = float(np.max(s[:, high].sum(axis=1) / total))
+        frac_lo = float(np.max(s[:, low].sum(axis=1, dtype=float) / total))
+        frac_hi = float(np.max(s[:, high].sum(axis=1, dtype=float) / total))
         lvl_lo = float(10 * np.log10(np.max(s[:, low].max(axis=1) / peak)))
         lvl_hi = float(10 * np.log10(np.max(s[:, high].max(axis=1) / peak)))
     return frac_lo, frac_hi, max(lvl_lo, LEVEL_FLOOR_DB), max(lvl_hi, LEVEL_FLOOR_DB)

@@ -51,6 +51,7 @@ import numpy as np
 from hcfplan.constants import c
 from hcfplan.errors import ConfigError
 from hcfplan.materials.crystals import CrystalTable, optical_index
+from hcfplan.numerics.grid import smooth_fft_size
 
 #: Zero padding of the THz spectrum before the inverse transform (smooth waveforms).
 PADDING = 4
@@ -106,8 +107,9 @@ def real_waveform(frequency: np.ndarray, spectrum: np.ndarray,
     spectrum : ndarray of complex
         X(nu_m). [unit s]
     padding : int
-        The inverse FFT has ``padding`` x 2 len(frequency) points (band-limited
-        interpolation).
+        The inverse FFT has at least ``padding`` x 2 len(frequency) points (band-limited
+        interpolation), rounded up to a 5-smooth length
+        (:func:`~hcfplan.numerics.grid.smooth_fft_size`).
 
     Returns
     -------
@@ -122,7 +124,7 @@ def real_waveform(frequency: np.ndarray, spectrum: np.ndarray,
     if frequency.size < 2 or frequency[0] != 0.0:
         raise ConfigError("real_waveform: frequencies must start at 0 with >= 2 samples")
     dnu = float(frequency[1] - frequency[0])
-    n = 2 * padding * len(frequency)
+    n = smooth_fft_size(2 * padding * len(frequency))
     # numpy's irfft has exp(+i...) and 1/n: conj() gives exp(-i 2 pi nu t); n dnu gives dnu
     values = np.fft.irfft(np.conj(spectrum), n) * n * dnu
     time = (np.arange(n) - n // 2) / (n * dnu)
