@@ -156,7 +156,9 @@ class Scorer:
         self.grid, self.objective = grid, objective
         keep = np.flatnonzero(spectrum)
         self._keep = None if keep.size == grid.points else keep
+        self._runs = _runs(keep, grid.points)
         self.spectrum = self.part(spectrum)
+        self._factor = np.empty(self.spectrum.size, complex)  # exp(i phase), reused
         self.quadratic = self.part(polynomial_phase(grid, 1.0, 0.0))  # 0.5 dw^2
         self.cubic = self.part(polynomial_phase(grid, 0.0, 1.0))  # dw^3 / 6
         self._fft = shared_transforms(grid.points)
@@ -186,16 +188,36 @@ class Scorer:
 
     def __call__(self, phase: np.ndarray) -> float:
         """Objective of ``spectrum * exp(i phase)``, ``phase`` given as a :meth:`part`. [rad]"""
-        factor = np.exp(1j * phase)
+        factor = self._factor
+        np.cos(phase, out=factor.real)  # exp(i phase) without the complex temporaries
+        np.sin(phase, out=factor.imag)
         target = self._fft.spectrum_in
         if self._keep is None:
             np.multiply(self.spectrum, factor, out=target)
-        else:  # the FFT may overwrite its input: every sample is written each call
+        elif self._runs is not None:  # the FFT may overwrite its input: every sample written
+            target.fill(0.0)
+            for into, part in self._runs:
+                np.multiply(self.spectrum[part], factor[part], out=target[into])
+        else:
             target.fill(0.0)
             target[self._keep] = self.spectrum * factor
         field_t = self._fft.forward()
         field_t *= self._scale
         return self.objective(self.grid, field_t)
+
+
+def _runs(keep: np.ndarray, points: int):
+    """``keep`` (ascending indices) as at most two contiguous runs: [(slice of the grid, slice
+    of the kept samples)], so that the scorer writes slices instead of scattering; None for
+    more runs (or none)."""
+    if keep.size == 0 or keep.size == points:
+        return None
+    breaks = np.flatnonzero(np.diff(keep) != 1) + 1
+    if breaks.size > 1:
+        return None
+    bounds = [0, *breaks.tolist(), keep.size]
+    return [(slice(int(keep[a]), int(keep[b - 1]) + 1), slice(a, b))
+            for a, b in zip(bounds[:-1], bounds[1:])]
 
 
 def peak_powers(score: Scorer, phases: list[np.ndarray]) -> np.ndarray:

@@ -189,15 +189,20 @@ def kerr_in_place(a):  # pragma: no cover - compiled
 
 @njit(**_JIT)
 def power_of(a, power):  # pragma: no cover - compiled
-    """power = |a|^2.
+    """power = |a|^2; returns its highest value (nan if a value is nan, as ``power.max()``).
 
     References
     ----------
     none: numerical helper
     """
     A = _flat(a)
+    top, nan = 0.0, False
     for k in range(a.size):
-        power[k] = A[2 * k] ** 2 + A[2 * k + 1] ** 2
+        value = A[2 * k] ** 2 + A[2 * k + 1] ** 2
+        power[k] = value
+        top = max(top, value)
+        nan |= value != value
+    return np.nan if nan else top
 
 
 @njit(**_JIT)

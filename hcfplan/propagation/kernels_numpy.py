@@ -169,13 +169,14 @@ def kerr_in_place(a):
 
 @_quiet
 def power_of(a, power):
-    """power = |a|^2.
+    """power = |a|^2; returns its highest value (nan if a value is nan).
 
     References
     ----------
     none: numerical helper
     """
     _abs2(a, power)
+    return float(power.max())
 
 
 @_quiet

@@ -298,7 +298,7 @@ class NonlinearTerms:
             fft.backward(a, out)
             return out
         power = fft.real_in
-        kn.power_of(a, power)  # = scale^2 |A|^2
+        top = kn.power_of(a, power)  # power = scale^2 |A|^2, top its highest value
         if self.response_rfft is None:
             delayed = self.no_delay
         else:
@@ -307,7 +307,7 @@ class NonlinearTerms:
             delayed = fft.real_backward(half)
         # with plasma, no sample reaching the rate tables means plasma terms of 0 (the kernel's
         # result, without its pass, the plasma transform and the sum; a NaN takes the kernel)
-        if not self.species or power.max() * (1.0 / self.scale**2) < self.rate_floor:
+        if not self.species or top * (1.0 / self.scale**2) < self.rate_floor:
             kn.delayed_in_place(a, power, delayed, self.instantaneous)
             fft.backward(a, out)
             if self.species:  # gain 1 with plasma: the Kerr gain goes into raw

@@ -319,18 +319,24 @@ def test_pulse_metrics_of_transform_limit(grid: Grid) -> None:
 
 
 @pytest.mark.parametrize("objective", ["peak_power", "fwhm"])
-@pytest.mark.parametrize("clipped", [False, True])
-def test_scorer_scores_the_plain_formula(grid: Grid, objective: str, clipped: bool) -> None:
+@pytest.mark.parametrize("clipped", ["no", "band", "wrapped", "scattered"])
+def test_scorer_scores_the_plain_formula(grid: Grid, objective: str, clipped: str) -> None:
     # consistency: the search's scorer (only the nonzero samples, a folded common phase, the
     # solver's FFT back end) gives objective(to_time(spectrum exp(i phase))) to 1e-12, for a
-    # band-clipped spectrum (exact zeros outside the band) and an unclipped one
+    # band-clipped spectrum (exact zeros outside the band: one run of samples in FFT order, or
+    # two where it wraps, written as slices; many runs, scattered), and an unclipped one
     from hcfplan.compression.scoring import OBJECTIVES, Scorer, peak_powers
 
     rng = np.random.default_rng(3)
     spectrum = _chirped(grid, 900e-30) * np.exp(1j * rng.normal(0, 0.3, grid.points))
-    if clipped:
+    if clipped != "no":
         spectrum, _ = el.clip_to_band(grid, spectrum, _wing_band(grid, spectrum, 0.02))
         assert 0 < np.count_nonzero(spectrum) < grid.points // 2
+    if clipped == "wrapped":  # the band across the ends of the array
+        spectrum = np.roll(spectrum, grid.points - np.flatnonzero(spectrum)[0] - 5)
+        assert spectrum[0] != 0 and spectrum[-1] != 0
+    if clipped == "scattered":
+        spectrum[np.flatnonzero(spectrum)[::7]] = 0.0
     common = el.mirror_phase(grid.omega, grid.omega0, 300e-30, 2e-42)
     polynomial = 0.5 * -700e-30 * grid.domega**2 + 5e-42 / 6 * grid.domega**3
     fun = OBJECTIVES[objective]
@@ -348,6 +354,17 @@ def test_scorer_scores_the_plain_formula(grid: Grid, objective: str, clipped: bo
     expected = [metrics.peak_power(grid.to_time(spectrum * np.exp(1j * p)))
                 for p in (common, common + polynomial)]
     np.testing.assert_allclose(peaks, expected, rtol=1e-12)
+
+
+def test_scorer_runs_of_kept_samples() -> None:
+    # the scorer writes one or two contiguous runs of kept samples as slices, else scatters
+    from hcfplan.compression.scoring import _runs
+
+    assert _runs(np.arange(3, 9), 16) == [(slice(3, 9), slice(0, 6))]
+    assert _runs(np.array([0, 1, 2, 13, 14, 15]), 16) == [(slice(0, 3), slice(0, 3)),
+                                                         (slice(13, 16), slice(3, 6))]
+    assert _runs(np.array([0, 2, 4]), 16) is None
+    assert _runs(np.arange(16), 16) is None
 
 
 # --- errors --------------------------------------------------------------------------------
