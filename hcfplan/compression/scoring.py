@@ -217,7 +217,7 @@ def _runs(keep: np.ndarray, points: int):
         return None
     bounds = [0, *breaks.tolist(), keep.size]
     return [(slice(int(keep[a]), int(keep[b - 1]) + 1), slice(a, b))
-            for a, b in zip(bounds[:-1], bounds[1:])]
+            for a, b in zip(bounds[:-1], bounds[1:], strict=True)]
 
 
 def peak_powers(score: Scorer, phases: list[np.ndarray]) -> np.ndarray:
