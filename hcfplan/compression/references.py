@@ -53,12 +53,14 @@ class ReferencePulse:
 
 
 def _reference(
-    grid: Grid, name: str, phase: np.ndarray, spectrum: np.ndarray, peak_in: float | None
+    grid: Grid, name: str, phase: np.ndarray, spectrum: np.ndarray, peak_in: float | None,
+    limit: tuple[float, float],
 ) -> ReferencePulse:
-    """Build a :class:`ReferencePulse` from an applied total phase."""
+    """Build a :class:`ReferencePulse` from an applied total phase (``limit``: FWHM and peak
+    power of the transform limit of ``spectrum``)."""
     field_t = grid.to_time(spectrum * np.exp(1j * phase))
     _, _, gdd, tod = phase_derivatives_at(grid.omega, grid.omega_pump, phase)
-    reference_metrics = pulse_metrics(grid, field_t, input_peak_power=peak_in)
+    reference_metrics = pulse_metrics(grid, field_t, input_peak_power=peak_in, limit=limit)
     return ReferencePulse(name, gdd, tod, field_t, reference_metrics)
 
 
@@ -162,8 +164,8 @@ def reference_pulses(
            Press, 2006, ch. 1 [from memory] (Taylor expansion of the spectral phase).
     """
     tl_field = metrics.transform_limit(grid, clipped)
-    scale = metrics.envelope_fwhm(grid, tl_field)
-    scale = scale if np.isfinite(scale) else 10.0 * grid.dt
+    limit = (metrics.envelope_fwhm(grid, tl_field), metrics.peak_power(tl_field))
+    scale = limit[0] if np.isfinite(limit[0]) else 10.0 * grid.dt
     gdd_center, tod_center, gdd_span = compressor
     shaped = score.with_phase(score.part(fixed))
     gdd_q = best_quadratic(shaped, gdd_center, max(gdd_span, 20.0 * scale**2))
@@ -173,12 +175,12 @@ def reference_pulses(
         float("nan"),
         float("nan"),
         tl_field,
-        pulse_metrics(grid, tl_field, input_peak_power=peak_in),
+        pulse_metrics(grid, tl_field, input_peak_power=peak_in, limit=limit),
     )
     return (
         _reference(grid, "quadratic", fixed + polynomial_phase(grid, gdd_q, 0.0), clipped,
-                   peak_in),
+                   peak_in, limit),
         _reference(grid, "quadratic_cubic", fixed + polynomial_phase(grid, gdd_c, tod_c),
-                   clipped, peak_in),
+                   clipped, peak_in, limit),
         tl,
     )

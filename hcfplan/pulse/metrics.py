@@ -275,6 +275,18 @@ def transform_limit(grid: Grid, spectrum: np.ndarray) -> np.ndarray:
     return np.fft.fftshift(grid.to_time(np.abs(spectrum).astype(complex)))
 
 
+def transform_limit_metrics(grid: Grid, spectrum: np.ndarray) -> tuple[float, float]:
+    """FWHM [s] and peak power [W] of the transform limit of ``spectrum`` (FFT order; only its
+    modulus counts), as :func:`pulse_metrics` reports them.
+
+    References
+    ----------
+    none: numerical helper.
+    """
+    tl_field = transform_limit(grid, spectrum)
+    return envelope_fwhm(grid, tl_field), peak_power(tl_field)
+
+
 def transform_limited_fwhm(grid: Grid, spectrum: np.ndarray) -> float:
     """FWHM of the transform-limited intensity of ``spectrum``. [s]
 
@@ -477,7 +489,8 @@ class PulseMetrics:
 
 
 def pulse_metrics(
-    grid: Grid, field_t: np.ndarray, *, input_peak_power: float | None = None
+    grid: Grid, field_t: np.ndarray, *, input_peak_power: float | None = None,
+    limit: tuple[float, float] | None = None,
 ) -> PulseMetrics:
     """All metrics of one pulse; the transform limit is that of its own spectrum.
 
@@ -489,6 +502,10 @@ def pulse_metrics(
         Temporal envelope on ``grid.time``. [sqrt(W)]
     input_peak_power : float, optional
         Peak power before the fiber or compressor, for the gain. [W]
+    limit : (float, float), optional
+        FWHM [s] and peak power [W] of the transform limit where the caller has them for the
+        same spectral modulus (:func:`transform_limit_metrics`; the compressor's pulses differ
+        from their references only in the phase); else they are computed here.
 
     References
     ----------
@@ -496,9 +513,10 @@ def pulse_metrics(
     """
     time, fine = fine_envelope(grid, field_t)
     power = np.abs(fine) ** 2
-    tl_field = transform_limit(grid, grid.to_spectrum(field_t))
     peak = peak_power(field_t)
-    tl_peak = peak_power(tl_field)
+    if limit is None:
+        limit = transform_limit_metrics(grid, grid.to_spectrum(field_t))
+    tl_fwhm, tl_peak = limit
     t_lo, t_hi, fraction = main_lobe(time, power)
     pre, post = pre_post_pulse_energy(time, power)
     gain = peak / input_peak_power if input_peak_power else float("nan")
@@ -506,7 +524,7 @@ def pulse_metrics(
         energy=grid.energy_t(field_t),
         fwhm=fwhm(time, power),
         outermost_fwhm=width_at_level(time, power, 0.5, extent="outermost"),
-        transform_limited_fwhm=envelope_fwhm(grid, tl_field),
+        transform_limited_fwhm=tl_fwhm,
         peak_power=peak,
         transform_limited_peak_power=tl_peak,
         peak_to_transform_limit=peak / tl_peak if tl_peak > 0 else float("nan"),

@@ -295,6 +295,26 @@ def test_references_recover_cubic_phase(grid: Grid) -> None:
     assert result.transform_limit.metrics.peak_to_transform_limit == pytest.approx(1.0, abs=1e-12)
 
 
+def test_metrics_share_the_transform_limit_of_the_clipped_spectrum(grid: Grid) -> None:
+    # consistency: the compressed pulse and the references take the transform limit of the
+    # clipped spectrum they share (one phase apart) instead of each computing it from its own
+    # field; the metrics equal those computed from each field alone to rounding
+    spectrum = _chirped(grid, 700e-30, 20000e-45)
+    result = optimize_bounces(grid, spectrum, _no_phase(grid), _mirror(grid), max_bounces=6,
+                              band=_wing_band(grid, spectrum, 0.02))
+    for pulse, field in [(result.metrics, result.field_t),
+                         (result.quadratic.metrics, result.quadratic.field_t),
+                         (result.quadratic_cubic.metrics, result.quadratic_cubic.field_t),
+                         (result.transform_limit.metrics, result.transform_limit.field_t)]:
+        alone = pulse_metrics(grid, field, input_peak_power=1.0)
+        assert pulse.transform_limited_fwhm == pytest.approx(alone.transform_limited_fwhm,
+                                                             rel=1e-12)
+        assert pulse.transform_limited_peak_power == pytest.approx(
+            alone.transform_limited_peak_power, rel=1e-12)
+        assert pulse.peak_to_transform_limit == pytest.approx(alone.peak_to_transform_limit,
+                                                              rel=1e-12)
+
+
 def test_residual_phase_of_restored_pulse_is_flat(grid: Grid) -> None:
     # analytic: a perfectly compensated chirp leaves zero residual phase where there is light
     result = optimize_bounces(
