@@ -57,123 +57,83 @@ FFTW_MEASURE_POINTS = 4096
 FFTW_PLANNING_LIMIT = 10.0
 
 
-class ScipyTransforms:
-    """scipy.fft (pocketfft) back end; each transform returns a new array that is reused.
-    scipy.fft is imported here, when the back end is made (a command run with pyFFTW needs no
-    part of scipy)."""
+class _PocketTransforms:
+    """The pocketfft back ends (scipy.fft and numpy.fft): each transform returns a new array that
+    is reused. A subclass names its module and the options it takes (:meth:`_module`)."""
+
+    name = ""
+
+    def __init__(self, points: int, workers: int = 1) -> None:
+        self.points, self.workers = points, workers
+        self._fft, self._threads, self._scratch = self._module(workers)
+        self.spectrum_in = np.zeros(points, complex)
+        self.real_in = np.zeros(points)
+        self.transforms = {"c2c": 0, "r2c": 0, "c2r": 0}
+
+    def _module(self, workers: int):
+        """(FFT module, options of every transform, options where the input may be destroyed)."""
+        raise NotImplementedError
+
+    def forward(self) -> np.ndarray:
+        """Unnormalised FFT of ``spectrum_in`` (item 2 of the module docstring).
+
+        References
+        ----------
+        none: numerical helper (pocketfft of scipy.fft or numpy.fft)
+        """
+        self.transforms["c2c"] += 1
+        return self._fft.fft(self.spectrum_in, **self._threads)
+
+    def backward(self, source: np.ndarray, out: np.ndarray) -> None:
+        """Unnormalised inverse FFT of ``source`` into ``out`` (item 3 of the module docstring).
+
+        References
+        ----------
+        none: numerical helper (pocketfft of scipy.fft or numpy.fft)
+        """
+        self.transforms["c2c"] += 1
+        out[...] = self._fft.ifft(source, norm="forward", **self._scratch)
+
+    def real_forward(self) -> np.ndarray:
+        """Unnormalised real FFT of ``real_in`` (item 4 of the module docstring).
+
+        References
+        ----------
+        none: numerical helper (pocketfft of scipy.fft or numpy.fft)
+        """
+        self.transforms["r2c"] += 1
+        return self._fft.rfft(self.real_in, **self._threads)
+
+    def real_backward(self, half: np.ndarray) -> np.ndarray:
+        """Unnormalised inverse real FFT of ``half`` (item 4 of the module docstring).
+
+        References
+        ----------
+        none: numerical helper (pocketfft of scipy.fft or numpy.fft)
+        """
+        self.transforms["c2r"] += 1
+        return self._fft.irfft(half, n=self.points, norm="forward", **self._scratch)
+
+
+class ScipyTransforms(_PocketTransforms):
+    """scipy.fft back end, with threads (``workers``). scipy.fft is imported here, when the back
+    end is made (a command run with pyFFTW or numpy's FFT needs no part of scipy)."""
 
     name = "scipy"
 
-    def __init__(self, points: int, workers: int = 1) -> None:
+    def _module(self, workers: int):
         from scipy import fft as sfft
 
-        self._fft = sfft
-        self.points, self.workers = points, workers
-        self.spectrum_in = np.zeros(points, complex)
-        self.real_in = np.zeros(points)
-        self.transforms = {"c2c": 0, "r2c": 0, "c2r": 0}
-
-    def forward(self) -> np.ndarray:
-        """Unnormalised FFT of ``spectrum_in`` (item 2 of the module docstring).
-
-        References
-        ----------
-        none: numerical helper (scipy.fft)
-        """
-        self.transforms["c2c"] += 1
-        return self._fft.fft(self.spectrum_in, workers=self.workers)
-
-    def backward(self, source: np.ndarray, out: np.ndarray) -> None:
-        """Unnormalised inverse FFT of ``source`` into ``out`` (item 3 of the module docstring).
-
-        References
-        ----------
-        none: numerical helper (scipy.fft)
-        """
-        self.transforms["c2c"] += 1
-        out[...] = self._fft.ifft(source, norm="forward", overwrite_x=True,
-                                  workers=self.workers)
-
-    def real_forward(self) -> np.ndarray:
-        """Unnormalised real FFT of ``real_in`` (item 4 of the module docstring).
-
-        References
-        ----------
-        none: numerical helper (scipy.fft)
-        """
-        self.transforms["r2c"] += 1
-        return self._fft.rfft(self.real_in, workers=self.workers)
-
-    def real_backward(self, half: np.ndarray) -> np.ndarray:
-        """Unnormalised inverse real FFT of ``half`` (item 4 of the module docstring).
-
-        References
-        ----------
-        none: numerical helper (scipy.fft)
-        """
-        self.transforms["c2r"] += 1
-        return self._fft.irfft(half, n=self.points, norm="forward", overwrite_x=True,
-                          workers=self.workers)
+        return sfft, {"workers": workers}, {"workers": workers, "overwrite_x": True}
 
 
-class NumpyTransforms:
-    """numpy.fft (pocketfft) back end: no import beyond numpy, no threads; each transform
-    returns a new array that is reused."""
+class NumpyTransforms(_PocketTransforms):
+    """numpy.fft back end: no import beyond numpy, no threads."""
 
     name = "numpy"
 
-    def __init__(self, points: int, workers: int = 1) -> None:
-        self.points, self.workers = points, workers
-        self.spectrum_in = np.zeros(points, complex)
-        self.real_in = np.zeros(points)
-        self.transforms = {"c2c": 0, "r2c": 0, "c2r": 0}
-
-    def forward(self) -> np.ndarray:
-        """Unnormalised FFT of ``spectrum_in`` (item 2 of the module docstring).
-
-        References
-        ----------
-        none: numerical helper (numpy.fft)
-        """
-        self.transforms["c2c"] += 1
-        return np.fft.fft(self.spectrum_in)
-
-    def backward(self, source: np.ndarray, out: np.ndarray) -> None:
-        """Unnormalised inverse FFT of ``source`` into ``out`` (item 3 of the module docstring).
-
-        References
-        ----------
-        none: numerical helper (numpy.fft)
-        """
-        self.transforms["c2c"] += 1
-        if _NUMPY_FFT_OUT and out.flags.c_contiguous and out.dtype == complex:
-            np.fft.ifft(source, norm="forward", out=out)
-        else:
-            out[...] = np.fft.ifft(source, norm="forward")
-
-    def real_forward(self) -> np.ndarray:
-        """Unnormalised real FFT of ``real_in`` (item 4 of the module docstring).
-
-        References
-        ----------
-        none: numerical helper (numpy.fft)
-        """
-        self.transforms["r2c"] += 1
-        return np.fft.rfft(self.real_in)
-
-    def real_backward(self, half: np.ndarray) -> np.ndarray:
-        """Unnormalised inverse real FFT of ``half`` (item 4 of the module docstring).
-
-        References
-        ----------
-        none: numerical helper (numpy.fft)
-        """
-        self.transforms["c2r"] += 1
-        return np.fft.irfft(half, n=self.points, norm="forward")
-
-
-#: numpy.fft writes into a given array (``out=``) from numpy 2.0 on.
-_NUMPY_FFT_OUT = int(np.__version__.split(".")[0]) >= 2
+    def _module(self, workers: int):
+        return np.fft, {}, {}
 
 
 class FftwTransforms:
