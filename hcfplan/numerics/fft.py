@@ -59,20 +59,17 @@ FFTW_PLANNING_LIMIT = 10.0
 
 class _PocketTransforms:
     """The pocketfft back ends (scipy.fft and numpy.fft): each transform returns a new array that
-    is reused. A subclass names its module and the options it takes (:meth:`_module`)."""
+    is reused. ``fft`` is the module, ``threads`` the options of every transform and ``scratch``
+    those of a transform whose input may be destroyed."""
 
     name = ""
 
-    def __init__(self, points: int, workers: int = 1) -> None:
+    def __init__(self, points: int, workers: int, fft, threads: dict, scratch: dict) -> None:
         self.points, self.workers = points, workers
-        self._fft, self._threads, self._scratch = self._module(workers)
+        self._fft, self._threads, self._scratch = fft, threads, scratch
         self.spectrum_in = np.zeros(points, complex)
         self.real_in = np.zeros(points)
         self.transforms = {"c2c": 0, "r2c": 0, "c2r": 0}
-
-    def _module(self, workers: int):
-        """(FFT module, options of every transform, options where the input may be destroyed)."""
-        raise NotImplementedError
 
     def forward(self) -> np.ndarray:
         """Unnormalised FFT of ``spectrum_in`` (item 2 of the module docstring).
@@ -121,10 +118,11 @@ class ScipyTransforms(_PocketTransforms):
 
     name = "scipy"
 
-    def _module(self, workers: int):
+    def __init__(self, points: int, workers: int = 1) -> None:
         from scipy import fft as sfft
 
-        return sfft, {"workers": workers}, {"workers": workers, "overwrite_x": True}
+        super().__init__(points, workers, sfft, {"workers": workers},
+                         {"workers": workers, "overwrite_x": True})
 
 
 class NumpyTransforms(_PocketTransforms):
@@ -132,8 +130,8 @@ class NumpyTransforms(_PocketTransforms):
 
     name = "numpy"
 
-    def _module(self, workers: int):
-        return np.fft, {}, {}
+    def __init__(self, points: int, workers: int = 1) -> None:
+        super().__init__(points, workers, np.fft, {}, {})
 
 
 class FftwTransforms:
