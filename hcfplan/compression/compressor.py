@@ -422,10 +422,10 @@ def optimize_bounces(
     if chain.trim is not None:
         phases = [chain.phase(k, l) for k, l in zip(counts, trims, strict=True)]
         curve_trim = -scores if by_peak else peak_powers(score, phases)
-    limit = refs[2].metrics  # its transform limit: that of the same clipped spectrum
+    limit = refs[2].metrics  # refs: quadratic, quadratic_cubic, transform_limit (same spectrum)
     result_metrics = pulse_metrics(
         grid, field_t, input_peak_power=input_peak_power,
-        limit=(limit.transform_limited_fwhm, limit.transform_limited_peak_power))
+        transform_limit=(limit.transform_limited_fwhm, limit.transform_limited_peak_power))
     return CompressionResult(
         grid=grid,
         objective=objective,

@@ -56,11 +56,12 @@ def _reference(
     grid: Grid, name: str, phase: np.ndarray, spectrum: np.ndarray, peak_in: float | None,
     limit: tuple[float, float],
 ) -> ReferencePulse:
-    """Build a :class:`ReferencePulse` from an applied total phase (``limit``: FWHM and peak
-    power of the transform limit of ``spectrum``)."""
+    """Build a :class:`ReferencePulse` from an applied total phase (``limit``: FWHM [s] and
+    peak power [W] of the transform limit of ``spectrum``)."""
     field_t = grid.to_time(spectrum * np.exp(1j * phase))
     _, _, gdd, tod = phase_derivatives_at(grid.omega, grid.omega_pump, phase)
-    reference_metrics = pulse_metrics(grid, field_t, input_peak_power=peak_in, limit=limit)
+    reference_metrics = pulse_metrics(grid, field_t, input_peak_power=peak_in,
+                                      transform_limit=limit)
     return ReferencePulse(name, gdd, tod, field_t, reference_metrics)
 
 
@@ -175,7 +176,7 @@ def reference_pulses(
         float("nan"),
         float("nan"),
         tl_field,
-        pulse_metrics(grid, tl_field, input_peak_power=peak_in, limit=limit),
+        pulse_metrics(grid, tl_field, input_peak_power=peak_in, transform_limit=limit),
     )
     return (
         _reference(grid, "quadratic", fixed + polynomial_phase(grid, gdd_q, 0.0), clipped,

@@ -148,7 +148,9 @@ class Scorer:
       (:func:`~hcfplan.numerics.fft.shared_transforms`, pyFFTW when it is installed).
 
     The score is the same function of the phase as ``objective(grid, grid.to_time(spectrum *
-    exp(i phase)))``; only rounding differs.
+    exp(i phase)))``; only rounding differs. A scorer and the copies made by :meth:`with_phase`
+    and :meth:`with_objective` share their buffers (the FFT back end of the thread that made the
+    scorer, and the array of exp(i phase)): use them from that thread only.
     """
 
     def __init__(self, grid: Grid, spectrum: np.ndarray,

@@ -292,16 +292,17 @@ def import_pyfftw():
     return pyfftw
 
 
-def default_backend(points: int | None = None) -> str:
+def default_backend(points: int | None = None, *, next_run: bool = False) -> str:
     """``"numpy"`` for a problem of ``points`` that the ``"auto"`` kernel policy gives to the
     numpy twins (module docstring); else ``"fftw"`` when pyFFTW is installed, else
-    ``"scipy"``.
+    ``"scipy"``. ``next_run``: asked for a solver run about to start, whose kernels the policy
+    chooses when it starts (:func:`~hcfplan.numerics.kernel_choice.compiled`).
 
     References
     ----------
     none: numerical helper
     """
-    if points is not None and policy() == "auto" and not compiled(points):
+    if points is not None and policy() == "auto" and not compiled(points, next_run=next_run):
         return "numpy"
     return "fftw" if fftw_available() else "scipy"
 

@@ -131,7 +131,8 @@ def policy() -> str:
     return environment_policy() or _chosen["policy"]
 
 
-def compiled(size: int, numpy_limit: int = AUTO_NUMPY_POINTS, *, new_run: bool = False) -> bool:
+def compiled(size: int, numpy_limit: int = AUTO_NUMPY_POINTS, *, new_run: bool = False,
+             next_run: bool = False) -> bool:
     """True when a problem of ``size`` runs on the compiled kernels under the policy in force.
 
     Parameters
@@ -145,6 +146,9 @@ def compiled(size: int, numpy_limit: int = AUTO_NUMPY_POINTS, *, new_run: bool =
         The question starts a solver run (counted against :data:`AUTO_NUMPY_RUNS` when
         ``"auto"`` would choose the numpy twins). The other questions of the run get the same
         answer.
+    next_run : bool
+        The answer that ``new_run`` would give, without counting the run (asked before a run
+        starts, e.g. for its FFT back end).
 
     References
     ----------
@@ -159,4 +163,4 @@ def compiled(size: int, numpy_limit: int = AUTO_NUMPY_POINTS, *, new_run: bool =
         return True
     if new_run:
         _chosen["runs"] += 1
-    return _chosen["runs"] > AUTO_NUMPY_RUNS
+    return _chosen["runs"] + (1 if next_run else 0) > AUTO_NUMPY_RUNS

@@ -450,8 +450,9 @@ def nelder_mead(
     sim, fsim = sim[order], fsim[order]
     converged = False
     for _ in range(maxiter):
-        if (np.max(np.abs(sim[1:] - sim[0])) <= xatol
-                and np.max(np.abs(fsim[1:] - fsim[0])) <= fatol):
+        with np.errstate(invalid="ignore"):  # inf - inf where every value is inf: not converged
+            spread = np.max(np.abs(fsim[1:] - fsim[0]))
+        if np.max(np.abs(sim[1:] - sim[0])) <= xatol and spread <= fatol:
             converged = True
             break
         worst = sim[-1]

@@ -8,7 +8,7 @@ settings come as one :class:`~.options.SolverOptions`, whose fields are checked 
 
 Sampling: each interval between two record positions is divided into equal steps no longer
 than the step the controller proposes, so the records are hit exactly (no interpolation). An
-adaptive stepper may take up to ``STRETCH`` times its proposal to reach a record in fewer equal
+adaptive stepper may take up to ``STEP_OVERSHOOT`` times its proposal to reach a record in fewer
 steps: the proposal is ``SAFETY`` (0.9) times the error-optimal step, so its error estimate is
 about 0.9^4 = 0.66 of the tolerance and 1.1 times that step still about 0.96 of it (an
 attempt above the tolerance is rejected as always). Without it, an interval 1.05 times the
@@ -60,9 +60,9 @@ from hcfplan.propagation.steppers import STEPPERS, StepState
 #: Within a sampling interval the step is re-planned when the controller proposes this factor
 #: more (a longer step saves steps, a new length costs one complex exp ~ 3 FFTs).
 REPLAN_GROWTH = 1.2
-#: Most an adaptive step may exceed the controller's proposal to reach the next record or
-#: stretch boundary in fewer equal steps (module docstring).
-STRETCH = 1.1
+#: Most an adaptive step may exceed the controller's proposal to reach the next record (or
+#: the end of a gradient's segment) in fewer equal steps (module docstring).
+STEP_OVERSHOOT = 1.1
 #: Field energy outside the model's valid band above which a warning is given. [fraction]
 INVALID_BAND_LIMIT = 1e-6
 #: The options of a call without ``options``.
@@ -157,7 +157,7 @@ def _build(grid, waveguide, gas, options: SolverOptions, length: float | None = 
     f_inst, response, notes = delayed_response(grid, waveguide, gas)
     plasma = ionizing_gas(grid, waveguide, gas, options.ionization_model)
     area = float(getattr(waveguide, "peak_intensity_area", math.nan))
-    backend = options.fft_backend or default_backend(grid.points)
+    backend = options.fft_backend or default_backend(grid.points, next_run=True)
     nonlinear = NonlinearTerms(grid, gamma, f_inst, response, plasma.species, area,
                                options.workers, backend)
     return lin, nonlinear, notes + list(plasma.notes)
@@ -364,14 +364,14 @@ def run_stepping(u0: np.ndarray, length: float, stages: Stages, recorder, run: R
     return state, counters, status, message
 
 
-def _next_step(state, target: float, current: float | None, stretch: float = 1.0) -> float:
-    """Step for the next attempt: equal steps to the target, each at most ``stretch`` times the
+def _next_step(state, target: float, current: float | None, overshoot: float = 1.0) -> float:
+    """Step for the next attempt: equal steps to the target, each at most ``overshoot`` times the
     proposal ``state.h``, kept unless the proposal is shorter or longer by ``REPLAN_GROWTH``
     (a new step length costs a new exp(L h/2))."""
     remaining = target - state.z
     if (current is None
-            or not current * (1 - 1e-9) <= stretch * state.h < REPLAN_GROWTH * current):
-        return remaining / max(1, math.ceil(remaining / (stretch * state.h) * (1 - 1e-12)))
+            or not current * (1 - 1e-9) <= overshoot * state.h < REPLAN_GROWTH * current):
+        return remaining / max(1, math.ceil(remaining / (overshoot * state.h) * (1 - 1e-12)))
     return remaining / max(1, round(remaining / current))
 
 
@@ -385,10 +385,10 @@ def _advance(state, runner, stages: Stages, positions, recorder, counters,
     stop = options.stop_ionization_fraction
     length, floor = targets[-1], control.MIN_STEP_FRACTION * targets[-1]
     index, attempts, h = 1, 0, None
-    stretch = STRETCH if runner.adaptive else 1.0
+    overshoot = STEP_OVERSHOOT if runner.adaptive else 1.0
     while index < targets.size:
         proposal = state.h
-        h = _next_step(state, float(targets[index]), h, stretch)
+        h = _next_step(state, float(targets[index]), h, overshoot)
         accepted, reason = runner.step(state, h)
         attempts += 1
         if accepted:

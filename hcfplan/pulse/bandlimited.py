@@ -122,7 +122,7 @@ def upsample(field_t: np.ndarray, factor: int) -> np.ndarray:
     return rows.T.ravel()  # sample k factor + m is row m, column k
 
 
-@lru_cache(maxsize=8)
+@lru_cache(maxsize=2)
 def _offset_phases(points: int, factor: int) -> np.ndarray:
     """exp(-2 pi i j' m / (factor N)) for m = 0..factor-1 (rows) and the bins j (columns): j' = j
     for j < N/2, j - N above (the Nyquist bin negative as in ``grid.domega``)."""

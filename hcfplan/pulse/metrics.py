@@ -490,9 +490,10 @@ class PulseMetrics:
 
 def pulse_metrics(
     grid: Grid, field_t: np.ndarray, *, input_peak_power: float | None = None,
-    limit: tuple[float, float] | None = None,
+    transform_limit: tuple[float, float] | None = None,
 ) -> PulseMetrics:
-    """All metrics of one pulse; the transform limit is that of its own spectrum.
+    """All metrics of one pulse; the transform limit is that of its own spectrum (or the one
+    the caller gives for the same spectral modulus).
 
     Parameters
     ----------
@@ -502,7 +503,7 @@ def pulse_metrics(
         Temporal envelope on ``grid.time``. [sqrt(W)]
     input_peak_power : float, optional
         Peak power before the fiber or compressor, for the gain. [W]
-    limit : (float, float), optional
+    transform_limit : (float, float), optional
         FWHM [s] and peak power [W] of the transform limit where the caller has them for the
         same spectral modulus (:func:`transform_limit_metrics`; the compressor's pulses differ
         from their references only in the phase); else they are computed here.
@@ -514,9 +515,9 @@ def pulse_metrics(
     time, fine = fine_envelope(grid, field_t)
     power = np.abs(fine) ** 2
     peak = peak_power(field_t)
-    if limit is None:
-        limit = transform_limit_metrics(grid, grid.to_spectrum(field_t))
-    tl_fwhm, tl_peak = limit
+    if transform_limit is None:
+        transform_limit = transform_limit_metrics(grid, grid.to_spectrum(field_t))
+    tl_fwhm, tl_peak = transform_limit
     t_lo, t_hi, fraction = main_lobe(time, power)
     pre, post = pre_post_pulse_energy(time, power)
     gain = peak / input_peak_power if input_peak_power else float("nan")

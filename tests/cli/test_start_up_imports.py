@@ -55,11 +55,33 @@ def _scipy_modules(code: str, *args: str) -> list[str]:
 
 def test_demo_run_imports_no_scipy_submodule(tmp_path):
     # the chain, summary.json, fields.npz and report.html of README command 1 (figures: below);
-    # the first run fills the session's cache (the ionisation rate tables, whose computation
-    # uses scipy.special), as the first run on a machine does; the second is the usual run
+    # the first run fills the test run's cache folder (the ionisation rate tables, whose
+    # computation uses scipy.special), as the first run on a machine does; the second is the
+    # usual run
     _scipy_modules(CHAIN, str(tmp_path / "first"))
     assert _scipy_modules(CHAIN, str(tmp_path / "run")) == []
 
 
 def test_figure_helper_preload_imports_no_scipy_submodule():
     assert _scipy_modules(HELPER) == []
+
+
+def test_the_command_itself_imports_no_scipy_submodule(tmp_path):
+    # README command 1 as a user runs it (the command line, the run, its files and report;
+    # the figures are drawn by the helper, checked above): `python -X importtime` lists every
+    # module the process imported; a first run fills the cache folder
+    def imported(out):
+        done = subprocess.run(
+            [sys.executable, "-X", "importtime", "-m", "hcfplan", "simulate",
+             "configs/yb_arf_argon.toml", "--out", str(out), "--quiet", "--no-figures"],
+            cwd=ROOT, env=env(), capture_output=True, text=True, timeout=600, check=True)
+        return [line.rsplit("|", 1)[-1].strip() for line in done.stderr.splitlines()
+                if line.startswith("import time:")]
+
+    imported(tmp_path / "first")
+    modules = imported(tmp_path / "run")
+    assert "hcfplan.planning.chain" in modules  # the log is read right
+    scipy_parts = [m for m in modules if m.startswith("scipy.")
+                   and (not m.split(".")[1].startswith("_") and m != "scipy.version"
+                        or m.startswith("scipy._lib._array_api"))]
+    assert scipy_parts == []

@@ -105,3 +105,20 @@ def test_a_command_run_in_a_program_leaves_its_policy():
     kernel_choice.set_policy("numpy")
     assert main(["--version"]) == 0
     assert kernel_choice.policy() == "numpy"
+
+
+def test_the_fft_back_end_follows_the_kernels_of_each_run(monkeypatch):
+    # consistency: under "auto" a run on the numpy twins also transforms with numpy's FFT; the
+    # back end is asked before the run starts (next_run), the kernels when it starts (new_run),
+    # and both answers agree for the first runs and after AUTO_NUMPY_RUNS (no source needed)
+    from hcfplan.numerics import fft
+
+    kc = kernel_choice
+    monkeypatch.delenv(kc.VARIABLE, raising=False)
+    monkeypatch.delitem(sys.modules, "numba", raising=False)
+    with kc.policy_set("auto"):
+        for _ in range(kc.AUTO_NUMPY_RUNS + 2):
+            backend = fft.default_backend(2048, next_run=True)
+            uses_compiled = kc.compiled(2048, new_run=True)
+            assert (backend == "numpy") == (not uses_compiled)
+        assert uses_compiled  # the last runs take the compiled kernels and pyFFTW or scipy
