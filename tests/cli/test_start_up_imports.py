@@ -47,7 +47,12 @@ def _scipy_modules(code: str, *args: str) -> list[str]:
     layer."""
     done = subprocess.run([sys.executable, "-c", code, *args], cwd=ROOT, env=env(),
                           capture_output=True, text=True, timeout=600, check=True)
-    modules = json.loads(done.stdout.strip().splitlines()[-1])
+    return _heavy(json.loads(done.stdout.strip().splitlines()[-1]))
+
+
+def _heavy(modules: list[str]) -> list[str]:
+    """The scipy modules among ``modules`` beyond scipy's package file: the public subpackages
+    and the array-API layer."""
     return [m for m in modules if m.startswith("scipy.")
             and (not m.split(".")[1].startswith("_") and m != "scipy.version"
                  or m.startswith("scipy._lib._array_api"))]
@@ -81,7 +86,4 @@ def test_the_command_itself_imports_no_scipy_submodule(tmp_path):
     imported(tmp_path / "first")
     modules = imported(tmp_path / "run")
     assert "hcfplan.planning.chain" in modules  # the log is read right
-    scipy_parts = [m for m in modules if m.startswith("scipy.")
-                   and (not m.split(".")[1].startswith("_") and m != "scipy.version"
-                        or m.startswith("scipy._lib._array_api"))]
-    assert scipy_parts == []
+    assert _heavy(modules) == []
