@@ -62,19 +62,8 @@ class ModeRecorder(Recorder):
         a, ionization = self._time_fields(u)  # a = points dt A_m(t)
         scale = 1.0 / (grid.points * grid.dt) ** 2
         peak, axis_peak, far_time = self._peaks(a, scale)
-        self.z[i] = z
-        values = self.values
-        values["energy"][i] = energy
-        values["peak_power"][i] = peak
-        values["peak_intensity"][i] = axis_peak
-        values["ionization"][i], values["electrons"][i] = ionization
-        values["bandwidth"][i] = kn.outermost_width(
-            self._frequency_sorted, self._density_sorted, self._bandwidth_level)
-        if energy > 0:
-            self.edge_frequency.update(grid.dnu * far_sum / energy, z)
-            self.edge_time.update(grid.dt * far_time / energy, z)
-            self._check_resonance(z, band_sum, band_moment, energy)
-        self.count += 1
+        self._store(z, energy, (peak, axis_peak), ionization,
+                    (far_sum, far_time, band_sum, band_moment))
 
     def _time_fields(self, u: np.ndarray) -> tuple[np.ndarray, tuple[float, float]]:
         """The envelopes points dt A_m(t) of the flat state ``u`` (through the nonlinear terms'
@@ -85,15 +74,13 @@ class ModeRecorder(Recorder):
         over the nodes."""
         plasma = self.plasma
         terms = plasma if plasma is not None else self._nonlinear
-        same = plasma is not None and np.array_equal(terms.input, u)
-        if not same:
+        known = self._evaluated_ionization(u)  # None without plasma terms
+        if known is None:
             terms.input[...] = u
         a = terms.fft.forward()
         if plasma is None:
             return a, (0.0, 0.0)
-        if same:
-            return a, (plasma.ionization_fraction, plasma.electron_line_density)
-        return a, plasma.ionization_of(a)
+        return a, known if known is not None else plasma.ionization_of(a)
 
     def _peaks(self, a: np.ndarray, scale: float) -> tuple[float, float, float]:
         """Whole-beam peak power [W], peak on-axis intensity [W/m^2] and the power summed over

@@ -171,13 +171,23 @@ class Recorder:
             self._band, self._band_wavelength)
         energy = total * grid.dnu
         power, peak, far_time = self._power(u)
+        self._store(z, energy, (peak, peak / self.intensity_area),
+                    self._ionization(power) if known is None else known,
+                    (far_sum, far_time, band_sum, band_moment))
+
+    def _store(self, z: float, energy: float, peaks: tuple[float, float],
+               ionization: tuple[float, float], sums: tuple[float, float, float, float]) -> None:
+        """Store record ``count`` at ``z``: the energy [J], ``peaks`` (peak power [W], peak
+        intensity [W/m^2]), ``ionization`` (fraction, electron line density [1/m]) and ``sums``
+        (spectral density and power in the outer zones, density and wavelength moment in the
+        resonance bands, from the fused passes), the bandwidth of the sorted density, and the
+        edge and resonance checks; then count it."""
+        i, grid, values = self.count, self.grid, self.values
+        far_sum, far_time, band_sum, band_moment = sums
         self.z[i] = z
-        values = self.values
         values["energy"][i] = energy
-        values["peak_power"][i] = peak
-        values["peak_intensity"][i] = peak / self.intensity_area
-        values["ionization"][i], values["electrons"][i] = (
-            self._ionization(power) if known is None else known)
+        values["peak_power"][i], values["peak_intensity"][i] = peaks
+        values["ionization"][i], values["electrons"][i] = ionization
         # metrics.spectral_width, compiled (kernels.outermost_width)
         values["bandwidth"][i] = self._kernels.outermost_width(
             self._frequency_sorted, self._density_sorted, self._bandwidth_level)
