@@ -165,7 +165,7 @@ def reference_pulses(
            Press, 2006, ch. 1 [from memory] (Taylor expansion of the spectral phase).
     """
     tl_field = metrics.transform_limit(grid, clipped)
-    limit = (metrics.envelope_fwhm(grid, tl_field), metrics.peak_power(tl_field))
+    limit = metrics.transform_limit_metrics(grid, tl_field)
     scale = limit[0] if np.isfinite(limit[0]) else 10.0 * grid.dt
     gdd_center, tod_center, gdd_span = compressor
     shaped = score.with_phase(score.part(fixed))

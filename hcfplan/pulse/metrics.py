@@ -275,16 +275,22 @@ def transform_limit(grid: Grid, spectrum: np.ndarray) -> np.ndarray:
     return np.fft.fftshift(grid.to_time(np.abs(spectrum).astype(complex)))
 
 
-def transform_limit_metrics(grid: Grid, spectrum: np.ndarray) -> tuple[float, float]:
-    """FWHM [s] and peak power [W] of the transform limit of ``spectrum`` (FFT order; only its
-    modulus counts), as :func:`pulse_metrics` reports them.
+def transform_limit_metrics(grid: Grid, limited: np.ndarray) -> tuple[float, float]:
+    """FWHM [s] and peak power [W] of a transform-limited envelope (:func:`transform_limit`),
+    as :func:`pulse_metrics` reports them for its transform limit.
 
     References
     ----------
     none: numerical helper.
     """
-    tl_field = transform_limit(grid, spectrum)
-    return envelope_fwhm(grid, tl_field), peak_power(tl_field)
+    return envelope_fwhm(grid, limited), peak_power(limited)
+
+
+def _own_transform_limit(grid: Grid, field_t: np.ndarray) -> tuple[float, float]:
+    """:func:`transform_limit_metrics` of the transform limit of ``field_t``'s own spectrum
+    (apart from :func:`pulse_metrics`, whose argument ``transform_limit`` hides the function
+    of that name)."""
+    return transform_limit_metrics(grid, transform_limit(grid, grid.to_spectrum(field_t)))
 
 
 def transform_limited_fwhm(grid: Grid, spectrum: np.ndarray) -> float:
@@ -516,7 +522,7 @@ def pulse_metrics(
     power = np.abs(fine) ** 2
     peak = peak_power(field_t)
     if transform_limit is None:
-        transform_limit = transform_limit_metrics(grid, grid.to_spectrum(field_t))
+        transform_limit = _own_transform_limit(grid, field_t)
     tl_fwhm, tl_peak = transform_limit
     t_lo, t_hi, fraction = main_lobe(time, power)
     pre, post = pre_post_pulse_energy(time, power)
