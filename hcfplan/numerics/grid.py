@@ -174,13 +174,13 @@ class Grid:
 
         ``workers`` > 1: scipy.fft with that many threads (numpy.fft otherwise, which keeps
         scipy out of a command that needs no other part of it)."""
-        return _inverse(field_t, workers) * (self.points * self.dt)
+        return _transform("ifft", field_t, workers) * (self.points * self.dt)
 
     def to_time(self, spectrum: np.ndarray, *, workers: int | None = None) -> np.ndarray:
         """Temporal envelope from the spectral amplitude (convention 2). [sqrt(W)]
 
         ``workers``: as in :meth:`to_spectrum`."""
-        return _forward(spectrum, workers) / (self.points * self.dt)
+        return _transform("fft", spectrum, workers) / (self.points * self.dt)
 
     def energy_t(self, field_t: np.ndarray) -> float:
         """Pulse energy from the temporal envelope, sum |A|^2 dt. [J]"""
@@ -195,22 +195,14 @@ class Grid:
         return np.fft.fftshift(array, axes=-1)
 
 
-def _forward(array: np.ndarray, workers: int | None) -> np.ndarray:
-    """Unnormalised FFT along the last axis (numpy.fft; scipy.fft for ``workers`` > 1)."""
+def _transform(name: str, array: np.ndarray, workers: int | None) -> np.ndarray:
+    """``fft`` or ``ifft`` (with 1/N) along the last axis: numpy.fft, or scipy.fft for
+    ``workers`` > 1 (threads)."""
     if workers is not None and workers != 1:
         from scipy import fft as sfft
 
-        return sfft.fft(array, axis=-1, workers=workers)
-    return np.fft.fft(array, axis=-1)
-
-
-def _inverse(array: np.ndarray, workers: int | None) -> np.ndarray:
-    """Inverse FFT (with 1/N) along the last axis (numpy.fft; scipy.fft for ``workers`` > 1)."""
-    if workers is not None and workers != 1:
-        from scipy import fft as sfft
-
-        return sfft.ifft(array, axis=-1, workers=workers)
-    return np.fft.ifft(array, axis=-1)
+        return getattr(sfft, name)(array, axis=-1, workers=workers)
+    return getattr(np.fft, name)(array, axis=-1)
 
 
 def fft_friendly_size(n_min: int) -> int:
