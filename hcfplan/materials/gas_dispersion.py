@@ -264,7 +264,7 @@ def _join(delta: Callable[[np.ndarray], np.ndarray], band: tuple[float, float],
     fits per wavelength instead of one per quadrature node (the zero-dispersion search
     evaluates the gas index at about 10^5 wavelengths, mostly inside the bands). Where Delta's
     series does not converge, Gauss-Legendre quadrature on [lo, min(lambda, hi)]
-    (:data:`QUADRATURE_NODES` nodes, :func:`_join_by_quadrature`). ``size``: as in
+    (:data:`QUADRATURE_NODES` nodes, :func:`_quadrature_integral`). ``size``: as in
     :func:`_band_series`."""
     lo, hi = band
     if not upward:  # mirror: lambda -> -lambda turns the band below the anchor into one above
@@ -275,29 +275,25 @@ def _join(delta: Callable[[np.ndarray], np.ndarray], band: tuple[float, float],
     beyond = wavelength > lo
     if not np.any(beyond):
         return out
+    lam = wavelength[beyond]
     series = _band_series(delta, band, size)
     if series is None:
-        return _join_by_quadrature(delta, band, wavelength)
-    lam = wavelength[beyond]
-    centre, half_width = 0.5 * (lo + hi), 0.5 * (hi - lo)
-    t = np.minimum(lam, hi)
-    t = (t - centre) / half_width
-    cheb = np.polynomial.chebyshev
-    integral = (lam - centre) * cheb.chebval(t, series[0]) - cheb.chebval(t, series[1])
+        integral = _quadrature_integral(delta, band, lam)
+    else:
+        centre, half_width = 0.5 * (lo + hi), 0.5 * (hi - lo)
+        t = (np.minimum(lam, hi) - centre) / half_width
+        cheb = np.polynomial.chebyshev
+        integral = (lam - centre) * cheb.chebval(t, series[0]) - cheb.chebval(t, series[1])
     out[beyond] = switch_weight(lam, band) * delta(lam) + integral
     return out
 
 
-def _join_by_quadrature(delta: Callable[[np.ndarray], np.ndarray], band: tuple[float, float],
-                        wavelength: np.ndarray) -> np.ndarray:
-    """D(lambda) of a band above the anchor by Gauss-Legendre quadrature on [lo, min(lambda,
-    hi)]; the nodes of the wavelengths beyond the band (all the same) are evaluated once."""
+def _quadrature_integral(delta: Callable[[np.ndarray], np.ndarray], band: tuple[float, float],
+                         lam: np.ndarray) -> np.ndarray:
+    """The integral of the join from lo to min(lambda, hi) for the wavelengths ``lam`` > lo of
+    a band above the anchor, by Gauss-Legendre quadrature; the nodes of the wavelengths beyond
+    the band (all the same) are evaluated once."""
     lo, hi = band
-    out = np.zeros_like(wavelength)
-    beyond = wavelength > lo
-    if not np.any(beyond):
-        return out
-    lam = wavelength[beyond]
     top = np.minimum(lam, hi)
     half = 0.5 * (top - lo)
     # every point beyond the band has the same nodes (top = hi): the fits and the weights are
@@ -312,9 +308,7 @@ def _join_by_quadrature(delta: Callable[[np.ndarray], np.ndarray], band: tuple[f
     s = s_rows[row]
     kernel = ((lam[:, None] - s) * switch_weight(s_rows, band, 2)[row]
               - 2.0 * switch_weight(s_rows, band, 1)[row])
-    integral = half * np.sum(_GL_W[None, :] * kernel * values, axis=1)
-    out[beyond] = switch_weight(lam, band) * delta(lam) + integral
-    return out
+    return half * np.sum(_GL_W[None, :] * kernel * values, axis=1)
 
 
 def combined_term(record: CombinedDispersion, wavelength: np.ndarray,
